@@ -1,0 +1,9 @@
+import { defineConfig } from "drizzle-kit";
+
+// Only `drizzle-kit generate` is used; migrations are applied by scripts/migrate.ts
+// (docs/decisions/002-local-mariadb.md explains why not push/migrate).
+export default defineConfig({
+  dialect: "mysql",
+  schema: "./app/db/schema.ts",
+  out: "./drizzle",
+});

@@ -1,0 +1,42 @@
+#!/usr/bin/env bash
+# npm start: everything a new user needs, on a fresh clone with only Node.js 20 present.
+# Installs dependencies, starts the project-local MariaDB (data in .data/), applies
+# migrations, builds, and serves the production build on http://localhost:${PORT:-3000}.
+# Ctrl-C stops all of it; the next start reuses the data.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+source scripts/lib.sh
+
+export NODE_ENV=production
+export PORT=${PORT:-3000}
+export TWISTLOG_DB_DIR=${TWISTLOG_DB_DIR:-.data/mariadb}
+
+if port_busy "$PORT"; then
+  log "port $PORT is already in use: stop the other program or choose another, e.g. PORT=3001 npm start"
+  exit 1
+fi
+
+ensure_node_modules
+
+server_pid=""
+stop_all() {
+  trap - EXIT INT TERM
+  if [ -n "$server_pid" ] && kill -0 "$server_pid" 2>/dev/null; then
+    kill -TERM "$server_pid" 2>/dev/null || true
+    wait "$server_pid" 2>/dev/null || true
+  fi
+  bash scripts/mariadb.sh stop || true
+}
+trap stop_all EXIT
+trap 'exit 130' INT TERM
+
+bash scripts/mariadb.sh start
+node_modules/.bin/tsx scripts/migrate.ts
+log "building ..."
+npm run -s build >/dev/null
+node_modules/.bin/tsx server/index.ts &
+server_pid=$!
+if wait_for_http "http://127.0.0.1:$PORT/healthz" "$server_pid" 60; then
+  log "open http://localhost:$PORT  (Ctrl-C stops the app and its database)"
+fi
+wait "$server_pid"

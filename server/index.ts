@@ -1,0 +1,75 @@
+// The HTTP server: serves the React Router build (or Vite in development) with Express.
+// A custom server rather than react-router-serve so that later background services
+// (worker pool, fake mail server) start and stop with the app (docs/decisions/003-custom-server.md).
+import { createRequestHandler } from "@react-router/express";
+import compression from "compression";
+import express from "express";
+import type { ServerBuild } from "react-router";
+import { EnvError, getEnv } from "../app/lib/env.server";
+
+let env;
+try {
+  env = getEnv();
+} catch (error) {
+  if (error instanceof EnvError) {
+    console.error(error.message);
+    process.exit(1);
+  }
+  throw error;
+}
+const { HOST, PORT, NODE_ENV } = env;
+const app = express();
+app.disable("x-powered-by");
+app.use(compression());
+
+if (NODE_ENV === "development") {
+  const vite = await import("vite");
+  const devServer = await vite.createServer({ server: { middlewareMode: true } });
+  app.use(devServer.middlewares);
+  app.use(async (req, res, next) => {
+    try {
+      const build = (await devServer.ssrLoadModule(
+        "virtual:react-router/server-build",
+      )) as ServerBuild;
+      return createRequestHandler({ build })(req, res, next);
+    } catch (error) {
+      if (error instanceof Error) devServer.ssrFixStacktrace(error);
+      next(error);
+    }
+  });
+} else {
+  const buildUrl = new URL("../build/server/index.js", import.meta.url);
+  const build = (await import(buildUrl.href)) as ServerBuild;
+  // Fingerprinted assets are immutable; everything else is revalidated.
+  app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
+  app.use(express.static("build/client", { maxAge: "1h" }));
+  app.all("/{*path}", createRequestHandler({ build, mode: NODE_ENV }));
+}
+
+const server = app.listen(PORT, HOST, () => {
+  const shown = HOST === "127.0.0.1" ? "localhost" : HOST;
+  console.log(`Twistlog is serving on http://${shown}:${PORT}`);
+});
+
+server.on("error", (error: NodeJS.ErrnoException) => {
+  if (error.code === "EADDRINUSE") {
+    console.error(
+      `Port ${PORT} on ${HOST} is already in use: stop the other program or set PORT to a free port (e.g. PORT=3001 npm start).`,
+    );
+  } else if (error.code === "EACCES") {
+    console.error(`Not allowed to listen on port ${PORT}: choose a port above 1023 with PORT.`);
+  } else {
+    console.error(`The server could not start: ${error.message}`);
+  }
+  process.exit(1);
+});
+
+function shutdown(signal: string) {
+  console.log(`${signal}: closing the server`);
+  server.close(() => process.exit(0));
+  // Open keep-alive connections must not hold the shutdown forever.
+  setTimeout(() => process.exit(0), 5_000).unref();
+  server.closeAllConnections?.();
+}
+process.on("SIGINT", () => shutdown("SIGINT"));
+process.on("SIGTERM", () => shutdown("SIGTERM"));

@@ -1,0 +1,87 @@
+import { spawn } from "node:child_process";
+import { createServer } from "node:net";
+import { fileURLToPath } from "node:url";
+
+export const repoRoot = fileURLToPath(new URL("../..", import.meta.url));
+const tsx = `${repoRoot}node_modules/.bin/tsx`;
+
+/** A TCP port on 127.0.0.1 that nothing listens on right now. */
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const probe = createServer();
+    probe.once("error", reject);
+    probe.listen(0, "127.0.0.1", () => {
+      const address = probe.address();
+      probe.close(() =>
+        typeof address === "object" && address
+          ? resolve(address.port)
+          : reject(new Error("no port")),
+      );
+    });
+  });
+}
+
+export interface Finished {
+  code: number | null;
+  stdout: string;
+  stderr: string;
+}
+
+/** Runs a TypeScript entry (script or server) with tsx and extra environment; resolves when it exits. */
+export function runTs(
+  entry: string,
+  env: Record<string, string>,
+  timeoutMs = 20_000,
+): Promise<Finished> {
+  return new Promise((resolve, reject) => {
+    const child = spawn(tsx, [entry], {
+      cwd: repoRoot,
+      env: { ...process.env, ...env },
+      stdio: ["ignore", "pipe", "pipe"],
+    });
+    let stdout = "";
+    let stderr = "";
+    child.stdout.on("data", (d) => (stdout += d));
+    child.stderr.on("data", (d) => (stderr += d));
+    const timer = setTimeout(() => child.kill("SIGKILL"), timeoutMs);
+    child.on("error", reject);
+    child.on("close", (code) => {
+      clearTimeout(timer);
+      resolve({ code, stdout, stderr });
+    });
+  });
+}
+
+/** Starts the production server (build/ must exist) and resolves once it prints that it is serving. */
+export async function startServer(
+  env: Record<string, string>,
+): Promise<{ url: string; stop: () => Promise<void> }> {
+  const port = await freePort();
+  const child = spawn(tsx, ["server/index.ts"], {
+    cwd: repoRoot,
+    env: { ...process.env, NODE_ENV: "production", PORT: String(port), ...env },
+    stdio: ["ignore", "pipe", "pipe"],
+  });
+  let output = "";
+  await new Promise<void>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error(`server did not start: ${output}`)), 20_000);
+    const onData = (d: Buffer) => {
+      output += d;
+      if (output.includes("is serving on")) {
+        clearTimeout(timer);
+        resolve();
+      }
+    };
+    child.stdout.on("data", onData);
+    child.stderr.on("data", onData);
+    child.on("exit", (code) => reject(new Error(`server exited with ${code}: ${output}`)));
+  });
+  return {
+    url: `http://127.0.0.1:${port}`,
+    stop: () =>
+      new Promise((resolve) => {
+        child.once("exit", () => resolve());
+        child.kill("SIGTERM");
+      }),
+  };
+}

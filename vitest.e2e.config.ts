@@ -1,0 +1,17 @@
+import { fileURLToPath } from "node:url";
+import { defineConfig } from "vitest/config";
+
+// Browser tests: real Chromium (Debian's /usr/bin/chromium via playwright-core) against the
+// production build that scripts/test.sh serves at TWISTLOG_BASE_URL.
+export default defineConfig({
+  resolve: {
+    alias: { "~": fileURLToPath(new URL("./app", import.meta.url)) },
+  },
+  test: {
+    include: ["tests/e2e/**/*.test.ts"],
+    environment: "node",
+    testTimeout: 60_000,
+    hookTimeout: 60_000,
+    fileParallelism: false,
+  },
+});
