@@ -1,0 +1,298 @@
+/**
+ * The analysis pipeline: drive log in, result JSON out (DESIGN.md §4; method and defaults in
+ * docs/signal-computation.md). Pure computation; errors come back as values.
+ */
+import { firingOrder as firingOrderOf, RPM_PER_RAD_S, type Stroke } from "./firing-order.ts";
+import { findResonance, gearboxNoiseFloor, isolationCurve } from "./isolation.ts";
+import { orderCurve, orderMap, round } from "./order-curves.ts";
+import {
+  butterworthLowpass4,
+  chooseAngleGrid,
+  filtfilt,
+  integrateAngle,
+  MAX_SAMPLES_PER_REV,
+  trackBlocks,
+} from "./order-tracking.ts";
+import { rattleCheck } from "./rattle.ts";
+import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
+import { findSegments } from "./segments.ts";
+import { pickSpectrumSegment, timeSpectrum } from "./time-spectrum.ts";
+import { fitTwoMassModel } from "./two-mass-model.ts";
+import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
+
+export interface AnalysisOptions {
+  /** Cylinder count z. Default 4. */
+  cylinders?: number;
+  /** 4-stroke (firing order z/2) or 2-stroke (z). Default 4. */
+  stroke?: Stroke;
+  /** Firing order override (orders per crank revolution), e.g. for cylinder deactivation. Default from z and stroke. */
+  firingOrder?: number;
+  /** Angle-grid samples per revolution S. Default: chosen so nothing aliases (chooseAngleGrid). */
+  samplesPerRev?: number;
+  /** Revolutions per block R (order resolution 1/R). Default 8. */
+  revsPerBlock?: number;
+  /** Block overlap fraction, 0 ≤ overlap < 1. Default 0.5. */
+  overlap?: number;
+  /** Width of the engine-speed bins of curves and isolation, rpm. Default 50. */
+  binRpm?: number;
+  /** Rattle limit on gearbox-input angular acceleration, rad/s². Default 500. */
+  rattleLimitRadS2?: number;
+  /** Extra orders for order curves (beside 0.5, 1, firing order, 2× firing order). */
+  orders?: number[];
+}
+
+export type AnalysisStage = "track" | "spectra" | "results";
+
+export const DEFAULTS = {
+  cylinders: 4,
+  stroke: 4 as Stroke,
+  revsPerBlock: 8,
+  overlap: 0.5,
+  binRpm: 50,
+  rattleLimitRadS2: 500,
+};
+/** The order map and curves stop at this multiple of the firing order (unless an extra order is higher). */
+export const TOP_ORDER_FACTOR = 4;
+
+function fail(
+  code: string,
+  message: string,
+  warnings: SignalIssue[] = [],
+): Outcome<AnalysisResult> {
+  return { ok: false, error: { code, message }, warnings };
+}
+
+function isPositive(x: unknown): x is number {
+  return typeof x === "number" && Number.isFinite(x) && x > 0;
+}
+
+/** Value at quantile p (0…1) of up to ~100 000 evenly strided samples of x. */
+function quantile(x: Float64Array, p: number): number {
+  const stride = Math.max(1, Math.floor(x.length / 100_000));
+  const s: number[] = [];
+  for (let i = 0; i < x.length; i += stride) s.push(x[i]!);
+  s.sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.floor(p * s.length))] ?? 0;
+}
+
+/** Index of the first sample with a non-finite time or speed, or −1. */
+function firstNonFinite(log: DriveLog): number {
+  const { timeS, crankRadS, gearboxRadS } = log;
+  for (let i = 0; i < timeS.length; i++) {
+    // x − x is NaN exactly for NaN and ±Infinity.
+    if (
+      timeS[i]! - timeS[i]! !== 0 ||
+      crankRadS[i]! - crankRadS[i]! !== 0 ||
+      gearboxRadS[i]! - gearboxRadS[i]! !== 0
+    )
+      return i;
+  }
+  return -1;
+}
+
+export function analyseDriveLog(
+  log: DriveLog,
+  options: AnalysisOptions = {},
+  onProgress?: (stage: AnalysisStage, fraction: number) => void,
+): Outcome<AnalysisResult> {
+  const o = options;
+  const cylinders = o.cylinders ?? DEFAULTS.cylinders;
+  const stroke = o.stroke ?? DEFAULTS.stroke;
+  const R = o.revsPerBlock ?? DEFAULTS.revsPerBlock;
+  const overlap = o.overlap ?? DEFAULTS.overlap;
+  const binRpm = o.binRpm ?? DEFAULTS.binRpm;
+  const limit = o.rattleLimitRadS2 ?? DEFAULTS.rattleLimitRadS2;
+  if (!Number.isInteger(cylinders) || cylinders < 1 || cylinders > 24)
+    return fail(
+      "invalid_option",
+      `cylinders must be a whole number from 1 to 24, got ${cylinders}`,
+    );
+  if (stroke !== 2 && stroke !== 4)
+    return fail("invalid_option", `stroke must be 2 or 4, got ${String(stroke)}`);
+  if (o.firingOrder !== undefined && !isPositive(o.firingOrder))
+    return fail("invalid_option", `firing order must be a positive number, got ${o.firingOrder}`);
+  if (!Number.isInteger(R) || R < 1 || R > 256)
+    return fail(
+      "invalid_option",
+      `revolutions per block must be a whole number from 1 to 256, got ${R}`,
+    );
+  if (!(typeof overlap === "number" && overlap >= 0 && overlap < 1))
+    return fail("invalid_option", `overlap must be at least 0 and below 1, got ${overlap}`);
+  if (!isPositive(binRpm))
+    return fail("invalid_option", `rpm bin width must be a positive number, got ${binRpm}`);
+  if (!isPositive(limit))
+    return fail("invalid_option", `rattle limit must be a positive number of rad/s², got ${limit}`);
+  for (const q of o.orders ?? [])
+    if (!isPositive(q)) return fail("invalid_option", `orders must be positive numbers, got ${q}`);
+  const q = o.firingOrder ?? firingOrderOf(cylinders, stroke)!;
+  const orders = [...new Set([0.5, 1, q, 2 * q, ...(o.orders ?? [])])].sort((a, b) => a - b);
+  const topOrder = Math.max(TOP_ORDER_FACTOR * q, ...orders);
+  if (
+    o.samplesPerRev !== undefined &&
+    (!Number.isInteger(o.samplesPerRev) ||
+      o.samplesPerRev / 2 <= topOrder ||
+      o.samplesPerRev > 8192)
+  ) {
+    return fail(
+      "invalid_option",
+      `samples per revolution must be a whole number above ${2 * topOrder} (twice the top order ${topOrder}) and at most 8192, got ${o.samplesPerRev}`,
+    );
+  }
+
+  const n = log.timeS.length;
+  if (n < 2 || log.crankRadS.length !== n || log.gearboxRadS.length !== n)
+    return fail(
+      "no_data",
+      "the drive log has fewer than two samples or channels of different lengths",
+    );
+  if (!isPositive(log.sampleRateHz))
+    return fail("bad_sample_rate", `the sampling rate must be positive, got ${log.sampleRateHz}`);
+  const bad = firstNonFinite(log);
+  if (bad >= 0)
+    return fail(
+      "non_finite_value",
+      `a speed or time value is not a finite number at sample ${bad + 1}`,
+    );
+  const warnings: SignalIssue[] = [];
+  onProgress?.("track", 0);
+  const fs = log.sampleRateHz;
+  const maxRadS = quantile(log.crankRadS, 0.999);
+  if (!(maxRadS > 0))
+    return fail(
+      "engine_not_running",
+      "the crank speed never rises above zero; there is nothing to order-track",
+    );
+  const grid = chooseAngleGrid({
+    sampleRateHz: fs,
+    maxRadS,
+    topOrder,
+    samplesPerRev: o.samplesPerRev,
+  });
+  const topHz = (topOrder * maxRadS) / (2 * Math.PI);
+  if (topHz > 0.45 * fs) {
+    warnings.push({
+      code: "sample_rate_low_for_top_order",
+      message: `order ${topOrder} reaches ${topHz.toFixed(0)} Hz at ${(maxRadS * RPM_PER_RAD_S).toFixed(0)} rpm, near or above half the ${fs.toFixed(0)} Hz sampling rate; its amplitudes there are unreliable`,
+    });
+  }
+  const sections = grid.lowPassHz !== null ? butterworthLowpass4(grid.lowPassHz, fs) : [];
+  const crank = sections.length ? filtfilt(log.crankRadS, sections) : log.crankRadS;
+  onProgress?.("track", 0.4);
+  const gearbox = sections.length ? filtfilt(log.gearboxRadS, sections) : log.gearboxRadS;
+  onProgress?.("track", 0.8);
+  const angle = integrateAngle(log.timeS, log.crankRadS);
+  onProgress?.("track", 1);
+  const tracked = trackBlocks({
+    timeS: log.timeS,
+    angleRad: angle,
+    crankRadS: crank,
+    gearboxRadS: gearbox,
+    grid,
+    revsPerBlock: R,
+    overlap,
+    topBin: Math.ceil(topOrder * R) + 2,
+    onProgress: (f) => onProgress?.("spectra", f),
+  });
+  onProgress?.("spectra", 1);
+  const finest = grid.fixedSamplesPerRev ?? MAX_SAMPLES_PER_REV;
+  const minValidRpm = ((2 * grid.bandHz) / finest) * 60;
+  if (tracked.droppedSlowBlocks > 0) {
+    warnings.push({
+      code: "slow_blocks_dropped",
+      message: `${tracked.droppedSlowBlocks} blocks were left out because the engine ran too slowly in them (below ${minValidRpm.toFixed(0)} rpm) for an alias-free angle grid`,
+    });
+  }
+  if (tracked.blockCount === 0) {
+    return fail(
+      "too_few_revolutions",
+      `the log holds no stretch of ${R} crank revolutions (one analysis block) running above ${minValidRpm.toFixed(0)} rpm`,
+      warnings,
+    );
+  }
+
+  onProgress?.("results", 0);
+  const segments = findSegments(log.timeS, log.crankRadS);
+  const noise = gearboxNoiseFloor(tracked);
+  const isolation = isolationCurve(tracked, q, binRpm, noise);
+  const nearNoise = isolation.filter((p) => !p.aboveNoise).length;
+  if (nearNoise > 0)
+    warnings.push({
+      code: "gearbox_near_noise",
+      message: `at ${nearNoise} engine speeds the gearbox firing-order amplitude is close to the sensor noise; isolation there is a lower bound`,
+    });
+  const measured = isolation.filter((p) => p.aboveNoise);
+  const res = findResonance(isolation);
+  if (!res.found) warnings.push({ code: "no_resonance", message: res.reason });
+  const fit = fitTwoMassModel(measured, q);
+  if (!fit.ok) warnings.push({ code: "no_model_fit", message: fit.reason });
+  const idle = rattleCheck({
+    timeS: log.timeS,
+    gearboxRadS: log.gearboxRadS,
+    sampleRateHz: fs,
+    tracked,
+    segments,
+    firingOrder: q,
+    limitRadS2: limit,
+  });
+  const spectrumSegment = pickSpectrumSegment(segments);
+  const spectrum = spectrumSegment
+    ? timeSpectrum({
+        timeS: log.timeS,
+        crankRadS: log.crankRadS,
+        gearboxRadS: log.gearboxRadS,
+        sampleRateHz: fs,
+        segment: spectrumSegment,
+        topOrder,
+      })
+    : null;
+  const result: AnalysisResult = {
+    firingOrder: q,
+    sampleRateHz: round(fs, 3),
+    durationS: round(log.timeS[n - 1]! - log.timeS[0]!, 3),
+    settings: {
+      cylinders,
+      stroke,
+      firingOrder: q,
+      samplesPerRev: tracked.samplesPerRevRange[1],
+      samplesPerRevMin: tracked.samplesPerRevRange[0],
+      samplesPerRevFixed: grid.fixedSamplesPerRev !== null,
+      revsPerBlock: R,
+      overlap,
+      binRpm,
+      rattleLimitRadS2: limit,
+      orderResolution: 1 / R,
+      topOrder,
+      lowPassHz: grid.lowPassHz === null ? null : round(grid.lowPassHz, 2),
+      minValidRpm: round(minValidRpm, 1),
+      window: "hann-periodic",
+    },
+    blocks: tracked.blockCount,
+    isolation,
+    orderCurves: orders.map((order) => orderCurve(tracked, order, binRpm)),
+    orderMap: orderMap(tracked, topOrder),
+    segments,
+    idle,
+    resonance: res.found ? { rpm: res.rpm, isolationDb: res.isolationDb } : null,
+    model: fit.ok
+      ? {
+          naturalFrequencyHz: round(fit.fit.naturalFrequencyHz, 3),
+          dampingRatio: round(fit.fit.dampingRatio, 4),
+          resonanceRpm: round((fit.fit.naturalFrequencyHz * 60) / q, 1),
+          rmsErrorDb: round(fit.fit.rmsErrorDb, 2),
+          bins: fit.fit.bins,
+        }
+      : null,
+    timeSpectrum: spectrum,
+    warnings: warnings.map(({ code, message }) => ({ code, message })),
+  };
+  const checked = analysisResultSchema.safeParse(result);
+  onProgress?.("results", 1);
+  if (!checked.success) {
+    return fail(
+      "result_invalid",
+      `the analysis produced an invalid result (${checked.error.issues[0]?.path.join(".") ?? "?"}); please report this log`,
+      warnings,
+    );
+  }
+  return { ok: true, value: checked.data, warnings };
+}

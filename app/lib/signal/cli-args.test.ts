@@ -1,0 +1,67 @@
+import { describe, expect, it } from "vitest";
+import { parseCliArgs } from "./cli-args.ts";
+
+// The flag list is issue 4, point 6; parsing is node:util parseArgs (strict mode).
+describe("CLI arguments", () => {
+  it("maps every flag to its option", () => {
+    const r = parseCliArgs([
+      "log.csv",
+      "--cylinders",
+      "6",
+      "--stroke",
+      "2",
+      "--order",
+      "3",
+      "--time",
+      "t",
+      "--crank",
+      "n1",
+      "--gearbox",
+      "n2",
+      "--unit",
+      "Hz",
+      "--time-unit",
+      "ms",
+      "--rattle-limit",
+      "450",
+      "--bin-rpm",
+      "100",
+      "--json",
+    ]);
+    expect(r).toEqual({
+      ok: true,
+      value: {
+        file: "log.csv",
+        json: true,
+        help: false,
+        ingest: {
+          timeColumn: "t",
+          crankColumn: "n1",
+          gearboxColumn: "n2",
+          unit: "rev/s",
+          timeUnit: "ms",
+        },
+        analysis: { cylinders: 6, stroke: 2, firingOrder: 3, rattleLimitRadS2: 450, binRpm: 100 },
+      },
+    });
+  });
+  it.each([
+    [["log.csv", "--cylinders", "2.5"], "--cylinders"],
+    [["log.csv", "--cylinders", "0"], "--cylinders"],
+    [["log.csv", "--stroke", "3"], "--stroke"],
+    [["log.csv", "--unit", "mph"], "unknown unit"],
+    [["log.csv", "--time-unit", "min"], "unknown unit"],
+    [["log.csv", "--rattle-limit", "-1"], "--rattle-limit"],
+    [["log.csv", "--bin-rpm", "abc"], "--bin-rpm"],
+    [["log.csv", "--frobnicate"], "Unknown option"],
+    [["log.csv", "--cylinders"], "argument missing"],
+    [[], "no drive log"],
+    [["a.csv", "b.csv"], "one file at a time"],
+  ])("%j is refused with a one-line message", (argv, text) => {
+    const r = parseCliArgs(argv);
+    expect(r.ok).toBe(false);
+    if (r.ok) return;
+    expect(r.message).toContain(text);
+    expect(r.message).not.toContain("\n");
+  });
+});

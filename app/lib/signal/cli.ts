@@ -1,0 +1,199 @@
+/**
+ * `npm run -s analyse -- FILE [flags]`: ingest a drive log, analyse it, print the result.
+ * --json prints the result document (validated against analysisResultSchema) on stdout; without
+ * it a short summary with units on every figure. Bad input: one line on stderr, exit 1; a bad
+ * flag exits 2. Never a stack trace. Progress goes to stderr only when stderr is a terminal.
+ */
+import { pathToFileURL } from "node:url";
+import { analyseDriveLog, type AnalysisStage } from "./analyse.ts";
+import { parseCliArgs, USAGE, type CliCommand } from "./cli-args.ts";
+import { firingOrder } from "./firing-order.ts";
+import { ingestFile } from "./ingest-stream.ts";
+import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
+import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
+
+export type PipelineStage = "parse" | AnalysisStage;
+
+/** What analyseFile hands back on success: the result and the log it came from. */
+export interface FileAnalysis {
+  result: AnalysisResult;
+  log: DriveLog;
+}
+
+/**
+ * The CLI pipeline (also run in-process by the benchmark): ingest → analyseDriveLog → schema
+ * check. Ingest warnings join the result's warnings so the stored document carries them.
+ */
+export async function analyseFile(
+  cmd: CliCommand,
+  onProgress?: (stage: PipelineStage, fraction: number) => void,
+): Promise<Outcome<FileAnalysis>> {
+  const q =
+    cmd.analysis.firingOrder ??
+    firingOrder(cmd.analysis.cylinders ?? 4, cmd.analysis.stroke ?? 4) ??
+    2;
+  onProgress?.("parse", 0);
+  // 2 × firing order is the highest order the summary relies on (issue 4: 0.5, 1, q, 2q).
+  const ingested = await ingestFile(cmd.file, { topOrder: 2 * q, ...cmd.ingest }, (f) =>
+    onProgress?.("parse", f),
+  );
+  if (!ingested.ok) return ingested;
+  onProgress?.("parse", 1);
+  const analysed = analyseDriveLog(ingested.value, cmd.analysis, onProgress);
+  if (!analysed.ok)
+    return {
+      ok: false,
+      error: analysed.error,
+      warnings: [...ingested.warnings, ...analysed.warnings],
+    };
+  const own = analysed.value.warnings;
+  const sameAsAnalysis = (w: SignalIssue) =>
+    w.code === "low_sample_rate" && own.some((x) => x.code === "sample_rate_low_for_top_order");
+  const merged = [
+    ...ingested.warnings
+      .filter((w) => !sameAsAnalysis(w))
+      .map(({ code, message }) => ({ code, message })),
+    ...own,
+  ];
+  const checked = analysisResultSchema.safeParse({ ...analysed.value, warnings: merged });
+  if (!checked.success) {
+    const where = checked.error.issues[0]?.path.join(".") ?? "?";
+    return {
+      ok: false,
+      error: {
+        code: "result_invalid",
+        message: `the result failed its schema at ${where}; please report this log`,
+      },
+      warnings: merged,
+    };
+  }
+  return { ok: true, value: { result: checked.data, log: ingested.value }, warnings: merged };
+}
+
+/** One line naming the problem, its row and column. */
+export function describeIssue(file: string, e: SignalIssue): string {
+  const where = [
+    e.row !== undefined && !e.message.includes(`row ${e.row}`) ? `row ${e.row}` : "",
+    e.column !== undefined && !e.message.includes(`"${e.column}"`) ? `column "${e.column}"` : "",
+  ]
+    .filter(Boolean)
+    .join(", ");
+  return `${file}: ${e.message.replace(/\s*\n\s*/g, " ")}${where ? ` (${where})` : ""} [${e.code}]`;
+}
+
+const f1 = (x: number) => x.toFixed(1);
+const f0 = (x: number) => x.toFixed(0);
+
+/** The human summary: every figure with its unit. */
+export function summarise(file: string, { result: r, log }: FileAnalysis): string {
+  const s = log.source;
+  const lines = [
+    `Twistlog analysis of ${file}`,
+    `  log: ${f1(r.durationS)} s at ${f0(r.sampleRateHz)} Hz, ${s.rows} rows; crank "${s.crankColumn}" (${s.crankUnit}), gearbox "${s.gearboxColumn}" (${s.gearboxUnit}), time "${s.timeColumn}" (${s.timeUnit})`,
+    `  firing order: ${r.firingOrder} (${r.settings.cylinders} cylinders, ${r.settings.stroke}-stroke)`,
+  ];
+  const speeds: [string, number][] = [
+    ["idle", r.idle?.meanRpm ?? 800],
+    ["", 1500],
+    ["", 2000],
+    ["", 3000],
+  ];
+  const iso = speeds.flatMap(([label, rpm]) => {
+    let best: (typeof r.isolation)[number] | undefined;
+    for (const p of r.isolation)
+      if (
+        Math.abs(p.rpm - rpm) <= r.settings.binRpm &&
+        (!best || Math.abs(p.rpm - rpm) < Math.abs(best.rpm - rpm))
+      )
+        best = p;
+    if (!best) return [];
+    const name = label ? `${label} ${f0(best.rpm)} rpm` : `${f0(best.rpm)} rpm`;
+    return [
+      `    ${name.padEnd(16)} ${f1(best.dB).padStart(6)} dB${best.aboveNoise ? "" : " (gearbox near noise: a lower bound)"}`,
+    ];
+  });
+  lines.push(`  isolation at order ${r.firingOrder} (crank / gearbox, positive = attenuation):`);
+  lines.push(
+    ...(iso.length > 0 ? iso : ["    none of idle, 1500, 2000, 3000 rpm is covered by this log"]),
+  );
+  lines.push(
+    r.resonance
+      ? `  damper resonance: ${f0(r.resonance.rpm)} rpm, isolation ${f1(r.resonance.isolationDb)} dB`
+      : "  damper resonance: not in the speed range of this log",
+  );
+  if (r.model)
+    lines.push(
+      `  two-mass model fit: natural frequency ${f1(r.model.naturalFrequencyHz)} Hz (${f0(r.model.resonanceRpm)} rpm at order ${r.firingOrder}), damping ratio ${r.model.dampingRatio.toFixed(3)}`,
+    );
+  if (r.idle) {
+    const i = r.idle;
+    lines.push(
+      `  rattle check at idle (${f0(i.meanRpm)} rpm): gearbox angular acceleration ${f0(i.gearboxAngAccelRadS2)} rad/s² at order ${r.firingOrder}, peak ${f0(i.gearboxAngAccelPeakRadS2)} rad/s², limit ${f0(i.limitRadS2)} rad/s²: ${i.verdict === "ok" ? "within the limit" : "OVER THE LIMIT"}`,
+    );
+  } else lines.push("  rattle check: no idle segment in this log");
+  for (const w of r.warnings) lines.push(`  warning: ${w.message} [${w.code}]`);
+  if (r.idle || r.resonance) {
+    lines.push(
+      "  caution: verdicts come from a recording; road tests belong on a closed course with trained staff, and damper or clutch work is licensed workshop work.",
+    );
+  }
+  return lines.join("\n");
+}
+
+/** Stage progress on a terminal: one rewritten line on stderr. */
+function terminalProgress(): ((stage: PipelineStage, fraction: number) => void) | undefined {
+  if (!process.stderr.isTTY) return undefined;
+  let last = "";
+  return (stage, fraction) => {
+    const text = `${stage} ${Math.round(fraction * 100)} %`;
+    if (text === last) return;
+    last = text;
+    process.stderr.write(`\r\x1b[K${text}`);
+  };
+}
+
+/** Run the CLI on argv; returns the exit code. Writes only through the given streams. */
+export async function main(
+  argv: string[],
+  out = process.stdout,
+  err = process.stderr,
+): Promise<number> {
+  const args = parseCliArgs(argv);
+  if (!args.ok) {
+    err.write(`analyse: ${args.message} (see --help)\n`);
+    return 2;
+  }
+  if (args.value.help) {
+    out.write(`${USAGE}\n`);
+    return 0;
+  }
+  const cmd = args.value;
+  const progress = err === process.stderr ? terminalProgress() : undefined;
+  const outcome = await analyseFile(cmd, progress);
+  if (progress) err.write("\r\x1b[K");
+  if (!outcome.ok) {
+    err.write(`${describeIssue(cmd.file, outcome.error)}\n`);
+    return 1;
+  }
+  out.write(
+    cmd.json
+      ? `${JSON.stringify(outcome.value.result)}\n`
+      : `${summarise(cmd.file, outcome.value)}\n`,
+  );
+  return 0;
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
+  main(process.argv.slice(2)).then(
+    (code) => {
+      process.exitCode = code;
+    },
+    (e: unknown) => {
+      // A bug, not bad input: still one line, no stack trace.
+      process.stderr.write(
+        `analyse: internal error: ${e instanceof Error ? e.message : String(e)}\n`,
+      );
+      process.exitCode = 70;
+    },
+  );
+}

@@ -1,0 +1,267 @@
+/**
+ * Header recognition: which column is time, which is the crank side and which the gearbox
+ * side, and in which unit each is written — from the names alone, always overridable.
+ */
+import type { SignalIssue, SpeedUnit, TimeUnit } from "./types.ts";
+import { parseSpeedUnit, parseTimeUnit } from "./units.ts";
+
+export type ColumnRole = "time" | "crank" | "gearbox" | "other";
+
+export interface ColumnGuess {
+  role: ColumnRole;
+  /** Unit written in the name, if any (a speed unit for speed columns, a time unit for time). */
+  speedUnit?: SpeedUnit;
+  timeUnit?: TimeUnit;
+}
+
+/** Options that override what the header says. Column names match case- and space-insensitively. */
+export interface ColumnOptions {
+  timeColumn?: string;
+  crankColumn?: string;
+  gearboxColumn?: string;
+  /** Unit of both speed channels, unless crankUnit / gearboxUnit say otherwise. */
+  unit?: SpeedUnit;
+  crankUnit?: SpeedUnit;
+  gearboxUnit?: SpeedUnit;
+  timeUnit?: TimeUnit;
+}
+
+/** The decision ingest acts on: column indices into the header and the units to read them in. */
+export interface ColumnMap {
+  time: number;
+  crank: number;
+  gearbox: number;
+  timeUnit: TimeUnit;
+  crankUnit: SpeedUnit;
+  gearboxUnit: SpeedUnit;
+  /** Every other column, by index, with the name it is kept under in `extra`. */
+  extra: { index: number; name: string }[];
+}
+
+/** An error about the header, with what a UI needs to offer a column mapping. */
+export interface ColumnIssue extends SignalIssue {
+  /** Every column name in the header, in file order. */
+  columns: string[];
+  /** The channel the problem is about. */
+  role?: "time" | "crank" | "gearbox";
+  /** Columns that could be that channel (two or more for ambiguous_columns). */
+  candidates?: string[];
+}
+
+const CRANK_WORDS = new Set([
+  "crank",
+  "crankshaft",
+  "engine",
+  "primary",
+  "flywheel",
+  "motor",
+  "ring",
+]);
+const GEARBOX_WORDS = new Set(["gearbox", "transmission", "secondary", "trans", "gbx"]);
+const TIME_WORDS = new Set(["time", "t", "timestamp", "elapsed"]);
+// Quantities that share role words with the speed channels ("engine torque") but are not speeds.
+const NOT_SPEED_WORDS = new Set([
+  "torque",
+  "temp",
+  "temperature",
+  "pressure",
+  "angle",
+  "position",
+  "pedal",
+  "throttle",
+  "load",
+  "current",
+  "voltage",
+  "accel",
+  "acceleration",
+  "lambda",
+  "fuel",
+  "power",
+  "gear",
+  "counter",
+]);
+
+/** Lowercase words of a header name: letters and digits, split at everything else. */
+function words(name: string): string[] {
+  return name
+    .toLowerCase()
+    .split(/[^a-z0-9]+/)
+    .filter((w) => w.length > 0);
+}
+
+/** The unit written in a name: "[rpm]", "(deg/s)", "{ms}", or a suffix like "_rad_s", "_ms", " Hz". */
+function unitText(name: string): { unit: string; rest: string } | undefined {
+  const bracket = /[[({]\s*([^\])}]*)\s*[\])}]\s*$/.exec(name);
+  if (bracket) return { unit: bracket[1] ?? "", rest: name.slice(0, bracket.index) };
+  const w = name.trim().split(/[\s_]+/);
+  if (w.length >= 3) {
+    const two = `${w[w.length - 2]}/${w[w.length - 1]}`;
+    if (parseSpeedUnit(two)) return { unit: two, rest: w.slice(0, -2).join(" ") };
+  }
+  if (w.length >= 2) {
+    const last = w[w.length - 1] ?? "";
+    if (parseSpeedUnit(last) || parseTimeUnit(last))
+      return { unit: last, rest: w.slice(0, -1).join(" ") };
+  }
+  return undefined;
+}
+
+/** Guess a column's role and unit from its header name alone. */
+export function recogniseColumn(name: string): ColumnGuess {
+  const u = unitText(name);
+  const speedUnit = u ? parseSpeedUnit(u.unit) : undefined;
+  const timeUnit = u ? parseTimeUnit(u.unit) : undefined;
+  const w = words(u ? u.rest : name);
+  const phrase = ` ${w.join(" ")} `;
+  const hasUnit = u !== undefined && u.unit.trim() !== "";
+
+  if (w.some((x) => TIME_WORDS.has(x)) && !speedUnit && (timeUnit || !hasUnit)) {
+    return timeUnit ? { role: "time", timeUnit } : { role: "time" };
+  }
+  // A unit that is neither a speed nor empty (Nm, °, %, rad/s²) rules a speed out.
+  if (hasUnit && !speedUnit) return { role: "other" };
+  const gearboxSide =
+    w.some((x) => GEARBOX_WORDS.has(x)) ||
+    phrase.includes(" input shaft ") ||
+    phrase.includes(" gear box ");
+  const crankSide = !gearboxSide && w.some((x) => CRANK_WORDS.has(x));
+  if (!gearboxSide && !crankSide) return { role: "other" };
+  if (w.some((x) => NOT_SPEED_WORDS.has(x))) return { role: "other" };
+  const role: ColumnRole = gearboxSide ? "gearbox" : "crank";
+  return speedUnit ? { role, speedUnit } : { role };
+}
+
+const norm = (s: string) => s.trim().toLowerCase().replace(/\s+/g, " ");
+
+function columnIssue(
+  code: string,
+  message: string,
+  headers: string[],
+  extra: Partial<ColumnIssue> = {},
+): ColumnIssue {
+  return { code, message, row: 1, columns: [...headers], ...extra };
+}
+
+const quoteList = (names: string[]) => names.map((n) => `"${n}"`).join(", ");
+
+/**
+ * Decide the column map for a header row. Returns an issue (row 1) when a channel is missing,
+ * ambiguous, or an override names no column; `assumed` lists units that had to be assumed.
+ */
+export function resolveColumns(
+  headers: string[],
+  options: ColumnOptions = {},
+): { ok: true; map: ColumnMap; warnings: SignalIssue[] } | { ok: false; error: ColumnIssue } {
+  const guesses = headers.map(recogniseColumn);
+  const taken = new Set<number>();
+  const warnings: SignalIssue[] = [];
+  const chosen: Partial<Record<"time" | "crank" | "gearbox", number>> = {};
+  const overrides = {
+    time: options.timeColumn,
+    crank: options.crankColumn,
+    gearbox: options.gearboxColumn,
+  };
+
+  for (const role of ["time", "crank", "gearbox"] as const) {
+    const wanted = overrides[role];
+    if (wanted === undefined) continue;
+    const index = headers.findIndex((h) => norm(h) === norm(wanted));
+    if (index < 0) {
+      return {
+        ok: false,
+        error: columnIssue(
+          "unknown_column",
+          `no column named "${wanted}" for the ${role} channel; the header has ${quoteList(headers)}`,
+          headers,
+          { role },
+        ),
+      };
+    }
+    if (taken.has(index)) {
+      return {
+        ok: false,
+        error: columnIssue(
+          "ambiguous_columns",
+          `column "${headers[index]}" is set for two channels`,
+          headers,
+          { role, column: headers[index] },
+        ),
+      };
+    }
+    chosen[role] = index;
+    taken.add(index);
+  }
+  for (const role of ["time", "crank", "gearbox"] as const) {
+    if (chosen[role] !== undefined) continue;
+    const candidates = guesses.flatMap((g, i) => (g.role === role && !taken.has(i) ? [i] : []));
+    const label =
+      role === "time" ? "time" : role === "crank" ? "crank-side speed" : "gearbox-side speed";
+    if (candidates.length === 0) {
+      return {
+        ok: false,
+        error: columnIssue(
+          "missing_channel",
+          `no ${label} column recognised in the header (${quoteList(headers)}); choose one`,
+          headers,
+          { role, candidates: [] },
+        ),
+      };
+    }
+    if (candidates.length > 1) {
+      const names = candidates.map((i) => headers[i] ?? "");
+      return {
+        ok: false,
+        error: columnIssue(
+          "ambiguous_columns",
+          `${candidates.length} columns could be the ${label}: ${quoteList(names)}; choose one`,
+          headers,
+          { role, candidates: names },
+        ),
+      };
+    }
+    chosen[role] = candidates[0];
+    taken.add(candidates[0] ?? -1);
+  }
+  const time = chosen.time ?? 0;
+  const crank = chosen.crank ?? 0;
+  const gearbox = chosen.gearbox ?? 0;
+
+  const speedUnit = (index: number, explicit: SpeedUnit | undefined): SpeedUnit => {
+    const unit = explicit ?? options.unit ?? guesses[index]?.speedUnit;
+    if (unit) return unit;
+    warnings.push({
+      code: "unit_assumed",
+      message: `no unit in column "${headers[index]}"; read as rpm (set the unit if that is wrong)`,
+      row: 1,
+      column: headers[index],
+    });
+    return "rpm";
+  };
+  const crankUnit = speedUnit(crank, options.crankUnit);
+  const gearboxUnit = speedUnit(gearbox, options.gearboxUnit);
+  let timeUnit = options.timeUnit ?? guesses[time]?.timeUnit;
+  if (!timeUnit) {
+    warnings.push({
+      code: "unit_assumed",
+      message: `no unit in column "${headers[time]}"; read as seconds (set the time unit if that is wrong)`,
+      row: 1,
+      column: headers[time],
+    });
+    timeUnit = "s";
+  }
+
+  const seen = new Map<string, number>();
+  const extra: ColumnMap["extra"] = [];
+  headers.forEach((h, index) => {
+    if (taken.has(index)) return;
+    const base = h.trim() === "" ? `column ${index + 1}` : h;
+    const count = (seen.get(base) ?? 0) + 1;
+    seen.set(base, count);
+    extra.push({ index, name: count === 1 ? base : `${base} (${count})` });
+  });
+  return {
+    ok: true,
+    map: { time, crank, gearbox, timeUnit, crankUnit, gearboxUnit, extra },
+    warnings,
+  };
+}

@@ -1,0 +1,73 @@
+import { describe, expect, it } from "vitest";
+import { analysisResultSchema } from "./result-schema.ts";
+
+const minimal = {
+  firingOrder: 2,
+  sampleRateHz: 2000,
+  durationS: 52,
+  settings: {
+    cylinders: 4,
+    stroke: 4,
+    firingOrder: 2,
+    samplesPerRev: 64,
+    samplesPerRevMin: 32,
+    samplesPerRevFixed: false,
+    revsPerBlock: 8,
+    overlap: 0.5,
+    binRpm: 50,
+    rattleLimitRadS2: 500,
+    orderResolution: 0.125,
+    topOrder: 8,
+    lowPassHz: null,
+    minValidRpm: 20,
+    window: "hann-periodic",
+  },
+  blocks: 1,
+  isolation: [{ rpm: 1000, dB: 12.4, blocks: 3, aboveNoise: true }],
+  orderCurves: [{ order: 2, points: [{ rpm: 1000, crankRpm: 32.1, gearboxRpm: 7.7, blocks: 3 }] }],
+  orderMap: {
+    orderStep: 0.125,
+    orderCount: 1,
+    blocksPerRow: 1,
+    blockRpm: [1000],
+    timeS: [1],
+    crankRpm: [[1]],
+    gearboxRpm: [[1]],
+  },
+  segments: [{ kind: "idle", startS: 0, endS: 10, meanRpm: 820 }],
+  idle: null,
+  resonance: null,
+  model: null,
+  timeSpectrum: null,
+  warnings: [],
+};
+
+describe("result schema (the public JSON contract)", () => {
+  it("accepts the documented shape", () => {
+    expect(analysisResultSchema.safeParse(minimal).success).toBe(true);
+  });
+  it("refuses NaN and Infinity anywhere a number goes (zod 4 z.number() is finite)", () => {
+    for (const bad of [NaN, Infinity, -Infinity]) {
+      const r = structuredClone(minimal);
+      r.isolation[0]!.dB = bad;
+      expect(analysisResultSchema.safeParse(r).success).toBe(false);
+    }
+  });
+  it("refuses an unknown segment kind and a rattle verdict outside ok / over-limit", () => {
+    const r = structuredClone(minimal) as Record<string, unknown>;
+    r.segments = [{ kind: "cruise", startS: 0, endS: 1, meanRpm: 900 }];
+    expect(analysisResultSchema.safeParse(r).success).toBe(false);
+    const s = structuredClone(minimal) as Record<string, unknown>;
+    s.idle = {
+      meanRpm: 820,
+      gearboxAngAccelRadS2: 274,
+      gearboxAngAccelPeakRadS2: 390,
+      limitRadS2: 500,
+      verdict: "fine",
+      idleDurationS: 10,
+      blocks: 4,
+      spans: [],
+    };
+    expect(analysisResultSchema.safeParse(s).success).toBe(false);
+  });
+});

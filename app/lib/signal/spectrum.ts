@@ -1,0 +1,245 @@
+/**
+ * Discrete Fourier transform and single-sided amplitude spectra.
+ *
+ * Conventions:
+ * - DFT X_k = Σ x_n·exp(−2πi·k·n/N), unnormalised (fft.js's forward transform).
+ * - Amplitude spectra are single-sided and 0-peak, in the unit of the input: a tone
+ *   A·cos(2π·k·n/N + φ) on bin k reads A. Correction 2/Σw for bins 1…⌈N/2⌉−1; DC and (even N)
+ *   the Nyquist bin take 1/Σw (Heinzel, Rüdiger, Schilling 2002, §9).
+ * - Power-of-two lengths go straight to fft.js (radix-4); any other length goes through
+ *   Bluestein's chirp-z algorithm on fft.js, so odd block lengths still cost N·log N.
+ */
+import FFT from "fft.js";
+import { hannPeriodic, windowSums } from "./windows.ts";
+
+export function isPowerOfTwo(n: number): boolean {
+  return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
+}
+
+export function nextPowerOfTwo(n: number): number {
+  let p = 2;
+  while (p < n) p *= 2;
+  return p;
+}
+
+/** Number of single-sided bins for a length-N real signal: ⌊N/2⌋ + 1. */
+export function singleSidedBins(n: number): number {
+  return Math.floor(n / 2) + 1;
+}
+
+/** A reusable real-input DFT of one length: buffers are allocated once (hot path). */
+export interface RealDft {
+  readonly size: number;
+  /** Writes bins 0…⌊N/2⌋ of DFT(x) as interleaved re, im into `out` (length ≥ 2·(⌊N/2⌋+1)). */
+  transform(x: Float64Array, out: Float64Array): void;
+}
+
+function radix2Dft(size: number): RealDft {
+  const fft = new FFT(size);
+  const buf = new Float64Array(2 * size);
+  const bins = singleSidedBins(size);
+  return {
+    size,
+    transform(x, out) {
+      fft.realTransform(buf, x);
+      for (let i = 0; i < 2 * bins; i++) out[i] = buf[i]!;
+    },
+  };
+}
+
+function bluesteinDft(size: number): RealDft {
+  const m = nextPowerOfTwo(2 * size - 1);
+  const fft = new FFT(m);
+  // Chirp w_k = exp(−iπk²/N); k² is reduced mod 2N so the angle stays exact for large k.
+  const wr = new Float64Array(size);
+  const wi = new Float64Array(size);
+  for (let k = 0; k < size; k++) {
+    const phi = (Math.PI * ((k * k) % (2 * size))) / size;
+    wr[k] = Math.cos(phi);
+    wi[k] = -Math.sin(phi);
+  }
+  const b = new Float64Array(2 * m);
+  b[0] = wr[0]!;
+  b[1] = -wi[0]!;
+  for (let k = 1; k < size; k++) {
+    b[2 * k] = b[2 * (m - k)] = wr[k]!;
+    b[2 * k + 1] = b[2 * (m - k) + 1] = -wi[k]!;
+  }
+  const bHat = new Float64Array(2 * m);
+  fft.transform(bHat, b);
+  const a = new Float64Array(2 * m);
+  const aHat = new Float64Array(2 * m);
+  const conv = new Float64Array(2 * m);
+  const bins = singleSidedBins(size);
+  return {
+    size,
+    transform(x, out) {
+      a.fill(0);
+      for (let k = 0; k < size; k++) {
+        a[2 * k] = x[k]! * wr[k]!;
+        a[2 * k + 1] = x[k]! * wi[k]!;
+      }
+      fft.transform(aHat, a);
+      for (let k = 0; k < m; k++) {
+        const ar = aHat[2 * k]!;
+        const ai = aHat[2 * k + 1]!;
+        const br = bHat[2 * k]!;
+        const bi = bHat[2 * k + 1]!;
+        aHat[2 * k] = ar * br - ai * bi;
+        aHat[2 * k + 1] = ar * bi + ai * br;
+      }
+      fft.inverseTransform(conv, aHat);
+      for (let k = 0; k < bins; k++) {
+        const cr = conv[2 * k]!;
+        const ci = conv[2 * k + 1]!;
+        out[2 * k] = cr * wr[k]! - ci * wi[k]!;
+        out[2 * k + 1] = cr * wi[k]! + ci * wr[k]!;
+      }
+    },
+  };
+}
+
+/** A real-input DFT plan for any length ≥ 2 (RangeError otherwise: a programming error). */
+export function createRealDft(size: number): RealDft {
+  if (!Number.isInteger(size) || size < 2) {
+    throw new RangeError(`DFT length must be an integer ≥ 2, got ${size}`);
+  }
+  return isPowerOfTwo(size) ? radix2Dft(size) : bluesteinDft(size);
+}
+
+/** Full single-sided DFT of a real signal as { re, im } (bins 0…⌊N/2⌋, unnormalised). */
+export function realDft(x: Float64Array): { re: Float64Array; im: Float64Array } {
+  const plan = createRealDft(x.length);
+  const bins = singleSidedBins(x.length);
+  const out = new Float64Array(2 * bins);
+  plan.transform(x, out);
+  const re = new Float64Array(bins);
+  const im = new Float64Array(bins);
+  for (let k = 0; k < bins; k++) {
+    re[k] = out[2 * k]!;
+    im[k] = out[2 * k + 1]!;
+  }
+  return { re, im };
+}
+
+/**
+ * A reusable amplitude-spectrum plan: removes the block mean (optional), applies the window,
+ * transforms and writes single-sided 0-peak amplitudes (input unit) of bins 0…maxBin.
+ */
+export interface AmplitudePlan {
+  readonly size: number;
+  readonly bins: number;
+  amplitudes(x: Float64Array, out: Float64Array, maxBin?: number): void;
+}
+
+export function createAmplitudePlan(
+  size: number,
+  options: { window?: Float64Array; removeMean?: boolean } = {},
+): AmplitudePlan {
+  const window = options.window ?? hannPeriodic(size);
+  if (window.length !== size) {
+    throw new RangeError(`window length ${window.length} differs from block length ${size}`);
+  }
+  const removeMean = options.removeMean ?? true;
+  const dft = createRealDft(size);
+  const bins = singleSidedBins(size);
+  const s1 = windowSums(window).s1;
+  const work = new Float64Array(size);
+  const spec = new Float64Array(2 * bins);
+  const nyquist = size % 2 === 0 ? size / 2 : -1;
+  return {
+    size,
+    bins,
+    amplitudes(x, out, maxBin = bins - 1) {
+      let mean = 0;
+      if (removeMean) {
+        for (let n = 0; n < size; n++) mean += x[n]!;
+        mean /= size;
+      }
+      for (let n = 0; n < size; n++) work[n] = (x[n]! - mean) * window[n]!;
+      dft.transform(work, spec);
+      const top = Math.min(maxBin, bins - 1);
+      for (let k = 0; k <= top; k++) {
+        const re = spec[2 * k]!;
+        const im = spec[2 * k + 1]!;
+        const mag = Math.sqrt(re * re + im * im);
+        out[k] = ((k === 0 || k === nyquist ? 1 : 2) * mag) / s1;
+      }
+    },
+  };
+}
+
+/**
+ * Single-sided 0-peak amplitude spectrum of `x` (input unit), Hann-windowed by default.
+ * The mean is kept unless `removeMean` is set, so DC reads the signal's mean value.
+ */
+export function amplitudeSpectrum(
+  x: Float64Array,
+  options: { window?: Float64Array; removeMean?: boolean } = {},
+): Float64Array {
+  const plan = createAmplitudePlan(x.length, { removeMean: false, ...options });
+  const out = new Float64Array(plan.bins);
+  plan.amplitudes(x, out);
+  return out;
+}
+
+/**
+ * Amplitude spectra of two real signals of the same length from one complex FFT
+ * (z = x + i·y; X_k = (Z_k + conj Z_{N−k})/2, Y_k = (Z_k − conj Z_{N−k})/(2i)): the hot path of
+ * order tracking, where crank and gearbox blocks always come in pairs. Same conventions as
+ * createAmplitudePlan (mean removed, window, single-sided 0-peak). Power-of-two sizes only.
+ */
+export interface PairAmplitudePlan {
+  readonly size: number;
+  readonly bins: number;
+  amplitudes(
+    x: Float64Array,
+    y: Float64Array,
+    outX: Float64Array,
+    outY: Float64Array,
+    maxBin?: number,
+  ): void;
+}
+
+export function createPairAmplitudePlan(size: number): PairAmplitudePlan {
+  if (!isPowerOfTwo(size))
+    throw new RangeError(`paired spectra need a power-of-two length, got ${size}`);
+  const window = hannPeriodic(size);
+  const s1 = windowSums(window).s1;
+  const fft = new FFT(size);
+  const z = new Float64Array(2 * size);
+  const spec = new Float64Array(2 * size);
+  const bins = singleSidedBins(size);
+  const half = size / 2;
+  return {
+    size,
+    bins,
+    amplitudes(x, y, outX, outY, maxBin = bins - 1) {
+      let mx = 0;
+      let my = 0;
+      for (let n = 0; n < size; n++) {
+        mx += x[n]!;
+        my += y[n]!;
+      }
+      mx /= size;
+      my /= size;
+      for (let n = 0; n < size; n++) {
+        const w = window[n]!;
+        z[2 * n] = (x[n]! - mx) * w;
+        z[2 * n + 1] = (y[n]! - my) * w;
+      }
+      fft.transform(spec, z);
+      const top = Math.min(maxBin, bins - 1);
+      for (let k = 0; k <= top; k++) {
+        const m = k === 0 ? 0 : size - k;
+        const a = spec[2 * k]!;
+        const b = spec[2 * k + 1]!;
+        const c = spec[2 * m]!;
+        const d = spec[2 * m + 1]!;
+        const scale = (k === 0 || k === half ? 0.5 : 1) / s1;
+        outX[k] = Math.sqrt((a + c) * (a + c) + (b - d) * (b - d)) * scale;
+        outY[k] = Math.sqrt((a - c) * (a - c) + (b + d) * (b + d)) * scale;
+      }
+    },
+  };
+}
