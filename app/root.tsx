@@ -6,9 +6,20 @@ import "./app.css";
 
 import { QueryClient, QueryClientProvider } from "@tanstack/react-query";
 import { useState } from "react";
-import { Links, Meta, Outlet, Scripts, ScrollRestoration } from "react-router";
+import { data, Links, Meta, Outlet, Scripts, ScrollRestoration } from "react-router";
 import type { Route } from "./+types/root";
 import { GeneralErrorBoundary } from "./components/error-boundary";
+import { useNonce } from "./components/nonce";
+import { issueCsrfToken } from "./lib/csrf.server";
+
+/** Every page gets this browser's CSRF token for its forms (docs/decisions/005-csrf.md). */
+export async function loader({ request }: Route.LoaderArgs) {
+  const { token, setCookie } = await issueCsrfToken(request);
+  return data(
+    { csrfToken: token },
+    setCookie ? { headers: { "Set-Cookie": setCookie } } : undefined,
+  );
+}
 
 export const links: Route.LinksFunction = () => [
   { rel: "icon", href: "/favicon.svg", type: "image/svg+xml" },
@@ -20,6 +31,7 @@ export const meta: Route.MetaFunction = () => [
 ];
 
 export function Layout({ children }: { children: React.ReactNode }) {
+  const nonce = useNonce();
   return (
     <html lang="en" className="h-full">
       <head>
@@ -30,8 +42,8 @@ export function Layout({ children }: { children: React.ReactNode }) {
       </head>
       <body className="h-full bg-neutral-50 text-neutral-900 antialiased">
         {children}
-        <ScrollRestoration />
-        <Scripts />
+        <ScrollRestoration nonce={nonce} />
+        <Scripts nonce={nonce} />
       </body>
     </html>
   );

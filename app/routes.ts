@@ -1,4 +1,4 @@
-import { type RouteConfig, index, layout, route } from "@react-router/dev/routes";
+import { type RouteConfig, index, layout, prefix, route } from "@react-router/dev/routes";
 
 // The one table of every URL in the app (docs/decisions/001-route-table.md).
 export default [
@@ -7,7 +7,26 @@ export default [
     route("vehicles", "routes/vehicles.tsx"),
     route("comparisons", "routes/comparisons.tsx"),
     route("team", "routes/team.tsx"),
+    route("team/members/:memberId", "routes/team.member.tsx"),
+    route("team/audit", "routes/team.audit.tsx"),
+    route("account", "routes/account.tsx"),
+    route("account/tokens", "routes/account.tokens.tsx"),
+    route("outbox", "routes/outbox.tsx"),
   ]),
-  // Resource routes (no component).
+  // Signed-out pages in a small centred frame.
+  layout("routes/_auth.tsx", [
+    route("sign-in", "routes/sign-in.tsx"),
+    route("forgot-password", "routes/forgot-password.tsx"),
+    route("reset-password/:token", "routes/reset-password.tsx"),
+    route("invitations/:token", "routes/accept-invitation.tsx"),
+  ]),
+  // Form posts without a page of their own.
+  route("sign-out", "routes/sign-out.ts"),
+  route("team/switch", "routes/team-switch.ts"),
+  // Resource routes (no component). The API answers JSON, errors as { error: { code, message } }.
   route("healthz", "routes/healthz.ts"),
+  ...prefix("api/v1", [
+    route("me", "routes/api.v1.me.ts"),
+    route("*", "routes/api.v1.not-found.ts"),
+  ]),
 ] satisfies RouteConfig;

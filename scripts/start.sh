@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
 # npm start: everything a new user needs, on a fresh clone with only Node.js 20 present.
 # Installs dependencies, starts the project-local MariaDB (data in .data/), applies
-# migrations, builds, and serves the production build on http://localhost:${PORT:-3000}.
+# migrations, seeds the demo team into an empty database (not with a real SMTP_URL), starts
+# the local fake mail server with the app (server/index.ts; mail kept in .data/mail), builds,
+# and serves the production build on http://localhost:${PORT:-3000}.
 # Ctrl-C stops all of it; the next start reuses the data.
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -32,11 +34,15 @@ trap 'exit 130' INT TERM
 
 bash scripts/mariadb.sh start
 node_modules/.bin/tsx scripts/migrate.ts
+signins=""
+if [ -z "${SMTP_URL:-}" ]; then signins=$(node_modules/.bin/tsx scripts/seed.ts --if-empty); fi
 log "building ..."
 npm run -s build >/dev/null
 node_modules/.bin/tsx server/index.ts &
 server_pid=$!
 if wait_for_http "http://127.0.0.1:$PORT/healthz" "$server_pid" 60; then
+  [ -n "$signins" ] && printf '%s\n' "$signins" >&2
+  [ -z "${SMTP_URL:-}" ] && log "e-mail stays local: admins read it under Outbox in the user menu"
   log "open http://localhost:$PORT  (Ctrl-C stops the app and its database)"
 fi
 wait "$server_pid"

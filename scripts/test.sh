@@ -27,6 +27,10 @@ export DATABASE_PORT=${TEST_DATABASE_PORT:-3408}
 export DATABASE_NAME=twistlog_test
 export TEST_PORT=${TEST_PORT:-3101}
 export TWISTLOG_BASE_URL="http://127.0.0.1:$TEST_PORT"
+# The test server's fake SMTP server: its own port (npm start uses 2525) and folder.
+export FAKE_SMTP_PORT=${TEST_SMTP_PORT:-2526}
+export MAIL_DIR=$TEST_ROOT/mail
+unset SMTP_URL APP_URL
 
 server_pid=""
 teardown() {
@@ -47,7 +51,7 @@ step() {
 }
 
 step "type check" npm run -s typecheck
-step "test database" bash -c 'bash scripts/mariadb.sh start && node_modules/.bin/tsx scripts/migrate.ts'
+step "test database" bash -c 'bash scripts/mariadb.sh start && node_modules/.bin/tsx scripts/migrate.ts && node_modules/.bin/tsx scripts/seed.ts >/dev/null'
 # Built before vitest: integration tests start the production server with broken settings.
 step "production build" bash -c 'npm run -s build >/dev/null'
 step "unit and integration tests" node_modules/.bin/vitest run

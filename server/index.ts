@@ -6,6 +6,8 @@ import compression from "compression";
 import express from "express";
 import type { ServerBuild } from "react-router";
 import { EnvError, getEnv } from "../app/lib/env.server";
+import { startFakeSmtp } from "../app/lib/fake-smtp.server";
+import { newNonce, securityHeaders } from "../app/lib/security-headers.server";
 
 let env;
 try {
@@ -20,7 +22,47 @@ try {
 const { HOST, PORT, NODE_ENV } = env;
 const app = express();
 app.disable("x-powered-by");
+if (env.TRUST_PROXY) {
+  const hops = Number(env.TRUST_PROXY);
+  app.set(
+    "trust proxy",
+    Number.isInteger(hops) ? hops : env.TRUST_PROXY === "true" || env.TRUST_PROXY,
+  );
+}
 app.use(compression());
+app.use((req, res, next) => {
+  res.locals.cspNonce = newNonce();
+  res.set(
+    securityHeaders({
+      nonce: res.locals.cspNonce as string,
+      development: NODE_ENV === "development",
+      https: req.protocol === "https" || !!env.APP_URL?.startsWith("https:"),
+    }),
+  );
+  next();
+});
+// What loaders and actions get as `context` (app/lib/request.server.ts).
+// Development's CSP allows inline scripts without a nonce (Vite), so pages carry none there.
+const getLoadContext = (req: express.Request, res: express.Response) => ({
+  cspNonce: NODE_ENV === "development" ? undefined : (res.locals.cspNonce as string),
+  clientIp: req.ip,
+});
+
+// Without a real mail provider, mail goes to a local fake that keeps it for the outbox page.
+let fakeSmtp: Awaited<ReturnType<typeof startFakeSmtp>> | undefined;
+if (!env.SMTP_URL) {
+  try {
+    fakeSmtp = await startFakeSmtp({ port: env.FAKE_SMTP_PORT, dir: env.MAIL_DIR });
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    console.error(
+      code === "EADDRINUSE"
+        ? `Port ${env.FAKE_SMTP_PORT} for the local fake mail server is already in use: stop the other program or set FAKE_SMTP_PORT (or SMTP_URL for a real provider).`
+        : `The local fake mail server could not start: ${(error as Error).message}`,
+    );
+    process.exit(1);
+  }
+}
 
 if (NODE_ENV === "development") {
   const vite = await import("vite");
@@ -31,7 +73,7 @@ if (NODE_ENV === "development") {
       const build = (await devServer.ssrLoadModule(
         "virtual:react-router/server-build",
       )) as ServerBuild;
-      return createRequestHandler({ build })(req, res, next);
+      return createRequestHandler({ build, getLoadContext })(req, res, next);
     } catch (error) {
       if (error instanceof Error) devServer.ssrFixStacktrace(error);
       next(error);
@@ -43,7 +85,7 @@ if (NODE_ENV === "development") {
   // Fingerprinted assets are immutable; everything else is revalidated.
   app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
   app.use(express.static("build/client", { maxAge: "1h" }));
-  app.all("/{*path}", createRequestHandler({ build, mode: NODE_ENV }));
+  app.all("/{*path}", createRequestHandler({ build, mode: NODE_ENV, getLoadContext }));
 }
 
 const server = app.listen(PORT, HOST, () => {
@@ -66,7 +108,7 @@ server.on("error", (error: NodeJS.ErrnoException) => {
 
 function shutdown(signal: string) {
   console.log(`${signal}: closing the server`);
-  server.close(() => process.exit(0));
+  server.close(() => void (fakeSmtp?.close() ?? Promise.resolve()).then(() => process.exit(0)));
   // Open keep-alive connections must not hold the shutdown forever.
   setTimeout(() => process.exit(0), 5_000).unref();
   server.closeAllConnections?.();

@@ -8,6 +8,8 @@ const friendly: Record<number, { title: string; hint: string }> = {
     title: "Not found",
     hint: "The page or record does not exist, or it is not in your team.",
   },
+  410: { title: "This link no longer works", hint: "It was used already or it has expired." },
+  429: { title: "Too many attempts", hint: "Wait a few minutes and try again." },
   503: {
     title: "Temporarily unavailable",
     hint: "The service is starting or the database is down. Try again in a minute.",

@@ -1,10 +1,29 @@
-import { Outlet } from "react-router";
+import { Outlet, useLoaderData } from "react-router";
 import { AppHeader } from "~/components/app-header";
+import { usingFakeMail } from "~/lib/mail.server";
+import { getCurrentUser } from "~/lib/permissions.server";
+import type { Route } from "./+types/_shell";
+
+/** The header needs to know who is signed in; pages check permissions themselves. */
+export async function loader({ request }: Route.LoaderArgs) {
+  const current = await getCurrentUser(request);
+  if (!current) return { user: null };
+  return {
+    user: {
+      name: current.user.name,
+      email: current.user.email,
+      team: current.team,
+      teams: current.teams,
+      fakeMail: usingFakeMail(),
+    },
+  };
+}
 
 export default function Shell() {
+  const { user } = useLoaderData<typeof loader>();
   return (
     <div className="flex min-h-full flex-col">
-      <AppHeader />
+      <AppHeader user={user} />
       <div className="mx-auto w-full max-w-[1400px] flex-1 px-6 py-10">
         <Outlet />
       </div>

@@ -1,12 +1,25 @@
 import { ComingArea } from "~/components/coming-area";
+import { requireUser } from "~/lib/permissions.server";
+import type { Route } from "./+types/vehicles";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
 
 export const meta = () => [{ title: "Vehicles · Twistlog" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request);
+  return null;
+}
 
 export default function Vehicles() {
   return (
     <ComingArea
       title="Vehicles"
-      text="Your team's instrumented vehicles and their drive logs will be listed here once sign-in is in place."
+      text="Your team's instrumented vehicles and their drive logs will be listed here once drive logs can be uploaded."
     />
   );
+}
+
+// Errors (403, 404, …) show inside the app's frame, with the header still there.
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
 }

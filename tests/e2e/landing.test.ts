@@ -62,7 +62,12 @@ describe("landing page in Chromium", () => {
       "Comparisons",
       "Team",
     ]);
+    // Vehicles needs a sign-in, and comes back to Vehicles after it.
     await nav.getByRole("link", { name: "Vehicles" }).click();
+    await page.waitForURL(`${baseUrl}/sign-in?redirectTo=%2Fvehicles`);
+    await page.getByLabel("E-mail address").fill("viewer@twistlog.test");
+    await page.getByLabel("Password").fill("twistlog-demo");
+    await page.getByRole("button", { name: "Sign in" }).click();
     await page.waitForURL(`${baseUrl}/vehicles`);
     await expect(page.getByRole("heading", { level: 1 }).textContent()).resolves.toBe("Vehicles");
     await page.close();
@@ -85,10 +90,11 @@ describe("listening sockets", () => {
     return found;
   }
 
-  it("the app server and the database listen on loopback only", () => {
+  it("the app server, the database and the fake mail server listen on loopback only", () => {
     const appPort = Number(new URL(baseUrl).port);
     const dbPort = Number(process.env.DATABASE_PORT ?? 3408);
-    for (const port of [appPort, dbPort]) {
+    const smtpPort = Number(process.env.FAKE_SMTP_PORT ?? 2526);
+    for (const port of [appPort, dbPort, smtpPort]) {
       const addrs = listeners(port);
       expect(addrs.length, `something listens on ${port}`).toBeGreaterThan(0);
       // 0100007F is 127.0.0.1 in /proc's byte order.

@@ -2,7 +2,7 @@ import { createServer, type Server } from "node:net";
 import { afterAll, describe, expect, it } from "vitest";
 import { loader } from "~/routes/healthz";
 import { pool } from "~/lib/db.server";
-import { freePort, runTs, startServer } from "../support/processes";
+import { freePort, ownMail, runTs, startServer } from "../support/processes";
 
 // /healthz and start-up errors, against the real MariaDB and the production build
 // (scripts/test.sh builds before vitest runs).
@@ -62,7 +62,11 @@ describe("bad environment gives one line that says what to change", () => {
     const squatter: Server = createServer();
     await new Promise<void>((resolve) => squatter.listen(port, "127.0.0.1", resolve));
     try {
-      const result = await runTs("server/index.ts", { NODE_ENV: "production", PORT: String(port) });
+      const result = await runTs("server/index.ts", {
+        NODE_ENV: "production",
+        PORT: String(port),
+        ...(await ownMail()),
+      });
       expect(result.code).toBe(1);
       const lines = result.stderr.trim().split("\n");
       expect(lines).toHaveLength(1);

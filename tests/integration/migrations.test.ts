@@ -38,10 +38,20 @@ describe("migrations against MariaDB", () => {
     expect(await tablesOf(database)).toEqual([]);
 
     await applyMigrations({ ...base, database });
-    const tables = await tablesOf(database);
-    for (const expected of ["__drizzle_migrations", "sessions", "teams", "users"]) {
-      expect(tables).toContain(expected);
-    }
+    // Sorted here: MariaDB's collation puts "_" after letters.
+    const tables = (await tablesOf(database)).sort();
+    expect(tables).toEqual([
+      "__drizzle_migrations",
+      "api_tokens",
+      "audit_events",
+      "invitations",
+      "memberships",
+      "password_resets",
+      "sessions",
+      "sign_in_failures",
+      "teams",
+      "users",
+    ]);
 
     const [before] = await admin.query<mysql.RowDataPacket[]>(
       `SELECT COUNT(*) AS n FROM \`${database}\`.__drizzle_migrations`,
@@ -54,7 +64,7 @@ describe("migrations against MariaDB", () => {
     expect(Number(before[0]?.n)).toBeGreaterThan(0);
   });
 
-  it("keep the constraints the schema declares (unique e-mail, session → user foreign key)", async () => {
+  it("keep the constraints the schema declares (unique e-mail, foreign keys, one membership per team)", async () => {
     const database = await scratchDatabase();
     await applyMigrations({ ...base, database });
     const c = await mysql.createConnection({ ...base, database });
@@ -68,6 +78,20 @@ describe("migrations against MariaDB", () => {
       await expect(
         c.query("INSERT INTO sessions (id, user_id, expires_at) VALUES ('s1', 999999, NOW())"),
       ).rejects.toMatchObject({ code: "ER_NO_REFERENCED_ROW_2" });
+      await c.query("INSERT INTO teams (name, slug) VALUES ('T', 't')");
+      await c.query(
+        "INSERT INTO memberships (team_id, user_id, role) SELECT t.id, u.id, 'viewer' FROM teams t, users u",
+      );
+      await expect(
+        c.query(
+          "INSERT INTO memberships (team_id, user_id, role) SELECT t.id, u.id, 'admin' FROM teams t, users u",
+        ),
+      ).rejects.toMatchObject({ code: "ER_DUP_ENTRY" });
+      await expect(
+        c.query(
+          "INSERT INTO memberships (team_id, user_id, role) SELECT t.id, u.id, 'owner' FROM teams t, users u",
+        ),
+      ).rejects.toMatchObject({ code: "WARN_DATA_TRUNCATED" });
     } finally {
       await c.end();
     }
@@ -76,11 +100,11 @@ describe("migrations against MariaDB", () => {
   it("report MariaDB's own error text and the failing statement when a migration fails", async () => {
     const database = await scratchDatabase();
     // A table left behind by hand makes the first CREATE TABLE fail (DDL is not transactional).
-    await admin.query(`CREATE TABLE \`${database}\`.sessions (id INT)`);
+    await admin.query(`CREATE TABLE \`${database}\`.api_tokens (id INT)`);
     const failure = applyMigrations({ ...base, database });
     await expect(failure).rejects.toBeInstanceOf(MigrationError);
     await expect(failure).rejects.toThrow(
-      /ER_TABLE_EXISTS_ERROR: Table 'sessions' already exists in: CREATE TABLE `sessions`/,
+      /ER_TABLE_EXISTS_ERROR: Table 'api_tokens' already exists in: CREATE TABLE `api_tokens`/,
     );
   });
 });

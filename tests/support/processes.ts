@@ -1,5 +1,8 @@
 import { spawn } from "node:child_process";
+import { mkdtempSync } from "node:fs";
 import { createServer } from "node:net";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 
 export const repoRoot = fileURLToPath(new URL("../..", import.meta.url));
@@ -52,14 +55,34 @@ export function runTs(
   });
 }
 
+/**
+ * Settings for a server started by a test: its own fake SMTP port and mail folder, so it never
+ * meets the test server's (scripts/test.sh) or another test's.
+ */
+export async function ownMail(): Promise<{ FAKE_SMTP_PORT: string; MAIL_DIR: string }> {
+  return {
+    FAKE_SMTP_PORT: String(await freePort()),
+    MAIL_DIR: mkdtempSync(join(tmpdir(), "twistlog-mail-")),
+  };
+}
+
 /** Starts the production server (build/ must exist) and resolves once it prints that it is serving. */
 export async function startServer(
   env: Record<string, string>,
-): Promise<{ url: string; stop: () => Promise<void> }> {
+): Promise<{ url: string; mailDir: string; stop: () => Promise<void> }> {
   const port = await freePort();
+  const mail = await ownMail();
   const child = spawn(tsx, ["server/index.ts"], {
     cwd: repoRoot,
-    env: { ...process.env, NODE_ENV: "production", PORT: String(port), ...env },
+    env: {
+      ...process.env,
+      NODE_ENV: "production",
+      PORT: String(port),
+      // Tests tell the server their (made-up) client address in X-Forwarded-For.
+      TRUST_PROXY: "loopback",
+      ...mail,
+      ...env,
+    },
     stdio: ["ignore", "pipe", "pipe"],
   });
   let output = "";
@@ -78,6 +101,7 @@ export async function startServer(
   });
   return {
     url: `http://127.0.0.1:${port}`,
+    mailDir: env.MAIL_DIR ?? mail.MAIL_DIR,
     stop: () =>
       new Promise((resolve) => {
         child.once("exit", () => resolve());

@@ -1,0 +1,75 @@
+/** Page title with an optional line under it; the same on every signed-in page. */
+export function PageHeader({ title, lead }: { title: string; lead?: React.ReactNode }) {
+  return (
+    <div className="mb-8">
+      <h1 className="text-2xl font-semibold tracking-tight">{title}</h1>
+      {lead ? <p className="mt-2 max-w-3xl text-neutral-600">{lead}</p> : null}
+    </div>
+  );
+}
+
+export function Card({
+  title,
+  children,
+  id,
+}: {
+  title: string;
+  children: React.ReactNode;
+  id?: string;
+}) {
+  const headingId = id ? `${id}-title` : undefined;
+  return (
+    <section
+      aria-labelledby={headingId}
+      className="rounded-lg border border-neutral-200 bg-white p-6 shadow-xs"
+    >
+      <h2 id={headingId} className="text-base font-semibold">
+        {title}
+      </h2>
+      <div className="mt-4">{children}</div>
+    </section>
+  );
+}
+
+/** What an empty list says instead of showing nothing: what it is and what to do next. */
+export function EmptyState({ children }: { children: React.ReactNode }) {
+  return (
+    <p className="rounded-md border border-dashed border-neutral-300 px-4 py-6 text-center text-sm text-neutral-600">
+      {children}
+    </p>
+  );
+}
+
+/** A success message after a form post, announced politely. */
+export function Notice({ children }: { children: React.ReactNode }) {
+  return (
+    <p
+      role="status"
+      className="mb-6 rounded-md border border-green-200 bg-green-50 px-4 py-2 text-sm text-green-900"
+    >
+      {children}
+    </p>
+  );
+}
+
+export const tableClass = "w-full text-left text-sm";
+export const thClass = "border-b border-neutral-200 py-2 pr-4 font-medium text-neutral-500";
+export const tdClass = "border-b border-neutral-100 py-2.5 pr-4";
+
+/** Dates in the UI: day, month, year and (unless dateOnly) the time, in UTC. */
+export function When({
+  date,
+  dateOnly = false,
+}: {
+  date: Date | string | null;
+  dateOnly?: boolean;
+}) {
+  if (!date) return <>—</>;
+  const d = new Date(date);
+  // UTC on server and browser alike, so the two renders agree and teams in several time
+  // zones read the same time.
+  const text = dateOnly
+    ? d.toLocaleDateString("en-GB", { dateStyle: "medium", timeZone: "UTC" })
+    : `${d.toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" })} UTC`;
+  return <time dateTime={d.toISOString()}>{text}</time>;
+}

@@ -1,0 +1,25 @@
+/** Roles inside a team, most powerful first (DESIGN.md §2). */
+export const ROLES = ["admin", "engineer", "technician", "viewer"] as const;
+export type Role = (typeof ROLES)[number];
+
+// Shared by server and browser: what each role may do (DESIGN.md §2). Ranks compare roles:
+// "at least engineer" admits engineers and admins.
+const rank: Record<Role, number> = { admin: 4, engineer: 3, technician: 2, viewer: 1 };
+
+export function atLeast(role: Role, needed: Role): boolean {
+  return rank[role] >= rank[needed];
+}
+
+export const roleLabels: Record<Role, string> = {
+  admin: "Admin",
+  engineer: "Engineer",
+  technician: "Technician",
+  viewer: "Viewer",
+};
+
+export const roleHints: Record<Role, string> = {
+  admin: "Everything, plus members, invitations, roles, tokens and the audit log",
+  engineer: "Vehicles, targets, upload, analyse, compare, share links",
+  technician: "Upload drive logs and edit their test details; read everything",
+  viewer: "Read only",
+};

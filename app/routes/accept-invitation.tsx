@@ -1,0 +1,138 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { z } from "zod";
+import { CsrfInput } from "~/components/csrf-input";
+import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { audit } from "~/lib/audit.server";
+import { assertCsrf } from "~/lib/csrf.server";
+import { acceptInvitation, findInvitation, InvitationProblem } from "~/lib/invitations.server";
+import { verifyPassword } from "~/lib/password.server";
+import { invariantResponse } from "~/lib/permissions.server";
+import { clientIp } from "~/lib/request.server";
+import { roleLabels } from "~/lib/roles";
+import { startSession } from "~/lib/session.server";
+import { nameField, newPasswordField, passwordField } from "~/lib/validation";
+import type { Route } from "./+types/accept-invitation";
+
+// A new colleague chooses a name and password; someone with an account already confirms theirs.
+const newAccountSchema = z.object({ name: nameField, password: newPasswordField });
+const existingSchema = z.object({ password: passwordField.min(1, "Enter your password.") });
+
+export const meta = () => [{ title: "Join a team · Twistlog" }];
+
+export async function loader({ params }: Route.LoaderArgs) {
+  const invitation = await findInvitation(params.token);
+  if (!invitation) return { invitation: null };
+  const { teamName, email, role, existingUser } = invitation;
+  return { invitation: { teamName, email, role, hasAccount: !!existingUser } };
+}
+
+export async function action({ request, params, context }: Route.ActionArgs) {
+  const form = await request.formData();
+  await assertCsrf(request, form);
+  const invitation = await findInvitation(params.token);
+  invariantResponse(invitation, "This invitation was already used, withdrawn or has expired.", {
+    status: 410,
+  });
+  const ip = clientIp(context);
+  const existing = invitation.existingUser;
+  let newAccount: { name: string; password: string } | null = null;
+  if (existing) {
+    const submission = parseWithZod(form, { schema: existingSchema });
+    if (submission.status !== "success")
+      return data(submission.reply({ hideFields: ["password"] }), { status: 400 });
+    if (!(await verifyPassword(existing.passwordHash, submission.value.password))) {
+      return data(
+        submission.reply({
+          formErrors: ["That is not the password of this account."],
+          hideFields: ["password"],
+        }),
+        { status: 400 },
+      );
+    }
+  } else {
+    const submission = parseWithZod(form, { schema: newAccountSchema });
+    if (submission.status !== "success")
+      return data(submission.reply({ hideFields: ["password"] }), { status: 400 });
+    newAccount = submission.value;
+  }
+  let userId: number;
+  try {
+    userId = await acceptInvitation(invitation, newAccount);
+  } catch (error) {
+    if (error instanceof InvitationProblem)
+      invariantResponse(false, error.message, { status: 410 });
+    throw error;
+  }
+  await audit({
+    teamId: invitation.teamId,
+    actor: { id: userId, email: invitation.email },
+    action: "invitation-accepted",
+    detail: `as ${invitation.role}`,
+    ip,
+  });
+  const setCookie = await startSession(request, userId, invitation.teamId, ip);
+  throw redirect("/team", { headers: { "Set-Cookie": setCookie } });
+}
+
+export default function AcceptInvitation() {
+  const { invitation } = useLoaderData<typeof loader>();
+  const lastResult = useActionData<typeof action>();
+  const schema = invitation?.hasAccount ? existingSchema : newAccountSchema;
+  const [form, fields] = useSchemaForm("accept", schema as typeof newAccountSchema, lastResult);
+  if (!invitation) {
+    return (
+      <>
+        <h1 className="text-xl font-semibold">This invitation no longer works</h1>
+        <p className="mt-4 text-sm text-neutral-700">
+          An invitation link works once, for 7 days, and an admin can withdraw it. Ask the admin who
+          invited you for a new one.
+        </p>
+        <p className="mt-6 text-sm">
+          <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
+            Go to sign-in
+          </Link>
+        </p>
+      </>
+    );
+  }
+  return (
+    <>
+      <h1 className="text-xl font-semibold">Join {invitation.teamName}</h1>
+      <p className="mt-2 text-sm text-neutral-600">
+        You are invited as {roleLabels[invitation.role]}, with the address {invitation.email}.
+      </p>
+      <Form
+        method="post"
+        id={form.id}
+        onSubmit={form.onSubmit}
+        noValidate
+        className="mt-6 space-y-4"
+      >
+        <CsrfInput />
+        <FormError id={form.errorId} errors={form.errors} />
+        {invitation.hasAccount ? (
+          <Field
+            label="Your Twistlog password"
+            meta={fields.password}
+            type="password"
+            autoComplete="current-password"
+            hint="You already have an account with this address."
+          />
+        ) : (
+          <>
+            <Field label="Your name" meta={fields.name} autoComplete="name" />
+            <Field
+              label="Choose a password"
+              meta={fields.password}
+              type="password"
+              autoComplete="new-password"
+              hint="At least 10 characters."
+            />
+          </>
+        )}
+        <SubmitButton>Join the team</SubmitButton>
+      </Form>
+    </>
+  );
+}

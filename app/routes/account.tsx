@@ -1,0 +1,133 @@
+import { Form, redirect, useActionData, useLoaderData } from "react-router";
+import { z } from "zod";
+import { CsrfInput } from "~/components/csrf-input";
+import { SubmitButton } from "~/components/form";
+import { Card, Notice, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
+import { audit } from "~/lib/audit.server";
+import { assertCsrf } from "~/lib/csrf.server";
+import { invariantResponse, requireUser } from "~/lib/permissions.server";
+import { clientIp } from "~/lib/request.server";
+import { roleLabels } from "~/lib/roles";
+import { listSessions, revokeAllSessions, revokeSession } from "~/lib/session.server";
+import type { Route } from "./+types/account";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
+
+const revokeSchema = z.object({
+  intent: z.literal("revoke"),
+  sessionId: z.string().regex(/^[0-9a-f]{64}$/),
+});
+
+export const meta = () => [{ title: "Account · Twistlog" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const { user, sessionId, teams } = await requireUser(request);
+  const sessions = await listSessions(user.id);
+  return { user, teams, sessions: sessions.map((s) => ({ ...s, current: s.id === sessionId })) };
+}
+
+export async function action({ request, context }: Route.ActionArgs) {
+  const form = await request.formData();
+  await assertCsrf(request, form);
+  const { user, sessionId } = await requireUser(request);
+  const ip = clientIp(context);
+  if (form.get("intent") === "revoke-others") {
+    await revokeAllSessions(user.id, sessionId);
+    await audit({
+      teamId: null,
+      actor: user,
+      action: "session-revoked",
+      detail: "all other sessions",
+      ip,
+    });
+    return { notice: "Every other session has ended." };
+  }
+  const parsed = revokeSchema.safeParse(Object.fromEntries(form));
+  invariantResponse(parsed.success, "No session was chosen.", { status: 400 });
+  invariantResponse(await revokeSession(user.id, parsed.data.sessionId), "No such session.", {
+    status: 404,
+  });
+  await audit({ teamId: null, actor: user, action: "session-revoked", ip });
+  if (parsed.data.sessionId === sessionId) throw redirect("/sign-in?notice=signed-out");
+  return { notice: "The session has ended." };
+}
+
+export default function Account() {
+  const { user, teams, sessions } = useLoaderData<typeof loader>();
+  const result = useActionData<typeof action>();
+  return (
+    <main className="max-w-4xl space-y-6">
+      <PageHeader title="Your account" lead={`${user.name} · ${user.email}`} />
+      {result?.notice ? <Notice>{result.notice}</Notice> : null}
+      <Card title="Teams" id="teams">
+        <ul className="space-y-1 text-sm">
+          {teams.map((t) => (
+            <li key={t.id}>
+              {t.name} <span className="text-neutral-500">· {roleLabels[t.role]}</span>
+            </li>
+          ))}
+          {teams.length === 0 ? (
+            <li className="text-neutral-600">You are in no team yet. An admin can invite you.</li>
+          ) : null}
+        </ul>
+      </Card>
+      <Card title="Signed-in sessions" id="sessions">
+        <p className="mb-4 text-sm text-neutral-600">
+          Each browser you signed in with. End any you do not recognise; a password reset ends them
+          all.
+        </p>
+        <table className={tableClass}>
+          <thead>
+            <tr>
+              <th className={thClass}>Browser</th>
+              <th className={thClass}>Address</th>
+              <th className={thClass}>Signed in</th>
+              <th className={thClass}>
+                <span className="sr-only">End</span>
+              </th>
+            </tr>
+          </thead>
+          <tbody>
+            {sessions.map((s) => (
+              <tr key={s.id}>
+                <td className={`${tdClass} max-w-sm truncate`} title={s.userAgent}>
+                  {s.userAgent || "unknown browser"}
+                  {s.current ? (
+                    <span className="ml-2 rounded bg-indigo-50 px-1.5 py-0.5 text-xs font-medium text-indigo-800">
+                      this one
+                    </span>
+                  ) : null}
+                </td>
+                <td className={tdClass}>{s.ip}</td>
+                <td className={tdClass}>
+                  <When date={s.createdAt} />
+                </td>
+                <td className={`${tdClass} text-right`}>
+                  <Form method="post">
+                    <CsrfInput />
+                    <input type="hidden" name="sessionId" value={s.id} />
+                    <SubmitButton name="intent" value="revoke" tone="secondary">
+                      {s.current ? "Sign out here" : "End"}
+                    </SubmitButton>
+                  </Form>
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+        {sessions.length > 1 ? (
+          <Form method="post" className="mt-4">
+            <CsrfInput />
+            <SubmitButton name="intent" value="revoke-others" tone="danger">
+              End every other session
+            </SubmitButton>
+          </Form>
+        ) : null}
+      </Card>
+    </main>
+  );
+}
+
+// Errors (403, 404, …) show inside the app's frame, with the header still there.
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
+}

@@ -1,0 +1,80 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, Form, Link, useActionData } from "react-router";
+import { z } from "zod";
+import { CsrfInput } from "~/components/csrf-input";
+import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { audit } from "~/lib/audit.server";
+import { assertCsrf } from "~/lib/csrf.server";
+import { RESET_MINUTES } from "~/lib/link-lifetimes";
+import { requestPasswordReset } from "~/lib/password-reset.server";
+import { appOrigin, clientIp } from "~/lib/request.server";
+import { emailField } from "~/lib/validation";
+import type { Route } from "./+types/forgot-password";
+
+const schema = z.object({ email: emailField });
+
+export const meta = () => [{ title: "Reset your password · Twistlog" }];
+
+export async function action({ request, context }: Route.ActionArgs) {
+  const form = await request.formData();
+  await assertCsrf(request, form);
+  const submission = parseWithZod(form, { schema });
+  if (submission.status !== "success") return data(submission.reply(), { status: 400 });
+  const { email } = submission.value;
+  const userId = await requestPasswordReset(email, appOrigin(request));
+  if (userId) {
+    await audit({
+      teamId: null,
+      actor: { id: userId, email },
+      action: "password-reset-requested",
+      ip: clientIp(context),
+    });
+  }
+  // The same answer whether or not the address has an account.
+  return { sent: email };
+}
+
+export default function ForgotPassword() {
+  const result = useActionData<typeof action>();
+  const sent = result && "sent" in result ? result.sent : null;
+  const [form, fields] = useSchemaForm("forgot", schema, sent ? undefined : (result as never));
+  if (sent) {
+    return (
+      <>
+        <h1 className="text-xl font-semibold">Check your e-mail</h1>
+        <p role="status" className="mt-4 text-sm text-neutral-700">
+          If {sent} has a Twistlog account, a link to choose a new password is on its way. It works
+          once, for {RESET_MINUTES} minutes.
+        </p>
+        <p className="mt-6 text-sm">
+          <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
+            Back to sign-in
+          </Link>
+        </p>
+      </>
+    );
+  }
+  return (
+    <>
+      <h1 className="text-xl font-semibold">Reset your password</h1>
+      <p className="mt-2 text-sm text-neutral-600">We e-mail you a link to choose a new one.</p>
+      <Form
+        method="post"
+        id={form.id}
+        onSubmit={form.onSubmit}
+        noValidate
+        className="mt-6 space-y-4"
+      >
+        <CsrfInput />
+        <FormError id={form.errorId} errors={form.errors} />
+        <Field label="E-mail address" meta={fields.email} type="email" autoComplete="username" />
+        <SubmitButton>Send the link</SubmitButton>
+      </Form>
+      <p className="mt-6 text-sm">
+        <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
+          Back to sign-in
+        </Link>
+      </p>
+    </>
+  );
+}

@@ -1,0 +1,86 @@
+import { useLoaderData } from "react-router";
+import { EmptyState, PageHeader, When } from "~/components/page";
+import { getEnv } from "~/lib/env.server";
+import { readStoredMail } from "~/lib/fake-smtp.server";
+import { usingFakeMail } from "~/lib/mail.server";
+import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import type { Route } from "./+types/outbox";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
+
+export const meta = () => [{ title: "Outbox · Twistlog" }];
+
+/**
+ * The local fake mail server's messages, for admins, only while it is in use (SMTP_URL unset):
+ * on a laptop nobody receives real e-mail, so invitation and reset links are read here.
+ */
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireTeamRole(request, "admin");
+  invariantResponse(
+    usingFakeMail(),
+    "Mail goes to a real provider here, so there is no local outbox.",
+    { status: 404 },
+  );
+  return { messages: await readStoredMail(getEnv().MAIL_DIR) };
+}
+
+export default function Outbox() {
+  const { messages } = useLoaderData<typeof loader>();
+  return (
+    <main className="max-w-4xl">
+      <PageHeader
+        title="Outbox"
+        lead="No real e-mail leaves this installation: the local mail server keeps every message here instead. Newest first."
+      />
+      {messages.length === 0 ? (
+        <EmptyState>
+          No messages yet. Invite a colleague on the Team page or ask for a password reset, and the
+          e-mail appears here.
+        </EmptyState>
+      ) : (
+        <ol className="space-y-4">
+          {messages.map((m) => (
+            <li key={m.id}>
+              <article
+                aria-labelledby={`mail-${m.id}`}
+                className="rounded-lg border border-neutral-200 bg-white p-5"
+              >
+                <h2 id={`mail-${m.id}`} className="font-semibold">
+                  {m.subject}
+                </h2>
+                <p className="mt-1 text-xs text-neutral-500">
+                  To {m.to} · <When date={m.date} />
+                </p>
+                <div className="mt-3 whitespace-pre-wrap break-words text-sm text-neutral-800">
+                  <Linkified text={m.text} />
+                </div>
+              </article>
+            </li>
+          ))}
+        </ol>
+      )}
+    </main>
+  );
+}
+
+/** Plain text with its http(s) links made clickable (nothing else is interpreted). */
+function Linkified({ text }: { text: string }) {
+  const parts = text.split(/(https?:\/\/\S+)/g);
+  return (
+    <>
+      {parts.map((part, i) =>
+        /^https?:\/\//.test(part) ? (
+          <a key={i} href={part} className="text-indigo-700 underline underline-offset-4">
+            {part}
+          </a>
+        ) : (
+          <span key={i}>{part}</span>
+        ),
+      )}
+    </>
+  );
+}
+
+// Errors (403, 404, …) show inside the app's frame, with the header still there.
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
+}

@@ -1,0 +1,102 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { z } from "zod";
+import { CsrfInput } from "~/components/csrf-input";
+import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { audit } from "~/lib/audit.server";
+import { assertCsrf } from "~/lib/csrf.server";
+import { completePasswordReset, findPasswordReset } from "~/lib/password-reset.server";
+import { invariantResponse } from "~/lib/permissions.server";
+import { clientIp } from "~/lib/request.server";
+import { newPasswordField } from "~/lib/validation";
+import type { Route } from "./+types/reset-password";
+
+const schema = z
+  .object({ password: newPasswordField, confirm: z.string({ error: "Repeat the password." }) })
+  .refine((v) => v.password === v.confirm, {
+    path: ["confirm"],
+    message: "The two passwords differ.",
+  });
+
+export const meta = () => [{ title: "Choose a new password · Twistlog" }];
+
+export async function loader({ params }: Route.LoaderArgs) {
+  const reset = await findPasswordReset(params.token);
+  return { email: reset?.email ?? null };
+}
+
+export async function action({ request, params, context }: Route.ActionArgs) {
+  const form = await request.formData();
+  await assertCsrf(request, form);
+  const reset = await findPasswordReset(params.token);
+  invariantResponse(reset, "This link was already used or has expired.", { status: 410 });
+  const submission = parseWithZod(form, { schema });
+  if (submission.status !== "success")
+    return data(submission.reply({ hideFields: ["password", "confirm"] }), { status: 400 });
+  if (!(await completePasswordReset(reset, submission.value.password))) {
+    return data(submission.reply({ formErrors: ["This link was already used or has expired."] }), {
+      status: 410,
+    });
+  }
+  await audit({
+    teamId: null,
+    actor: { id: reset.userId, email: reset.email },
+    action: "password-reset",
+    detail: "every session ended",
+    ip: clientIp(context),
+  });
+  throw redirect("/sign-in?notice=password-changed");
+}
+
+export default function ResetPassword() {
+  const { email } = useLoaderData<typeof loader>();
+  const lastResult = useActionData<typeof action>();
+  const [form, fields] = useSchemaForm("reset", schema, lastResult);
+  if (!email) {
+    return (
+      <>
+        <h1 className="text-xl font-semibold">This link no longer works</h1>
+        <p className="mt-4 text-sm text-neutral-700">
+          A reset link works once, for 30 minutes. Ask for a new one.
+        </p>
+        <p className="mt-6 text-sm">
+          <Link to="/forgot-password" className="text-indigo-700 underline underline-offset-4">
+            Send a new link
+          </Link>
+        </p>
+      </>
+    );
+  }
+  return (
+    <>
+      <h1 className="text-xl font-semibold">Choose a new password</h1>
+      <p className="mt-2 text-sm text-neutral-600">
+        For {email}. Every signed-in session of this account ends.
+      </p>
+      <Form
+        method="post"
+        id={form.id}
+        onSubmit={form.onSubmit}
+        noValidate
+        className="mt-6 space-y-4"
+      >
+        <CsrfInput />
+        <FormError id={form.errorId} errors={form.errors} />
+        <Field
+          label="New password"
+          meta={fields.password}
+          type="password"
+          autoComplete="new-password"
+          hint="At least 10 characters."
+        />
+        <Field
+          label="Repeat it"
+          meta={fields.confirm}
+          type="password"
+          autoComplete="new-password"
+        />
+        <SubmitButton>Set the password</SubmitButton>
+      </Form>
+    </>
+  );
+}

@@ -1,0 +1,97 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { z } from "zod";
+import { CsrfInput } from "~/components/csrf-input";
+import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { authenticateWithPassword, SignInRefused } from "~/lib/auth.server";
+import { assertCsrf } from "~/lib/csrf.server";
+import { getCurrentUser } from "~/lib/permissions.server";
+import { clientIp, safeRedirect } from "~/lib/request.server";
+import { startSession } from "~/lib/session.server";
+import { emailField, passwordField } from "~/lib/validation";
+import type { Route } from "./+types/sign-in";
+
+const schema = z.object({
+  email: emailField,
+  password: passwordField.min(1, "Enter your password."),
+  redirectTo: z.string().max(500).optional(),
+});
+
+export const meta = () => [{ title: "Sign in · Twistlog" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const url = new URL(request.url);
+  const redirectTo = safeRedirect(url.searchParams.get("redirectTo"));
+  if (await getCurrentUser(request)) throw redirect(redirectTo);
+  return { redirectTo, notice: url.searchParams.get("notice") };
+}
+
+export async function action({ request, context }: Route.ActionArgs) {
+  // remix-auth's FormStrategy reads the body itself: read a clone here (STACK-NOTES.md).
+  const form = await request.clone().formData();
+  await assertCsrf(request, form);
+  const submission = parseWithZod(form, { schema });
+  if (submission.status !== "success") {
+    return data(submission.reply({ hideFields: ["password"] }), { status: 400 });
+  }
+  const ip = clientIp(context);
+  try {
+    const user = await authenticateWithPassword(request, ip);
+    const setCookie = await startSession(request, user.id, null, ip);
+    throw redirect(safeRedirect(submission.value.redirectTo), {
+      headers: { "Set-Cookie": setCookie },
+    });
+  } catch (error) {
+    if (!(error instanceof SignInRefused)) throw error;
+    return data(submission.reply({ formErrors: [error.message], hideFields: ["password"] }), {
+      status: error.reason === "throttled" ? 429 : 400,
+    });
+  }
+}
+
+const notices: Record<string, string> = {
+  "signed-out": "You are signed out.",
+  "password-changed":
+    "Your password is changed and every session has ended. Sign in with the new one.",
+};
+
+export default function SignIn() {
+  const { redirectTo, notice } = useLoaderData<typeof loader>();
+  const lastResult = useActionData<typeof action>();
+  const [form, fields] = useSchemaForm("sign-in", schema, lastResult);
+  const noticeText = notice ? notices[notice] : undefined;
+  return (
+    <>
+      <h1 className="text-xl font-semibold">Sign in</h1>
+      {noticeText ? (
+        <p role="status" className="mt-4 rounded-md bg-indigo-50 px-3 py-2 text-sm text-indigo-900">
+          {noticeText}
+        </p>
+      ) : null}
+      <Form
+        method="post"
+        id={form.id}
+        onSubmit={form.onSubmit}
+        noValidate
+        className="mt-6 space-y-4"
+      >
+        <CsrfInput />
+        <input type="hidden" name="redirectTo" value={redirectTo} />
+        <FormError id={form.errorId} errors={form.errors} />
+        <Field label="E-mail address" meta={fields.email} type="email" autoComplete="username" />
+        <Field
+          label="Password"
+          meta={fields.password}
+          type="password"
+          autoComplete="current-password"
+        />
+        <SubmitButton>Sign in</SubmitButton>
+      </Form>
+      <p className="mt-6 text-sm">
+        <Link to="/forgot-password" className="text-indigo-700 underline underline-offset-4">
+          Forgot your password?
+        </Link>
+      </p>
+    </>
+  );
+}

@@ -1,0 +1,28 @@
+import { redirect } from "react-router";
+import { audit } from "~/lib/audit.server";
+import { assertCsrf } from "~/lib/csrf.server";
+import { getCurrentUser } from "~/lib/permissions.server";
+import { clientIp } from "~/lib/request.server";
+import { endSession } from "~/lib/session.server";
+import type { Route } from "./+types/sign-out";
+
+// Signing out changes state, so it is a POST with the CSRF token (a link could be forged).
+export async function action({ request, context }: Route.ActionArgs) {
+  await assertCsrf(request, await request.clone().formData());
+  const current = await getCurrentUser(request);
+  if (current) {
+    await audit({
+      teamId: null,
+      actor: { id: current.user.id, email: current.user.email },
+      action: "sign-out",
+      ip: clientIp(context),
+    });
+  }
+  throw redirect("/sign-in?notice=signed-out", {
+    headers: { "Set-Cookie": await endSession(request) },
+  });
+}
+
+export function loader() {
+  return redirect("/");
+}

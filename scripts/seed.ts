@@ -1,0 +1,56 @@
+// npm run db:seed: the demo team and accounts (app/db/demo-seed.server.ts). Safe to run again:
+// a second run adds nothing. Refuses when SMTP_URL is set, i.e. on a real installation.
+// --if-empty (npm start): seed only a database without any user; print the sign-ins if the
+// demo accounts are there.
+import { count, eq } from "drizzle-orm";
+import { drizzle } from "drizzle-orm/mysql2";
+import mysql from "mysql2/promise";
+import { DEMO_PASSWORD, DEMO_TEAMS, seedDemo } from "../app/db/demo-seed.server";
+import { users } from "../app/db/schema";
+import { describeDbError } from "../app/lib/db-errors.server";
+import { connectionOptions } from "../app/lib/db-options.server";
+import { EnvError, getEnv } from "../app/lib/env.server";
+
+let env;
+try {
+  env = getEnv();
+} catch (error) {
+  if (error instanceof EnvError) {
+    console.error(error.message);
+    process.exit(1);
+  }
+  throw error;
+}
+if (env.SMTP_URL) {
+  console.error(
+    "SMTP_URL is set, so this looks like a real installation: the demo accounts are not created.",
+  );
+  process.exit(1);
+}
+const connection = await mysql.createConnection(connectionOptions(env)).catch((error: unknown) => {
+  console.error(describeDbError(error, env));
+  process.exit(1);
+});
+try {
+  const db = drizzle(connection);
+  const [existing] = await db.select({ n: count() }).from(users);
+  if (process.argv.includes("--if-empty") && (existing?.n ?? 0) > 0) {
+    const demo = await db
+      .select({ id: users.id })
+      .from(users)
+      .where(eq(users.email, "admin@twistlog.test"));
+    if (demo.length === 0) process.exit(0);
+  } else {
+    const added = await seedDemo(db);
+    console.log(
+      added > 0 ? `demo data: ${added} rows added` : "demo data: already there, nothing changed",
+    );
+  }
+  console.log(`demo sign-ins (password ${DEMO_PASSWORD}):`);
+  for (const team of DEMO_TEAMS) {
+    for (const m of team.members)
+      console.log(`  ${m.email.padEnd(26)} ${m.role.padEnd(11)} ${team.name}`);
+  }
+} finally {
+  await connection.end();
+}
