@@ -1,6 +1,6 @@
 /**
  * `npm run bench`: writes a 10-minute, 5 kHz, two-channel drive log (3 million rows, about
- * 90 MB) to a temporary folder, runs the CLI pipeline on it in-process (analyseFile, the same
+ * 90 MB) to a temporary folder, runs the CLI pipeline on it in-process (analyseSource, the same
  * function the CLI calls) and prints rows/s, MB/s, wall time per stage and peak RSS.
  * Goal on the 2-core reference machine: whole analysis < 1.5 s, peak RSS < 270 MB.
  *
@@ -11,7 +11,7 @@ import { mkdtempSync, rmSync, statSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
-import { analyseFile, type PipelineStage } from "../app/lib/signal/cli.ts";
+import { analyseSource, type PipelineStage } from "../app/lib/signal/pipeline.ts";
 
 const DURATION_S = 600;
 const RATE_HZ = 5000;
@@ -41,15 +41,12 @@ try {
   const starts = new Map<PipelineStage, number>();
   const rssAt = new Map<PipelineStage, number>(); // resident MB when each stage starts
   const t0 = performance.now();
-  const outcome = await analyseFile(
-    { file, ingest: {}, analysis: {}, json: true, help: false },
-    (stage) => {
-      if (!starts.has(stage)) {
-        starts.set(stage, performance.now());
-        rssAt.set(stage, process.memoryUsage.rss() / 2 ** 20);
-      }
-    },
-  );
+  const outcome = await analyseSource({ source: file, ingest: {}, analysis: {} }, (stage) => {
+    if (!starts.has(stage)) {
+      starts.set(stage, performance.now());
+      rssAt.set(stage, process.memoryUsage.rss() / 2 ** 20);
+    }
+  });
   const t1 = performance.now();
   if (!outcome.ok) throw new Error(`${outcome.error.code}: ${outcome.error.message}`);
   const json = JSON.stringify(outcome.value.result);

@@ -5,70 +5,9 @@
  * flag exits 2. Never a stack trace. Progress goes to stderr only when stderr is a terminal.
  */
 import { pathToFileURL } from "node:url";
-import { analyseDriveLog, type AnalysisStage } from "./analyse.ts";
-import { parseCliArgs, USAGE, type CliCommand } from "./cli-args.ts";
-import { firingOrder } from "./firing-order.ts";
-import { ingestFile } from "./ingest-stream.ts";
-import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
-import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
-
-export type PipelineStage = "parse" | AnalysisStage;
-
-/** What analyseFile hands back on success: the result and the log it came from. */
-export interface FileAnalysis {
-  result: AnalysisResult;
-  log: DriveLog;
-}
-
-/**
- * The CLI pipeline (also run in-process by the benchmark): ingest → analyseDriveLog → schema
- * check. Ingest warnings join the result's warnings so the stored document carries them.
- */
-export async function analyseFile(
-  cmd: CliCommand,
-  onProgress?: (stage: PipelineStage, fraction: number) => void,
-): Promise<Outcome<FileAnalysis>> {
-  const q =
-    cmd.analysis.firingOrder ??
-    firingOrder(cmd.analysis.cylinders ?? 4, cmd.analysis.stroke ?? 4) ??
-    2;
-  onProgress?.("parse", 0);
-  // 2 × firing order is the highest order the summary relies on (issue 4: 0.5, 1, q, 2q).
-  const ingested = await ingestFile(cmd.file, { topOrder: 2 * q, ...cmd.ingest }, (f) =>
-    onProgress?.("parse", f),
-  );
-  if (!ingested.ok) return ingested;
-  onProgress?.("parse", 1);
-  const analysed = analyseDriveLog(ingested.value, cmd.analysis, onProgress);
-  if (!analysed.ok)
-    return {
-      ok: false,
-      error: analysed.error,
-      warnings: [...ingested.warnings, ...analysed.warnings],
-    };
-  const own = analysed.value.warnings;
-  const sameAsAnalysis = (w: SignalIssue) =>
-    w.code === "low_sample_rate" && own.some((x) => x.code === "sample_rate_low_for_top_order");
-  const merged = [
-    ...ingested.warnings
-      .filter((w) => !sameAsAnalysis(w))
-      .map(({ code, message }) => ({ code, message })),
-    ...own,
-  ];
-  const checked = analysisResultSchema.safeParse({ ...analysed.value, warnings: merged });
-  if (!checked.success) {
-    const where = checked.error.issues[0]?.path.join(".") ?? "?";
-    return {
-      ok: false,
-      error: {
-        code: "result_invalid",
-        message: `the result failed its schema at ${where}; please report this log`,
-      },
-      warnings: merged,
-    };
-  }
-  return { ok: true, value: { result: checked.data, log: ingested.value }, warnings: merged };
-}
+import { parseCliArgs, USAGE } from "./cli-args.ts";
+import { analyseSource, type FileAnalysis, type PipelineStage } from "./pipeline.ts";
+import type { SignalIssue } from "./types.ts";
 
 /** One line naming the problem, its row and column. */
 export function describeIssue(file: string, e: SignalIssue): string {
@@ -169,7 +108,7 @@ export async function main(
   }
   const cmd = args.value;
   const progress = err === process.stderr ? terminalProgress() : undefined;
-  const outcome = await analyseFile(cmd, progress);
+  const outcome = await analyseSource({ ...cmd, source: cmd.file }, progress);
   if (progress) err.write("\r\x1b[K");
   if (!outcome.ok) {
     err.write(`${describeIssue(cmd.file, outcome.error)}\n`);
