@@ -27,6 +27,11 @@ export default [
   route("healthz", "routes/healthz.ts"),
   ...prefix("api/v1", [
     route("me", "routes/api.v1.me.ts"),
+    route("vehicles", "routes/api.v1.vehicles.ts"),
+    route("vehicles/:vehicleId", "routes/api.v1.vehicle.ts"),
+    route("vehicles/:vehicleId/logs", "routes/api.v1.vehicle-logs.ts"),
+    route("logs/:logId", "routes/api.v1.log.ts"),
+    route("logs/:logId/result", "routes/api.v1.log-result.ts"),
     route("*", "routes/api.v1.not-found.ts"),
   ]),
 ] satisfies RouteConfig;

@@ -1,10 +1,11 @@
 // The HTTP server: serves the React Router build (or Vite in development) with Express.
-// A custom server rather than react-router-serve so that later background services
-// (worker pool, fake mail server) start and stop with the app (docs/decisions/003-custom-server.md).
+// A custom server rather than react-router-serve so that the background services (analysis
+// worker pool and job runner, fake mail server) start and stop with the app (docs/decisions/003-custom-server.md).
 import { createRequestHandler } from "@react-router/express";
 import compression from "compression";
 import express from "express";
 import type { ServerBuild } from "react-router";
+import { startAnalysisService } from "../app/lib/analysis-service.server";
 import { EnvError, getEnv } from "../app/lib/env.server";
 import { startFakeSmtp } from "../app/lib/fake-smtp.server";
 import { newNonce, securityHeaders } from "../app/lib/security-headers.server";
@@ -93,6 +94,9 @@ const server = app.listen(PORT, HOST, () => {
   console.log(`Twistlog is serving on http://${shown}:${PORT}`);
 });
 
+// Analyses run in a worker pool; jobs are claimed from the database (any instance may take them).
+const analysis = startAnalysisService();
+
 server.on("error", (error: NodeJS.ErrnoException) => {
   if (error.code === "EADDRINUSE") {
     console.error(
@@ -108,8 +112,11 @@ server.on("error", (error: NodeJS.ErrnoException) => {
 
 function shutdown(signal: string) {
   console.log(`${signal}: closing the server`);
-  server.close(() => void (fakeSmtp?.close() ?? Promise.resolve()).then(() => process.exit(0)));
-  // Open keep-alive connections must not hold the shutdown forever.
+  server.close(
+    () => void Promise.allSettled([analysis.stop(), fakeSmtp?.close()]).then(() => process.exit(0)),
+  );
+  // Open keep-alive connections or a long analysis must not hold the shutdown forever; an
+  // interrupted job is claimed again by the next start (app/lib/analysis-jobs.server.ts).
   setTimeout(() => process.exit(0), 5_000).unref();
   server.closeAllConnections?.();
 }

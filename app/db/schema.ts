@@ -1,24 +1,7 @@
-import { sql } from "drizzle-orm";
-import {
-  bigint,
-  datetime,
-  index,
-  mysqlEnum,
-  mysqlTable,
-  uniqueIndex,
-  varchar,
-} from "drizzle-orm/mysql-core";
+import { index, mysqlEnum, mysqlTable, uniqueIndex, varchar } from "drizzle-orm/mysql-core";
 import { ROLES, type Role } from "../lib/roles";
+import { at, createdAt, id, ref } from "./columns";
 
-// MariaDB notes (STACK-NOTES.md): no serial(); ids are unsigned bigint auto-increment;
-// datetimes keep milliseconds and are stored in UTC.
-const id = () => bigint("id", { mode: "number", unsigned: true }).autoincrement().primaryKey();
-const ref = (name: string) => bigint(name, { mode: "number", unsigned: true });
-const at = (name: string) => datetime(name, { mode: "date", fsp: 3 });
-const createdAt = () =>
-  at("created_at")
-    .notNull()
-    .default(sql`CURRENT_TIMESTAMP(3)`);
 // Secrets that travel in links, cookies or headers are stored only as their sha256 (hex).
 const tokenHash = () => varchar("token_hash", { length: 64 }).notNull();
 

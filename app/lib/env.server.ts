@@ -33,6 +33,14 @@ const envSchema = z.object({
   TRUST_PROXY: z.string().min(1).optional(),
   // Where the fake SMTP server stores each message as an .eml file.
   MAIL_DIR: z.string().min(1).default(".data/mail"),
+  // Raw drive logs (gzip, keyed by content hash); default .data/blobs in the checkout.
+  TWISTLOG_STORAGE_DIR: z.string().min(1).optional(),
+  // The largest drive log accepted by an upload, in bytes (default 1 GiB).
+  UPLOAD_MAX_BYTES: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(1024 ** 3),
 });
 
 const checkedEnv = envSchema

@@ -1,5 +1,5 @@
 import { createHash, randomBytes } from "node:crypto";
-import { createReadStream, createWriteStream } from "node:fs";
+import { createReadStream, createWriteStream, mkdirSync } from "node:fs";
 import { mkdir, rename, rm, stat } from "node:fs/promises";
 import { dirname, join } from "node:path";
 import { Readable, Transform } from "node:stream";
@@ -41,6 +41,8 @@ const keyPattern = /^[0-9a-f]{64}$/;
 
 /** A folder of gzip files, two directory levels deep by key prefix. */
 export function localBlobStore(root: string): BlobStore {
+  const tmpDir = join(root, "tmp");
+  mkdirSync(tmpDir, { recursive: true });
   const pathOf = (key: string) => {
     if (!keyPattern.test(key)) throw new Error(`not a storage key: ${key}`);
     return join(root, key.slice(0, 2), key.slice(2, 4), `${key}.gz`);
@@ -48,8 +50,8 @@ export function localBlobStore(root: string): BlobStore {
 
   return {
     async put(source, options = {}) {
-      const tmpDir = join(root, "tmp");
-      await mkdir(tmpDir, { recursive: true });
+      // The pipeline is attached before the first await: a source that fails at once (the
+      // upload's content check) must find its error listener already there.
       const tmp = join(tmpDir, randomBytes(12).toString("hex"));
       const hash = createHash("sha256");
       let sizeBytes = 0;
@@ -64,9 +66,10 @@ export function localBlobStore(root: string): BlobStore {
           done(null, chunk);
         },
       });
+      // Level 6 is gzip's default: CSV shrinks about 3-5x at a good speed.
+      const written = pipeline(source, meter, createGzip({ level: 6 }), createWriteStream(tmp));
       try {
-        // Level 6 is gzip's default: CSV shrinks about 3-5x at a good speed.
-        await pipeline(source, meter, createGzip({ level: 6 }), createWriteStream(tmp));
+        await written;
         const key = hash.digest("hex");
         const target = pathOf(key);
         await mkdir(dirname(target), { recursive: true });

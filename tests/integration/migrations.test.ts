@@ -42,15 +42,22 @@ describe("migrations against MariaDB", () => {
     const tables = (await tablesOf(database)).sort();
     expect(tables).toEqual([
       "__drizzle_migrations",
+      "analyses",
+      "analysis_jobs",
+      "analysis_segments",
       "api_tokens",
       "audit_events",
+      "drive_logs",
       "invitations",
+      "isolation_points",
       "memberships",
+      "order_curve_points",
       "password_resets",
       "sessions",
       "sign_in_failures",
       "teams",
       "users",
+      "vehicles",
     ]);
 
     const [before] = await admin.query<mysql.RowDataPacket[]>(

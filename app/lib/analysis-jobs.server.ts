@@ -1,0 +1,334 @@
+/**
+ * The analysis queue. A job row per analysis makes the work restartable: any app instance
+ * claims queued jobs (SELECT … FOR UPDATE SKIP LOCKED), keeps a heartbeat while it runs them,
+ * and a job whose heartbeat went stale (its instance died) is claimed again. The computation
+ * runs in a piscina worker pool, never on the request thread (DESIGN.md §5).
+ */
+import { and, eq, isNull, lt, or, sql } from "drizzle-orm";
+import { randomBytes } from "node:crypto";
+import { MessageChannel } from "node:worker_threads";
+import { gzipSync } from "node:zlib";
+import type { Piscina } from "piscina";
+import {
+  analyses,
+  analysisJobs,
+  analysisSegments,
+  driveLogs,
+  isolationPoints,
+  orderCurvePoints,
+} from "~/db/schema-drive-logs";
+import type { AnalysisOptions, AnalysisResult } from "~/lib/signal";
+import type { IngestMapping, LogError } from "./drive-log-terms";
+import type { Db } from "./db.server";
+import type { AnalysisTask, AnalysisTaskOutcome } from "~/workers/analysis.worker";
+
+/** The frozen inputs of one job: what the analysis ran with is always on record. */
+export interface JobSettings {
+  analysis: AnalysisOptions;
+  ingest: IngestMapping;
+}
+
+/** A running job whose heartbeat is older than this is taken to be orphaned. */
+export const STALE_AFTER_MS = 20_000;
+const HEARTBEAT_MS = 5_000;
+/** A job that failed to save this many times is given up (the drive log shows the error). */
+export const MAX_ATTEMPTS = 3;
+
+type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+/** Queues an analysis of a drive log (inside the caller's transaction when given one). */
+export async function enqueueAnalysis(
+  db: Db | Tx,
+  job: { teamId: number; driveLogId: number; settings: JobSettings },
+): Promise<number> {
+  await db
+    .update(driveLogs)
+    .set({ status: "queued", progress: 0, stage: null, error: null })
+    .where(eq(driveLogs.id, job.driveLogId));
+  const [row] = await db
+    .insert(analysisJobs)
+    .values({ teamId: job.teamId, driveLogId: job.driveLogId, settings: { ...job.settings } })
+    .$returningId();
+  return row!.id;
+}
+
+export interface ClaimedJob {
+  id: number;
+  teamId: number;
+  driveLogId: number;
+  settings: JobSettings;
+  attempts: number;
+}
+
+/** Claims the oldest queued (or orphaned) job for `instanceId`, or returns null. */
+export async function claimJob(
+  db: Db,
+  instanceId: string,
+  now = new Date(),
+): Promise<ClaimedJob | null> {
+  const staleBefore = new Date(now.getTime() - STALE_AFTER_MS);
+  return db.transaction(async (tx) => {
+    const [job] = await tx
+      .select({
+        id: analysisJobs.id,
+        teamId: analysisJobs.teamId,
+        driveLogId: analysisJobs.driveLogId,
+        settings: analysisJobs.settings,
+        attempts: analysisJobs.attempts,
+      })
+      .from(analysisJobs)
+      .where(
+        or(
+          eq(analysisJobs.status, "queued"),
+          and(
+            eq(analysisJobs.status, "running"),
+            or(isNull(analysisJobs.heartbeatAt), lt(analysisJobs.heartbeatAt, staleBefore)),
+          ),
+        ),
+      )
+      .orderBy(analysisJobs.id)
+      .limit(1)
+      .for("update", { skipLocked: true });
+    if (!job) return null;
+    await tx
+      .update(analysisJobs)
+      .set({ status: "running", claimedBy: instanceId, heartbeatAt: now })
+      .where(eq(analysisJobs.id, job.id));
+    await tx
+      .update(driveLogs)
+      .set({ status: "analysing", progress: 0, stage: "parse" })
+      .where(eq(driveLogs.id, job.driveLogId));
+    return { ...job, settings: job.settings as unknown as JobSettings };
+  });
+}
+
+/** Test hook: called inside the save transaction after the rows are written, before commit. */
+export type BeforeCommit = (tx: Tx) => Promise<void>;
+
+/** Saves a finished analysis in one transaction: all rows or none (DESIGN.md §5). */
+export async function saveAnalysis(
+  db: Db,
+  job: ClaimedJob,
+  result: AnalysisResult,
+  beforeCommit?: BeforeCommit,
+): Promise<number> {
+  return db.transaction(async (tx) => {
+    const [{ latest }] = (await tx
+      .select({ latest: sql<number>`COALESCE(MAX(${analyses.version}), 0)`.mapWith(Number) })
+      .from(analyses)
+      .where(eq(analyses.driveLogId, job.driveLogId))) as [{ latest: number }];
+    const measured = result.isolation.filter((p) => p.aboveNoise);
+    const dBs = measured.map((p) => p.dB);
+    const rpms = result.isolation.map((p) => p.rpm);
+    const { orderMap, ...rest } = result;
+    const [row] = await tx
+      .insert(analyses)
+      .values({
+        teamId: job.teamId,
+        driveLogId: job.driveLogId,
+        version: latest + 1,
+        settings: { ...result.settings, mapping: job.settings.ingest },
+        firingOrder: result.firingOrder,
+        isolationMinDb: dBs.length ? Math.min(...dBs) : null,
+        isolationMaxDb: dBs.length ? Math.max(...dBs) : null,
+        rpmMin: rpms.length ? Math.min(...rpms) : null,
+        rpmMax: rpms.length ? Math.max(...rpms) : null,
+        resonanceRpm: result.resonance?.rpm ?? null,
+        resonanceDb: result.resonance?.isolationDb ?? null,
+        rattleVerdict: result.idle?.verdict ?? null,
+        idleAngAccelRadS2: result.idle?.gearboxAngAccelRadS2 ?? null,
+        warnings: result.warnings,
+        resultGz: gzipSync(JSON.stringify(rest)),
+        orderMapGz: gzipSync(JSON.stringify(orderMap)),
+      })
+      .$returningId();
+    const analysisId = row!.id;
+    if (result.isolation.length) {
+      await tx.insert(isolationPoints).values(result.isolation.map((p) => ({ analysisId, ...p })));
+    }
+    const curvePoints = result.orderCurves.flatMap((c) =>
+      c.points.map((p) => ({ analysisId, order: c.order, ...p })),
+    );
+    for (let i = 0; i < curvePoints.length; i += 1000) {
+      await tx.insert(orderCurvePoints).values(curvePoints.slice(i, i + 1000));
+    }
+    if (result.segments.length) {
+      await tx
+        .insert(analysisSegments)
+        .values(result.segments.map((s, seq) => ({ analysisId, seq, ...s })));
+    }
+    await tx
+      .update(driveLogs)
+      .set({ status: "done", progress: 1, stage: null, error: null, latestAnalysisId: analysisId })
+      .where(eq(driveLogs.id, job.driveLogId));
+    await tx
+      .update(analysisJobs)
+      .set({ status: "done", finishedAt: new Date(), lastError: null })
+      .where(eq(analysisJobs.id, job.id));
+    await beforeCommit?.(tx);
+    return analysisId;
+  });
+}
+
+/** The drive log could not be analysed (bad file): it says why; no analysis rows are written. */
+export async function failJob(db: Db, job: ClaimedJob, error: LogError): Promise<void> {
+  await db.transaction(async (tx) => {
+    await tx
+      .update(driveLogs)
+      .set({ status: "failed", stage: null, error })
+      .where(eq(driveLogs.id, job.driveLogId));
+    await tx
+      .update(analysisJobs)
+      .set({
+        status: "failed",
+        finishedAt: new Date(),
+        lastError: `${error.code}: ${error.message}`,
+      })
+      .where(eq(analysisJobs.id, job.id));
+  });
+}
+
+/** Saving failed (e.g. the database went away mid-transaction): queue the job again, or give up. */
+export async function retryJob(
+  db: Db,
+  job: ClaimedJob,
+  reason: string,
+): Promise<"queued" | "failed"> {
+  const attempts = job.attempts + 1;
+  if (attempts >= MAX_ATTEMPTS) {
+    await db.update(analysisJobs).set({ attempts }).where(eq(analysisJobs.id, job.id));
+    await failJob(
+      db,
+      { ...job, attempts },
+      {
+        code: "save_failed",
+        message: `the analysis could not be saved after ${attempts} attempts (${reason}); try re-analysing later`,
+      },
+    );
+    return "failed";
+  }
+  await db
+    .update(analysisJobs)
+    .set({ status: "queued", attempts, claimedBy: null, heartbeatAt: null, lastError: reason })
+    .where(eq(analysisJobs.id, job.id));
+  await db
+    .update(driveLogs)
+    .set({ status: "queued", progress: 0, stage: null })
+    .where(eq(driveLogs.id, job.driveLogId));
+  return "queued";
+}
+
+export interface RunnerOptions {
+  db: Db;
+  pool: Piscina;
+  blobRoot: string;
+  /** Jobs run at once by this instance (default: the pool's thread count). */
+  concurrency?: number;
+  pollMs?: number;
+  beforeCommit?: BeforeCommit;
+  onError?: (error: unknown) => void;
+}
+
+/** Claims and runs jobs until stopped. Several uploads queue; at most `concurrency` run. */
+export function startJobRunner(options: RunnerOptions) {
+  const instanceId = `${process.pid}-${randomBytes(4).toString("hex")}`;
+  const concurrency = options.concurrency ?? options.pool.options.maxThreads;
+  const pollMs = options.pollMs ?? 500;
+  let running = 0;
+  let stopped = false;
+  const active = new Set<Promise<void>>();
+
+  async function tick() {
+    while (!stopped && running < concurrency) {
+      const job = await claimJob(options.db, instanceId).catch((error) => {
+        options.onError?.(error);
+        return null;
+      });
+      if (!job) return;
+      running++;
+      const work = runClaimedJob(options, instanceId, job)
+        .catch((error) => options.onError?.(error))
+        .finally(() => {
+          running--;
+          active.delete(work);
+        });
+      active.add(work);
+    }
+  }
+  const timer = setInterval(() => void tick(), pollMs);
+  void tick();
+  return {
+    instanceId,
+    /** Wakes the runner at once (after an upload), instead of at the next poll. */
+    poke: () => void tick(),
+    async stop() {
+      stopped = true;
+      clearInterval(timer);
+      await Promise.allSettled([...active]);
+    },
+  };
+}
+
+async function runClaimedJob(options: RunnerOptions, instanceId: string, job: ClaimedJob) {
+  const { db } = options;
+  const [log] = await db
+    .select({ blobKey: driveLogs.blobKey, sizeBytes: driveLogs.sizeBytes })
+    .from(driveLogs)
+    .where(eq(driveLogs.id, job.driveLogId));
+  if (!log) return; // deleted meanwhile; the job row went with it (cascade)
+
+  const channel = new MessageChannel();
+  let pending: { stage: string; progress: number } | null = null;
+  channel.port2.on("message", (m: { stage: string; progress: number }) => (pending = m));
+  const beat = async () => {
+    const now = new Date();
+    await db
+      .update(analysisJobs)
+      .set({ heartbeatAt: now })
+      .where(and(eq(analysisJobs.id, job.id), eq(analysisJobs.claimedBy, instanceId)));
+    if (pending) {
+      const { stage, progress } = pending;
+      pending = null;
+      await db.update(driveLogs).set({ stage, progress }).where(eq(driveLogs.id, job.driveLogId));
+    }
+  };
+  const progressTimer = setInterval(() => void beat().catch(() => {}), 500);
+  const heartbeat = setInterval(() => void beat().catch(() => {}), HEARTBEAT_MS);
+
+  let outcome: AnalysisTaskOutcome;
+  try {
+    const task: AnalysisTask = {
+      blobRoot: options.blobRoot,
+      blobKey: log.blobKey,
+      sizeBytes: log.sizeBytes,
+      ingest: job.settings.ingest,
+      analysis: job.settings.analysis,
+      progress: channel.port1,
+    };
+    outcome = await options.pool.run(task, { transferList: [channel.port1] });
+  } catch (error) {
+    outcome = {
+      ok: false,
+      error: {
+        code: "analysis_crashed",
+        message: `the analysis stopped unexpectedly (${String(error)}); please report this drive log`,
+      },
+      warnings: [],
+    };
+  } finally {
+    clearInterval(progressTimer);
+    clearInterval(heartbeat);
+    channel.port2.close();
+  }
+
+  if (!outcome.ok) {
+    await failJob(db, job, outcome.error);
+    return;
+  }
+  try {
+    await saveAnalysis(db, job, outcome.result, options.beforeCommit);
+  } catch (error) {
+    const reason = error instanceof Error ? error.message.split("\n")[0]! : String(error);
+    await retryJob(db, job, reason);
+  }
+}

@@ -1,0 +1,36 @@
+import { startJobRunner, type BeforeCommit } from "./analysis-jobs.server";
+import { describeDbError } from "./db-errors.server";
+import { db } from "./db.server";
+import { getEnv } from "./env.server";
+import { blobRoot } from "./upload-settings.server";
+import { createAnalysisPool } from "./worker-pool.server";
+
+/**
+ * The background analysis of this app instance: a worker pool and a job runner that claims
+ * queued analyses from the database. server/index.ts starts it with the HTTP server and stops
+ * it on shutdown; a job cut short by a stop is claimed again once its heartbeat is stale.
+ */
+export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = {}) {
+  const pool = createAnalysisPool();
+  let lastMessage = "";
+  let lastAt = 0;
+  const runner = startJobRunner({
+    db,
+    pool,
+    blobRoot: blobRoot(),
+    beforeCommit: options.beforeCommit,
+    onError(error) {
+      // One line, and the same line at most once a minute (a stopped database must not flood the log).
+      const message = `analysis queue: ${describeDbError(error, getEnv())}`;
+      if (message !== lastMessage || Date.now() - lastAt > 60_000) console.error(message);
+      lastMessage = message;
+      lastAt = Date.now();
+    },
+  });
+  return {
+    async stop() {
+      await runner.stop();
+      await pool.destroy();
+    },
+  };
+}

@@ -1,0 +1,18 @@
+import { join } from "node:path";
+import { getEnv } from "./env.server";
+import { localBlobStore, type BlobStore } from "./storage.server";
+
+/** Where raw drive logs are kept (TWISTLOG_STORAGE_DIR, default .data/blobs). */
+export function blobRoot(): string {
+  return getEnv().TWISTLOG_STORAGE_DIR ?? join(process.cwd(), ".data", "blobs");
+}
+
+let store: BlobStore | undefined;
+export function blobStore(): BlobStore {
+  return (store ??= localBlobStore(blobRoot()));
+}
+
+/** The largest drive log accepted, in bytes (UPLOAD_MAX_BYTES, default 1 GiB). */
+export function uploadMaxBytes(): number {
+  return getEnv().UPLOAD_MAX_BYTES;
+}

@@ -1,0 +1,232 @@
+import { and, asc, desc, eq, isNull, ne } from "drizzle-orm";
+import { gunzipSync } from "node:zlib";
+import { analyses, driveLogs, vehicles } from "~/db/schema-drive-logs";
+import type { AnalysisOptions } from "~/lib/signal";
+import { enqueueAnalysis, type JobSettings } from "./analysis-jobs.server";
+import { db } from "./db.server";
+import type { IngestMapping } from "./drive-log-terms";
+import { invariantResponse } from "./permissions.server";
+import type { StoredBlob } from "./storage.server";
+import type { LogMetadata, VehicleInput } from "./vehicle-schema";
+
+export type Vehicle = typeof vehicles.$inferSelect;
+export type DriveLogRow = typeof driveLogs.$inferSelect;
+
+/** Settings a re-analysis may change (issue: order override, block length, bin width). */
+export type AnalysisOverrides = Pick<AnalysisOptions, "firingOrder" | "revsPerBlock" | "binRpm">;
+
+/** What a job runs with: the vehicle's engine and limit, the column mapping, any overrides. */
+export function jobSettingsFor(
+  vehicle: Vehicle,
+  mapping: IngestMapping | null,
+  overrides: AnalysisOverrides = {},
+): JobSettings {
+  const analysis: AnalysisOptions = {
+    cylinders: vehicle.cylinders,
+    stroke: vehicle.stroke === 2 ? 2 : 4,
+    rattleLimitRadS2: vehicle.rattleLimitRadS2,
+    ...(vehicle.firingOrderOverride ? { firingOrder: vehicle.firingOrderOverride } : {}),
+    ...Object.fromEntries(Object.entries(overrides).filter(([, v]) => v !== undefined)),
+  };
+  return { analysis, ingest: mapping ?? {} };
+}
+
+/**
+ * Every read and write of vehicles and drive logs goes through here with the team in each
+ * query (DESIGN.md §2): another team's vehicle or log is a 404, like one that does not exist.
+ */
+export function vehicleData(teamId: number) {
+  const inTeam = eq(vehicles.teamId, teamId);
+
+  async function vehicle(id: number): Promise<Vehicle> {
+    const [row] = await db
+      .select()
+      .from(vehicles)
+      .where(and(eq(vehicles.id, id), inTeam));
+    invariantResponse(row, "No such vehicle in this team.", { status: 404 });
+    return row;
+  }
+
+  async function log(id: number): Promise<DriveLogRow> {
+    const [row] = await db
+      .select()
+      .from(driveLogs)
+      .where(and(eq(driveLogs.id, id), eq(driveLogs.teamId, teamId)));
+    invariantResponse(row, "No such drive log in this team.", { status: 404 });
+    return row;
+  }
+
+  return {
+    teamId,
+    vehicle,
+    log,
+
+    list(options: { archived?: boolean } = {}) {
+      return db
+        .select()
+        .from(vehicles)
+        .where(and(inTeam, options.archived ? undefined : isNull(vehicles.archivedAt)))
+        .orderBy(asc(vehicles.name));
+    },
+
+    /** True when another vehicle of the team already uses this identifier. */
+    async identifierTaken(identifier: string, exceptId?: number) {
+      const rows = await db
+        .select({ id: vehicles.id })
+        .from(vehicles)
+        .where(
+          and(
+            inTeam,
+            eq(vehicles.identifier, identifier),
+            exceptId ? ne(vehicles.id, exceptId) : undefined,
+          ),
+        );
+      return rows.length > 0;
+    },
+
+    async create(input: VehicleInput): Promise<number> {
+      const [row] = await db
+        .insert(vehicles)
+        .values({ ...input, teamId, firingOrderOverride: input.firingOrderOverride ?? null })
+        .$returningId();
+      return row!.id;
+    },
+
+    async update(id: number, input: VehicleInput) {
+      await vehicle(id);
+      await db
+        .update(vehicles)
+        .set({
+          ...input,
+          firingOrderOverride: input.firingOrderOverride ?? null,
+          updatedAt: new Date(),
+        })
+        .where(and(eq(vehicles.id, id), inTeam));
+    },
+
+    async setArchived(id: number, archived: boolean) {
+      await vehicle(id);
+      await db
+        .update(vehicles)
+        .set({ archivedAt: archived ? new Date() : null })
+        .where(and(eq(vehicles.id, id), inTeam));
+    },
+
+    async rememberMapping(id: number, mapping: IngestMapping) {
+      await vehicle(id);
+      await db
+        .update(vehicles)
+        .set({ columnMapping: mapping })
+        .where(and(eq(vehicles.id, id), inTeam));
+    },
+
+    logs(vehicleId: number) {
+      return db
+        .select()
+        .from(driveLogs)
+        .where(and(eq(driveLogs.vehicleId, vehicleId), eq(driveLogs.teamId, teamId)))
+        .orderBy(desc(driveLogs.uploadedAt), desc(driveLogs.id));
+    },
+
+    /**
+     * Records an uploaded file as a drive log and queues its analysis, in one transaction.
+     * A file already stored for this vehicle is accepted again (scripts must not break) and
+     * `duplicateOf` names the earliest drive log with the same content.
+     */
+    async addLog(args: {
+      vehicle: Vehicle;
+      fileName: string;
+      stored: StoredBlob;
+      metadata: LogMetadata;
+      uploadedBy: number | null;
+    }): Promise<{ id: number; duplicateOf: number | null }> {
+      const { vehicle: v, stored, metadata } = args;
+      return db.transaction(async (tx) => {
+        const [earlier] = await tx
+          .select({ id: driveLogs.id })
+          .from(driveLogs)
+          .where(
+            and(
+              eq(driveLogs.vehicleId, v.id),
+              eq(driveLogs.teamId, teamId),
+              eq(driveLogs.blobKey, stored.key),
+            ),
+          )
+          .orderBy(asc(driveLogs.id))
+          .limit(1);
+        const [row] = await tx
+          .insert(driveLogs)
+          .values({
+            teamId,
+            vehicleId: v.id,
+            fileName: args.fileName.slice(0, 255),
+            blobKey: stored.key,
+            sizeBytes: stored.sizeBytes,
+            condition: metadata.condition,
+            gear: metadata.gear ?? null,
+            damperVariant: metadata.damperVariant ?? v.damperVariant,
+            testDate: metadata.testDate ?? null,
+            notes: metadata.notes,
+            uploadedBy: args.uploadedBy,
+          })
+          .$returningId();
+        const id = row!.id;
+        await enqueueAnalysis(tx, {
+          teamId,
+          driveLogId: id,
+          settings: jobSettingsFor(v, v.columnMapping),
+        });
+        return { id, duplicateOf: earlier?.id ?? null };
+      });
+    },
+
+    /** Queues a new analysis version of a drive log (the older ones are kept). */
+    async reanalyse(logId: number, overrides: AnalysisOverrides = {}, mapping?: IngestMapping) {
+      const row = await log(logId);
+      const v = await vehicle(row.vehicleId);
+      return enqueueAnalysis(db, {
+        teamId,
+        driveLogId: row.id,
+        settings: jobSettingsFor(v, mapping ?? v.columnMapping, overrides),
+      });
+    },
+
+    /** The stored result JSON of the latest analysis, exactly as the signal core produced it. */
+    async latestResult(logId: number): Promise<Record<string, unknown> | null> {
+      const row = await log(logId);
+      if (!row.latestAnalysisId) return null;
+      const [stored] = await db
+        .select({ resultGz: analyses.resultGz, orderMapGz: analyses.orderMapGz })
+        .from(analyses)
+        .where(and(eq(analyses.id, row.latestAnalysisId), eq(analyses.teamId, teamId)));
+      if (!stored) return null;
+      const result = JSON.parse(gunzipSync(stored.resultGz).toString("utf8")) as Record<
+        string,
+        unknown
+      >;
+      const orderMap = JSON.parse(gunzipSync(stored.orderMapGz).toString("utf8")) as unknown;
+      // Keys back in the signal core's order (orderMap sits after orderCurves).
+      const {
+        firingOrder,
+        sampleRateHz,
+        durationS,
+        settings,
+        blocks,
+        isolation,
+        orderCurves,
+        ...tail
+      } = result;
+      return {
+        firingOrder,
+        sampleRateHz,
+        durationS,
+        settings,
+        blocks,
+        isolation,
+        orderCurves,
+        orderMap,
+        ...tail,
+      };
+    },
+  };
+}

@@ -1,0 +1,12 @@
+import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
+import { logJson } from "~/lib/api-json.server";
+import { idParam } from "~/lib/params";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/api.v1.log";
+
+/** GET /api/v1/logs/:logId → { log: { id, vehicleId, status, progress, error, … } }. */
+export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { teamId } = await requireApiAccess(request, "viewer");
+  const log = await vehicleData(teamId).log(idParam(params.logId));
+  return Response.json({ log: logJson(log) }, { headers: { "Cache-Control": "no-store" } });
+});

@@ -1,0 +1,81 @@
+import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
+import { logJson } from "~/lib/api-json.server";
+import { apiError } from "~/lib/api.server";
+import { idParam } from "~/lib/params";
+import { blobStore, uploadMaxBytes } from "~/lib/upload-settings.server";
+import { discardBody, receiveUpload, UploadError } from "~/lib/uploads.server";
+import { logMetadataSchema } from "~/lib/vehicle-schema";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/api.v1.vehicle-logs";
+
+const noStore = { "Cache-Control": "no-store" };
+
+/** GET /api/v1/vehicles/:vehicleId/logs → { logs: [...] }, newest first. */
+export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { teamId } = await requireApiAccess(request, "viewer");
+  const data = vehicleData(teamId);
+  const vehicle = await data.vehicle(idParam(params.vehicleId));
+  const logs = await data.logs(vehicle.id);
+  return Response.json({ logs: logs.map(logJson) }, { headers: noStore });
+});
+
+/**
+ * POST /api/v1/vehicles/:vehicleId/logs (multipart: `file`, optional `condition`, `gear`,
+ * `damperVariant`, `testDate`, `notes`; technician and up) → 202 { log: { id, status, duplicateOf } }.
+ */
+export const action = apiRoute(async ({ request, params }: Route.ActionArgs) => {
+  if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use GET or POST.");
+  let teamId: number, userId: number, vehicle;
+  try {
+    ({ teamId, userId } = await requireApiAccess(request, "technician"));
+    vehicle = await vehicleData(teamId).vehicle(idParam(params.vehicleId));
+  } catch (refusal) {
+    await discardBody(request); // so the client reads the 401/403/404 instead of a reset
+    throw refusal;
+  }
+  const data = vehicleData(teamId);
+  if (vehicle.archivedAt) {
+    await discardBody(request);
+    return apiError(
+      409,
+      "vehicle_archived",
+      "This vehicle is archived: restore it before uploading.",
+    );
+  }
+
+  let upload;
+  try {
+    upload = await receiveUpload(request, {
+      store: blobStore(),
+      maxBytes: uploadMaxBytes(),
+      maxFiles: 1,
+    });
+  } catch (error) {
+    if (error instanceof UploadError) return apiError(error.status, error.code, error.message);
+    throw error;
+  }
+  const file = upload.files.find((f) => f.field === "file");
+  if (!file)
+    return apiError(400, "missing_file", "Send the drive log in the multipart field 'file'.");
+  const metadata = logMetadataSchema.safeParse(upload.fields);
+  if (!metadata.success) {
+    const issue = metadata.error.issues[0];
+    return apiError(
+      400,
+      "invalid_metadata",
+      `${issue?.path.join(".") ?? "field"}: ${issue?.message ?? "invalid"}`,
+    );
+  }
+  const added = await data.addLog({
+    vehicle,
+    fileName: file.fileName,
+    stored: file.stored,
+    metadata: metadata.data,
+    uploadedBy: userId,
+  });
+  const log = await data.log(added.id);
+  return Response.json(
+    { log: { ...logJson(log), duplicateOf: added.duplicateOf } },
+    { status: 202, headers: { ...noStore, Location: `/api/v1/logs/${log.id}` } },
+  );
+});

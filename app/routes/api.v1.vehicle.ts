@@ -1,0 +1,15 @@
+import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
+import { vehicleJson } from "~/lib/api-json.server";
+import { idParam } from "~/lib/params";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/api.v1.vehicle";
+
+/** GET /api/v1/vehicles/:vehicleId → { vehicle } (404 for another team's vehicle). */
+export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { teamId } = await requireApiAccess(request, "viewer");
+  const vehicle = await vehicleData(teamId).vehicle(idParam(params.vehicleId));
+  return Response.json(
+    { vehicle: vehicleJson(vehicle) },
+    { headers: { "Cache-Control": "no-store" } },
+  );
+});

@@ -1,0 +1,34 @@
+import mysql from "mysql2/promise";
+import { randomBytes } from "node:crypto";
+import { applyMigrations } from "~/db/migrate.server";
+import { connectionOptions } from "~/lib/db-options.server";
+import { getEnv } from "~/lib/env.server";
+
+/**
+ * A database of this test file's own, with every migration applied. Tests that run job runners
+ * need one: any server or runner on the shared test database would claim their jobs. Call it
+ * before anything imports ~/lib/db.server (import such modules dynamically afterwards); the
+ * servers the file starts get `DATABASE_NAME` passed on.
+ */
+export async function useScratchDatabase(label: string) {
+  // Not the cached settings: the app's modules must read the new DATABASE_NAME afterwards.
+  const env = getEnv({ ...process.env });
+  const name = `${env.DATABASE_NAME}_${label}_${randomBytes(3).toString("hex")}`;
+  const base = connectionOptions(env);
+  const admin = await mysql.createConnection({ ...base, database: undefined });
+  await admin.query(`CREATE DATABASE \`${name}\``);
+  await admin.end();
+  await applyMigrations({ ...base, database: name });
+  const previous = process.env.DATABASE_NAME;
+  process.env.DATABASE_NAME = name;
+  return {
+    name,
+    async drop() {
+      const c = await mysql.createConnection({ ...base, database: undefined });
+      await c.query(`DROP DATABASE IF EXISTS \`${name}\``);
+      await c.end();
+      if (previous === undefined) delete process.env.DATABASE_NAME;
+      else process.env.DATABASE_NAME = previous;
+    },
+  };
+}
