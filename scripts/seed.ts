@@ -41,7 +41,9 @@ try {
       .where(eq(users.email, "admin@twistlog.test"));
     if (demo.length === 0) process.exit(0);
   } else {
-    const added = await seedDemo(db);
+    // Drive logs go through the app's own storage and queue (the server analyses them).
+    const { seedDemoDriveLogs } = await import("../app/db/demo-drive-logs.server");
+    const added = (await seedDemo(db)) + (await seedDemoDriveLogs(DEMO_TEAMS[0].slug));
     console.log(
       added > 0 ? `demo data: ${added} rows added` : "demo data: already there, nothing changed",
     );
@@ -53,4 +55,6 @@ try {
   }
 } finally {
   await connection.end();
+  const { pool } = await import("../app/lib/db.server");
+  await pool.end();
 }

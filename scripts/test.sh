@@ -30,6 +30,7 @@ export TWISTLOG_BASE_URL="http://127.0.0.1:$TEST_PORT"
 # The test server's fake SMTP server: its own port (npm start uses 2525) and folder.
 export FAKE_SMTP_PORT=${TEST_SMTP_PORT:-2526}
 export MAIL_DIR=$TEST_ROOT/mail
+export TWISTLOG_STORAGE_DIR=$TEST_ROOT/blobs
 unset SMTP_URL APP_URL
 
 server_pid=""

@@ -5,7 +5,6 @@ import { createRequestHandler } from "@react-router/express";
 import compression from "compression";
 import express from "express";
 import type { ServerBuild } from "react-router";
-import { startAnalysisService } from "../app/lib/analysis-service.server";
 import { EnvError, getEnv } from "../app/lib/env.server";
 import { startFakeSmtp } from "../app/lib/fake-smtp.server";
 import { newNonce, securityHeaders } from "../app/lib/security-headers.server";
@@ -89,13 +88,15 @@ if (NODE_ENV === "development") {
   app.all("/{*path}", createRequestHandler({ build, mode: NODE_ENV, getLoadContext }));
 }
 
+// Analyses run in a worker pool; jobs are claimed from the database (any instance may take them).
+// Imported only now: the database client it opens reads settings already checked above.
+const { startAnalysisService } = await import("../app/lib/analysis-service.server");
+const analysis = startAnalysisService();
+
 const server = app.listen(PORT, HOST, () => {
   const shown = HOST === "127.0.0.1" ? "localhost" : HOST;
   console.log(`Twistlog is serving on http://${shown}:${PORT}`);
 });
-
-// Analyses run in a worker pool; jobs are claimed from the database (any instance may take them).
-const analysis = startAnalysisService();
 
 server.on("error", (error: NodeJS.ErrnoException) => {
   if (error.code === "EADDRINUSE") {

@@ -218,6 +218,18 @@ export async function retryJob(
   return "queued";
 }
 
+/** Hands a claimed job back to the queue unchanged (its instance is stopping). */
+export async function releaseJob(db: Db, job: ClaimedJob): Promise<void> {
+  await db
+    .update(analysisJobs)
+    .set({ status: "queued", claimedBy: null, heartbeatAt: null })
+    .where(eq(analysisJobs.id, job.id));
+  await db
+    .update(driveLogs)
+    .set({ status: "queued", progress: 0, stage: null })
+    .where(eq(driveLogs.id, job.driveLogId));
+}
+
 export interface RunnerOptions {
   db: Db;
   pool: Piscina;
@@ -237,6 +249,7 @@ export function startJobRunner(options: RunnerOptions) {
   let running = 0;
   let stopped = false;
   const active = new Set<Promise<void>>();
+  const stopping = new AbortController();
 
   async function tick() {
     while (!stopped && running < concurrency) {
@@ -246,7 +259,7 @@ export function startJobRunner(options: RunnerOptions) {
       });
       if (!job) return;
       running++;
-      const work = runClaimedJob(options, instanceId, job)
+      const work = runClaimedJob(options, instanceId, job, stopping.signal)
         .catch((error) => options.onError?.(error))
         .finally(() => {
           running--;
@@ -261,15 +274,22 @@ export function startJobRunner(options: RunnerOptions) {
     instanceId,
     /** Wakes the runner at once (after an upload), instead of at the next poll. */
     poke: () => void tick(),
+    /** Stops claiming; running jobs are abandoned and handed back to the queue at once. */
     async stop() {
       stopped = true;
       clearInterval(timer);
+      stopping.abort();
       await Promise.allSettled([...active]);
     },
   };
 }
 
-async function runClaimedJob(options: RunnerOptions, instanceId: string, job: ClaimedJob) {
+async function runClaimedJob(
+  options: RunnerOptions,
+  instanceId: string,
+  job: ClaimedJob,
+  signal: AbortSignal,
+) {
   const { db } = options;
   const [log] = await db
     .select({ blobKey: driveLogs.blobKey, sizeBytes: driveLogs.sizeBytes })
@@ -305,8 +325,13 @@ async function runClaimedJob(options: RunnerOptions, instanceId: string, job: Cl
       analysis: job.settings.analysis,
       progress: channel.port1,
     };
-    outcome = await options.pool.run(task, { transferList: [channel.port1] });
+    outcome = await options.pool.run(task, { transferList: [channel.port1], signal });
   } catch (error) {
+    if (signal.aborted) {
+      // This instance is stopping: give the job back now rather than after the stale timeout.
+      await releaseJob(db, job);
+      return;
+    }
     outcome = {
       ok: false,
       error: {

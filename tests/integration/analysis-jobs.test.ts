@@ -197,6 +197,40 @@ describe("analysis jobs", () => {
     }
   });
 
+  it("a stopping instance hands its running job back to the queue at once", async () => {
+    const logId = await addLog(csv + "\n\n\n\n\n");
+    // A pool whose task only ends when aborted stands in for a long analysis.
+    const endless = {
+      options: { maxThreads: 1 },
+      run: (_task: unknown, { signal }: { signal: AbortSignal }) =>
+        new Promise((_, reject) =>
+          signal.addEventListener("abort", () => reject(new Error("aborted"))),
+        ),
+    } as unknown as Parameters<typeof startJobRunner>[0]["pool"];
+    const runner = startJobRunner({ db, pool: endless, blobRoot, pollMs: 50 });
+    await until(
+      () => jobOf(logId),
+      (j) => j.status === "running",
+      "the claim",
+    );
+    await runner.stop();
+    const job = await jobOf(logId);
+    expect(job).toMatchObject({ status: "queued", claimedBy: null, attempts: 0 });
+    const [log] = await db.select().from(driveLogs).where(eq(driveLogs.id, logId));
+    expect(log?.status).toBe("queued");
+    // The next instance finishes it.
+    const next = startJobRunner({ db, pool: workers, blobRoot, pollMs: 50 });
+    try {
+      await until(
+        () => jobOf(logId),
+        (j) => j.status === "done",
+        "the handed-back job",
+      );
+    } finally {
+      await next.stop();
+    }
+  });
+
   it("a fresh claim of a running job with a live heartbeat is refused (no double work)", async () => {
     const logId = await addLog(csv + "\n\n\n");
     const first = await claimJob(db, "instance-a");

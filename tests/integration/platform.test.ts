@@ -2,6 +2,7 @@ import mysql from "mysql2/promise";
 import nodemailer from "nodemailer";
 import { randomBytes } from "node:crypto";
 import { mkdtempSync } from "node:fs";
+import { rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -128,17 +129,22 @@ describe("demo seed", () => {
     try {
       await admin.query(`CREATE DATABASE \`${database}\``);
       await applyMigrations({ ...connectionOptions(env), database });
-      const first = await runTs("scripts/seed.ts", { DATABASE_NAME: database });
+      const seedEnv = {
+        DATABASE_NAME: database,
+        TWISTLOG_STORAGE_DIR: join(tmpdir(), `twistlog-seed-${database}`),
+      };
+      const first = await runTs("scripts/seed.ts", seedEnv);
       expect(first.code).toBe(0);
       expect(first.stdout).toContain("admin@twistlog.test");
       const counts = async () => {
         const [rows] = await admin.query<mysql.RowDataPacket[]>(
-          `SELECT (SELECT COUNT(*) FROM \`${database}\`.teams) t, (SELECT COUNT(*) FROM \`${database}\`.users) u, (SELECT COUNT(*) FROM \`${database}\`.memberships) m, (SELECT GROUP_CONCAT(password_hash) FROM \`${database}\`.users) h`,
+          `SELECT (SELECT COUNT(*) FROM \`${database}\`.teams) t, (SELECT COUNT(*) FROM \`${database}\`.users) u, (SELECT COUNT(*) FROM \`${database}\`.memberships) m, (SELECT GROUP_CONCAT(password_hash) FROM \`${database}\`.users) h, (SELECT COUNT(*) FROM \`${database}\`.vehicles) v, (SELECT COUNT(*) FROM \`${database}\`.drive_logs) l, (SELECT COUNT(*) FROM \`${database}\`.analysis_jobs WHERE status = 'queued') q`,
         );
         return rows[0];
       };
       const before = await counts();
-      expect(before).toMatchObject({ t: 2, u: 5, m: 5 });
+      // Two demo vehicles with four sample drive logs each, queued for analysis (samples/README.md).
+      expect(before).toMatchObject({ t: 2, u: 5, m: 5, v: 2, l: 8, q: 8 });
       const [roles] = await admin.query<mysql.RowDataPacket[]>(
         `SELECT u.email, m.role, t.name FROM \`${database}\`.memberships m JOIN \`${database}\`.users u ON u.id = m.user_id JOIN \`${database}\`.teams t ON t.id = m.team_id ORDER BY u.email`,
       );
@@ -149,7 +155,7 @@ describe("demo seed", () => {
         "technician@twistlog.test technician Kestrel Driveline Test",
         "viewer@twistlog.test viewer Kestrel Driveline Test",
       ]);
-      const second = await runTs("scripts/seed.ts", { DATABASE_NAME: database });
+      const second = await runTs("scripts/seed.ts", seedEnv);
       expect(second.stdout).toContain("nothing changed");
       expect(await counts()).toEqual(before);
       const refused = await runTs("scripts/seed.ts", {
@@ -162,6 +168,7 @@ describe("demo seed", () => {
     } finally {
       await admin.query(`DROP DATABASE IF EXISTS \`${database}\``);
       await admin.end();
+      await rm(join(tmpdir(), `twistlog-seed-${database}`), { recursive: true, force: true });
     }
   });
 });

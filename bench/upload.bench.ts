@@ -1,0 +1,136 @@
+/**
+ * `npm run bench` (second part): streams a ~100 MB drive log through the real server
+ * (POST /api/v1/vehicles/:id/logs with an API token) and prints the server's resident memory
+ * before, during the upload and during the analysis that follows, with the wall times. The
+ * goal (issue 5): the server's memory stays well below the file size while the upload streams.
+ * It starts a MariaDB of its own in a temporary folder (port BENCH_DATABASE_PORT, default 3468)
+ * and builds the app first when build/ is missing.
+ */
+import { execFileSync, spawn } from "node:child_process";
+import { existsSync, mkdtempSync, openAsBlob, readFileSync, rmSync, statSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
+import { freePort } from "../tests/support/processes.ts";
+
+const root = fileURLToPath(new URL("..", import.meta.url));
+const dir = mkdtempSync(join(tmpdir(), "twistlog-upload-bench-"));
+const env = {
+  ...process.env,
+  TWISTLOG_DB_DIR: join(dir, "mariadb"),
+  DATABASE_PORT: process.env.BENCH_DATABASE_PORT ?? "3468",
+  DATABASE_NAME: "twistlog_bench",
+  TWISTLOG_STORAGE_DIR: join(dir, "blobs"),
+  MAIL_DIR: join(dir, "mail"),
+  NODE_ENV: "production",
+};
+Object.assign(process.env, env);
+const run = (cmd: string, args: string[]) =>
+  execFileSync(cmd, args, { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+
+/** Resident and peak resident memory of a process in MB (Linux /proc, VmRSS and VmHWM). */
+function memoryOf(pid: number): { rssMB: number; peakMB: number } {
+  const status = readFileSync(`/proc/${pid}/status`, "utf8");
+  const kB = (key: string) => Number(new RegExp(`${key}:\\s+(\\d+)`).exec(status)?.[1] ?? NaN);
+  return { rssMB: kB("VmRSS") / 1024, peakMB: kB("VmHWM") / 1024 };
+}
+
+let server: ReturnType<typeof spawn> | undefined;
+try {
+  const file = join(dir, "upload-bench.csv");
+  run(process.execPath, ["--import", "tsx", join(root, "bench/drive-log.ts"), file, "670", "5000"]);
+  const bytes = statSync(file).size;
+  run("bash", ["scripts/mariadb.sh", "start"]);
+  run(process.execPath, ["--import", "tsx", "scripts/migrate.ts"]);
+  if (!existsSync(join(root, "build/server/index.js"))) run("npm", ["run", "-s", "build"]);
+
+  // Settings are in process.env now, so the app modules connect to the bench database.
+  const { createTestTeam } = await import("../tests/support/accounts.ts");
+  const { createApiToken } = await import("../app/lib/api-tokens.server.ts");
+  const { vehicleData } = await import("../app/lib/vehicles.server.ts");
+  const { vehicleSchema } = await import("../app/lib/vehicle-schema.ts");
+  const { pool } = await import("../app/lib/db.server.ts");
+  const team = await createTestTeam("Bench");
+  const { token } = await createApiToken({
+    userId: team.accounts.technician.id,
+    teamId: team.id,
+    name: "bench",
+    expiresAt: null,
+  });
+  const vehicleId = await vehicleData(team.id).create(
+    vehicleSchema.parse({ name: "Bench car", identifier: "B-1", cylinders: 4, stroke: 4 }),
+  );
+  await pool.end();
+
+  const port = await freePort();
+  const smtp = await freePort();
+  // node --import tsx (not the tsx wrapper), so the pid measured is the server itself.
+  server = spawn(process.execPath, ["--import", "tsx", "server/index.ts"], {
+    cwd: root,
+    env: { ...env, PORT: String(port), FAKE_SMTP_PORT: String(smtp) },
+    stdio: ["ignore", "pipe", "inherit"],
+  });
+  await new Promise<void>((resolve, reject) => {
+    server!.stdout!.on("data", (d: Buffer) => d.toString().includes("is serving on") && resolve());
+    server!.on("exit", (code) => reject(new Error(`server exited with ${code}`)));
+  });
+  const pid = server.pid!;
+  const base = `http://127.0.0.1:${port}`;
+  const idle = memoryOf(pid);
+
+  let peakDuring = idle.rssMB;
+  const sampler = setInterval(() => (peakDuring = Math.max(peakDuring, memoryOf(pid).rssMB)), 20);
+  const form = new FormData();
+  form.set("condition", "run-up");
+  form.set("file", await openAsBlob(file, { type: "text/csv" }), "upload-bench.csv");
+  const t0 = performance.now();
+  const response = await fetch(`${base}/api/v1/vehicles/${vehicleId}/logs`, {
+    method: "POST",
+    headers: { Authorization: `Bearer ${token}` },
+    body: form,
+  });
+  const uploadS = (performance.now() - t0) / 1000;
+  const uploadPeak = peakDuring;
+  const { log } = (await response.json()) as { log: { id: number } };
+  if (response.status !== 202) throw new Error(`upload answered ${response.status}`);
+
+  let status = "queued";
+  let maxRequestMs = 0;
+  while (status !== "done" && status !== "failed") {
+    const r0 = performance.now();
+    const r = await fetch(`${base}/api/v1/logs/${log.id}`, {
+      headers: { Authorization: `Bearer ${token}` },
+    });
+    maxRequestMs = Math.max(maxRequestMs, performance.now() - r0); // the page stays responsive
+    status = ((await r.json()) as { log: { status: string } }).log.status;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  const doneS = (performance.now() - t0) / 1000;
+  clearInterval(sampler);
+  const fileMB = bytes / 1e6;
+
+  console.log(`\nupload: ${fileMB.toFixed(1)} MB drive log through POST /api/v1/vehicles/:id/logs`);
+  console.log(
+    `  upload (stream to storage, gzip, hash)  ${uploadS.toFixed(2)} s   ${(fileMB / uploadS).toFixed(0)} MB/s`,
+  );
+  console.log(
+    `  upload → analysis ${status}              ${doneS.toFixed(2)} s after the upload began`,
+  );
+  console.log(`  server RSS idle                          ${idle.rssMB.toFixed(0)} MB`);
+  console.log(
+    `  server RSS peak during the upload        ${uploadPeak.toFixed(0)} MB (+${(uploadPeak - idle.rssMB).toFixed(0)} MB for a ${fileMB.toFixed(0)} MB file)`,
+  );
+  console.log(
+    `  server RSS peak with the analysis        ${peakDuring.toFixed(0)} MB (worker thread in the same process)`,
+  );
+  console.log(`  slowest status request during analysis   ${maxRequestMs.toFixed(0)} ms`);
+} finally {
+  server?.kill("SIGTERM");
+  await new Promise((r) => setTimeout(r, 500));
+  try {
+    run("bash", ["scripts/mariadb.sh", "stop"]);
+  } catch {
+    // already stopped
+  }
+  rmSync(dir, { recursive: true, force: true });
+}
