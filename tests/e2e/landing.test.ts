@@ -69,7 +69,8 @@ describe("landing page in Chromium", () => {
     await page.getByLabel("Password").fill("twistlog-demo");
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.waitForURL(`${baseUrl}/vehicles`);
-    await expect(page.getByRole("heading", { level: 1 }).textContent()).resolves.toBe("Vehicles");
+    // The URL changes as the client navigation commits; the page renders a moment later.
+    await page.getByRole("heading", { level: 1, name: "Vehicles" }).waitFor();
     await page.close();
   });
 });

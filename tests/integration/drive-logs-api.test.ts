@@ -2,9 +2,10 @@ import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { analysisResultSchema } from "~/lib/signal";
+import { readFile } from "node:fs/promises";
+import { analyseSource, analysisResultSchema } from "~/lib/signal";
 import { analyticIdleCsv, expectedIsolationDb, type AnalyticIdle } from "../support/analytic-log";
-import { startServer } from "../support/processes";
+import { repoRoot, startServer } from "../support/processes";
 import { useScratchDatabase } from "../support/scratch-db";
 
 // A database of its own: the job runners of other test files' servers must not take these jobs.
@@ -150,6 +151,56 @@ describe("API v1: vehicles and drive logs", () => {
     expect(
       Math.abs(result.idle!.gearboxAngAccelRadS2 / (gearboxAmpRadS * 2 * omega) - 1),
     ).toBeLessThan(0.05);
+  });
+
+  it("stores for a demo sample exactly the JSON the CLI's pipeline gives for the same file", async () => {
+    const vehicle = await createVehicle();
+    const sample = join(repoRoot, "samples/kestrel-kst-d4-runup-3rd-full-load-damper-a.csv");
+    const r = await upload(vehicle.id, new Uint8Array(await readFile(sample)), tokens.technician!, {
+      condition: "run-up",
+      gear: "3",
+    });
+    expect(r.status).toBe(202);
+    const { log } = (await r.json()) as { log: { id: number } };
+    expect((await waitForLog(log.id)).status).toBe("done");
+    const stored = await (await api(`/api/v1/logs/${log.id}/result`, tokens.viewer!)).json();
+    // One code path (DESIGN.md §4): the server's result is the CLI's, field for field.
+    const direct = await analyseSource({
+      source: sample,
+      ingest: {},
+      analysis: { cylinders: 4, stroke: 4, rattleLimitRadS2: 500 },
+    });
+    expect(direct.ok).toBe(true);
+    expect(stored).toEqual(JSON.parse(JSON.stringify(direct.ok ? direct.value.result : null)));
+  });
+
+  it("a job queued when the server stops is finished by the next server", async () => {
+    const vehicle = await createVehicle();
+    const second = await startServer({
+      TWISTLOG_STORAGE_DIR: storage,
+      DATABASE_NAME: scratch.name,
+    });
+    let third: Awaited<ReturnType<typeof startServer>> | undefined;
+    try {
+      const r = await fetch(`${second.url}/api/v1/vehicles/${vehicle.id}/logs`, {
+        method: "POST",
+        headers: { Authorization: `Bearer ${tokens.technician}` },
+        body: (() => {
+          const form = new FormData();
+          form.set("file", new Blob([analyticIdleCsv({ ...idle, durationS: 8 })]), "restart.csv");
+          return form;
+        })(),
+      });
+      const { log } = (await r.json()) as { log: { id: number } };
+      // Both servers stop: nothing is left to take the job until a new one starts.
+      await Promise.all([second.stop(), server.stop()]);
+      third = await startServer({ TWISTLOG_STORAGE_DIR: storage, DATABASE_NAME: scratch.name });
+      server = third;
+      const done = await waitForLog(log.id);
+      expect(done.status).toBe("done");
+    } finally {
+      if (third !== server) await third?.stop();
+    }
   });
 
   it("notices the same file uploaded twice and names the earlier drive log", async () => {
