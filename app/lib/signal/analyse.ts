@@ -199,7 +199,7 @@ export function analyseDriveLog(
   if (tracked.droppedSlowBlocks > 0) {
     warnings.push({
       code: "slow_blocks_dropped",
-      message: `${tracked.droppedSlowBlocks} blocks were left out because the engine ran too slowly in them (below ${minValidRpm.toFixed(0)} rpm) for an alias-free angle grid`,
+      message: `${tracked.droppedSlowBlocks === 1 ? "1 block was" : `${tracked.droppedSlowBlocks} blocks were`} left out because the engine ran too slowly in them (below ${minValidRpm.toFixed(0)} rpm) for an alias-free angle grid`,
     });
   }
   if (tracked.blockCount === 0) {

@@ -89,7 +89,7 @@ export function fitTwoMassModel(
   if (usable.length < lim.minBins) {
     return {
       ok: false,
-      reason: `only ${usable.length} engine-speed bins with isolation; the fit needs ${lim.minBins}`,
+      reason: `only ${usable.length} engine-speed ${usable.length === 1 ? "bin" : "bins"} with isolation; the fit needs ${lim.minBins}`,
     };
   }
   const rpms = usable.map((p) => p.rpm);
