@@ -3,23 +3,15 @@
 import { applyMigrations, MigrationError } from "../app/db/migrate.server";
 import { describeDbError } from "../app/lib/db-errors.server";
 import { connectionOptions } from "../app/lib/db-options.server";
-import { EnvError, getEnv } from "../app/lib/env.server";
+import { getEnvOrExit } from "../app/lib/env.server";
 
+const env = getEnvOrExit();
 try {
-  const env = getEnv();
-  try {
-    await applyMigrations(connectionOptions(env));
-    console.log(
-      `migrations applied to ${env.DATABASE_NAME} at ${env.DATABASE_HOST}:${env.DATABASE_PORT}`,
-    );
-  } catch (error) {
-    console.error(error instanceof MigrationError ? error.message : describeDbError(error, env));
-    process.exit(1);
-  }
+  await applyMigrations(connectionOptions(env));
+  console.log(
+    `migrations applied to ${env.DATABASE_NAME} at ${env.DATABASE_HOST}:${env.DATABASE_PORT}`,
+  );
 } catch (error) {
-  if (error instanceof EnvError) {
-    console.error(error.message);
-    process.exit(1);
-  }
-  throw error;
+  console.error(error instanceof MigrationError ? error.message : describeDbError(error, env));
+  process.exit(1);
 }

@@ -9,18 +9,9 @@ import { DEMO_PASSWORD, DEMO_TEAMS, seedDemo } from "../app/db/demo-seed.server"
 import { users } from "../app/db/schema";
 import { describeDbError } from "../app/lib/db-errors.server";
 import { connectionOptions } from "../app/lib/db-options.server";
-import { EnvError, getEnv } from "../app/lib/env.server";
+import { getEnvOrExit } from "../app/lib/env.server";
 
-let env;
-try {
-  env = getEnv();
-} catch (error) {
-  if (error instanceof EnvError) {
-    console.error(error.message);
-    process.exit(1);
-  }
-  throw error;
-}
+const env = getEnvOrExit();
 if (env.SMTP_URL) {
   console.error(
     "SMTP_URL is set, so this looks like a real installation: the demo accounts are not created.",

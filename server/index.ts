@@ -5,20 +5,11 @@ import { createRequestHandler } from "@react-router/express";
 import compression from "compression";
 import express from "express";
 import type { ServerBuild } from "react-router";
-import { EnvError, getEnv } from "../app/lib/env.server";
+import { getEnvOrExit } from "../app/lib/env.server";
 import { startFakeSmtp } from "../app/lib/fake-smtp.server";
 import { newNonce, securityHeaders } from "../app/lib/security-headers.server";
 
-let env;
-try {
-  env = getEnv();
-} catch (error) {
-  if (error instanceof EnvError) {
-    console.error(error.message);
-    process.exit(1);
-  }
-  throw error;
-}
+const env = getEnvOrExit();
 const { HOST, PORT, NODE_ENV } = env;
 const app = express();
 app.disable("x-powered-by");

@@ -78,3 +78,16 @@ export function getEnv(source: NodeJS.ProcessEnv = process.env): Env {
 export class EnvError extends Error {
   override name = "EnvError";
 }
+
+/** For entry points (server, scripts): the settings, or one line on stderr and exit code 1. */
+export function getEnvOrExit(): Env {
+  try {
+    return getEnv();
+  } catch (error) {
+    if (error instanceof EnvError) {
+      console.error(error.message);
+      process.exit(1);
+    }
+    throw error;
+  }
+}
