@@ -5,6 +5,10 @@ export default [
   layout("routes/_shell.tsx", [
     index("routes/home.tsx"),
     route("vehicles", "routes/vehicles.tsx"),
+    route("vehicles/new", "routes/vehicles.new.tsx"),
+    route("vehicles/:vehicleId", "routes/vehicle.tsx"),
+    route("vehicles/:vehicleId/edit", "routes/vehicle.edit.tsx"),
+    route("vehicles/:vehicleId/logs/:logId", "routes/drive-log.tsx"),
     route("comparisons", "routes/comparisons.tsx"),
     route("team", "routes/team.tsx"),
     route("team/members/:memberId", "routes/team.member.tsx"),
@@ -23,6 +27,9 @@ export default [
   // Form posts without a page of their own.
   route("sign-out", "routes/sign-out.ts"),
   route("team/switch", "routes/team-switch.ts"),
+  // The vehicle page polls this while analyses run; the drive-log page links the raw file.
+  route("vehicles/:vehicleId/status", "routes/vehicle.status.ts"),
+  route("vehicles/:vehicleId/logs/:logId/file", "routes/drive-log.file.ts"),
   // Resource routes (no component). The API answers JSON, errors as { error: { code, message } }.
   route("healthz", "routes/healthz.ts"),
   ...prefix("api/v1", [

@@ -51,6 +51,21 @@ export default async function analyseStoredLog(task: AnalysisTask): Promise<Anal
   task.progress?.close();
   if (outcome.ok) return { ok: true, result: outcome.value.result };
   const e = outcome.error as LogError;
+  if (e.code === "read_failed" && e.message.includes("ENOENT")) {
+    // Storage lost the file (or this instance looks at another storage): not the file's fault,
+    // and the server's paths are nobody's business on the page.
+    return {
+      ok: false,
+      error: {
+        code: "raw_file_missing",
+        message:
+          "the raw file of this drive log is missing from storage; upload it again or ask an admin to check the storage",
+        row: null,
+        column: null,
+      },
+      warnings: [],
+    };
+  }
   return {
     ok: false,
     error: {

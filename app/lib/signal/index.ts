@@ -13,7 +13,12 @@ export { recogniseColumn, resolveColumns, type ColumnGuess, type ColumnIssue } f
 export { SPEED_UNITS, TIME_UNITS, fromRadS, toRadS } from "./units.ts";
 
 // The whole pipeline (file or stream → checked result), shared by the CLI and the server.
-export { analyseSource, type FileAnalysis, type PipelineInput, type PipelineStage } from "./pipeline.ts";
+export {
+  analyseSource,
+  type FileAnalysis,
+  type PipelineInput,
+  type PipelineStage,
+} from "./pipeline.ts";
 
 // Analysis: DriveLog → AnalysisResult (the JSON the CLI prints and the server stores).
 export { analyseDriveLog, DEFAULTS, type AnalysisOptions, type AnalysisStage } from "./analyse.ts";

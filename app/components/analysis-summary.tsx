@@ -1,0 +1,244 @@
+import type { AnalysisResult } from "~/lib/signal";
+import { VerdictCaution } from "./caution-note";
+import { Card, tableClass, tdClass, thClass } from "./page";
+
+/** The figures of the drive-log page, taken from the stored result JSON (no re-computation). */
+export interface AnalysisSummary {
+  firingOrder: number;
+  durationS: number;
+  sampleRateHz: number;
+  /** Engine-speed range of the isolation curve, rpm. */
+  rpmRange: [number, number] | null;
+  /** Least isolation over the range, dB, and where, rpm. */
+  minimum: { rpm: number; dB: number } | null;
+  /** Isolation at idle and at fixed speeds, dB; null where the log does not cover the speed. */
+  at: { label: string; rpm: number; dB: number | null }[];
+  resonance: { rpm: number; dB: number } | null;
+  rattle: AnalysisResult["idle"];
+  model: { naturalFrequencyHz: number; dampingRatio: number; resonanceRpm: number } | null;
+  warnings: { code: string; message: string }[];
+  settings: {
+    samplesPerRev: number;
+    samplesPerRevMin: number;
+    revsPerBlock: number;
+    overlap: number;
+    binRpm: number;
+  };
+  curve: { rpm: number; dB: number; blocks: number; aboveNoise: boolean }[];
+}
+
+/** Speeds shown beside idle, rpm (a common set for passenger-car drivelines; common practice). */
+const FIXED_RPM = [1500, 2000, 3000];
+
+/**
+ * Reduces a result to the page's figures. A speed counts as covered when an isolation bin lies
+ * within half a bin width of it (binRpm, rpm); the least isolation prefers bins above noise.
+ */
+export function summarise(result: AnalysisResult, idleRpm: number): AnalysisSummary {
+  const curve = result.isolation;
+  const half = result.settings.binRpm / 2;
+  const near = (rpm: number) => {
+    let best: (typeof curve)[number] | null = null;
+    for (const p of curve)
+      if (
+        Math.abs(p.rpm - rpm) <= half &&
+        (!best || Math.abs(p.rpm - rpm) < Math.abs(best.rpm - rpm))
+      )
+        best = p;
+    return best ? best.dB : null;
+  };
+  const trusted = curve.some((p) => p.aboveNoise) ? curve.filter((p) => p.aboveNoise) : curve;
+  const minimum = trusted.reduce<{ rpm: number; dB: number } | null>(
+    (m, p) => (!m || p.dB < m.dB ? { rpm: p.rpm, dB: p.dB } : m),
+    null,
+  );
+  const idle = result.idle?.meanRpm ?? idleRpm;
+  return {
+    firingOrder: result.firingOrder,
+    durationS: result.durationS,
+    sampleRateHz: result.sampleRateHz,
+    rpmRange: curve.length
+      ? [Math.min(...curve.map((p) => p.rpm)), Math.max(...curve.map((p) => p.rpm))]
+      : null,
+    minimum,
+    at: [
+      { label: "At idle", rpm: Math.round(idle), dB: near(idle) },
+      ...FIXED_RPM.map((rpm) => ({ label: `At ${rpm} rpm`, rpm, dB: near(rpm) })),
+    ],
+    resonance: result.resonance
+      ? { rpm: result.resonance.rpm, dB: result.resonance.isolationDb }
+      : null,
+    rattle: result.idle,
+    model: result.model,
+    warnings: result.warnings,
+    settings: {
+      samplesPerRev: result.settings.samplesPerRev,
+      samplesPerRevMin: result.settings.samplesPerRevMin,
+      revsPerBlock: result.settings.revsPerBlock,
+      overlap: result.settings.overlap,
+      binRpm: result.settings.binRpm,
+    },
+    curve,
+  };
+}
+
+const dB = (x: number) => `${x >= 0 ? "" : "−"}${Math.abs(x).toFixed(1)} dB`;
+const rpm = (x: number) => `${Math.round(x)} rpm`;
+const rad = (x: number) => `${x.toFixed(0)} rad/s²`;
+
+export function AnalysisSummaryView({ s }: { s: AnalysisSummary }) {
+  return (
+    <div className="space-y-6">
+      <div className="grid gap-4 md:grid-cols-2 xl:grid-cols-4">
+        <Tile title="Isolation at the firing order">
+          <p className="text-sm text-neutral-600">
+            Order {s.firingOrder}
+            {s.rpmRange
+              ? s.rpmRange[0] === s.rpmRange[1]
+                ? `, at ${rpm(s.rpmRange[0])} only`
+                : `, ${rpm(s.rpmRange[0])} to ${rpm(s.rpmRange[1])}`
+              : ""}
+          </p>
+          {s.minimum ? (
+            <p className="mt-2">
+              <span className="text-2xl font-semibold text-indigo-700">{dB(s.minimum.dB)}</span>{" "}
+              <span className="text-sm text-neutral-600">least, at {rpm(s.minimum.rpm)}</span>
+            </p>
+          ) : (
+            <p className="mt-2 text-sm">No engine-speed bins with enough blocks.</p>
+          )}
+          <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-3 text-sm">
+            {s.at.map((a) => (
+              <div key={a.label} className="contents">
+                <dt className="text-neutral-600">
+                  {a.label}
+                  {a.label === "At idle" ? ` (${rpm(a.rpm)})` : ""}
+                </dt>
+                <dd>
+                  {a.dB === null ? <span className="text-neutral-500">not covered</span> : dB(a.dB)}
+                </dd>
+              </div>
+            ))}
+          </dl>
+        </Tile>
+        <Tile title="Damper resonance">
+          {s.resonance ? (
+            <>
+              <p className="text-2xl font-semibold">{rpm(s.resonance.rpm)}</p>
+              <p className="text-sm text-neutral-600">
+                least isolation {dB(s.resonance.dB)}
+                {s.resonance.dB < 0 ? " (amplification)" : ""}
+              </p>
+            </>
+          ) : (
+            <p className="text-sm">Not in this log&apos;s speed range.</p>
+          )}
+          <p className="mt-3 text-sm text-neutral-600">
+            Two-mass model fit:{" "}
+            {s.model
+              ? `natural frequency ${s.model.naturalFrequencyHz.toFixed(2)} Hz (${rpm(s.model.resonanceRpm)} at the firing order), damping ratio ${s.model.dampingRatio.toFixed(3)}`
+              : "not fitted (too few engine-speed bins)"}
+          </p>
+        </Tile>
+        <Tile title="Rattle check">
+          {s.rattle ? (
+            <>
+              <p
+                className={`text-2xl font-semibold ${s.rattle.verdict === "ok" ? "text-green-700" : "text-red-700"}`}
+              >
+                {s.rattle.verdict === "ok" ? "Below the limit" : "Over the limit"}
+              </p>
+              <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-3 text-sm">
+                <dt className="text-neutral-600">At the firing order</dt>
+                <dd>{rad(s.rattle.gearboxAngAccelRadS2)}</dd>
+                <dt className="text-neutral-600">Peak</dt>
+                <dd>{rad(s.rattle.gearboxAngAccelPeakRadS2)}</dd>
+                <dt className="text-neutral-600">Limit</dt>
+                <dd>{rad(s.rattle.limitRadS2)}</dd>
+                <dt className="text-neutral-600">Idle</dt>
+                <dd>
+                  {rpm(s.rattle.meanRpm)}, {s.rattle.idleDurationS.toFixed(1)} s
+                </dd>
+              </dl>
+            </>
+          ) : (
+            <p className="text-sm">No idle segment in this log, so no rattle check.</p>
+          )}
+        </Tile>
+        <Tile title="Settings">
+          <dl className="grid grid-cols-[auto_1fr] gap-x-3 text-sm">
+            <dt className="text-neutral-600">Samples per rev</dt>
+            <dd>
+              {s.settings.samplesPerRevMin === s.settings.samplesPerRev
+                ? s.settings.samplesPerRev
+                : `${s.settings.samplesPerRevMin}–${s.settings.samplesPerRev}`}
+            </dd>
+            <dt className="text-neutral-600">Revs per block</dt>
+            <dd>
+              {s.settings.revsPerBlock} (order resolution {(1 / s.settings.revsPerBlock).toFixed(3)}
+              )
+            </dd>
+            <dt className="text-neutral-600">Block overlap</dt>
+            <dd>{Math.round(s.settings.overlap * 100)} %</dd>
+            <dt className="text-neutral-600">Bin width</dt>
+            <dd>{s.settings.binRpm} rpm</dd>
+            <dt className="text-neutral-600">Recording</dt>
+            <dd>
+              {s.durationS.toFixed(1)} s at {Math.round(s.sampleRateHz)} Hz
+            </dd>
+          </dl>
+        </Tile>
+      </div>
+      <VerdictCaution />
+      {s.warnings.length ? (
+        <Card title="Warnings" id="warnings">
+          <ul className="list-disc space-y-1 pl-5 text-sm">
+            {s.warnings.map((w, i) => (
+              <li key={i}>
+                {w.message} <span className="font-mono text-xs text-neutral-500">{w.code}</span>
+              </li>
+            ))}
+          </ul>
+        </Card>
+      ) : null}
+      <Card title="Isolation curve at the firing order" id="isolation">
+        {s.curve.length === 0 ? (
+          <p className="text-sm text-neutral-600">No engine-speed bins.</p>
+        ) : (
+          <div className="max-h-96 overflow-auto">
+            <table className={tableClass}>
+              <caption className="sr-only">Isolation in dB against engine speed</caption>
+              <thead className="sticky top-0 bg-white">
+                <tr>
+                  <th className={thClass}>Engine speed (rpm)</th>
+                  <th className={thClass}>Isolation (dB)</th>
+                  <th className={thClass}>Blocks</th>
+                  <th className={thClass}>Above noise</th>
+                </tr>
+              </thead>
+              <tbody>
+                {s.curve.map((p) => (
+                  <tr key={p.rpm}>
+                    <td className={tdClass}>{Math.round(p.rpm)}</td>
+                    <td className={`${tdClass} tabular-nums`}>{p.dB.toFixed(2)}</td>
+                    <td className={tdClass}>{p.blocks}</td>
+                    <td className={tdClass}>{p.aboveNoise ? "yes" : "no"}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        )}
+      </Card>
+    </div>
+  );
+}
+
+function Tile({ title, children }: { title: string; children: React.ReactNode }) {
+  return (
+    <section className="rounded-lg border border-neutral-200 bg-white p-5 shadow-xs">
+      <h3 className="text-sm font-semibold text-neutral-500">{title}</h3>
+      <div className="mt-2">{children}</div>
+    </section>
+  );
+}

@@ -1,0 +1,113 @@
+import type { SubmissionResult } from "@conform-to/react";
+import { Form } from "react-router";
+import { z } from "zod";
+import { CsrfInput } from "./csrf-input";
+import { FormError, SubmitButton, useSchemaForm } from "./form";
+import { ChoiceField } from "./form-fields";
+import { tableClass, tdClass, thClass } from "./page";
+
+// The column-mapping step of a drive log whose header could not be read: a preview of the
+// file's first rows and a choice of columns and units, remembered for the vehicle's next uploads.
+
+const speedUnits = ["rpm", "rad/s", "deg/s", "rev/s"] as const;
+const blank = (v: unknown) => (v === "" ? undefined : v);
+const column = z.preprocess(blank, z.string().max(200).optional());
+
+export const mappingSchema = z.object({
+  intent: z.literal("map"),
+  timeColumn: column,
+  crankColumn: column,
+  gearboxColumn: column,
+  timeUnit: z.preprocess(blank, z.enum(["s", "ms"]).optional()),
+  crankUnit: z.preprocess(blank, z.enum(speedUnits).optional()),
+  gearboxUnit: z.preprocess(blank, z.enum(speedUnits).optional()),
+});
+
+export interface Preview {
+  header: string[];
+  rows: string[][];
+}
+
+export function ColumnMapping({
+  preview,
+  current,
+  lastResult,
+}: {
+  preview: Preview;
+  current: Record<string, string>;
+  lastResult: SubmissionResult<string[]> | null | undefined;
+}) {
+  const [form, fields] = useSchemaForm("mapping", mappingSchema, lastResult, current);
+  const columnOptions = [
+    { value: "", label: "Recognise from the header" },
+    ...preview.header.map((h) => ({ value: h, label: h })),
+  ];
+  const unitOptions = [
+    { value: "", label: "From the header" },
+    ...speedUnits.map((u) => ({ value: u, label: u })),
+  ];
+  return (
+    <div className="space-y-5">
+      <div className="max-h-80 overflow-auto rounded-md border border-neutral-200">
+        <table className={`${tableClass} font-mono text-xs`}>
+          <caption className="px-3 py-2 text-left font-sans text-sm text-neutral-600">
+            The first {preview.rows.length} rows of the file
+          </caption>
+          <thead>
+            <tr>
+              {preview.header.map((h, i) => (
+                <th key={i} scope="col" className={`${thClass} px-3 whitespace-nowrap`}>
+                  {h || `(column ${i + 1})`}
+                </th>
+              ))}
+            </tr>
+          </thead>
+          <tbody>
+            {preview.rows.map((row, r) => (
+              <tr key={r}>
+                {preview.header.map((_, c) => (
+                  <td key={c} className={`${tdClass} px-3 whitespace-nowrap`}>
+                    {row[c] ?? ""}
+                  </td>
+                ))}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+      <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
+        <CsrfInput />
+        <input type="hidden" name="intent" value="map" />
+        <FormError id={form.errorId} errors={form.errors} />
+        <div className="grid gap-4 sm:grid-cols-3">
+          <ChoiceField label="Time column" meta={fields.timeColumn} options={columnOptions} />
+          <ChoiceField
+            label="Crank-side speed column"
+            meta={fields.crankColumn}
+            options={columnOptions}
+          />
+          <ChoiceField
+            label="Gearbox-input speed column"
+            meta={fields.gearboxColumn}
+            options={columnOptions}
+          />
+          <ChoiceField
+            label="Time unit"
+            meta={fields.timeUnit}
+            options={[
+              { value: "", label: "From the header" },
+              { value: "s", label: "s" },
+              { value: "ms", label: "ms" },
+            ]}
+          />
+          <ChoiceField label="Crank speed unit" meta={fields.crankUnit} options={unitOptions} />
+          <ChoiceField label="Gearbox speed unit" meta={fields.gearboxUnit} options={unitOptions} />
+        </div>
+        <p className="text-sm text-neutral-600">
+          The choice is remembered for this vehicle, so its next uploads use it too.
+        </p>
+        <SubmitButton>Use these columns and analyse again</SubmitButton>
+      </Form>
+    </div>
+  );
+}

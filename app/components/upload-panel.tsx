@@ -1,0 +1,143 @@
+import { useEffect, useRef, useState } from "react";
+import { linkClass } from "./form-fields";
+import type { LogProgress } from "./log-status";
+import { FileRow, send } from "./upload-file-row";
+import { PlainUpload, primaryButton, type Item } from "./upload-fields";
+
+/**
+ * The upload panel. Before the page's JavaScript runs it is a plain multipart form posting to
+ * the vehicle page's action (one set of test details for all files). With JavaScript each file
+ * gets its own test details and is sent on its own to POST /api/v1/vehicles/:id/logs, with
+ * XMLHttpRequest for its upload progress.
+ */
+export function UploadPanel(props: {
+  vehicleId: number;
+  damperVariant: string;
+  statuses: Map<number, LogProgress>;
+  onUploaded: () => void;
+}) {
+  const [hydrated, setHydrated] = useState(false);
+  useEffect(() => setHydrated(true), []);
+  return hydrated ? <EnhancedUpload {...props} /> : <PlainUpload {...props} />;
+}
+
+function EnhancedUpload({
+  vehicleId,
+  damperVariant,
+  statuses,
+  onUploaded,
+}: {
+  vehicleId: number;
+  damperVariant: string;
+  statuses: Map<number, LogProgress>;
+  onUploaded: () => void;
+}) {
+  const [items, setItems] = useState<Item[]>([]);
+  const [dragging, setDragging] = useState(false);
+  const [busy, setBusy] = useState(false);
+  const input = useRef<HTMLInputElement>(null);
+  const counter = useRef(0);
+
+  const patch = (key: string, change: Partial<Item>) =>
+    setItems((all) => all.map((i) => (i.key === key ? { ...i, ...change } : i)));
+
+  function add(files: FileList | File[]) {
+    const added = [...files].map((file): Item => ({
+      key: `f${counter.current++}`,
+      file,
+      condition: "other",
+      gear: "",
+      damperVariant,
+      testDate: "",
+      notes: "",
+      phase: "ready",
+      sent: 0,
+    }));
+    setItems((all) => [...all, ...added]);
+  }
+
+  async function uploadAll() {
+    setBusy(true);
+    // One file after the other: each gets its own request, and the server's queue is not flooded.
+    for (const item of items.filter((i) => i.phase === "ready" || i.phase === "refused")) {
+      patch(item.key, { phase: "uploading", sent: 0, message: undefined });
+      const outcome = await send(vehicleId, item, (sent) => patch(item.key, { sent }));
+      patch(item.key, outcome);
+      if (outcome.phase === "sent") onUploaded();
+    }
+    setBusy(false);
+  }
+
+  const pending = items.filter((i) => i.phase === "ready" || i.phase === "refused").length;
+  const waiting = pending > 0;
+  return (
+    <div className="space-y-4">
+      <div
+        onDragOver={(e) => {
+          e.preventDefault();
+          setDragging(true);
+        }}
+        onDragLeave={() => setDragging(false)}
+        onDrop={(e) => {
+          e.preventDefault();
+          setDragging(false);
+          add(e.dataTransfer.files);
+        }}
+        className={`rounded-lg border-2 border-dashed px-6 py-8 text-center ${
+          dragging ? "border-indigo-600 bg-indigo-50" : "border-neutral-300 bg-neutral-50"
+        }`}
+      >
+        <p className="text-sm text-neutral-700">Drop drive log files (CSV) here, or</p>
+        <label
+          htmlFor="upload-files"
+          className="mt-2 inline-flex cursor-pointer rounded-md border border-neutral-300 bg-white px-3 py-1.5 text-sm font-medium text-neutral-800 hover:bg-neutral-50 has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-offset-2 has-[:focus-visible]:outline-indigo-600"
+        >
+          Choose files
+          <input
+            ref={input}
+            id="upload-files"
+            type="file"
+            multiple
+            accept=".csv,.txt,.tsv,text/csv,text/plain"
+            className="sr-only"
+            onChange={(e) => {
+              if (e.target.files) add(e.target.files);
+              e.target.value = "";
+            }}
+          />
+        </label>
+        <p className="mt-2 text-xs text-neutral-500">
+          Several files at once; each keeps its own test details.
+        </p>
+      </div>
+      {items.map((item) => (
+        <FileRow
+          key={item.key}
+          item={item}
+          vehicleId={vehicleId}
+          status={item.logId ? statuses.get(item.logId) : undefined}
+          onChange={(change) => patch(item.key, change)}
+          onRemove={() => setItems((all) => all.filter((i) => i.key !== item.key))}
+        />
+      ))}
+      {items.length > 0 ? (
+        <div className="flex items-center gap-4">
+          {busy || waiting ? (
+            <button
+              type="button"
+              className={primaryButton}
+              disabled={busy}
+              onClick={() => void uploadAll()}
+            >
+              {busy ? "Uploading…" : pending === 1 ? "Upload 1 file" : `Upload ${pending} files`}
+            </button>
+          ) : (
+            <button type="button" className={linkClass} onClick={() => setItems([])}>
+              Clear the list
+            </button>
+          )}
+        </div>
+      ) : null}
+    </div>
+  );
+}

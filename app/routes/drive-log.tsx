@@ -1,0 +1,273 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { and, desc, eq } from "drizzle-orm";
+import { data, Link, useActionData, useLoaderData } from "react-router";
+import { analysisResultSchema } from "~/lib/signal";
+import { analyses } from "~/db/schema-drive-logs";
+import { AnalysisSummaryView, summarise } from "~/components/analysis-summary";
+import { ColumnMapping, mappingSchema } from "~/components/column-mapping";
+import { Failure, MAPPING_CODES } from "~/components/log-failure";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { linkClass } from "~/components/form-fields";
+import { isActive, LogStatus } from "~/components/log-status";
+import { useLiveStatus } from "~/components/use-log-progress";
+import { Card, Notice, When } from "~/components/page";
+import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
+import { assertCsrf } from "~/lib/csrf.server";
+import { db } from "~/lib/db.server";
+import { conditionLabels, type IngestMapping } from "~/lib/drive-log-terms";
+import { idParam } from "~/lib/params";
+import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { atLeast } from "~/lib/roles";
+import { teamData } from "~/lib/team-data.server";
+import { vehicleData } from "~/lib/vehicles.server";
+import { readPreview } from "./drive-log.preview.server";
+import type { Route } from "./+types/drive-log";
+
+export const meta = ({ data }: Route.MetaArgs) => [
+  { title: `${data?.log.fileName ?? "Drive log"} · Twistlog` },
+];
+
+async function load(
+  request: Request,
+  params: Route.LoaderArgs["params"],
+  role: "viewer" | "technician" | "engineer",
+) {
+  const current = await requireTeamRole(request, role);
+  const vehicles = vehicleData(current.team.id);
+  const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
+  const log = await vehicles.log(idParam(params.logId));
+  invariantResponse(log.vehicleId === vehicle.id, "No such drive log for this vehicle.", {
+    status: 404,
+  });
+  return { ...current, vehicles, vehicle, log };
+}
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { team, vehicles, vehicle, log } = await load(request, params, "viewer");
+  const stored = log.latestAnalysisId ? await vehicles.latestResult(log.id) : null;
+  const parsed = stored ? analysisResultSchema.safeParse(stored) : null;
+  const members = await teamData(team.id).members();
+  const versions = await db
+    .select({ id: analyses.id, version: analyses.version, createdAt: analyses.createdAt })
+    .from(analyses)
+    .where(and(eq(analyses.driveLogId, log.id), eq(analyses.teamId, team.id)))
+    .orderBy(desc(analyses.version));
+  const error = log.status === "failed" ? log.error : null;
+  const mapping = error && MAPPING_CODES.has(error.code) ? await readPreview(log.blobKey) : null;
+  return {
+    role: team.role,
+    vehicle: {
+      id: vehicle.id,
+      name: vehicle.name,
+      identifier: vehicle.identifier,
+      mapping: vehicle.columnMapping,
+    },
+    log: {
+      id: log.id,
+      fileName: log.fileName,
+      sizeBytes: log.sizeBytes,
+      condition: log.condition,
+      gear: log.gear,
+      damperVariant: log.damperVariant,
+      testDate: log.testDate,
+      notes: log.notes,
+      uploadedAt: log.uploadedAt,
+      uploadedBy:
+        members.find((m) => m.userId === log.uploadedBy)?.name ??
+        (log.uploadedBy ? "a former member" : "a script"),
+      status: log.status,
+      progress: log.progress,
+      stage: log.stage,
+      error,
+    },
+    summary: parsed?.success ? summarise(parsed.data, vehicle.idleRpm) : null,
+    current: parsed?.success
+      ? {
+          firingOrder: parsed.data.firingOrder,
+          revsPerBlock: parsed.data.settings.revsPerBlock,
+          binRpm: parsed.data.settings.binRpm,
+        }
+      : null,
+    versions,
+    preview: mapping,
+  };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const form = await request.formData();
+  await assertCsrf(request, form);
+  const intent = form.get("intent");
+  if (intent === "map") {
+    // Fixing the columns of an upload is the technician's own job (DESIGN.md §2).
+    const { vehicles, vehicle, log } = await load(request, params, "technician");
+    const submission = parseWithZod(form, { schema: mappingSchema });
+    if (submission.status !== "success") return data({ map: submission.reply() }, { status: 400 });
+    const { intent: _, ...mapping } = submission.value;
+    const { header } = await readPreview(log.blobKey, 0);
+    const fieldErrors: Record<string, string[]> = {};
+    const chosen = new Map<string, string>();
+    for (const key of ["timeColumn", "crankColumn", "gearboxColumn"] as const) {
+      const name = mapping[key];
+      if (name === undefined) continue;
+      if (!header.includes(name)) fieldErrors[key] = [`The file has no column “${name}”.`];
+      else if (chosen.has(name))
+        fieldErrors[key] = [`“${name}” is already the ${chosen.get(name)}.`];
+      else chosen.set(name, key.replace("Column", " column"));
+    }
+    if (Object.keys(fieldErrors).length)
+      return data({ map: submission.reply({ fieldErrors }) }, { status: 400 });
+    const clean = Object.fromEntries(
+      Object.entries(mapping).filter(([, v]) => v !== undefined),
+    ) as IngestMapping;
+    await vehicles.rememberMapping(vehicle.id, clean);
+    await vehicles.reanalyse(log.id, {}, clean);
+    return {
+      notice:
+        "The columns are set and remembered for this vehicle; the drive log is being analysed again.",
+    };
+  }
+  invariantResponse(intent === "reanalyse", "Unknown action.", { status: 400 });
+  const { vehicles, log } = await load(request, params, "engineer");
+  const submission = parseWithZod(form, { schema: reanalyseSchema });
+  if (submission.status !== "success")
+    return data({ reanalyse: submission.reply() }, { status: 400 });
+  const { intent: _, ...overrides } = submission.value;
+  await vehicles.reanalyse(log.id, overrides);
+  return { notice: "A new analysis version is queued; the earlier ones are kept." };
+}
+
+export default function DriveLogPage() {
+  const { role, vehicle, log, summary, current, versions, preview } =
+    useLoaderData<typeof loader>();
+  const result = useActionData<typeof action>();
+  const progress = useLiveStatus(log);
+  const notice = result && "notice" in result ? result.notice : null;
+  const latest = versions[0];
+  return (
+    <main className="space-y-6">
+      <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
+        <Link to="/vehicles" className={linkClass}>
+          Vehicles
+        </Link>{" "}
+        ›{" "}
+        <Link to={`/vehicles/${vehicle.id}`} className={linkClass}>
+          {vehicle.identifier}
+        </Link>{" "}
+        › {conditionLabels[log.condition]}
+        {log.testDate ? `, ${log.testDate}` : ""}
+      </nav>
+      <header className="flex flex-wrap items-start justify-between gap-4">
+        <div>
+          <h1 className="text-2xl font-semibold tracking-tight break-all">{log.fileName}</h1>
+          <dl className="mt-3 flex flex-wrap gap-x-6 gap-y-1 text-sm">
+            <Meta term="Vehicle">{vehicle.name}</Meta>
+            <Meta term="Condition">{conditionLabels[log.condition]}</Meta>
+            <Meta term="Gear">
+              {log.gear === null
+                ? "—"
+                : log.gear === 0
+                  ? "neutral"
+                  : log.gear === -1
+                    ? "reverse"
+                    : log.gear}
+            </Meta>
+            <Meta term="Damper variant">{log.damperVariant}</Meta>
+            <Meta term="Test date">
+              {log.testDate ? <When date={log.testDate} dateOnly /> : "—"}
+            </Meta>
+            <Meta term="Uploaded">
+              <When date={log.uploadedAt} /> by {log.uploadedBy}
+            </Meta>
+          </dl>
+          <div className="mt-3 flex flex-wrap items-center gap-x-4 gap-y-2 text-sm">
+            <LogStatus log={progress.log} label={log.fileName} />
+            <a href={`/vehicles/${vehicle.id}/logs/${log.id}/file`} className={linkClass} download>
+              Download the raw file
+            </a>
+          </div>
+          {log.notes ? (
+            <p className="mt-2 max-w-3xl text-sm text-neutral-700 whitespace-pre-line">
+              Driver notes: {log.notes}
+            </p>
+          ) : null}
+        </div>
+      </header>
+      <p role="status" aria-live="polite" className="sr-only">
+        {progress.announcement}
+      </p>
+      {notice ? <Notice>{notice}</Notice> : null}
+      {log.status === "failed" && log.error ? <Failure error={log.error} /> : null}
+      {preview && atLeast(role, "technician") ? (
+        <Card title="Choose the columns" id="mapping">
+          <ColumnMapping
+            preview={preview}
+            current={mappingDefaults(vehicle.mapping)}
+            lastResult={result && "map" in result ? result.map : undefined}
+          />
+        </Card>
+      ) : null}
+      {isActive(progress.log.status) && !summary ? (
+        <p className="text-sm text-neutral-600">
+          The analysis summary appears here when the analysis has finished.
+        </p>
+      ) : null}
+      {summary ? (
+        <section aria-labelledby="analysis-title" className="space-y-4">
+          <h2 id="analysis-title" className="text-lg font-semibold">
+            Analysis{latest ? ` version ${latest.version}` : ""}
+            {latest ? (
+              <span className="ml-2 text-sm font-normal text-neutral-500">
+                made <When date={latest.createdAt} />
+              </span>
+            ) : null}
+          </h2>
+          {isActive(progress.log.status) ? (
+            <p className="text-sm text-neutral-600">
+              A new analysis is running; these are the figures of the previous version.
+            </p>
+          ) : null}
+          <AnalysisSummaryView s={summary} />
+        </section>
+      ) : null}
+      {atLeast(role, "engineer") && log.status !== "queued" && log.status !== "analysing" ? (
+        <Card title="Re-analyse with other settings" id="reanalyse">
+          <ReanalyseForm
+            current={current}
+            lastResult={result && "reanalyse" in result ? result.reanalyse : undefined}
+          />
+        </Card>
+      ) : null}
+      {versions.length > 1 ? (
+        <Card title="Analysis versions" id="versions">
+          <ul className="space-y-1 text-sm">
+            {versions.map((v) => (
+              <li key={v.id}>
+                Version {v.version}, made <When date={v.createdAt} />
+                {v === latest ? " (shown)" : ""}
+              </li>
+            ))}
+          </ul>
+        </Card>
+      ) : null}
+    </main>
+  );
+}
+
+function Meta({ term, children }: { term: string; children: React.ReactNode }) {
+  return (
+    <div className="flex gap-1.5">
+      <dt className="text-neutral-500">{term}</dt>
+      <dd className="font-medium text-neutral-900">{children}</dd>
+    </div>
+  );
+}
+
+function mappingDefaults(m: IngestMapping | null): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const [k, v] of Object.entries(m ?? {})) if (typeof v === "string") out[k] = v;
+  return out;
+}
+
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
+}

@@ -1,0 +1,65 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, redirect, useActionData, useLoaderData } from "react-router";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { PageHeader } from "~/components/page";
+import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/vehicle-form";
+import { assertCsrf } from "~/lib/csrf.server";
+import { idParam } from "~/lib/params";
+import { requireTeamRole } from "~/lib/permissions.server";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/vehicle.edit";
+
+export const meta = ({ data }: Route.MetaArgs) => [
+  { title: `Edit ${data?.vehicle.identifier ?? "vehicle"} · Twistlog` },
+];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { team } = await requireTeamRole(request, "engineer");
+  const vehicle = await vehicleData(team.id).vehicle(idParam(params.vehicleId));
+  return { vehicle };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const form = await request.formData();
+  await assertCsrf(request, form);
+  const { team } = await requireTeamRole(request, "engineer");
+  const vehicles = vehicleData(team.id);
+  const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
+  const submission = parseWithZod(form, { schema: vehicleFormSchema });
+  if (submission.status !== "success") return data(submission.reply(), { status: 400 });
+  if (await vehicles.identifierTaken(submission.value.identifier, vehicle.id)) {
+    return data(
+      submission.reply({
+        fieldErrors: {
+          identifier: [`Another vehicle of the team is ${submission.value.identifier} already.`],
+        },
+      }),
+      { status: 400 },
+    );
+  }
+  await vehicles.update(vehicle.id, submission.value);
+  return redirect(`/vehicles/${vehicle.id}?notice=saved`);
+}
+
+export default function EditVehicle() {
+  const { vehicle } = useLoaderData<typeof loader>();
+  const lastResult = useActionData<typeof action>();
+  return (
+    <main className="max-w-4xl">
+      <PageHeader
+        title={`Edit ${vehicle.name}`}
+        lead="Changes apply to the next analyses; finished analyses keep the settings they were made with."
+      />
+      <VehicleForm
+        lastResult={lastResult}
+        defaults={vehicleDefaults(vehicle)}
+        submitLabel="Save vehicle"
+        cancelTo={`/vehicles/${vehicle.id}`}
+      />
+    </main>
+  );
+}
+
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
+}

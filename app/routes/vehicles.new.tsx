@@ -1,0 +1,59 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data, redirect, useActionData } from "react-router";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { PageHeader } from "~/components/page";
+import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/vehicle-form";
+import { assertCsrf } from "~/lib/csrf.server";
+import { requireTeamRole } from "~/lib/permissions.server";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/vehicles.new";
+
+export const meta = () => [{ title: "Add a vehicle · Twistlog" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireTeamRole(request, "engineer");
+  return null;
+}
+
+export async function action({ request }: Route.ActionArgs) {
+  const form = await request.formData();
+  await assertCsrf(request, form);
+  const { team } = await requireTeamRole(request, "engineer");
+  const submission = parseWithZod(form, { schema: vehicleFormSchema });
+  if (submission.status !== "success") return data(submission.reply(), { status: 400 });
+  const vehicles = vehicleData(team.id);
+  if (await vehicles.identifierTaken(submission.value.identifier)) {
+    return data(
+      submission.reply({
+        fieldErrors: {
+          identifier: [`Another vehicle of the team is ${submission.value.identifier} already.`],
+        },
+      }),
+      { status: 400 },
+    );
+  }
+  const id = await vehicles.create(submission.value);
+  return redirect(`/vehicles/${id}`);
+}
+
+export default function NewVehicle() {
+  const lastResult = useActionData<typeof action>();
+  return (
+    <main className="max-w-4xl">
+      <PageHeader
+        title="Add a vehicle"
+        lead="The engine, transmission and damper decide how its drive logs are analysed; you can change them later."
+      />
+      <VehicleForm
+        lastResult={lastResult}
+        defaults={vehicleDefaults()}
+        submitLabel="Add vehicle"
+        cancelTo="/vehicles"
+      />
+    </main>
+  );
+}
+
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
+}
