@@ -4,6 +4,16 @@ import { teamAuditLog } from "./audit.server";
 import { db } from "./db.server";
 import { invariantResponse } from "./permissions.server";
 
+/** What a member row shows: the membership with its user. */
+const memberColumns = {
+  id: memberships.id,
+  userId: users.id,
+  email: users.email,
+  name: users.name,
+  role: memberships.role,
+  joinedAt: memberships.createdAt,
+};
+
 /**
  * Every read and write of a team's rows goes through this object, which adds the team to each
  * query, so a route cannot forget the scope (DESIGN.md §2). A record of another team is
@@ -28,14 +38,7 @@ export function teamData(teamId: number) {
 
     members() {
       return db
-        .select({
-          id: memberships.id,
-          userId: users.id,
-          email: users.email,
-          name: users.name,
-          role: memberships.role,
-          joinedAt: memberships.createdAt,
-        })
+        .select(memberColumns)
         .from(memberships)
         .innerJoin(users, eq(users.id, memberships.userId))
         .where(eq(memberships.teamId, teamId))
@@ -45,14 +48,7 @@ export function teamData(teamId: number) {
     /** One member by membership id; 404 if it is not in this team. */
     async member(membershipId: number) {
       const [member] = await db
-        .select({
-          id: memberships.id,
-          userId: users.id,
-          email: users.email,
-          name: users.name,
-          role: memberships.role,
-          joinedAt: memberships.createdAt,
-        })
+        .select(memberColumns)
         .from(memberships)
         .innerJoin(users, eq(users.id, memberships.userId))
         .where(and(eq(memberships.id, membershipId), eq(memberships.teamId, teamId)));

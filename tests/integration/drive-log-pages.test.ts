@@ -1,17 +1,14 @@
-import { mkdtemp, rm } from "node:fs/promises";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analysisResultSchema } from "~/lib/signal";
-import { analyticIdleCsv, expectedIsolationDb, type AnalyticIdle } from "../support/analytic-log";
+import { analyticIdleCsv, expectedIsolationDb, IDLE_800 } from "../support/analytic-log";
 import { HttpClient } from "../support/http-client";
 import { startServer } from "../support/processes";
-import { useScratchDatabase } from "../support/scratch-db";
+import { useJobTestbed } from "../support/scratch-db";
 
 // The vehicle and drive-log pages over HTTP, as a browser without JavaScript uses them: forms
 // posted to the page actions, the upload as a plain multipart form. A database of its own,
 // because the job runners of other test files' servers must not take these jobs.
-const scratch = await useScratchDatabase("pages");
+const testbed = await useJobTestbed("pages");
 const { pool } = await import("~/lib/db.server");
 const { vehicleData } = await import("~/lib/vehicles.server");
 const { vehicleSchema } = await import("~/lib/vehicle-schema");
@@ -21,23 +18,12 @@ type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 let server: Awaited<ReturnType<typeof startServer>>;
 let team: TestTeam;
 let other: TestTeam;
-let storage: string;
 
-// Analytic idle log (tests/support/analytic-log.ts): isolation known from the two-mass formula.
-const idle: AnalyticIdle = {
-  rpm: 800,
-  order: 2,
-  crankAmpRpm: 10,
-  naturalHz: 12,
-  zeta: 0.1,
-  durationS: 12,
-  sampleRateHz: 2000,
-};
+const idle = IDLE_800; // isolation known from the two-mass formula (tests/support/analytic-log.ts)
 
 beforeAll(async () => {
-  storage = await mkdtemp(join(tmpdir(), "twistlog-pages-blobs-"));
   [server, team, other] = await Promise.all([
-    startServer({ TWISTLOG_STORAGE_DIR: storage, DATABASE_NAME: scratch.name }),
+    startServer(testbed.serverEnv),
     createTestTeam("Pages"),
     createTestTeam("Elsewhere"),
   ]);
@@ -45,8 +31,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await server?.stop();
   await pool.end();
-  await scratch.drop();
-  await rm(storage, { recursive: true, force: true });
+  await testbed.close();
 });
 
 async function as(t: TestTeam, role: "engineer" | "technician" | "viewer") {

@@ -1,15 +1,13 @@
-import { mkdtemp, rm } from "node:fs/promises";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { readFile } from "node:fs/promises";
+import { join } from "node:path";
 import { analyseSource, analysisResultSchema } from "~/lib/signal";
-import { analyticIdleCsv, expectedIsolationDb, type AnalyticIdle } from "../support/analytic-log";
+import { analyticIdleCsv, expectedIsolationDb, IDLE_800 } from "../support/analytic-log";
 import { repoRoot, startServer } from "../support/processes";
-import { useScratchDatabase } from "../support/scratch-db";
+import { useJobTestbed } from "../support/scratch-db";
 
 // A database of its own: the job runners of other test files' servers must not take these jobs.
-const scratch = await useScratchDatabase("logs");
+const testbed = await useJobTestbed("logs");
 const { createApiToken } = await import("~/lib/api-tokens.server");
 const { pool } = await import("~/lib/db.server");
 const { createTestTeam } = await import("../support/accounts");
@@ -21,23 +19,13 @@ type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 let server: Awaited<ReturnType<typeof startServer>>;
 let team: TestTeam;
 let other: TestTeam;
-let storage: string;
 const tokens: Record<string, string> = {};
 
-const idle: AnalyticIdle = {
-  rpm: 800,
-  order: 2,
-  crankAmpRpm: 10,
-  naturalHz: 12,
-  zeta: 0.1,
-  durationS: 12,
-  sampleRateHz: 2000,
-};
+const idle = IDLE_800; // isolation known from the two-mass formula (tests/support/analytic-log.ts)
 
 beforeAll(async () => {
-  storage = await mkdtemp(join(tmpdir(), "twistlog-api-blobs-"));
   [server, team, other] = await Promise.all([
-    startServer({ TWISTLOG_STORAGE_DIR: storage, DATABASE_NAME: scratch.name }),
+    startServer(testbed.serverEnv),
     createTestTeam("Logs"),
     createTestTeam("Elsewhere"),
   ]);
@@ -59,8 +47,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await server?.stop();
   await pool.end();
-  await scratch.drop();
-  await rm(storage, { recursive: true, force: true });
+  await testbed.close();
 });
 
 function api(path: string, token: string, init: RequestInit = {}) {
@@ -176,10 +163,7 @@ describe("API v1: vehicles and drive logs", () => {
 
   it("a job queued when the server stops is finished by the next server", async () => {
     const vehicle = await createVehicle();
-    const second = await startServer({
-      TWISTLOG_STORAGE_DIR: storage,
-      DATABASE_NAME: scratch.name,
-    });
+    const second = await startServer(testbed.serverEnv);
     let third: Awaited<ReturnType<typeof startServer>> | undefined;
     try {
       const r = await fetch(`${second.url}/api/v1/vehicles/${vehicle.id}/logs`, {
@@ -194,7 +178,7 @@ describe("API v1: vehicles and drive logs", () => {
       const { log } = (await r.json()) as { log: { id: number } };
       // Both servers stop: nothing is left to take the job until a new one starts.
       await Promise.all([second.stop(), server.stop()]);
-      third = await startServer({ TWISTLOG_STORAGE_DIR: storage, DATABASE_NAME: scratch.name });
+      third = await startServer(testbed.serverEnv);
       server = third;
       const done = await waitForLog(log.id);
       expect(done.status).toBe("done");

@@ -48,3 +48,14 @@ export function analyticIdleCsv(p: AnalyticIdle): string {
   }
   return lines.join("\n") + "\n";
 }
+
+/** The idle log the pipeline tests share: 800 rpm, order 2, 10 rpm on the crank, fn 12 Hz, ζ 0.1. */
+export const IDLE_800: AnalyticIdle = {
+  rpm: 800,
+  order: 2,
+  crankAmpRpm: 10,
+  naturalHz: 12,
+  zeta: 0.1,
+  durationS: 12,
+  sampleRateHz: 2000,
+};

@@ -1,5 +1,8 @@
 import mysql from "mysql2/promise";
 import { randomBytes } from "node:crypto";
+import { mkdtemp, rm } from "node:fs/promises";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { applyMigrations } from "~/db/migrate.server";
 import { connectionOptions } from "~/lib/db-options.server";
 import { getEnv } from "~/lib/env.server";
@@ -29,6 +32,24 @@ export async function useScratchDatabase(label: string) {
       await c.end();
       if (previous === undefined) delete process.env.DATABASE_NAME;
       else process.env.DATABASE_NAME = previous;
+    },
+  };
+}
+
+/**
+ * A scratch database and a storage folder of this test file's own, with the settings a test
+ * server needs to use both (`serverEnv`). `close()` removes both.
+ */
+export async function useJobTestbed(label: string) {
+  const scratch = await useScratchDatabase(label);
+  const storage = await mkdtemp(join(tmpdir(), `twistlog-${label}-blobs-`));
+  return {
+    scratch,
+    storage,
+    serverEnv: { TWISTLOG_STORAGE_DIR: storage, DATABASE_NAME: scratch.name },
+    async close() {
+      await scratch.drop();
+      await rm(storage, { recursive: true, force: true });
     },
   };
 }
