@@ -30,6 +30,8 @@ export default [
   // The vehicle page polls this while analyses run; the drive-log page links the raw file.
   route("vehicles/:vehicleId/status", "routes/vehicle.status.ts"),
   route("vehicles/:vehicleId/logs/:logId/file", "routes/drive-log.file.ts"),
+  // Chart data (JSON) for the drive-log and rattle-check pages, fetched with TanStack Query.
+  route("vehicles/:vehicleId/logs/:logId/charts.json", "routes/drive-log.charts.ts"),
   // Resource routes (no component). The API answers JSON, errors as { error: { code, message } }.
   route("healthz", "routes/healthz.ts"),
   ...prefix("api/v1", [

@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, isNull, ne } from "drizzle-orm";
 import { gunzipSync } from "node:zlib";
 import { analyses, driveLogs, vehicles } from "~/db/schema-drive-logs";
-import type { AnalysisOptions } from "~/lib/signal";
+import { analysisResultSchema, type AnalysisOptions, type AnalysisResult } from "~/lib/signal";
 import { enqueueAnalysis, type JobSettings } from "./analysis-jobs.server";
 import { db } from "./db.server";
 import type { IngestMapping } from "./drive-log-terms";
@@ -189,6 +189,43 @@ export function vehicleData(teamId: number) {
         driveLogId: row.id,
         settings: jobSettingsFor(v, mapping ?? v.columnMapping, overrides),
       });
+    },
+
+    /** A drive log's analysis versions, newest first. */
+    versions(logId: number) {
+      return db
+        .select({ id: analyses.id, version: analyses.version, createdAt: analyses.createdAt })
+        .from(analyses)
+        .where(and(eq(analyses.driveLogId, logId), eq(analyses.teamId, teamId)))
+        .orderBy(desc(analyses.version));
+    },
+
+    /**
+     * The latest analysis of a drive log, its result checked against the schema (results
+     * stored before a field existed get its default); null until one has finished.
+     */
+    async latestAnalysis(
+      logId: number,
+    ): Promise<{ id: number; version: number; createdAt: Date; result: AnalysisResult } | null> {
+      const row = await log(logId);
+      if (!row.latestAnalysisId) return null;
+      const [stored] = await db
+        .select({
+          id: analyses.id,
+          version: analyses.version,
+          createdAt: analyses.createdAt,
+          resultGz: analyses.resultGz,
+          orderMapGz: analyses.orderMapGz,
+        })
+        .from(analyses)
+        .where(and(eq(analyses.id, row.latestAnalysisId), eq(analyses.teamId, teamId)));
+      if (!stored) return null;
+      const parsed = analysisResultSchema.safeParse({
+        ...(JSON.parse(gunzipSync(stored.resultGz).toString("utf8")) as object),
+        orderMap: JSON.parse(gunzipSync(stored.orderMapGz).toString("utf8")) as unknown,
+      });
+      if (!parsed.success) return null;
+      return { id: stored.id, version: stored.version, createdAt: stored.createdAt, result: parsed.data };
     },
 
     /** The stored result JSON of the latest analysis, exactly as the signal core produced it. */

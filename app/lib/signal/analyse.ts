@@ -17,6 +17,7 @@ import { rattleCheck } from "./rattle.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
 import { findSegments } from "./segments.ts";
 import { pickSpectrumSegment, timeSpectrum } from "./time-spectrum.ts";
+import { speedTrace } from "./traces.ts";
 import { fitTwoMassModel } from "./two-mass-model.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
@@ -283,6 +284,7 @@ export function analyseDriveLog(
         }
       : null,
     timeSpectrum: spectrum,
+    speedTrace: speedTrace(log.timeS, log.crankRadS, log.gearboxRadS),
     warnings: warnings.map(({ code, message }) => ({ code, message })),
   };
   const checked = analysisResultSchema.safeParse(result);

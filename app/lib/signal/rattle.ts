@@ -8,12 +8,14 @@
  *   noise does not), then differentiated by central differences; the peak is max |α(t)|,
  *   ignoring one firing period at each segment edge.
  * - Spans: where the envelope of |α(t)| (running max over one firing period) exceeds the limit.
+ * Trace: |α(t)| decimated to at most TRACE_POINTS points by bucket maxima (traces.ts).
  * Verdict "over-limit" when either the order amplitude or the time-domain peak exceeds the limit.
  */
 import { angularAccelerationRadS2 } from "./firing-order.ts";
 import { butterworthLowpass4, filtfilt, type TrackedBlocks } from "./order-tracking.ts";
 import { orderBin } from "./order-curves.ts";
 import type { Segment } from "./segments.ts";
+import { envelopeMax, TRACE_POINTS } from "./traces.ts";
 
 export interface RattleSpan {
   startS: number;
@@ -32,6 +34,11 @@ export interface RattleCheck {
   idleDurationS: number;
   blocks: number;
   spans: RattleSpan[];
+  /**
+   * |α(t)| of the gearbox input over the idle segments for the chart, rad/s², decimated keeping
+   * each bucket's maximum; a null value separates two idle segments.
+   */
+  accelTrace: { timeS: number[]; radS2: (number | null)[] };
 }
 
 /** At most this many spans are listed (the longest are kept). */
@@ -86,6 +93,11 @@ export function rattleCheck(args: {
   let peak = 0;
   let idleS = 0;
   const spans: RattleSpan[] = [];
+  const trace: RattleCheck["accelTrace"] = { timeS: [], radS2: [] };
+  const idleSamples = idle.reduce(
+    (n, s) => n + indexAt(args.timeS, s.endS) - indexAt(args.timeS, s.startS),
+    0,
+  );
   for (const seg of idle) {
     idleS += seg.endS - seg.startS;
     const i0 = indexAt(args.timeS, seg.startS);
@@ -121,6 +133,18 @@ export function rattleCheck(args: {
         open = -1;
       }
     }
+    const inner = { t: t.subarray(guard, y.length - guard), a: acc.subarray(guard, y.length - guard) };
+    const piece = envelopeMax(
+      inner.t,
+      inner.a,
+      Math.ceil((TRACE_POINTS * inner.t.length) / Math.max(1, idleSamples)),
+    );
+    if (trace.timeS.length > 0) {
+      trace.timeS.push(piece.timeS[0]!);
+      trace.radS2.push(null);
+    }
+    trace.timeS.push(...piece.timeS);
+    trace.radS2.push(...piece.value);
     if (open >= 0) {
       const last = y.length - guard - 1;
       spans.push({
@@ -153,5 +177,6 @@ export function rattleCheck(args: {
       durationS: r3(s.durationS),
       peakRadS2: Math.round(s.peakRadS2 * 10) / 10,
     })),
+    accelTrace: trace,
   };
 }

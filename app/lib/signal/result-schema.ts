@@ -93,6 +93,17 @@ export const analysisResultSchema = z.object({
           peakRadS2: z.number().nonnegative(),
         }),
       ),
+      /**
+       * |α(t)| at the gearbox input for the chart, bucket maxima; a null value separates two
+       * segments. Null in results stored before the trace existed.
+       */
+      accelTrace: z
+        .object({
+          timeS: z.array(z.number()),
+          radS2: z.array(z.number().nonnegative().nullable()),
+        })
+        .nullable()
+        .default(null),
     })
     .nullable(),
   resonance: z.object({ rpm: z.number().positive(), isolationDb: z.number() }).nullable(),
@@ -119,6 +130,19 @@ export const analysisResultSchema = z.object({
       gearboxRpm: z.array(z.number().nonnegative()),
     })
     .nullable(),
+  /**
+   * Bucket means of both speeds over the whole log for the speed trace (traces.ts). Null in
+   * results stored before the trace existed (re-analysing adds it).
+   */
+  speedTrace: z
+    .object({
+      timeS: z.array(z.number()),
+      crankRpm: z.array(z.number()),
+      gearboxRpm: z.array(z.number()),
+      samplesPerPoint: z.int().positive(),
+    })
+    .nullable()
+    .default(null),
   warnings: z.array(z.object({ code: z.string(), message: z.string() })),
 });
 
