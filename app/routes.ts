@@ -32,6 +32,8 @@ export default [
   route("vehicles/:vehicleId/logs/:logId/file", "routes/drive-log.file.ts"),
   // Chart data (JSON) for the drive-log and rattle-check pages, fetched with TanStack Query.
   route("vehicles/:vehicleId/logs/:logId/charts.json", "routes/drive-log.charts.ts"),
+  // Isolation and firing-order curves of several drive logs, for overlays.
+  route("vehicles/:vehicleId/curves.json", "routes/vehicle.curves.ts"),
   // Resource routes (no component). The API answers JSON, errors as { error: { code, message } }.
   route("healthz", "routes/healthz.ts"),
   ...prefix("api/v1", [

@@ -57,7 +57,11 @@ if (!env.SMTP_URL) {
 
 if (NODE_ENV === "development") {
   const vite = await import("vite");
-  const devServer = await vite.createServer({ server: { middlewareMode: true } });
+  // HMR_PORT lets several dev servers run side by side (Vite's default is 24678).
+  const hmrPort = Number(process.env.HMR_PORT) || undefined;
+  const devServer = await vite.createServer({
+    server: { middlewareMode: true, hmr: hmrPort ? { port: hmrPort } : undefined },
+  });
   app.use(devServer.middlewares);
   app.use(async (req, res, next) => {
     try {

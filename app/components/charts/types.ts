@@ -1,0 +1,47 @@
+/**
+ * The contract between the pages and the chart components (app/components/charts/). Pages pass
+ * URLs of JSON resource routes; the components fetch them with TanStack Query, draw on the
+ * client only (uPlot, plus a plain canvas for the order maps) and size themselves to their
+ * container.
+ */
+import type { ChartData } from "~/lib/chart-data";
+
+/** What GET …/charts.json answers (app/routes/drive-log.charts.ts, and share links). */
+export interface ChartsResponse {
+  logId: number;
+  analysis: { id: number; version: number; createdAt: string };
+  charts: ChartData;
+}
+
+/** A remark pinned to a time (s) or an engine speed (rpm), drawn as a marker on the charts. */
+export interface ChartMarker {
+  id: number | string;
+  label: string;
+  timeS?: number | null;
+  rpm?: number | null;
+}
+
+/** An isolation target drawn as a band on the isolation curve: at least minDb over rpmFrom–rpmTo. */
+export interface TargetBand {
+  id: number | string;
+  name: string;
+  rpmFrom: number;
+  rpmTo: number;
+  minDb: number;
+}
+
+/** One drive log in an overlay (comparison, vehicle page), from GET …/curves.json. */
+export interface CurveSet {
+  logId: number;
+  label: string;
+  /** Isolation at the firing order, dB, against engine speed, rpm. */
+  isolation: { rpm: number[]; dB: number[] };
+  /** Firing-order amplitude, rpm (0-peak), both sides, against engine speed, rpm. */
+  firingOrder: { rpm: number[]; crankRpm: number[]; gearboxRpm: number[] };
+  firingOrderValue: number;
+}
+
+export interface CurvesResponse {
+  vehicleId: number;
+  curves: CurveSet[];
+}

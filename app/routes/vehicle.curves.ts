@@ -1,0 +1,31 @@
+import { curvesForLogs, parseLogIds } from "~/lib/curves.server";
+import { idParam } from "~/lib/params";
+import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/vehicle.curves";
+
+/**
+ * GET /vehicles/:vehicleId/curves.json?logs=ID,ID… → { vehicleId, curves: CurveSet[] }: the
+ * isolation and firing-order curves of the latest analyses, for overlays (comparison, vehicle
+ * page). Without `logs`, the vehicle's finished drive logs, newest first (at most 8).
+ */
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { team } = await requireTeamRole(request, "viewer");
+  const data = vehicleData(team.id);
+  const vehicle = await data.vehicle(idParam(params.vehicleId));
+  const asked = parseLogIds(new URL(request.url).searchParams.get("logs"));
+  invariantResponse(asked, "logs must be up to 8 drive-log ids separated by commas.", {
+    status: 400,
+  });
+  const ids = asked.length
+    ? asked
+    : (await data.logs(vehicle.id))
+        .filter((l) => l.latestAnalysisId)
+        .slice(0, 8)
+        .map((l) => l.id);
+  const curves = await curvesForLogs(team.id, vehicle.id, ids);
+  return Response.json(
+    { vehicleId: vehicle.id, curves },
+    { headers: { "Cache-Control": "private, no-cache" } },
+  );
+}
