@@ -1,5 +1,7 @@
+import { Link } from "react-router";
 import type { AnalysisResult } from "~/lib/signal";
 import { VerdictCaution } from "./caution-note";
+import { linkClass } from "./form-fields";
 import { Card, tableClass, tdClass, thClass } from "./page";
 
 /** The figures of the drive-log page, taken from the stored result JSON (no re-computation). */
@@ -86,7 +88,48 @@ const dB = (x: number) => `${x >= 0 ? "" : "−"}${Math.abs(x).toFixed(1)} dB`;
 const rpm = (x: number) => `${Math.round(x)} rpm`;
 const rad = (x: number) => `${x.toFixed(0)} rad/s²`;
 
-export function AnalysisSummaryView({ s }: { s: AnalysisSummary }) {
+/** A target's verdict as the summary shows it (app/lib/targets.ts computes them). */
+export interface TargetTileVerdict {
+  targetId: number;
+  name: string;
+  status: "pass" | "fail" | "not-covered" | "not-applicable";
+  value: number | null;
+  limit: number;
+  margin: number | null;
+  unit: string;
+  detail: string;
+}
+
+const statusText: Record<TargetTileVerdict["status"], string> = {
+  pass: "pass",
+  fail: "fail",
+  "not-covered": "not covered",
+  "not-applicable": "does not apply",
+};
+const statusClass: Record<TargetTileVerdict["status"], string> = {
+  pass: "text-green-700",
+  fail: "text-red-700",
+  "not-covered": "text-neutral-500",
+  "not-applicable": "text-neutral-500",
+};
+
+/**
+ * The verdict strip of a drive log: isolation, damper resonance, rattle check and targets, then
+ * the warnings, the settings and the isolation curve as a table (the charts' text alternative).
+ */
+export function AnalysisSummaryView({
+  s,
+  targets,
+  rattleHref,
+}: {
+  s: AnalysisSummary;
+  /** Null when the caller does not show targets (e.g. a share link without them). */
+  targets?: TargetTileVerdict[] | null;
+  rattleHref?: string;
+}) {
+  const applicable = targets?.filter((t) => t.status !== "not-applicable") ?? [];
+  const failed = applicable.filter((t) => t.status === "fail").length;
+  const passed = applicable.filter((t) => t.status === "pass").length;
   return (
     <div className="space-y-6">
       <div className="grid gap-4 md:grid-cols-2 xl:grid-cols-4">
@@ -160,13 +203,70 @@ export function AnalysisSummaryView({ s }: { s: AnalysisSummary }) {
                   {rpm(s.rattle.meanRpm)}, {s.rattle.idleDurationS.toFixed(1)} s
                 </dd>
               </dl>
+              {rattleHref ? (
+                <Link to={rattleHref} className={`${linkClass} mt-2 inline-block text-sm`}>
+                  Open the rattle check
+                </Link>
+              ) : null}
             </>
           ) : (
             <p className="text-sm">No idle segment in this log, so no rattle check.</p>
           )}
         </Tile>
-        <Tile title="Settings">
-          <dl className="grid grid-cols-[auto_1fr] gap-x-3 text-sm">
+        <Tile title="Targets">
+          {targets === undefined || targets === null ? (
+            <p className="text-sm text-neutral-600">Targets are not shown here.</p>
+          ) : targets.length === 0 ? (
+            <p className="text-sm text-neutral-600">
+              This vehicle has no targets yet. Engineers set them on the vehicle page.
+            </p>
+          ) : (
+            <>
+              <p
+                className={`text-2xl font-semibold ${failed ? "text-red-700" : passed ? "text-green-700" : "text-neutral-700"}`}
+              >
+                {applicable.length === 0
+                  ? "None apply"
+                  : failed
+                    ? `${failed} of ${applicable.length} failed`
+                    : `${passed} of ${applicable.length} passed`}
+              </p>
+              <ul className="mt-2 space-y-1.5 text-sm" data-testid="target-verdicts">
+                {targets.map((t) => (
+                  <li key={t.targetId} data-status={t.status}>
+                    <span className={`font-semibold ${statusClass[t.status]}`}>
+                      {statusText[t.status]}
+                    </span>{" "}
+                    {t.name}
+                    {t.margin !== null ? (
+                      <span className="text-neutral-600">
+                        {" "}
+                        — margin {t.margin >= 0 ? "+" : "−"}
+                        {Math.abs(t.margin).toFixed(1)} {t.unit}
+                      </span>
+                    ) : null}
+                    <span className="block text-xs text-neutral-500">{t.detail}</span>
+                  </li>
+                ))}
+              </ul>
+            </>
+          )}
+        </Tile>
+      </div>
+      <VerdictCaution />
+      {s.warnings.length ? (
+        <Card title="Warnings" id="warnings">
+          <ul className="list-disc space-y-1 pl-5 text-sm">
+            {s.warnings.map((w, i) => (
+              <li key={i}>
+                {w.message} <span className="font-mono text-xs text-neutral-500">{w.code}</span>
+              </li>
+            ))}
+          </ul>
+        </Card>
+      ) : null}
+        <Tile title="Analysis settings">
+          <dl className="grid grid-cols-[auto_1fr] gap-x-3 text-sm sm:grid-cols-[auto_1fr_auto_1fr_auto_1fr]">
             <dt className="text-neutral-600">Samples per rev</dt>
             <dd>
               {s.settings.samplesPerRevMin === s.settings.samplesPerRev
@@ -188,20 +288,11 @@ export function AnalysisSummaryView({ s }: { s: AnalysisSummary }) {
             </dd>
           </dl>
         </Tile>
-      </div>
-      <VerdictCaution />
-      {s.warnings.length ? (
-        <Card title="Warnings" id="warnings">
-          <ul className="list-disc space-y-1 pl-5 text-sm">
-            {s.warnings.map((w, i) => (
-              <li key={i}>
-                {w.message} <span className="font-mono text-xs text-neutral-500">{w.code}</span>
-              </li>
-            ))}
-          </ul>
-        </Card>
-      ) : null}
-      <Card title="Isolation curve at the firing order" id="isolation">
+      <details id="isolation" className="rounded-lg border border-neutral-200 bg-white p-5 shadow-xs">
+        <summary className="cursor-pointer text-sm font-semibold">
+          Isolation curve at the firing order as a table ({s.curve.length} engine speeds)
+        </summary>
+        <div className="mt-3">
         {s.curve.length === 0 ? (
           <p className="text-sm text-neutral-600">No engine-speed bins.</p>
         ) : (
@@ -229,7 +320,8 @@ export function AnalysisSummaryView({ s }: { s: AnalysisSummary }) {
             </table>
           </div>
         )}
-      </Card>
+        </div>
+      </details>
     </div>
   );
 }

@@ -1,8 +1,6 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { and, desc, eq } from "drizzle-orm";
 import { data, Link, useActionData, useLoaderData } from "react-router";
 import { analysisResultSchema } from "~/lib/signal";
-import { analyses } from "~/db/schema-drive-logs";
 import { AnalysisSummaryView, summarise } from "~/components/analysis-summary";
 import { ColumnMapping, mappingSchema } from "~/components/column-mapping";
 import { Failure, MAPPING_CODES } from "~/components/log-failure";
@@ -13,7 +11,7 @@ import { useLiveStatus } from "~/components/use-log-progress";
 import { Card, Notice, When } from "~/components/page";
 import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
 import { assertCsrf } from "~/lib/csrf.server";
-import { db } from "~/lib/db.server";
+import { logLabel } from "~/lib/curves.server";
 import { conditionLabels, type IngestMapping } from "~/lib/drive-log-terms";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
@@ -47,11 +45,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const stored = log.latestAnalysisId ? await vehicles.latestResult(log.id) : null;
   const parsed = stored ? analysisResultSchema.safeParse(stored) : null;
   const members = await teamData(team.id).members();
-  const versions = await db
-    .select({ id: analyses.id, version: analyses.version, createdAt: analyses.createdAt })
-    .from(analyses)
-    .where(and(eq(analyses.driveLogId, log.id), eq(analyses.teamId, team.id)))
-    .orderBy(desc(analyses.version));
+  const versions = await vehicles.versions(log.id);
+  // Other analysed drive logs of this vehicle to compare with, the same condition first.
+  const others = (await vehicles.logs(vehicle.id))
+    .filter((l) => l.id !== log.id && l.latestAnalysisId)
+    .sort((a, b) => Number(b.condition === log.condition) - Number(a.condition === log.condition))
+    .slice(0, 12)
+    .map((l) => ({ id: l.id, label: logLabel(l), fileName: l.fileName }));
   const error = log.status === "failed" ? log.error : null;
   const mapping = error && MAPPING_CODES.has(error.code) ? await readPreview(log.blobKey) : null;
   return {
@@ -89,6 +89,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         }
       : null,
     versions,
+    others,
     preview: mapping,
   };
 }
@@ -137,7 +138,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function DriveLogPage() {
-  const { role, vehicle, log, summary, current, versions, preview } =
+  const { role, vehicle, log, summary, current, versions, others, preview } =
     useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const progress = useLiveStatus(log);
@@ -184,6 +185,17 @@ export default function DriveLogPage() {
             <a href={`/vehicles/${vehicle.id}/logs/${log.id}/file`} className={linkClass} download>
               Download the raw file
             </a>
+            {summary ? (
+              <>
+                <a href={`/api/v1/logs/${log.id}/result`} className={linkClass} download={`drive-log-${log.id}-result.json`}>
+                  Result JSON
+                </a>
+                <a href={`/vehicles/${vehicle.id}/logs/${log.id}/result.csv`} className={linkClass} download>
+                  Result CSV
+                </a>
+              </>
+            ) : null}
+            {summary && others.length ? <CompareWith vehicleId={vehicle.id} logId={log.id} others={others} /> : null}
           </div>
           {log.notes ? (
             <p className="mt-2 max-w-3xl text-sm text-neutral-700 whitespace-pre-line">
@@ -226,7 +238,11 @@ export default function DriveLogPage() {
               A new analysis is running; these are the figures of the previous version.
             </p>
           ) : null}
-          <AnalysisSummaryView s={summary} />
+          <AnalysisSummaryView
+            s={summary}
+            targets={null}
+            rattleHref={summary.rattle ? `/vehicles/${vehicle.id}/logs/${log.id}/rattle` : undefined}
+          />
         </section>
       ) : null}
       {atLeast(role, "engineer") && log.status !== "queued" && log.status !== "analysing" ? (
@@ -250,6 +266,45 @@ export default function DriveLogPage() {
         </Card>
       ) : null}
     </main>
+  );
+}
+
+/** "Compare with…": pick another analysed drive log of the vehicle and open the comparison. */
+function CompareWith({
+  vehicleId,
+  logId,
+  others,
+}: {
+  vehicleId: number;
+  logId: number;
+  others: { id: number; label: string; fileName: string }[];
+}) {
+  return (
+    <form method="get" action={`/vehicles/${vehicleId}/compare`} className="flex items-center gap-2">
+      <input type="hidden" name="logs" value={String(logId)} />
+      <label htmlFor="compare-with" className="text-neutral-600">
+        Compare with
+      </label>
+      <select
+        id="compare-with"
+        name="with"
+        required
+        className="rounded-md border border-neutral-300 px-2 py-1 text-sm"
+        defaultValue=""
+      >
+        <option value="" disabled>
+          choose a drive log…
+        </option>
+        {others.map((o) => (
+          <option key={o.id} value={o.id}>
+            {o.label} ({o.fileName})
+          </option>
+        ))}
+      </select>
+      <button type="submit" className="rounded-md border border-neutral-300 px-2 py-1 text-sm hover:bg-neutral-50">
+        Compare
+      </button>
+    </form>
   );
 }
 

@@ -1,0 +1,81 @@
+import { Link, redirect, useLoaderData } from "react-router";
+import { ComparisonView } from "~/components/comparison-view";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { linkClass } from "~/components/form-fields";
+import { compareIsolation } from "~/lib/comparison";
+import { comparisonLogs } from "~/lib/comparison.server";
+import { curvesForLogs, parseLogIds } from "~/lib/curves.server";
+import { idParam } from "~/lib/params";
+import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/compare";
+
+export const meta = ({ data }: Route.MetaArgs) => [
+  { title: `Comparison${data ? ` · ${data.vehicle.identifier}` : ""} · Twistlog` },
+];
+
+/**
+ * /vehicles/:vehicleId/compare?logs=ID,ID[,ID…]: two to eight drive logs of one vehicle, the
+ * first one the reference. The URL is the comparison, so it can be bookmarked and shared.
+ */
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { team } = await requireTeamRole(request, "viewer");
+  const data = vehicleData(team.id);
+  const vehicle = await data.vehicle(idParam(params.vehicleId));
+  const search = new URL(request.url).searchParams;
+  // The drive-log page's "Compare with…" form sends ?logs=ID&with=ID: fold it into one list.
+  const folded = parseLogIds([search.get("logs"), search.get("with")].filter(Boolean).join(","));
+  if (search.has("with") && folded)
+    throw redirect(`/vehicles/${vehicle.id}/compare?logs=${folded.join(",")}`);
+  const ids = parseLogIds(search.get("logs"));
+  invariantResponse(
+    ids && ids.length >= 2,
+    "A comparison needs two to eight drive logs: choose them on the vehicle page and press “Compare selected”.",
+    { status: 400 },
+  );
+  const logs = await comparisonLogs(data, vehicle, ids);
+  const curves = await curvesForLogs(team.id, vehicle.id, ids);
+  const comparison = compareIsolation(
+    logs
+      .filter((l) => l.analysed)
+      .map((l) => {
+        const c = curves.find((x) => x.logId === l.id)!;
+        return { logId: l.id, name: l.name, rpm: c.isolation.rpm, dB: c.isolation.dB };
+      }),
+  );
+  return {
+    vehicle: { id: vehicle.id, name: vehicle.name, identifier: vehicle.identifier },
+    logs,
+    comparison,
+  };
+}
+
+export default function ComparePage() {
+  const { vehicle, logs, comparison } = useLoaderData<typeof loader>();
+  return (
+    <main className="space-y-6">
+      <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
+        <Link to="/vehicles" className={linkClass}>
+          Vehicles
+        </Link>{" "}
+        ›{" "}
+        <Link to={`/vehicles/${vehicle.id}`} className={linkClass}>
+          {vehicle.identifier}
+        </Link>{" "}
+        › Comparison
+      </nav>
+      <ComparisonView
+        vehicle={vehicle}
+        logs={logs}
+        comparison={comparison}
+        curvesUrl={`/vehicles/${vehicle.id}/curves.json?logs=${logs.map((l) => l.id).join(",")}`}
+        logHref={(id) => `/vehicles/${vehicle.id}/logs/${id}`}
+        reorderHref={(ids) => `/vehicles/${vehicle.id}/compare?logs=${ids.join(",")}`}
+      />
+    </main>
+  );
+}
+
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
+}

@@ -1,0 +1,25 @@
+import { idParam } from "~/lib/params";
+import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { resultCsv } from "~/lib/result-csv";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/drive-log.result-csv";
+
+/** GET /vehicles/:vehicleId/logs/:logId/result.csv: the latest analysis' curves as CSV (viewer and up). */
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { team } = await requireTeamRole(request, "viewer");
+  const data = vehicleData(team.id);
+  const log = await data.log(idParam(params.logId));
+  invariantResponse(log.vehicleId === idParam(params.vehicleId), "No such drive log for this vehicle.", {
+    status: 404,
+  });
+  const analysis = await data.latestAnalysis(log.id);
+  invariantResponse(analysis, "This drive log has no analysis yet.", { status: 404 });
+  const name = `drive-log-${log.id}-analysis-${analysis.version}.csv`;
+  return new Response(resultCsv(analysis.result), {
+    headers: {
+      "Content-Type": "text/csv; charset=utf-8",
+      "Content-Disposition": `attachment; filename="${name}"`,
+      "Cache-Control": "private, no-store",
+    },
+  });
+}

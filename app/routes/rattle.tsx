@@ -1,0 +1,163 @@
+import { Link, useLoaderData } from "react-router";
+import { VerdictCaution } from "~/components/caution-note";
+import { RattleCharts } from "~/components/charts";
+import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { linkClass } from "~/components/form-fields";
+import { Card, EmptyState, tableClass, tdClass, thClass } from "~/components/page";
+import { conditionLabels, RATTLE_LIMIT_SOURCE } from "~/lib/drive-log-terms";
+import { idParam } from "~/lib/params";
+import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { rattleReading } from "~/lib/rattle-reading";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/rattle";
+
+export const meta = ({ data }: Route.MetaArgs) => [
+  { title: `Rattle check · ${data?.log.fileName ?? "Drive log"} · Twistlog` },
+];
+
+/** /vehicles/:vehicleId/logs/:logId/rattle: the idle gear-rattle assessment of one drive log. */
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { team } = await requireTeamRole(request, "viewer");
+  const data = vehicleData(team.id);
+  const vehicle = await data.vehicle(idParam(params.vehicleId));
+  const log = await data.log(idParam(params.logId));
+  invariantResponse(log.vehicleId === vehicle.id, "No such drive log for this vehicle.", {
+    status: 404,
+  });
+  const analysis = await data.latestAnalysis(log.id);
+  const idle = analysis?.result.idle ?? null;
+  return {
+    vehicle: { id: vehicle.id, name: vehicle.name, identifier: vehicle.identifier },
+    log: {
+      id: log.id,
+      fileName: log.fileName,
+      condition: log.condition,
+      testDate: log.testDate,
+      status: log.status,
+    },
+    analysis: analysis ? { version: analysis.version, firingOrder: analysis.result.firingOrder } : null,
+    idle: idle ? { ...idle, accelTrace: null } : null,
+    reading: idle ? rattleReading(idle) : null,
+  };
+}
+
+export default function RattlePage() {
+  const { vehicle, log, analysis, idle, reading } = useLoaderData<typeof loader>();
+  const logHref = `/vehicles/${vehicle.id}/logs/${log.id}`;
+  return (
+    <main className="space-y-6">
+      <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
+        <Link to="/vehicles" className={linkClass}>
+          Vehicles
+        </Link>{" "}
+        ›{" "}
+        <Link to={`/vehicles/${vehicle.id}`} className={linkClass}>
+          {vehicle.identifier}
+        </Link>{" "}
+        ›{" "}
+        <Link to={logHref} className={linkClass}>
+          {conditionLabels[log.condition]}
+          {log.testDate ? `, ${log.testDate}` : ""}
+        </Link>{" "}
+        › Rattle check
+      </nav>
+      <header>
+        <h1 className="text-2xl font-semibold tracking-tight">Rattle check</h1>
+        <p className="mt-1 text-sm text-neutral-600 break-all">
+          {log.fileName} · {vehicle.name}
+          {analysis ? ` · analysis version ${analysis.version}, firing order ${analysis.firingOrder}` : ""}
+        </p>
+      </header>
+
+      {!analysis ? (
+        <EmptyState>
+          This drive log has no finished analysis yet ({log.status}).{" "}
+          <Link to={logHref} className={linkClass}>
+            Back to the drive log
+          </Link>
+          .
+        </EmptyState>
+      ) : !idle || !reading ? (
+        <EmptyState>
+          This drive log has no idle segment, so there is nothing to check for idle gear rattle.
+          Record at least 10 s of steady idle (neutral or in gear) for a rattle check.
+        </EmptyState>
+      ) : (
+        <>
+          <section
+            aria-labelledby="reading-title"
+            className={`rounded-lg border-2 p-5 ${reading.verdict === "ok" ? "border-green-600" : "border-red-600"} bg-white`}
+          >
+            <h2 id="reading-title" className="text-lg font-semibold">
+              <span className={reading.verdict === "ok" ? "text-green-700" : "text-red-700"}>
+                {reading.verdict === "ok" ? "Within the limit" : "Over the limit"}
+              </span>
+              <span className="ml-2 font-normal text-neutral-800">{reading.headline}</span>
+            </h2>
+            <div className="mt-2 space-y-1 text-sm text-neutral-800">
+              {reading.sentences.map((s) => (
+                <p key={s}>{s}</p>
+              ))}
+            </div>
+            <dl className="mt-4 grid gap-4 text-sm sm:grid-cols-4">
+              <Figure term="Firing-order angular acceleration" value={`${idle.gearboxAngAccelRadS2.toFixed(0)} rad/s²`} />
+              <Figure term="Highest momentary value" value={`${idle.gearboxAngAccelPeakRadS2.toFixed(0)} rad/s²`} />
+              <Figure term="Limit" value={`${idle.limitRadS2.toFixed(0)} rad/s²`} />
+              <Figure term="Idle examined" value={`${idle.idleDurationS.toFixed(1)} s at ${idle.meanRpm.toFixed(0)} rpm`} />
+            </dl>
+            <p className="mt-3 text-xs text-neutral-500">
+              Angular acceleration α = Δω·q·Ω from the gearbox-input firing-order amplitude Δω,
+              the firing order q and the mean engine speed Ω; the momentary value is the peak of
+              the filtered, differentiated gearbox-input speed. Limit: the vehicle&apos;s rattle
+              limit (default source: {RATTLE_LIMIT_SOURCE})
+            </p>
+          </section>
+          <VerdictCaution />
+          <RattleCharts chartsUrl={`${logHref}/charts.json`} />
+          <Card title="Spans above the limit" id="spans">
+            {idle.spans.length === 0 ? (
+              <EmptyState>The angular acceleration never rises above the limit.</EmptyState>
+            ) : (
+              <table className={tableClass} data-testid="rattle-spans">
+                <caption className="sr-only">
+                  Stretches of idle where the gearbox-input angular acceleration exceeds the limit
+                </caption>
+                <thead>
+                  <tr>
+                    <th scope="col" className={thClass}>From, s</th>
+                    <th scope="col" className={thClass}>To, s</th>
+                    <th scope="col" className={thClass}>Duration, s</th>
+                    <th scope="col" className={thClass}>Peak, rad/s²</th>
+                  </tr>
+                </thead>
+                <tbody>
+                  {idle.spans.map((s) => (
+                    <tr key={s.startS}>
+                      <td className={`${tdClass} tabular-nums`}>{s.startS.toFixed(2)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{s.endS.toFixed(2)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{s.durationS.toFixed(2)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{s.peakRadS2.toFixed(0)}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            )}
+          </Card>
+        </>
+      )}
+    </main>
+  );
+}
+
+function Figure({ term, value }: { term: string; value: string }) {
+  return (
+    <div>
+      <dt className="text-neutral-500">{term}</dt>
+      <dd className="mt-0.5 text-base font-semibold tabular-nums">{value}</dd>
+    </div>
+  );
+}
+
+export function ErrorBoundary() {
+  return <GeneralErrorBoundary />;
+}
