@@ -9,6 +9,8 @@ export default [
     route("vehicles/:vehicleId", "routes/vehicle.tsx"),
     route("vehicles/:vehicleId/edit", "routes/vehicle.edit.tsx"),
     route("vehicles/:vehicleId/logs/:logId", "routes/drive-log.tsx"),
+    route("vehicles/:vehicleId/logs/:logId/rattle", "routes/rattle.tsx"),
+    route("vehicles/:vehicleId/compare", "routes/compare.tsx"),
     route("comparisons", "routes/comparisons.tsx"),
     route("team", "routes/team.tsx"),
     route("team/members/:memberId", "routes/team.member.tsx"),
@@ -32,6 +34,7 @@ export default [
   route("vehicles/:vehicleId/logs/:logId/file", "routes/drive-log.file.ts"),
   // Chart data (JSON) for the drive-log and rattle-check pages, fetched with TanStack Query.
   route("vehicles/:vehicleId/logs/:logId/charts.json", "routes/drive-log.charts.ts"),
+  route("vehicles/:vehicleId/logs/:logId/result.csv", "routes/drive-log.result-csv.ts"),
   // Isolation and firing-order curves of several drive logs, for overlays.
   route("vehicles/:vehicleId/curves.json", "routes/vehicle.curves.ts"),
   // Resource routes (no component). The API answers JSON, errors as { error: { code, message } }.
@@ -43,6 +46,19 @@ export default [
     route("vehicles/:vehicleId/logs", "routes/api.v1.vehicle-logs.ts"),
     route("logs/:logId", "routes/api.v1.log.ts"),
     route("logs/:logId/result", "routes/api.v1.log-result.ts"),
+    // Share links (issue 7)
+    route("logs/:logId/shares", "routes/api.v1.log-shares.ts"),
+    route("shares", "routes/api.v1.shares.ts"),
+    route("shares/:shareId", "routes/api.v1.share.ts"),
     route("*", "routes/api.v1.not-found.ts"),
   ]),
+  // Share links (issue 7): the read-only shared page in its own frame (outside _shell, no
+  // sign-in) with its JSON, and the share panel's and the comments' resource routes.
+  route("s/:token", "routes/share.tsx"),
+  route("s/:token/charts.json", "routes/share.charts.ts"),
+  route("s/:token/curves.json", "routes/share.curves.ts"),
+  route("s/:token/file", "routes/share.file.ts"),
+  route("vehicles/:vehicleId/logs/:logId/share", "routes/drive-log.share.ts"),
+  route("vehicles/:vehicleId/compare/share", "routes/comparison.share.ts"),
+  route("vehicles/:vehicleId/comments", "routes/comments.ts"),
 ] satisfies RouteConfig;

@@ -28,6 +28,9 @@ app.use((req, res, next) => {
       nonce: res.locals.cspNonce as string,
       development: NODE_ENV === "development",
       https: req.protocol === "https" || !!env.APP_URL?.startsWith("https:"),
+      // A share link's token is in its path: its pages send no referrer at all (they post no forms,
+      // so the Origin header that same-origin keeps for our CSRF checks is not needed there).
+      referrer: req.path.startsWith("/s/") ? "no-referrer" : "same-origin",
     }),
   );
   next();

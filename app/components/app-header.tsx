@@ -26,13 +26,17 @@ export interface HeaderUser {
 export function AppHeader({ user }: { user: HeaderUser | null }) {
   return (
     <header className="border-b border-neutral-200 bg-white">
-      <div className="mx-auto flex h-14 max-w-[1400px] items-center gap-6 px-6">
+      {/* Below md the main areas drop to a second row, so nothing overflows a phone or a tablet in portrait. */}
+      <div className="mx-auto flex min-h-14 max-w-[1400px] flex-wrap items-center gap-x-6 gap-y-1 px-4 py-2 sm:px-6 md:py-0">
         <Link to="/" className="flex items-center gap-2 text-lg font-semibold tracking-tight">
           <LogoMark />
           Twistlog
         </Link>
         {user?.team ? <TeamSwitcher current={user.team} teams={user.teams} /> : null}
-        <nav aria-label="Main" className="flex gap-1 text-sm">
+        <nav
+          aria-label="Main"
+          className="order-last -mx-3 flex w-full gap-1 overflow-x-auto text-sm md:order-none md:mx-0 md:w-auto"
+        >
           {areas.map((area) => (
             <NavLink
               key={area.to}
@@ -107,7 +111,7 @@ function UserMenu({ user }: { user: HeaderUser }) {
   return (
     <details className="relative">
       <summary className="flex cursor-pointer list-none items-center gap-2 rounded-md px-2 py-1.5 text-sm hover:bg-neutral-100">
-        <span className="font-medium text-neutral-800">{user.name}</span>
+        <span className="max-w-40 truncate font-medium text-neutral-800">{user.name}</span>
         {user.team ? (
           <span className="rounded bg-indigo-50 px-1.5 py-0.5 text-xs font-medium text-indigo-800">
             {roleLabels[user.team.role]}

@@ -18,7 +18,16 @@ export type AuditAction =
   | "member-removed"
   | "team-settings-changed"
   | "token-created"
-  | "token-revoked";
+  | "token-revoked"
+  // Targets of a vehicle (issue 6): named by id, vehicle and what they limit.
+  | "target-created"
+  | "target-changed"
+  | "target-deleted"
+  // Share links (issue 7): named by their id, never by their token.
+  | "share-created"
+  | "share-extended"
+  | "share-revoked"
+  | "share-emailed";
 
 export interface AuditEntry {
   /** null for a person's own events (sign-ins); admins of the person's teams see those. */

@@ -14,12 +14,15 @@ export function securityHeaders(options: {
   nonce: string;
   development: boolean;
   https: boolean;
+  referrer?: "same-origin" | "no-referrer";
 }): Record<string, string> {
   const { nonce, development } = options;
   const csp = [
     "default-src 'self'",
     development ? "script-src 'self' 'unsafe-inline'" : `script-src 'self' 'nonce-${nonce}'`,
     development ? "style-src 'self' 'unsafe-inline'" : "style-src 'self'",
+    // Style attributes (chart and progress sizes rendered on the server) but no inline <style>.
+    "style-src-attr 'unsafe-inline'",
     "img-src 'self' data:",
     "font-src 'self'",
     development ? "connect-src 'self' ws://localhost:* ws://127.0.0.1:*" : "connect-src 'self'",
@@ -33,7 +36,7 @@ export function securityHeaders(options: {
     "X-Frame-Options": "DENY",
     "X-Content-Type-Options": "nosniff",
     // Links carry single-use tokens in their path: never send our URLs to other sites.
-    "Referrer-Policy": "same-origin",
+    "Referrer-Policy": options.referrer ?? "same-origin",
     "Cross-Origin-Opener-Policy": "same-origin",
     "Permissions-Policy": "camera=(), microphone=(), geolocation=(), payment=()",
   };

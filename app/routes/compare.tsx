@@ -1,5 +1,7 @@
 import { Link, redirect, useLoaderData } from "react-router";
+import { CommentsPanel } from "~/components/comments-panel";
 import { ComparisonView } from "~/components/comparison-view";
+import { SharePanel } from "~/components/share-panel";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
 import { compareIsolation } from "~/lib/comparison";
@@ -7,6 +9,7 @@ import { comparisonLogs } from "~/lib/comparison.server";
 import { curvesForLogs, parseLogIds } from "~/lib/curves.server";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { atLeast } from "~/lib/roles";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/compare";
 
@@ -44,6 +47,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       }),
   );
   return {
+    role: team.role,
     vehicle: { id: vehicle.id, name: vehicle.name, identifier: vehicle.identifier },
     logs,
     comparison,
@@ -51,7 +55,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export default function ComparePage() {
-  const { vehicle, logs, comparison } = useLoaderData<typeof loader>();
+  const { role, vehicle, logs, comparison } = useLoaderData<typeof loader>();
+  const ids = logs.map((l) => l.id);
   return (
     <main className="space-y-6">
       <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
@@ -70,7 +75,15 @@ export default function ComparePage() {
         comparison={comparison}
         curvesUrl={`/vehicles/${vehicle.id}/curves.json?logs=${logs.map((l) => l.id).join(",")}`}
         logHref={(id) => `/vehicles/${vehicle.id}/logs/${id}`}
-        reorderHref={(ids) => `/vehicles/${vehicle.id}/compare?logs=${ids.join(",")}`}
+        reorderHref={(order) => `/vehicles/${vehicle.id}/compare?logs=${order.join(",")}`}
+      />
+      {atLeast(role, "engineer") ? (
+        <SharePanel endpoint={`/vehicles/${vehicle.id}/compare/share`} logs={ids} />
+      ) : null}
+      {/* Comments follow the set of drive logs, whatever order the URL lists them in. */}
+      <CommentsPanel
+        vehicleId={vehicle.id}
+        subject={`compare:${[...ids].sort((a, b) => a - b).join(",")}`}
       />
     </main>
   );

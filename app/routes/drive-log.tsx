@@ -3,6 +3,7 @@ import { data, Link, useActionData, useLoaderData } from "react-router";
 import { analysisResultSchema } from "~/lib/signal";
 import { AnalysisSummaryView, summarise } from "~/components/analysis-summary";
 import { ColumnMapping, mappingSchema } from "~/components/column-mapping";
+import { DriveLogCharts } from "~/components/charts";
 import { Failure, MAPPING_CODES } from "~/components/log-failure";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
@@ -10,6 +11,8 @@ import { isActive, LogStatus } from "~/components/log-status";
 import { useLiveStatus } from "~/components/use-log-progress";
 import { Card, Notice, When } from "~/components/page";
 import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
+import { SharePanel } from "~/components/share-panel";
+import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
 import { assertCsrf } from "~/lib/csrf.server";
 import { logLabel } from "~/lib/curves.server";
 import { conditionLabels, type IngestMapping } from "~/lib/drive-log-terms";
@@ -142,6 +145,7 @@ export default function DriveLogPage() {
     useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const progress = useLiveStatus(log);
+  const markers = useCommentMarkers(vehicle.id, `log:${log.id}`);
   const notice = result && "notice" in result ? result.notice : null;
   const latest = versions[0];
   return (
@@ -245,6 +249,15 @@ export default function DriveLogPage() {
           />
         </section>
       ) : null}
+      {summary ? (
+        <DriveLogCharts
+          chartsUrl={`/vehicles/${vehicle.id}/logs/${log.id}/charts.json`}
+          markers={markers}
+        />
+      ) : null}
+      {atLeast(role, "engineer") ? (
+        <SharePanel endpoint={`/vehicles/${vehicle.id}/logs/${log.id}/share`} />
+      ) : null}
       {atLeast(role, "engineer") && log.status !== "queued" && log.status !== "analysing" ? (
         <Card title="Re-analyse with other settings" id="reanalyse">
           <ReanalyseForm
@@ -265,6 +278,7 @@ export default function DriveLogPage() {
           </ul>
         </Card>
       ) : null}
+      <CommentsPanel vehicleId={vehicle.id} subject={`log:${log.id}`} />
     </main>
   );
 }

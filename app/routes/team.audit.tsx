@@ -1,13 +1,14 @@
 import { useLoaderData } from "react-router";
 import { EmptyState, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
 import { requireTeamRole } from "~/lib/permissions.server";
+import type { AuditAction } from "~/lib/audit.server";
 import { teamData } from "~/lib/team-data.server";
 import type { Route } from "./+types/team.audit";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 
 export const meta = () => [{ title: "Audit log · Twistlog" }];
 
-const actionLabels: Record<string, string> = {
+const actionLabels: Record<AuditAction, string> = {
   "sign-in": "Signed in",
   "sign-in-failed": "Failed sign-in",
   "sign-in-throttled": "Sign-in refused (too many failures)",
@@ -23,6 +24,13 @@ const actionLabels: Record<string, string> = {
   "team-settings-changed": "Changed a team setting",
   "token-created": "Created an API token",
   "token-revoked": "Revoked an API token",
+  "target-created": "Set a target",
+  "target-changed": "Changed a target",
+  "target-deleted": "Deleted a target",
+  "share-created": "Created a share link",
+  "share-extended": "Extended a share link",
+  "share-revoked": "Revoked a share link",
+  "share-emailed": "Sent a share link by e-mail",
 };
 
 /** /team/audit — admins read who did what, when and from where, newest first (last 200). */
@@ -60,7 +68,7 @@ export default function AuditLog() {
                     <When date={e.createdAt} />
                   </td>
                   <td className={tdClass}>{e.actorEmail}</td>
-                  <td className={tdClass}>{actionLabels[e.action] ?? e.action}</td>
+                  <td className={tdClass}>{actionLabels[e.action as AuditAction] ?? e.action}</td>
                   <td className={`${tdClass} text-neutral-600`}>{e.detail}</td>
                   <td className={`${tdClass} font-mono text-xs`}>{e.ip}</td>
                 </tr>

@@ -1,0 +1,311 @@
+import type { SubmissionResult } from "@conform-to/react";
+import { getSelectProps } from "@conform-to/react";
+import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useEffect, useMemo, useRef, useState } from "react";
+import { useFetcher } from "react-router";
+import {
+  COMMENT_MAX,
+  postCommentSchema,
+  type CommentsResponse,
+  type CommentView,
+} from "~/lib/comment-schema";
+import type { ChartMarker } from "./charts/types";
+import { CsrfInput } from "./csrf-input";
+import { FormError, SubmitButton, useSchemaForm } from "./form";
+import { inputClass, InputField, TextAreaField } from "./form-fields";
+import { EmptyState, When } from "./page";
+
+/**
+ * Comments on a drive log or a comparison (issue 7), with optional pins to a time (s) or an
+ * engine speed (rpm) that the charts draw as markers. Reads GET /vehicles/:vehicleId/comments
+ * with TanStack Query and posts there with a fetcher; the server checks the role again
+ * (technicians and up post, viewers read, authors delete their own).
+ *
+ * `subject` is "log:ID" or "compare:ID,ID…" (sorted ids).
+ */
+
+function commentsUrl(vehicleId: number, subject: string) {
+  return `/vehicles/${vehicleId}/comments?subject=${encodeURIComponent(subject)}`;
+}
+
+export function commentsQueryKey(vehicleId: number, subject: string) {
+  return ["comments", vehicleId, subject] as const;
+}
+
+/** The subject's comments (shared by the panel and useCommentMarkers: one request). */
+export function useComments(vehicleId: number, subject: string) {
+  return useQuery({
+    queryKey: commentsQueryKey(vehicleId, subject),
+    queryFn: async (): Promise<CommentsResponse> => {
+      const response = await fetch(commentsUrl(vehicleId, subject), {
+        headers: { Accept: "application/json" },
+      });
+      const body = (await response.json().catch(() => null)) as
+        (CommentsResponse & { error?: { message: string } }) | null;
+      if (!response.ok || !body?.comments)
+        throw new Error(
+          body?.error?.message ?? `The comments could not be loaded (${response.status}).`,
+        );
+      return body;
+    },
+    staleTime: 10_000,
+  });
+}
+
+function pinText(c: Pick<CommentView, "pinTimeS" | "pinRpm">): string | null {
+  if (c.pinTimeS !== null) return `${Number(c.pinTimeS.toFixed(2))} s`;
+  if (c.pinRpm !== null) return `${Math.round(c.pinRpm)} rpm`;
+  return null;
+}
+
+function shortLabel(c: CommentView): string {
+  const text = c.body.replace(/\s+/g, " ");
+  return `${c.author.name}: ${text.length > 60 ? `${text.slice(0, 57)}…` : text}`;
+}
+
+/** The pinned comments as chart markers ({ id, label, timeS?, rpm? }) for <DriveLogCharts markers>. */
+export function useCommentMarkers(vehicleId: number, subject: string): ChartMarker[] {
+  const { data } = useComments(vehicleId, subject);
+  return useMemo(
+    () =>
+      (data?.comments ?? [])
+        .filter((c) => c.pinTimeS !== null || c.pinRpm !== null)
+        .map((c) => ({
+          id: c.id,
+          label: shortLabel(c),
+          ...(c.pinTimeS !== null ? { timeS: c.pinTimeS } : {}),
+          ...(c.pinRpm !== null ? { rpm: c.pinRpm } : {}),
+        })),
+    [data],
+  );
+}
+
+type Reply = {
+  intent?: string;
+  result?: SubmissionResult<string[]>;
+  notice?: string;
+  error?: { status: number; message: string };
+};
+
+export function CommentsPanel({ vehicleId, subject }: { vehicleId: number; subject: string }) {
+  const query = useComments(vehicleId, subject);
+  const queryClient = useQueryClient();
+  const refresh = () =>
+    void queryClient.invalidateQueries({ queryKey: commentsQueryKey(vehicleId, subject) });
+  return (
+    <section
+      id="comments"
+      aria-labelledby="comments-title"
+      className="rounded-lg border border-neutral-200 bg-white p-6 shadow-xs"
+      data-comments-panel
+    >
+      <h2 id="comments-title" className="text-base font-semibold">
+        Comments
+      </h2>
+      <div className="mt-4 space-y-4" aria-busy={query.isPending}>
+        {query.isPending ? (
+          <div
+            className="h-20 animate-pulse rounded-md bg-neutral-100"
+            aria-label="Loading the comments"
+          />
+        ) : query.isError ? (
+          <p role="alert" className="text-sm text-red-700">
+            {query.error.message}{" "}
+            <button type="button" className="underline" onClick={refresh}>
+              Try again
+            </button>
+          </p>
+        ) : (
+          <>
+            {query.data.comments.length === 0 ? (
+              <EmptyState>
+                No comments yet.
+                {query.data.canPost
+                  ? " Note what happened on the test drive, e.g. “A/C compressor engaged at 32 s”, and pin it to the time or engine speed."
+                  : ""}
+              </EmptyState>
+            ) : (
+              <ol className="space-y-3" aria-label="Comments, oldest first">
+                {query.data.comments.map((c) => (
+                  <CommentItem
+                    key={c.id}
+                    comment={c}
+                    vehicleId={vehicleId}
+                    subject={subject}
+                    onDone={refresh}
+                  />
+                ))}
+              </ol>
+            )}
+            {query.data.canPost ? (
+              <CommentForm
+                vehicleId={vehicleId}
+                subject={subject}
+                ranges={query.data.ranges}
+                onDone={refresh}
+              />
+            ) : (
+              <p className="text-sm text-neutral-600">
+                Viewers read comments; technicians and engineers write them.
+              </p>
+            )}
+          </>
+        )}
+      </div>
+    </section>
+  );
+}
+
+function CommentItem({
+  comment: c,
+  vehicleId,
+  subject,
+  onDone,
+}: {
+  comment: CommentView;
+  vehicleId: number;
+  subject: string;
+  onDone: () => void;
+}) {
+  const fetcher = useFetcher<Reply>();
+  const seen = useRef<Reply | undefined>(undefined);
+  useEffect(() => {
+    if (fetcher.state === "idle" && fetcher.data && fetcher.data !== seen.current) {
+      seen.current = fetcher.data;
+      if (!fetcher.data.error) onDone();
+    }
+  });
+  const pin = pinText(c);
+  return (
+    <li className="rounded-md border border-neutral-200 px-4 py-3" data-comment-id={c.id}>
+      <p className="text-xs text-neutral-500">
+        <span className="font-medium text-neutral-800">{c.author.name}</span>,{" "}
+        <When date={c.createdAt} />
+        {c.edited ? " (edited)" : ""}
+        {pin ? (
+          <span
+            className="ml-2 inline-block rounded-full bg-indigo-50 px-2 py-0.5 font-medium text-indigo-800"
+            data-comment-pin={c.pinRpm !== null ? "rpm" : "time"}
+          >
+            pinned at {pin}
+          </span>
+        ) : null}
+      </p>
+      <p className="mt-1 text-sm whitespace-pre-line text-neutral-900">{c.body}</p>
+      {c.canDelete ? (
+        <fetcher.Form method="post" action={`/vehicles/${vehicleId}/comments`} className="mt-2">
+          <CsrfInput />
+          <input type="hidden" name="intent" value="delete" />
+          <input type="hidden" name="subject" value={subject} />
+          <input type="hidden" name="commentId" value={c.id} />
+          <button type="submit" className="text-xs text-red-700 underline underline-offset-2">
+            Delete<span className="sr-only"> the comment of {c.author.name}</span>
+          </button>
+        </fetcher.Form>
+      ) : null}
+      {fetcher.data?.error ? (
+        <p role="alert" className="mt-1 text-xs text-red-700">
+          {fetcher.data.error.message}
+        </p>
+      ) : null}
+    </li>
+  );
+}
+
+function CommentForm({
+  vehicleId,
+  subject,
+  ranges,
+  onDone,
+}: {
+  vehicleId: number;
+  subject: string;
+  ranges: CommentsResponse["ranges"];
+  onDone: () => void;
+}) {
+  const fetcher = useFetcher<Reply>();
+  const reply = fetcher.data;
+  const [form, fields] = useSchemaForm("comment-new", postCommentSchema, reply?.result, {
+    pinKind: "none",
+  });
+  const [pinKind, setPinKind] = useState("none");
+  const seen = useRef<Reply | undefined>(undefined);
+  useEffect(() => {
+    if (fetcher.state !== "idle" || !reply || reply === seen.current) return;
+    seen.current = reply;
+    if (!reply.error && reply.result?.status !== "error") {
+      setPinKind("none");
+      onDone();
+    }
+  });
+  const pinHint =
+    pinKind === "time"
+      ? ranges
+        ? `Seconds from the start of the recording, 0 to ${ranges.durationS.toFixed(1)} s.`
+        : "Seconds from the start of the recording."
+      : pinKind === "rpm"
+        ? ranges
+          ? `Engine speed, ${ranges.rpmMin} to ${ranges.rpmMax} rpm (the recorded range).`
+          : "Engine speed in rpm."
+        : undefined;
+  const selectProps = getSelectProps(fields.pinKind);
+  return (
+    <fetcher.Form
+      method="post"
+      action={`/vehicles/${vehicleId}/comments`}
+      id={form.id}
+      onSubmit={form.onSubmit}
+      noValidate
+      className="space-y-3"
+    >
+      <CsrfInput />
+      <input type="hidden" name="intent" value="post" />
+      <input type="hidden" name="subject" value={subject} />
+      <FormError id={form.errorId} errors={form.errors} />
+      <TextAreaField
+        label="New comment"
+        meta={fields.body}
+        rows={3}
+        hint={`Up to ${COMMENT_MAX} characters. Mention a colleague with @ and their name or e-mail name (e.g. @erik) to notify them by e-mail.`}
+      />
+      <div className="grid gap-4 sm:grid-cols-[14rem_14rem]">
+        <div>
+          <label htmlFor={fields.pinKind.id} className="block text-sm font-medium text-neutral-800">
+            Pin to
+          </label>
+          <select
+            {...selectProps}
+            key={selectProps.key}
+            value={pinKind}
+            onChange={(e) => setPinKind(e.target.value)}
+            className={`mt-1 ${inputClass}`}
+          >
+            <option value="none">Nothing (a general remark)</option>
+            <option value="time">A time in the recording</option>
+            <option value="rpm">An engine speed</option>
+          </select>
+        </div>
+        {pinKind !== "none" ? (
+          <InputField
+            label={pinKind === "time" ? "Time" : "Engine speed"}
+            unit={pinKind === "time" ? "s" : "rpm"}
+            meta={fields.pinValue}
+            numeric
+            hint={pinHint}
+          />
+        ) : null}
+      </div>
+      <SubmitButton>{fetcher.state === "submitting" ? "Posting…" : "Post comment"}</SubmitButton>
+      {reply?.error ? (
+        <p role="alert" className="text-sm text-red-700">
+          {reply.error.message}
+        </p>
+      ) : null}
+      {fetcher.state === "idle" && reply?.notice ? (
+        <p role="status" className="text-sm text-green-800">
+          {reply.notice}
+        </p>
+      ) : null}
+    </fetcher.Form>
+  );
+}

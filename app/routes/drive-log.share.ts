@@ -1,0 +1,30 @@
+import { idParam } from "~/lib/params";
+import { invariantResponse } from "~/lib/permissions.server";
+import { sharePanelAction, sharePanelLoader, type SubjectResolver } from "~/lib/share-panel.server";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/drive-log.share";
+
+/**
+ * /vehicles/:vehicleId/logs/:logId/share — the share panel's resource route (engineer and up).
+ * GET: the drive log's share links as JSON { shares }. POST (form, CSRF token): intent create,
+ * extend, revoke or email (app/lib/share-panel.server.ts).
+ */
+function subjectOf(params: Route.LoaderArgs["params"]): SubjectResolver {
+  return async (current) => {
+    const data = vehicleData(current.team.id);
+    const vehicle = await data.vehicle(idParam(params.vehicleId));
+    const log = await data.log(idParam(params.logId));
+    invariantResponse(log.vehicleId === vehicle.id, "No such drive log for this vehicle.", {
+      status: 404,
+    });
+    return { kind: "log", vehicleId: vehicle.id, logId: log.id };
+  };
+}
+
+export function loader({ request, params }: Route.LoaderArgs) {
+  return sharePanelLoader(request, subjectOf(params));
+}
+
+export function action({ request, params, context }: Route.ActionArgs) {
+  return sharePanelAction(request, context, subjectOf(params));
+}

@@ -1,0 +1,38 @@
+import { chartData } from "~/lib/chart-data";
+import {
+  shareForJson,
+  shareHeaders,
+  shareJsonError,
+  sharedLogFromQuery,
+} from "~/lib/share-page.server";
+import { vehicleData } from "~/lib/vehicles.server";
+import type { Route } from "./+types/share.charts";
+
+/**
+ * GET /s/:token/charts.json[?log=ID]: the chart data of the shared drive log's latest analysis
+ * (same body as /vehicles/:vehicleId/logs/:logId/charts.json), authorised by the token alone.
+ * `log` may only name a drive log of the share (a comparison's logs); any other id is a 404,
+ * so a share link never reaches another drive log. Revoked or expired: 410 with no data.
+ */
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const active = await shareForJson(params.token);
+  if (active instanceof Response) return active;
+  const logId = sharedLogFromQuery(active.share, new URL(request.url).searchParams.get("log"));
+  if (logId === null)
+    return shareJsonError(404, "not_found", "That drive log is not part of this share link.");
+  const data = vehicleData(active.teamId);
+  const log = await data.log(logId);
+  if (log.vehicleId !== active.share.vehicleId)
+    return shareJsonError(404, "not_found", "That drive log is not part of this share link.");
+  const analysis = await data.latestAnalysis(log.id);
+  if (!analysis)
+    return shareJsonError(404, "no_result", `This drive log has no analysis yet (${log.status}).`);
+  return Response.json(
+    {
+      logId: log.id,
+      analysis: { id: analysis.id, version: analysis.version, createdAt: analysis.createdAt },
+      charts: chartData(analysis.result),
+    },
+    { headers: shareHeaders },
+  );
+}
