@@ -114,8 +114,8 @@ const statusClass: Record<TargetTileVerdict["status"], string> = {
 };
 
 /**
- * The verdict strip of a drive log: isolation, damper resonance, rattle check and targets, then
- * the warnings, the settings and the isolation curve as a table (the charts' text alternative).
+ * The verdict strip of a drive log: isolation, damper resonance, rattle check and targets, the
+ * cautions and the warnings. AnalysisDetails has the settings and the isolation table.
  */
 export function AnalysisSummaryView({
   s,
@@ -265,6 +265,15 @@ export function AnalysisSummaryView({
           </ul>
         </Card>
       ) : null}
+
+    </div>
+  );
+}
+
+/** The settings and the isolation curve as a table: below the charts, for tracing every figure. */
+export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
+  return (
+    <div className="space-y-6">
         <Tile title="Analysis settings">
           <dl className="grid grid-cols-[auto_1fr] gap-x-3 text-sm sm:grid-cols-[auto_1fr_auto_1fr_auto_1fr]">
             <dt className="text-neutral-600">Samples per rev</dt>

@@ -2,7 +2,7 @@ import { Link } from "react-router";
 import type { Comparison } from "~/lib/comparison";
 import type { ComparedLog } from "~/lib/comparison.server";
 import { conditionLabels } from "~/lib/drive-log-terms";
-import { CurveOverlay } from "./charts";
+import { CurveOverlay, overlayStyle } from "./charts";
 import { VerdictCaution } from "./caution-note";
 import { linkClass } from "./form-fields";
 import { Card, EmptyState, tableClass, tdClass, thClass } from "./page";
@@ -76,6 +76,7 @@ export function ComparisonView({
             >
               {i + 1}
             </span>
+            {l.analysed ? <LineKey index={analysed.indexOf(l)} /> : null}
             <span>
               <span className="font-medium">{capitalise(l.name)}</span>
               {l === ref ? <span className="ml-1 text-neutral-500">(reference)</span> : null}
@@ -172,6 +173,24 @@ export function ComparisonView({
       </Card>
       <VerdictCaution />
     </>
+  );
+}
+
+/** The drive log's line in the overlays: the same colour and dash pattern, with its name for screen readers. */
+function LineKey({ index }: { index: number }) {
+  const style = overlayStyle(index);
+  return (
+    <svg width="32" height="10" role="img" aria-label={`drawn ${style.name}`} className="shrink-0">
+      <line
+        x1="1"
+        x2="31"
+        y1="5"
+        y2="5"
+        stroke={style.colour}
+        strokeWidth="2.5"
+        strokeDasharray={style.dash.join(" ") || undefined}
+      />
+    </svg>
   );
 }
 

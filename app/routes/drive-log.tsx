@@ -1,7 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Link, useActionData, useLoaderData } from "react-router";
 import { analysisResultSchema } from "~/lib/signal";
-import { AnalysisSummaryView, summarise } from "~/components/analysis-summary";
+import { AnalysisDetails, AnalysisSummaryView, summarise } from "~/components/analysis-summary";
 import { ColumnMapping, mappingSchema } from "~/components/column-mapping";
 import { DriveLogCharts } from "~/components/charts";
 import { Failure, MAPPING_CODES } from "~/components/log-failure";
@@ -255,6 +255,7 @@ export default function DriveLogPage() {
           markers={markers}
         />
       ) : null}
+      {summary ? <AnalysisDetails s={summary} /> : null}
       {atLeast(role, "engineer") ? (
         <SharePanel endpoint={`/vehicles/${vehicle.id}/logs/${log.id}/share`} />
       ) : null}
@@ -303,7 +304,7 @@ function CompareWith({
         id="compare-with"
         name="with"
         required
-        className="rounded-md border border-neutral-300 px-2 py-1 text-sm"
+        className="max-w-72 rounded-md border border-neutral-300 px-2 py-1 text-sm"
         defaultValue=""
       >
         <option value="" disabled>

@@ -1,5 +1,5 @@
 import { isRouteErrorResponse, useLoaderData, useParams, useRouteError } from "react-router";
-import { AnalysisSummaryView } from "~/components/analysis-summary";
+import { AnalysisDetails, AnalysisSummaryView } from "~/components/analysis-summary";
 import { DriveLogCharts } from "~/components/charts/drive-log-charts";
 import { ComparisonView } from "~/components/comparison-view";
 import { LogoMark } from "~/components/logo-mark";
@@ -133,8 +133,9 @@ export default function SharedPage() {
           </div>
           {log.summary ? (
             <>
-              {page.kind === "log" ? <DriveLogCharts chartsUrl={`${base}/charts.json`} /> : null}
               <AnalysisSummaryView s={log.summary} />
+              {page.kind === "log" ? <DriveLogCharts chartsUrl={`${base}/charts.json`} /> : null}
+              <AnalysisDetails s={log.summary} />
             </>
           ) : (
             <p className="rounded-md border border-dashed border-neutral-300 px-4 py-6 text-sm text-neutral-600">

@@ -1,0 +1,71 @@
+import { ChartsError } from "./chart-frame";
+import { IsolationCurve } from "./isolation-curve";
+import { OrderCurves } from "./order-curves";
+import { OrderMaps } from "./order-map";
+import { OrderSpectrum } from "./order-spectrum";
+import { useChartsQuery } from "./queries";
+import { SpeedTrace } from "./speed-trace";
+import type { ChartMarker, TargetBand } from "./types";
+import { useChartCursor } from "./use-chart-cursor";
+
+/**
+ * The drive-log page's charts, in the order of UI.md: speed trace; order curves | isolation
+ * curve sharing one engine-speed cursor; the order maps; the order spectrum at the cursor.
+ */
+export function DriveLogCharts({
+  chartsUrl,
+  markers,
+  targets,
+  caption,
+  analysisVersion,
+}: {
+  chartsUrl: string;
+  /** The latest analysis version the page knows of: a new one refetches (see useChartsQuery). */
+  analysisVersion?: number;
+  markers?: ChartMarker[];
+  targets?: TargetBand[];
+  caption?: React.ReactNode;
+}) {
+  const query = useChartsQuery(chartsUrl, analysisVersion);
+  const cursor = useChartCursor();
+  const charts = query.data?.charts ?? null;
+  const suffix = query.data ? `log-${query.data.logId}-v${query.data.analysis.version}` : undefined;
+
+  if (query.isError)
+    return (
+      <section aria-label="Charts" data-charts="drive-log" data-status="error">
+        <ChartsError error={query.error} onRetry={() => void query.refetch()} />
+      </section>
+    );
+
+  return (
+    <section
+      aria-label="Charts"
+      data-charts="drive-log"
+      data-status={charts ? "ready" : "loading"}
+      className="space-y-6"
+    >
+      {caption ? <div className="text-sm text-neutral-600">{caption}</div> : null}
+      <SpeedTrace charts={charts} markers={markers} fileSuffix={suffix} />
+      <div className="grid gap-6 lg:grid-cols-2">
+        <OrderCurves
+          charts={charts}
+          syncKey={cursor.syncKey}
+          onCursorRpm={cursor.setRpm}
+          markers={markers}
+          fileSuffix={suffix}
+        />
+        <IsolationCurve
+          charts={charts}
+          syncKey={cursor.syncKey}
+          onCursorRpm={cursor.setRpm}
+          markers={markers}
+          targets={targets}
+          fileSuffix={suffix}
+        />
+      </div>
+      <OrderMaps charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
+      <OrderSpectrum charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
+    </section>
+  );
+}

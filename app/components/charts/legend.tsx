@@ -1,0 +1,135 @@
+import { COLOURS } from "./palette";
+
+/** One legend entry: drawn the same way in the page (SVG) and in a PNG export (canvas). */
+export type LegendEntry =
+  | { kind: "line"; label: string; colour: string; dash?: number[]; width?: number }
+  | { kind: "area"; label: string; colour: string; border?: string }
+  | {
+      kind: "point";
+      label: string;
+      colour: string;
+      shape?: "circle" | "ring" | "diamond" | "caret";
+    };
+
+const W = 22;
+const H = 12;
+
+export function Swatch({ entry }: { entry: LegendEntry }) {
+  return (
+    <svg width={W} height={H} viewBox={`0 0 ${W} ${H}`} aria-hidden="true" className="shrink-0">
+      {entry.kind === "line" ? (
+        <line
+          x1={1}
+          x2={W - 1}
+          y1={H / 2}
+          y2={H / 2}
+          stroke={entry.colour}
+          strokeWidth={entry.width ?? 2}
+          strokeDasharray={entry.dash?.length ? entry.dash.join(" ") : undefined}
+        />
+      ) : entry.kind === "area" ? (
+        <rect
+          x={1}
+          y={1}
+          width={W - 2}
+          height={H - 2}
+          fill={entry.colour}
+          stroke={entry.border ?? COLOURS.grid}
+        />
+      ) : (
+        <PointShape shape={entry.shape ?? "circle"} colour={entry.colour} />
+      )}
+    </svg>
+  );
+}
+
+function PointShape({ shape, colour }: { shape: string; colour: string }) {
+  const cx = W / 2;
+  const cy = H / 2;
+  if (shape === "diamond")
+    return (
+      <path d={`M${cx} 1 L${cx + 5} ${cy} L${cx} ${H - 1} L${cx - 5} ${cy} Z`} fill={colour} />
+    );
+  if (shape === "caret")
+    return (
+      <g fill="none" stroke={colour} strokeWidth={1.5}>
+        <circle cx={cx} cy={cy + 2} r={3} fill="white" />
+        <path d={`M${cx - 3} ${cy - 3} L${cx} ${cy - 6} L${cx + 3} ${cy - 3}`} />
+      </g>
+    );
+  if (shape === "ring")
+    return <circle cx={cx} cy={cy} r={3.5} fill="white" stroke={colour} strokeWidth={1.5} />;
+  return <circle cx={cx} cy={cy} r={3.5} fill={colour} />;
+}
+
+export function Legend({ entries }: { entries: LegendEntry[] }) {
+  return (
+    <ul className="flex flex-wrap gap-x-4 gap-y-1 text-xs text-neutral-700" aria-label="Legend">
+      {entries.map((e) => (
+        <li key={e.label} className="flex items-center gap-1.5">
+          <Swatch entry={e} />
+          <span>{e.label}</span>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+/** Draws a legend entry's swatch on a canvas at (x, y) = top-left, `s` = pixels per CSS px. */
+export function paintSwatch(
+  ctx: CanvasRenderingContext2D,
+  entry: LegendEntry,
+  x: number,
+  y: number,
+  s: number,
+) {
+  ctx.save();
+  if (entry.kind === "line") {
+    ctx.strokeStyle = entry.colour;
+    ctx.lineWidth = (entry.width ?? 2) * s;
+    ctx.setLineDash((entry.dash ?? []).map((d) => d * s));
+    ctx.beginPath();
+    ctx.moveTo(x + s, y + (H / 2) * s);
+    ctx.lineTo(x + (W - 1) * s, y + (H / 2) * s);
+    ctx.stroke();
+  } else if (entry.kind === "area") {
+    ctx.fillStyle = entry.colour;
+    ctx.fillRect(x + s, y + s, (W - 2) * s, (H - 2) * s);
+    ctx.strokeStyle = entry.border ?? COLOURS.grid;
+    ctx.lineWidth = s;
+    ctx.strokeRect(x + s, y + s, (W - 2) * s, (H - 2) * s);
+  } else {
+    const cx = x + (W / 2) * s;
+    const cy = y + (H / 2) * s;
+    ctx.fillStyle = entry.colour;
+    ctx.strokeStyle = entry.colour;
+    ctx.lineWidth = 1.5 * s;
+    ctx.beginPath();
+    if (entry.shape === "diamond") {
+      ctx.moveTo(cx, y + s);
+      ctx.lineTo(cx + 5 * s, cy);
+      ctx.lineTo(cx, y + (H - 1) * s);
+      ctx.lineTo(cx - 5 * s, cy);
+      ctx.closePath();
+      ctx.fill();
+    } else if (entry.shape === "ring" || entry.shape === "caret") {
+      ctx.arc(cx, entry.shape === "caret" ? cy + 2 * s : cy, 3 * s, 0, 2 * Math.PI);
+      ctx.fillStyle = "white";
+      ctx.fill();
+      ctx.stroke();
+      if (entry.shape === "caret") {
+        ctx.beginPath();
+        ctx.moveTo(cx - 3 * s, cy - 3 * s);
+        ctx.lineTo(cx, cy - 6 * s);
+        ctx.lineTo(cx + 3 * s, cy - 3 * s);
+        ctx.stroke();
+      }
+    } else {
+      ctx.arc(cx, cy, 3.5 * s, 0, 2 * Math.PI);
+      ctx.fill();
+    }
+  }
+  ctx.restore();
+}
+
+export const SWATCH_WIDTH = W;

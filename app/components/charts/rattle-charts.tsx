@@ -1,0 +1,360 @@
+import { memo, useEffect, useId, useMemo, useRef, useState } from "react";
+import type uPlot from "uplot";
+import type { ChartData } from "~/lib/chart-data";
+import { convertSpeed, SPEED_UNITS, type SpeedUnit } from "~/lib/chart-units";
+import { extent, formatValue, withGaps } from "./chart-math";
+import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
+import { buildCsv, columnsToRows } from "./csv";
+import { downloadCsv, downloadPng } from "./download";
+import type { LegendEntry } from "./legend";
+import { COLOURS } from "./palette";
+import { Plot, type PlotOptions } from "./plot";
+import {
+  cursor,
+  drawXBands,
+  drawXMarkers,
+  drawYLine,
+  fromZero,
+  lineSeries,
+  rangeWith,
+  xAxis,
+  yAxis,
+} from "./plot-kit";
+import { useChartsQuery } from "./queries";
+import type { ChartMarker } from "./types";
+import { useTimeMarkers } from "./use-stable";
+
+export const RATTLE_CHART_HEIGHT = 260;
+const NO_IDLE = "This drive log has no idle segment, so there is no rattle check to chart.";
+
+/** The rattle check's charts: |α| at the gearbox input against its limit, and the firing-order fluctuation. */
+export function RattleCharts({
+  chartsUrl,
+  markers,
+  analysisVersion,
+}: {
+  chartsUrl: string;
+  markers?: ChartMarker[];
+  /** As for DriveLogCharts: the latest analysis version the page knows of. */
+  analysisVersion?: number;
+}) {
+  const query = useChartsQuery(chartsUrl, analysisVersion);
+  const syncKey = `twistlog-time-${useId()}`;
+  const charts = query.data?.charts ?? null;
+  const suffix = query.data ? `log-${query.data.logId}-v${query.data.analysis.version}` : undefined;
+  if (query.isError)
+    return (
+      <section aria-label="Rattle check charts" data-charts="rattle" data-status="error">
+        <ChartsError error={query.error} onRetry={() => void query.refetch()} />
+      </section>
+    );
+  return (
+    <section
+      aria-label="Rattle check charts"
+      data-charts="rattle"
+      data-status={charts ? "ready" : "loading"}
+      className="space-y-6"
+    >
+      <AccelChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+      <FluctuationChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+    </section>
+  );
+}
+
+const ACCEL_TITLE = "Angular acceleration at the gearbox input";
+
+const AccelChart = memo(function AccelChart({
+  charts,
+  markers,
+  syncKey,
+  fileSuffix,
+}: {
+  charts: ChartData | null;
+  markers?: ChartMarker[];
+  syncKey: string;
+  fileSuffix?: string;
+}) {
+  const idle = charts?.idle ?? null;
+  const trace = idle?.accelTrace ?? null;
+  const [readout, setReadout] = useState("");
+  const plot = useRef<uPlot | null>(null);
+  const timeMarkers = useTimeMarkers(markers);
+  const data = useMemo<uPlot.AlignedData>(
+    () => (trace ? [trace.timeS, trace.radS2] : [[]]),
+    [trace],
+  );
+
+  const options = useMemo<PlotOptions | null>(() => {
+    if (!idle || !trace) return null;
+    const spans = idle.spans.map((s) => ({
+      from: s.startS,
+      to: s.endS,
+      fill: COLOURS.failFill,
+      label: "above the limit",
+    }));
+    return {
+      scales: { x: { time: false }, y: { range: rangeWith(0, idle.limitRadS2) } },
+      axes: [xAxis("Time, s"), yAxis("|α|, rad/s²", { size: 56 })],
+      series: [
+        { label: "Time, s" },
+        lineSeries("|α| gearbox input", COLOURS.gearbox, { width: 1.5 }),
+      ],
+      legend: { show: false },
+      cursor: cursor(syncKey),
+      hooks: {
+        drawClear: [(u) => drawXBands(u, spans, false)],
+        draw: [
+          (u) => drawXBands(u, spans, true),
+          (u) =>
+            drawYLine(u, idle.limitRadS2, COLOURS.fail, {
+              dash: [6, 3],
+              width: 1.5,
+              label: `limit ${formatValue(idle.limitRadS2)} rad/s²`,
+            }),
+          (u) => drawXMarkers(u, timeMarkers),
+        ],
+        setCursor: [
+          (u) => {
+            const i = u.cursor.idx;
+            if (i == null) return;
+            const v = trace.radS2[i];
+            setReadout(
+              v == null
+                ? `${formatValue(trace.timeS[i])} s · between idle segments`
+                : `${formatValue(trace.timeS[i])} s · |α| ${formatValue(v)} rad/s² · limit ${formatValue(idle.limitRadS2)} rad/s²${v > idle.limitRadS2 ? " · above the limit" : ""}`,
+            );
+          },
+        ],
+      },
+    };
+  }, [idle, trace, syncKey, timeMarkers]);
+
+  useEffect(() => setReadout(""), [options]);
+
+  const legend: LegendEntry[] = [
+    { kind: "line", label: "|α| at the gearbox input", colour: COLOURS.gearbox, width: 1.5 },
+    { kind: "line", label: "Rattle limit", colour: COLOURS.fail, dash: [6, 3], width: 1.5 },
+    ...(idle?.spans.length
+      ? [
+          {
+            kind: "area" as const,
+            label: "Above the limit",
+            colour: COLOURS.failFill,
+            border: COLOURS.fail,
+          },
+        ]
+      : []),
+    ...(timeMarkers.length
+      ? [
+          {
+            kind: "line" as const,
+            label: "Comment",
+            colour: COLOURS.marker,
+            dash: [4, 3],
+            width: 1.25,
+          },
+        ]
+      : []),
+  ];
+  const status = !charts ? "loading" : trace && trace.timeS.length ? "ready" : "empty";
+  const summary = idle
+    ? `In ${formatValue(idle.idleDurationS)} s of idle at ${formatValue(idle.meanRpm)} rpm the gearbox-input angular acceleration at the firing order is ${formatValue(idle.gearboxAngAccelRadS2)} rad/s², its peak ${formatValue(idle.gearboxAngAccelPeakRadS2)} rad/s², against a limit of ${formatValue(idle.limitRadS2)} rad/s² (${idle.verdict === "ok" ? "within the limit" : "over the limit"}). ${idle.spans.length} span${idle.spans.length === 1 ? "" : "s"} above the limit${idle.spans.length ? `: ${idle.spans.map((s) => `${formatValue(s.startS)}–${formatValue(s.endS)} s, peak ${formatValue(s.peakRadS2)} rad/s²`).join("; ")}` : ""}.`
+    : undefined;
+
+  return (
+    <ChartFrame
+      chart="rattle-accel"
+      title={ACCEL_TITLE}
+      height={RATTLE_CHART_HEIGHT}
+      status={status}
+      note="Time-domain |α| in the idle segments (bucket maxima); gaps separate idle segments."
+      emptyMessage={
+        charts && !idle
+          ? NO_IDLE
+          : "This analysis was made before acceleration traces were stored: re-analyse the drive log to draw it."
+      }
+      legend={legend}
+      readout={readout || "Point at the chart to read the angular acceleration."}
+      summary={summary}
+      onCsv={() =>
+        trace &&
+        downloadCsv(
+          ACCEL_TITLE,
+          buildCsv(
+            ["time (s)", "gearbox input angular acceleration |α| (rad/s²)"],
+            columnsToRows([trace.timeS, trace.radS2]),
+          ),
+          fileSuffix,
+        )
+      }
+      onPng={() =>
+        plot.current && void downloadPng(ACCEL_TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+      }
+    >
+      {(summaryId) =>
+        options ? (
+          <Plot
+            height={RATTLE_CHART_HEIGHT}
+            options={options}
+            data={data}
+            keyboard
+            label={`${ACCEL_TITLE}: |α| in rad/s² against time in s, with the rattle limit`}
+            describedBy={summaryId}
+            onPlot={(u) => (plot.current = u)}
+          />
+        ) : null
+      }
+    </ChartFrame>
+  );
+});
+
+const FLUCTUATION_TITLE = "Firing-order fluctuation";
+
+const FluctuationChart = memo(function FluctuationChart({
+  charts,
+  markers,
+  syncKey,
+  fileSuffix,
+}: {
+  charts: ChartData | null;
+  markers?: ChartMarker[];
+  syncKey: string;
+  fileSuffix?: string;
+}) {
+  const idle = charts?.idle ?? null;
+  const trace = idle?.firingOrderTrace ?? null;
+  const [unit, setUnit] = useState<SpeedUnit>("rpm");
+  const [readout, setReadout] = useState("");
+  const plot = useRef<uPlot | null>(null);
+  const timeMarkers = useTimeMarkers(markers);
+
+  const data = useMemo<uPlot.AlignedData>(() => {
+    if (!trace) return [[]];
+    const conv = (a: number[]) => a.map((v) => convertSpeed(v, unit));
+    const gapped = withGaps(trace.timeS, [conv(trace.crankRpm), conv(trace.gearboxRpm)]);
+    return [gapped.x, gapped.ys[0]!, gapped.ys[1]!];
+  }, [trace, unit]);
+
+  const options = useMemo<PlotOptions | null>(() => {
+    if (!trace || !charts) return null;
+    return {
+      scales: { x: { time: false }, y: { range: fromZero } },
+      axes: [
+        xAxis("Time, s"),
+        yAxis(`Order ${charts.firingOrder} amplitude, ${unit}`, { size: 56 }),
+      ],
+      series: [
+        { label: "Time, s" },
+        lineSeries("Crank", COLOURS.crank, { points: { show: true, size: 4 } }),
+        lineSeries("Gearbox input", COLOURS.gearbox, {
+          dash: [6, 3],
+          points: { show: true, size: 4 },
+        }),
+      ],
+      legend: { show: false },
+      cursor: cursor(syncKey),
+      hooks: {
+        draw: [(u) => drawXMarkers(u, timeMarkers)],
+        setCursor: [
+          (u) => {
+            const i = u.cursor.idx;
+            if (i == null || u.data[1]![i] == null) return;
+            setReadout(
+              `${formatValue(u.data[0][i])} s · crank ${formatValue(u.data[1]![i])} ${unit} · gearbox input ${formatValue(u.data[2]![i])} ${unit} (0-peak, order ${charts.firingOrder})`,
+            );
+          },
+        ],
+      },
+    };
+  }, [trace, charts, unit, syncKey, timeMarkers]);
+
+  useEffect(() => setReadout(""), [options]);
+
+  const legend: LegendEntry[] = [
+    { kind: "line", label: "Crank", colour: COLOURS.crank },
+    { kind: "line", label: "Gearbox input", colour: COLOURS.gearbox, dash: [6, 3] },
+    ...(timeMarkers.length
+      ? [
+          {
+            kind: "line" as const,
+            label: "Comment",
+            colour: COLOURS.marker,
+            dash: [4, 3],
+            width: 1.25,
+          },
+        ]
+      : []),
+  ];
+  const status = !charts ? "loading" : trace && trace.timeS.length ? "ready" : "empty";
+  const c = trace ? extent(trace.crankRpm) : null;
+  const g = trace ? extent(trace.gearboxRpm) : null;
+  const summary =
+    trace && charts && trace.timeS.length
+      ? `Firing-order (${charts.firingOrder}) amplitude, 0-peak, in the idle segments: crank ${formatValue(c?.[0])} to ${formatValue(c?.[1])} rpm, gearbox input ${formatValue(g?.[0])} to ${formatValue(g?.[1])} rpm.`
+      : undefined;
+
+  function csv() {
+    if (!trace) return;
+    const header = [
+      "time (s)",
+      "crank firing-order amplitude (rpm)",
+      "gearbox input firing-order amplitude (rpm)",
+    ];
+    const cols: number[][] = [trace.timeS, trace.crankRpm, trace.gearboxRpm];
+    if (unit !== "rpm") {
+      header.push(
+        `crank firing-order amplitude (${unit})`,
+        `gearbox input firing-order amplitude (${unit})`,
+      );
+      cols.push(
+        trace.crankRpm.map((v) => convertSpeed(v, unit)),
+        trace.gearboxRpm.map((v) => convertSpeed(v, unit)),
+      );
+    }
+    downloadCsv(FLUCTUATION_TITLE, buildCsv(header, columnsToRows(cols)), fileSuffix);
+  }
+
+  return (
+    <ChartFrame
+      chart="rattle-fluctuation"
+      title={FLUCTUATION_TITLE}
+      height={RATTLE_CHART_HEIGHT}
+      status={status}
+      attrs={{ "data-unit": unit }}
+      controls={
+        <Segmented
+          legend="Unit"
+          value={unit}
+          disabled={!trace}
+          options={SPEED_UNITS.map((u) => ({ value: u, label: u }))}
+          onChange={setUnit}
+        />
+      }
+      emptyMessage={
+        charts && !idle ? NO_IDLE : "No order-tracked blocks fall in the idle segments."
+      }
+      legend={legend}
+      readout={readout || "Point at the chart to read the fluctuation."}
+      summary={summary}
+      onCsv={csv}
+      onPng={() =>
+        plot.current &&
+        void downloadPng(FLUCTUATION_TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+      }
+    >
+      {(summaryId) =>
+        options ? (
+          <Plot
+            height={RATTLE_CHART_HEIGHT}
+            options={options}
+            data={data}
+            keyboard
+            label={`${FLUCTUATION_TITLE}: firing-order amplitude in ${unit} at crank and gearbox input against time in s`}
+            describedBy={summaryId}
+            onPlot={(u) => (plot.current = u)}
+          />
+        ) : null
+      }
+    </ChartFrame>
+  );
+});

@@ -1,0 +1,162 @@
+import { memo, useEffect, useMemo, useRef, useState } from "react";
+import type uPlot from "uplot";
+import type { ChartData } from "~/lib/chart-data";
+import { extent, formatValue } from "./chart-math";
+import { ChartFrame } from "./chart-frame";
+import { buildCsv, columnsToRows } from "./csv";
+import { downloadCsv, downloadPng } from "./download";
+import type { LegendEntry } from "./legend";
+import { COLOURS } from "./palette";
+import { Plot, type PlotOptions } from "./plot";
+import {
+  cursor,
+  drawXBands,
+  drawXMarkers,
+  fromZeroWithHeadroom,
+  lineSeries,
+  xAxis,
+  yAxis,
+} from "./plot-kit";
+import type { ChartMarker } from "./types";
+import { useTimeMarkers } from "./use-stable";
+
+const TITLE = "Speed trace";
+export const SPEED_TRACE_HEIGHT = 260;
+
+const SEGMENT_NAMES: Record<ChartData["segments"][number]["kind"], string> = {
+  start: "start",
+  idle: "idle",
+  steady: "steady",
+  "run-up": "run-up",
+  "coast-down": "coast-down",
+};
+
+/** Crank and gearbox-input speed against time, operating segments as labelled bands. */
+export const SpeedTrace = memo(function SpeedTrace({
+  charts,
+  markers,
+  fileSuffix,
+}: {
+  charts: ChartData | null;
+  markers?: ChartMarker[];
+  fileSuffix?: string;
+}) {
+  const trace = charts?.speedTrace ?? null;
+  const plot = useRef<uPlot | null>(null);
+  const [readout, setReadout] = useState("");
+  const timeMarkers = useTimeMarkers(markers);
+
+  const data = useMemo<uPlot.AlignedData>(
+    () => (trace ? [trace.timeS, trace.crankRpm, trace.gearboxRpm] : [[]]),
+    [trace],
+  );
+
+  const options = useMemo<PlotOptions | null>(() => {
+    if (!charts || !trace) return null;
+    const bands = charts.segments.map((s, i) => ({
+      from: s.startS,
+      to: s.endS,
+      fill: i % 2 ? COLOURS.bandB : COLOURS.bandA,
+      label: `${SEGMENT_NAMES[s.kind]} · ${formatValue(s.meanRpm, 4)} rpm`,
+    }));
+    return {
+      scales: { x: { time: false }, y: { range: fromZeroWithHeadroom } },
+      axes: [xAxis("Time, s"), yAxis("Speed, rpm")],
+      series: [
+        { label: "Time, s" },
+        lineSeries("Crank", COLOURS.crank),
+        lineSeries("Gearbox input", COLOURS.gearbox, { dash: [6, 3] }),
+      ],
+      legend: { show: false },
+      cursor: cursor(),
+      hooks: {
+        drawClear: [(u) => drawXBands(u, bands, false)],
+        draw: [(u) => drawXBands(u, bands, true), (u) => drawXMarkers(u, timeMarkers)],
+        setCursor: [
+          (u) => {
+            const i = u.cursor.idx;
+            if (i == null) return;
+            const seg = charts.segments.find(
+              (s) => trace.timeS[i]! >= s.startS && trace.timeS[i]! < s.endS,
+            );
+            setReadout(
+              `${formatValue(trace.timeS[i])} s · crank ${formatValue(trace.crankRpm[i])} rpm · gearbox input ${formatValue(trace.gearboxRpm[i])} rpm${seg ? ` · ${SEGMENT_NAMES[seg.kind]}` : ""}`,
+            );
+          },
+        ],
+      },
+    };
+  }, [charts, trace, timeMarkers]);
+
+  // A new chart (order, unit, data) or row starts without a stale reading.
+  useEffect(() => setReadout(""), [options]);
+
+  const legend: LegendEntry[] = [
+    { kind: "line", label: "Crank", colour: COLOURS.crank },
+    { kind: "line", label: "Gearbox input", colour: COLOURS.gearbox, dash: [6, 3] },
+    { kind: "area", label: "Operating segment (labelled)", colour: COLOURS.bandA },
+    ...(timeMarkers.length
+      ? [
+          {
+            kind: "line" as const,
+            label: "Comment",
+            colour: COLOURS.marker,
+            dash: [4, 3],
+            width: 1.25,
+          },
+        ]
+      : []),
+  ];
+
+  const status = !charts ? "loading" : trace && trace.timeS.length ? "ready" : "empty";
+  const range = trace ? extent(trace.crankRpm) : null;
+  const summary =
+    charts && trace
+      ? `Speed over ${formatValue(charts.durationS)} s: crank from ${formatValue(range?.[0])} to ${formatValue(range?.[1])} rpm. Segments: ${charts.segments
+          .map(
+            (s) =>
+              `${SEGMENT_NAMES[s.kind]} ${formatValue(s.startS)}–${formatValue(s.endS)} s at ${formatValue(s.meanRpm)} rpm`,
+          )
+          .join("; ")}.`
+      : undefined;
+
+  return (
+    <ChartFrame
+      chart="speed-trace"
+      title={TITLE}
+      height={SPEED_TRACE_HEIGHT}
+      status={status}
+      emptyMessage="This analysis was made before speed traces were stored: re-analyse the drive log to draw the speed trace."
+      legend={legend}
+      readout={readout || "Point at the chart to read the speeds."}
+      summary={summary}
+      onCsv={() =>
+        trace &&
+        downloadCsv(
+          TITLE,
+          buildCsv(
+            ["time (s)", "crank speed (rpm)", "gearbox input speed (rpm)"],
+            columnsToRows([trace.timeS, trace.crankRpm, trace.gearboxRpm]),
+          ),
+          fileSuffix,
+        )
+      }
+      onPng={() =>
+        plot.current && void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+      }
+    >
+      {(summaryId) =>
+        options ? (
+          <Plot
+            height={SPEED_TRACE_HEIGHT}
+            options={options}
+            data={data}
+            label={`${TITLE}: crank and gearbox-input speed in rpm against time in s`}
+            describedBy={summaryId}
+            onPlot={(u) => (plot.current = u)}
+          />
+        ) : null
+      }
+    </ChartFrame>
+  );
+});
