@@ -248,7 +248,8 @@ function CommentForm({
           ? `Engine speed, ${ranges.rpmMin} to ${ranges.rpmMax} rpm (the recorded range).`
           : "Engine speed in rpm."
         : undefined;
-  const selectProps = getSelectProps(fields.pinKind);
+  // Controlled here (the pin field follows the choice), so conform's defaultValue is left out.
+  const { defaultValue: _unused, key: selectKey, ...selectProps } = getSelectProps(fields.pinKind);
   return (
     <fetcher.Form
       method="post"
@@ -275,7 +276,7 @@ function CommentForm({
           </label>
           <select
             {...selectProps}
-            key={selectProps.key}
+            key={selectKey}
             value={pinKind}
             onChange={(e) => setPinKind(e.target.value)}
             className={`mt-1 ${inputClass}`}

@@ -252,6 +252,7 @@ export default function DriveLogPage() {
       {summary ? (
         <DriveLogCharts
           chartsUrl={`/vehicles/${vehicle.id}/logs/${log.id}/charts.json`}
+          analysisVersion={latest?.version}
           markers={markers}
         />
       ) : null}

@@ -113,7 +113,7 @@ export default function RattlePage() {
             </p>
           </section>
           <VerdictCaution />
-          <RattleCharts chartsUrl={`${logHref}/charts.json`} />
+          <RattleCharts chartsUrl={`${logHref}/charts.json`} analysisVersion={analysis.version} />
           <Card title="Spans above the limit" id="spans">
             {idle.spans.length === 0 ? (
               <EmptyState>The angular acceleration never rises above the limit.</EmptyState>

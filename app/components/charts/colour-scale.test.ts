@@ -75,7 +75,16 @@ describe("level scale", () => {
       [5, 1],
     ];
     const gearbox = [[0, 7.5]];
-    expect(mapMaximum(crank, gearbox)).toBe(7.5);
+    expect(mapMaximum([crank, gearbox])).toBe(7.5);
     expect(mapMaximum([])).toBe(0);
+  });
+
+  it("leaves the columns below the first one counted out of the maximum", () => {
+    const map = [
+      [90, 3],
+      [50, 4],
+    ];
+    expect(mapMaximum([map], 1)).toBe(4);
+    expect(mapMaximum([map])).toBe(90);
   });
 });

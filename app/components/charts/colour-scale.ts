@@ -113,9 +113,14 @@ function clamp01(x: number): number {
   return Number.isFinite(x) ? Math.min(1, Math.max(0, x)) : 0;
 }
 
-/** Largest cell of one or more maps (rows × orders, rpm). */
-export function mapMaximum(...maps: number[][][]): number {
+/**
+ * Largest cell of one or more maps (rows × orders, rpm), from column `fromColumn` on: the
+ * columns below order 0.5 hold the speed change of a run-up leaking into the block spectra,
+ * which would otherwise set the top of the scale and wash out the engine orders.
+ */
+export function mapMaximum(maps: number[][][], fromColumn = 0): number {
   let max = 0;
-  for (const map of maps) for (const row of map) for (const v of row) if (v > max) max = v;
+  for (const map of maps)
+    for (const row of map) for (let k = fromColumn; k < row.length; k++) if (row[k]! > max) max = row[k]!;
   return max;
 }

@@ -73,8 +73,14 @@ export const OrderMaps = memo(function OrderMaps({
       : [rpmGrid(charts.orderMap, "crankRpm"), rpmGrid(charts.orderMap, "gearboxRpm")];
   }, [charts, byTime]);
   const scale = useMemo(
-    () => levelScale(mode, grids ? mapMaximum(grids[0]!.cells, grids[1]!.cells) : 1),
-    [mode, grids],
+    () =>
+      levelScale(
+        mode,
+        grids && charts
+          ? mapMaximum([grids[0]!.cells, grids[1]!.cells], Math.round(0.5 / charts.orderMap.orderStep))
+          : 1,
+      ),
+    [mode, grids, charts],
   );
   return (
     <div className="space-y-3">
@@ -95,7 +101,9 @@ export const OrderMaps = memo(function OrderMaps({
             ? "This drive log stays near one engine speed, so the maps show time × order. "
             : ""}
           Both maps share one colour scale
-          {mode === "dB" ? `: 20·log10(A / 1 rpm), ${scale.max - scale.min} dB range` : ""}.
+          {mode === "dB" ? `: 20·log10(A / 1 rpm), ${scale.max - scale.min} dB range` : ""}, topped
+          by the largest amplitude from order 0.5 up (lower orders, mostly the speed change of a
+          run-up, may saturate).
         </p>
       </div>
       <div className="grid gap-6 lg:grid-cols-2">
