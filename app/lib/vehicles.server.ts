@@ -129,6 +129,43 @@ export function vehicleData(teamId: number) {
     },
 
     /**
+     * The vehicle page's drive-log table in one query: each drive log with the summary columns
+     * of its latest analysis (null until one has finished), newest upload first.
+     */
+    logsWithSummary(vehicleId: number) {
+      return db
+        .select({
+          id: driveLogs.id,
+          fileName: driveLogs.fileName,
+          condition: driveLogs.condition,
+          gear: driveLogs.gear,
+          damperVariant: driveLogs.damperVariant,
+          testDate: driveLogs.testDate,
+          uploadedAt: driveLogs.uploadedAt,
+          status: driveLogs.status,
+          progress: driveLogs.progress,
+          stage: driveLogs.stage,
+          error: driveLogs.error,
+          latestAnalysisId: driveLogs.latestAnalysisId,
+          analysisVersion: analyses.version,
+          firingOrder: analyses.firingOrder,
+          isolationMinDb: analyses.isolationMinDb,
+          isolationMaxDb: analyses.isolationMaxDb,
+          rpmMin: analyses.rpmMin,
+          rpmMax: analyses.rpmMax,
+          rattleVerdict: analyses.rattleVerdict,
+          idleAngAccelRadS2: analyses.idleAngAccelRadS2,
+        })
+        .from(driveLogs)
+        .leftJoin(
+          analyses,
+          and(eq(analyses.id, driveLogs.latestAnalysisId), eq(analyses.teamId, teamId)),
+        )
+        .where(and(eq(driveLogs.vehicleId, vehicleId), eq(driveLogs.teamId, teamId)))
+        .orderBy(desc(driveLogs.uploadedAt), desc(driveLogs.id));
+    },
+
+    /**
      * Records an uploaded file as a drive log and queues its analysis, in one transaction.
      * A file already stored for this vehicle is accepted again (scripts must not break) and
      * `duplicateOf` names the earliest drive log with the same content.

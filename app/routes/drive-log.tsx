@@ -1,6 +1,5 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Link, useActionData, useLoaderData } from "react-router";
-import { analysisResultSchema } from "~/lib/signal";
 import { AnalysisDetails, AnalysisSummaryView, summarise } from "~/components/analysis-summary";
 import { ColumnMapping, mappingSchema } from "~/components/column-mapping";
 import { DriveLogCharts } from "~/components/charts";
@@ -20,6 +19,8 @@ import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { atLeast } from "~/lib/roles";
 import { teamData } from "~/lib/team-data.server";
+import { outOfScope } from "~/lib/targets";
+import { targetData, toTarget } from "~/lib/targets.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import { readPreview } from "./drive-log.preview.server";
 import type { Route } from "./+types/drive-log";
@@ -45,8 +46,20 @@ async function load(
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team, vehicles, vehicle, log } = await load(request, params, "viewer");
-  const stored = log.latestAnalysisId ? await vehicles.latestResult(log.id) : null;
-  const parsed = stored ? analysisResultSchema.safeParse(stored) : null;
+  const analysis = await vehicles.latestAnalysis(log.id);
+  const result = analysis?.result ?? null;
+  const targets = targetData(team.id);
+  const verdicts = result ? await targets.verdictsForAnalysis(vehicle.id, log, result) : null;
+  // Isolation targets that apply to this drive log, drawn as bands on its isolation curve.
+  const bands = (await targets.list(vehicle.id)).flatMap((t) =>
+    t.kind === "isolation" &&
+    t.rpmFrom !== null &&
+    t.rpmTo !== null &&
+    t.minDb !== null &&
+    !outOfScope(toTarget(t), log)
+      ? [{ id: t.id, name: t.name, rpmFrom: t.rpmFrom, rpmTo: t.rpmTo, minDb: t.minDb }]
+      : [],
+  );
   const members = await teamData(team.id).members();
   const versions = await vehicles.versions(log.id);
   // Other analysed drive logs of this vehicle to compare with, the same condition first.
@@ -83,12 +96,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       stage: log.stage,
       error,
     },
-    summary: parsed?.success ? summarise(parsed.data, vehicle.idleRpm) : null,
-    current: parsed?.success
+    summary: result ? summarise(result, vehicle.idleRpm) : null,
+    verdicts,
+    bands,
+    current: result
       ? {
-          firingOrder: parsed.data.firingOrder,
-          revsPerBlock: parsed.data.settings.revsPerBlock,
-          binRpm: parsed.data.settings.binRpm,
+          firingOrder: result.firingOrder,
+          revsPerBlock: result.settings.revsPerBlock,
+          binRpm: result.settings.binRpm,
         }
       : null,
     versions,
@@ -141,7 +156,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function DriveLogPage() {
-  const { role, vehicle, log, summary, current, versions, others, preview } =
+  const { role, vehicle, log, summary, verdicts, bands, current, versions, others, preview } =
     useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const progress = useLiveStatus(log);
@@ -244,7 +259,7 @@ export default function DriveLogPage() {
           ) : null}
           <AnalysisSummaryView
             s={summary}
-            targets={null}
+            targets={verdicts}
             rattleHref={summary.rattle ? `/vehicles/${vehicle.id}/logs/${log.id}/rattle` : undefined}
           />
         </section>
@@ -254,6 +269,7 @@ export default function DriveLogPage() {
           chartsUrl={`/vehicles/${vehicle.id}/logs/${log.id}/charts.json`}
           analysisVersion={latest?.version}
           markers={markers}
+          targets={bands}
         />
       ) : null}
       {summary ? <AnalysisDetails s={summary} /> : null}

@@ -1,4 +1,6 @@
-import { useMemo } from "react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { useQueryClient } from "@tanstack/react-query";
+import { useEffect, useMemo, useRef } from "react";
 import {
   data,
   Form,
@@ -7,23 +9,30 @@ import {
   useActionData,
   useLoaderData,
   useRevalidator,
+  type ShouldRevalidateFunctionArgs,
 } from "react-router";
-import { RoadTestCaution } from "~/components/caution-note";
+import { RoadTestCaution, VerdictCaution } from "~/components/caution-note";
+import { CurveOverlay } from "~/components/charts";
 import { CsrfInput } from "~/components/csrf-input";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { SubmitButton } from "~/components/form";
 import { buttonLinkClass, linkClass } from "~/components/form-fields";
-import { LogStatus, type LogProgress } from "~/components/log-status";
-import { Card, EmptyState, Notice, tableClass, tdClass, thClass, When } from "~/components/page";
+import { DriveLogTable, TABLE_PARAMS, type DriveLogTableRow } from "~/components/drive-log-table";
+import type { LogProgress } from "~/components/log-status";
+import { Card, EmptyState, Notice } from "~/components/page";
+import { TargetsCard, type TargetFormReply, type TargetSummary } from "~/components/targets-card";
 import { UploadPanel } from "~/components/upload-panel";
 import { useLogProgress } from "~/components/use-log-progress";
 import { VehicleCard } from "~/components/vehicle-card";
+import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
-import { conditionLabels } from "~/lib/drive-log-terms";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { clientIp } from "~/lib/request.server";
 import { atLeast } from "~/lib/roles";
 import { firingOrder } from "~/lib/signal/firing-order";
+import { limitText, marginText, scopeText, targetSchema, type TargetVerdict } from "~/lib/targets";
+import { targetData, toTarget } from "~/lib/targets.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/vehicle";
 import { uploadFromForm } from "./vehicle.upload.server";
@@ -35,9 +44,77 @@ export const meta = ({ data }: Route.MetaArgs) => [
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "viewer");
   const vehicles = vehicleData(team.id);
+  const targets = targetData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
-  const logs = await vehicles.logs(vehicle.id);
   const search = new URL(request.url).searchParams;
+  // "Compare selected" without JavaScript posts ?compare=1&logs=3&logs=5: on to the comparison.
+  if (search.has("compare")) {
+    const ids = search.getAll("logs").filter((s) => /^\d{1,15}$/.test(s));
+    throw redirect(`/vehicles/${vehicle.id}/compare?logs=${ids.join(",")}`);
+  }
+  const [logs, targetRows] = await Promise.all([
+    vehicles.logsWithSummary(vehicle.id),
+    targets.list(vehicle.id),
+  ]);
+  const idle = logs.filter((l) => l.latestAnalysisId !== null && l.idleAngAccelRadS2 !== null);
+  const [verdicts, idleFigures] = await Promise.all([
+    targets.verdictsForLogs(vehicle.id, logs, targetRows),
+    targets.idleFigures(idle.map((l) => l.latestAnalysisId!)),
+  ]);
+  const rows: DriveLogTableRow[] = logs.map((l) => {
+    const done = l.latestAnalysisId !== null && l.firingOrder !== null;
+    const judged = verdicts.get(l.id);
+    const amp = l.idleAngAccelRadS2;
+    return {
+      id: l.id,
+      fileName: l.fileName,
+      condition: l.condition,
+      gear: l.gear,
+      damperVariant: l.damperVariant,
+      date: l.testDate ?? l.uploadedAt.toISOString().slice(0, 10),
+      dateIsUpload: l.testDate === null,
+      uploadedAt: l.uploadedAt.toISOString(),
+      status: l.status,
+      progress: l.status === "done" ? 1 : l.progress,
+      stage: l.stage,
+      problem: l.status === "failed" && l.error ? l.error.message : null,
+      isolation: done
+        ? { minDb: l.isolationMinDb, maxDb: l.isolationMaxDb, rpmMin: l.rpmMin, rpmMax: l.rpmMax }
+        : null,
+      // The same figure the rattle verdict compares with the limit: the larger of the two.
+      rattle:
+        done && l.rattleVerdict && amp !== null
+          ? {
+              verdict: l.rattleVerdict,
+              valueRadS2: Math.max(amp, idleFigures.get(l.latestAnalysisId!)?.peakRadS2 ?? amp),
+            }
+          : null,
+      targets: judged ? verdictCounts(judged) : null,
+    };
+  });
+  const summaries: TargetSummary[] = targetRows.map((row) => {
+    const mine = [...verdicts.values()].flatMap((vs) => vs.filter((v) => v.targetId === row.id));
+    const count = (status: TargetVerdict["status"]) =>
+      mine.filter((v) => v.status === status).length;
+    const counts = {
+      passed: count("pass"),
+      failed: count("fail"),
+      notCovered: count("not-covered"),
+    };
+    // The newest upload with a pass or fail (else the newest it applies to); rows are newest first.
+    const judged = logs
+      .map((l) => ({ log: l, verdict: verdicts.get(l.id)?.find((v) => v.targetId === row.id) }))
+      .filter((x) => x.verdict && x.verdict.status !== "not-applicable");
+    const newest =
+      judged.find((x) => x.verdict!.status === "pass" || x.verdict!.status === "fail") ?? judged[0];
+    return {
+      ...toTarget(row),
+      counts: { ...counts, applicable: counts.passed + counts.failed + counts.notCovered },
+      latest: newest
+        ? { logId: newest.log.id, fileName: newest.log.fileName, verdict: newest.verdict! }
+        : null,
+    };
+  });
   return {
     role: team.role,
     vehicle: {
@@ -48,19 +125,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         firingOrder(vehicle.cylinders, vehicle.stroke === 2 ? 2 : 4) ??
         vehicle.cylinders / 2,
     },
-    logs: logs.map((l) => ({
-      id: l.id,
-      fileName: l.fileName,
-      condition: l.condition,
-      gear: l.gear,
-      damperVariant: l.damperVariant,
-      testDate: l.testDate,
-      uploadedAt: l.uploadedAt,
-      status: l.status,
-      progress: l.status === "done" ? 1 : l.progress,
-      stage: l.stage,
-      problem: l.status === "failed" && l.error ? l.error.message : null,
-    })),
+    logs: rows,
+    targets: summaries,
+    analysedLogs: verdicts.size,
     // After a form upload without JavaScript: ?uploaded=12,13&dup=13-7 (log 13 repeats log 7).
     uploaded: (search.get("uploaded") ?? "")
       .split(",")
@@ -77,16 +144,104 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-export async function action({ request, params }: Route.ActionArgs) {
+function verdictCounts(verdicts: TargetVerdict[]): NonNullable<DriveLogTableRow["targets"]> {
+  return {
+    passed: verdicts.filter((v) => v.status === "pass").length,
+    failed: verdicts.filter((v) => v.status === "fail").length,
+    notCovered: verdicts.filter((v) => v.status === "not-covered").length,
+    failedNames: verdicts
+      .filter((v) => v.status === "fail")
+      .map((v) => `${v.name} (${marginText(v)})`),
+  };
+}
+
+/** Changing the drive-log table's sort, filters or page only rewrites the URL: no new load. */
+export function shouldRevalidate({
+  currentUrl,
+  nextUrl,
+  formMethod,
+  defaultShouldRevalidate,
+}: ShouldRevalidateFunctionArgs) {
+  if (
+    formMethod ||
+    currentUrl.pathname !== nextUrl.pathname ||
+    currentUrl.search === nextUrl.search
+  )
+    return defaultShouldRevalidate;
+  const rest = (url: URL) => {
+    const p = new URLSearchParams(url.search);
+    for (const k of TABLE_PARAMS) p.delete(k);
+    p.sort();
+    return p.toString();
+  };
+  return rest(currentUrl) === rest(nextUrl) ? false : defaultShouldRevalidate;
+}
+
+const TARGET_INTENTS = ["create-target", "update-target", "delete-target"];
+
+export async function action({ request, params, context }: Route.ActionArgs) {
   const type = request.headers.get("content-type") ?? "";
   if (type.toLowerCase().startsWith("multipart/form-data"))
     return uploadFromForm(request, params.vehicleId);
   const form = await request.formData();
   await assertCsrf(request, form);
   const intent = form.get("intent");
-  const { team } = await requireTeamRole(request, "engineer");
+  // Vehicles and their targets are the engineer's (DESIGN.md §2): 403 for technicians and viewers.
+  const { team, user } = await requireTeamRole(request, "engineer");
   const vehicles = vehicleData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
+  if (typeof intent === "string" && TARGET_INTENTS.includes(intent)) {
+    const targets = targetData(team.id);
+    const ip = clientIp(context);
+    const actor = { id: user.id, email: user.email };
+    let existing = null;
+    if (intent !== "create-target") {
+      const id = Number(form.get("targetId"));
+      invariantResponse(Number.isSafeInteger(id) && id > 0, "No such target.", { status: 404 });
+      existing = await targets.get(id);
+      invariantResponse(existing.vehicleId === vehicle.id, "No such target for this vehicle.", {
+        status: 404,
+      });
+    }
+    if (intent === "delete-target" && existing) {
+      await targets.remove(existing.id);
+      await audit({
+        teamId: team.id,
+        actor,
+        action: "target-deleted",
+        detail: `${vehicle.identifier}: target ${existing.id} “${existing.name}”`,
+        ip,
+      });
+      return { notice: `The target “${existing.name}” is deleted.` };
+    }
+    const formId = existing ? `target-${existing.id}` : "target-new";
+    const submission = parseWithZod(form, { schema: targetSchema });
+    if (submission.status !== "success") {
+      const reply: TargetFormReply = { form: formId, result: submission.reply() };
+      return data({ targetForm: reply }, { status: 400 });
+    }
+    const input = submission.value;
+    const id = existing
+      ? (await targets.update(existing.id, input), existing.id)
+      : await targets.create(vehicle.id, input, user.id);
+    await audit({
+      teamId: team.id,
+      actor,
+      action: existing ? "target-changed" : "target-created",
+      detail: `${vehicle.identifier}: target ${id} “${input.name}”, ${limitText(input)}; ${scopeText(input)}`,
+      ip,
+    });
+    const reply: TargetFormReply = {
+      form: formId,
+      result: submission.reply({ resetForm: !existing }),
+    };
+    return {
+      notice: existing
+        ? `The target “${input.name}” is saved; every drive log is judged against it again.`
+        : `The target “${input.name}” is added; every analysed drive log is judged against it.`,
+      targetForm: reply,
+    };
+  }
   invariantResponse(intent === "archive" || intent === "restore", "Unknown action.", {
     status: 400,
   });
@@ -100,7 +255,8 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function VehiclePage() {
-  const { role, vehicle, logs, uploaded, duplicates, notice } = useLoaderData<typeof loader>();
+  const { role, vehicle, logs, targets, analysedLogs, uploaded, duplicates, notice } =
+    useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const revalidator = useRevalidator();
   const progress: LogProgress[] = useMemo(
@@ -109,9 +265,22 @@ export default function VehiclePage() {
   );
   const names = useMemo(() => new Map(logs.map((l) => [l.id, l.fileName])), [logs]);
   const { statuses, announcement } = useLogProgress(vehicle.id, progress, names);
+  // The overlay's curves are cached for 30 s (root.tsx); a newly finished analysis refreshes them.
+  const queryClient = useQueryClient();
+  const finished = logs
+    .filter((l) => l.status === "done")
+    .map((l) => l.id)
+    .join(",");
+  const seenFinished = useRef(finished);
+  useEffect(() => {
+    if (seenFinished.current === finished) return;
+    seenFinished.current = finished;
+    void queryClient.invalidateQueries({ queryKey: ["curves"] });
+  }, [finished, queryClient]);
   const engineer = atLeast(role, "engineer");
   const actionNotice = result && "notice" in result ? result.notice : null;
   const uploadError = result && "uploadError" in result ? result.uploadError : null;
+  const targetReply = result && "targetForm" in result ? (result.targetForm ?? null) : null;
 
   return (
     <main className="space-y-6">
@@ -191,70 +360,49 @@ export default function VehiclePage() {
           </p>
         </noscript>
       ) : null}
-      <Card title="Drive logs" id="drive-logs">
-        {logs.length === 0 ? (
-          <EmptyState>
-            No drive logs yet.{" "}
-            {atLeast(role, "technician")
-              ? "Upload the first one below, with its test condition."
-              : "A technician or engineer uploads them after a test run."}
-          </EmptyState>
-        ) : (
-          <div className="overflow-x-auto">
-            <table className={tableClass}>
-              <thead>
-                <tr>
-                  <th className={thClass}>File</th>
-                  <th className={thClass}>Condition</th>
-                  <th className={thClass}>Gear</th>
-                  <th className={thClass}>Damper variant</th>
-                  <th className={thClass}>Test date</th>
-                  <th className={thClass}>Uploaded</th>
-                  <th className={thClass}>Status</th>
-                </tr>
-              </thead>
-              <tbody>
-                {logs.map((l) => (
-                  <tr key={l.id}>
-                    <td className={`${tdClass} max-w-64 truncate`}>
-                      <Link to={`/vehicles/${vehicle.id}/logs/${l.id}`} className={linkClass}>
-                        {l.fileName}
-                      </Link>
-                    </td>
-                    <td className={tdClass}>{conditionLabels[l.condition]}</td>
-                    <td className={tdClass}>
-                      {l.gear === null
-                        ? "—"
-                        : l.gear === 0
-                          ? "neutral"
-                          : l.gear === -1
-                            ? "reverse"
-                            : l.gear}
-                    </td>
-                    <td className={tdClass}>{l.damperVariant}</td>
-                    <td className={`${tdClass} whitespace-nowrap`}>
-                      {l.testDate ? <When date={l.testDate} dateOnly /> : "—"}
-                    </td>
-                    <td className={`${tdClass} whitespace-nowrap`}>
-                      <When date={l.uploadedAt} />
-                    </td>
-                    <td className={tdClass}>
-                      <LogStatus log={statuses.get(l.id) ?? l} label={l.fileName} />
-                      {l.problem && statuses.get(l.id)?.status !== "queued" ? (
-                        <span
-                          className="mt-0.5 block max-w-64 truncate text-xs text-red-700"
-                          title={l.problem}
-                        >
-                          {l.problem}
-                        </span>
-                      ) : null}
-                    </td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+      <div className="grid gap-6 xl:grid-cols-2">
+        <TargetsCard
+          vehicleId={vehicle.id}
+          targets={targets}
+          canEdit={engineer}
+          reply={targetReply}
+          analysedLogs={analysedLogs}
+          rattleLimitRadS2={vehicle.rattleLimitRadS2}
+        />
+        <section aria-labelledby="latest-curves-title" className="min-w-0 space-y-3">
+          <div>
+            <h2 id="latest-curves-title" className="text-base font-semibold">
+              Latest isolation curves
+            </h2>
+            <p className="text-sm text-neutral-600">
+              The firing-order isolation of the vehicle&apos;s latest analysed drive logs (up to 8),
+              newest first.
+            </p>
           </div>
-        )}
+          {analysedLogs === 0 ? (
+            <EmptyState>
+              No analysed drive logs yet: their isolation curves appear here once an analysis has
+              finished.
+            </EmptyState>
+          ) : (
+            <CurveOverlay curvesUrl={`/vehicles/${vehicle.id}/curves.json`} kind="isolation" />
+          )}
+        </section>
+      </div>
+      <Card title="Drive logs" id="drive-logs">
+        <DriveLogTable
+          vehicleId={vehicle.id}
+          vehicleIdentifier={vehicle.identifier}
+          rows={logs}
+          statuses={statuses}
+          hasTargets={targets.length > 0}
+          canUpload={atLeast(role, "technician") && !vehicle.archived}
+        />
+        {analysedLogs > 0 ? (
+          <div className="mt-4">
+            <VerdictCaution />
+          </div>
+        ) : null}
       </Card>
       {atLeast(role, "technician") && !vehicle.archived ? (
         <Card title="Upload drive logs" id="upload">
