@@ -74,8 +74,12 @@ try {
   }
   await pool.end();
 
-  console.log(`\ncharts: GET …/charts.json of the ${logs.length} demo drive logs, 30 requests each`);
-  console.log("  drive log                                               JSON KB   median ms   slowest ms");
+  console.log(
+    `\ncharts: GET …/charts.json of the ${logs.length} demo drive logs, 30 requests each`,
+  );
+  console.log(
+    "  drive log                                               JSON KB   median ms   slowest ms",
+  );
   for (const log of logs) {
     const path = `/vehicles/${log.vehicleId}/logs/${log.id}/charts.json`;
     const times: number[] = [];
@@ -89,7 +93,11 @@ try {
       if (i > 0) times.push(ms); // the first request warms the route module
     }
     console.log(
-      `  ${log.fileName.padEnd(55)} ${(bytes / 1024).toFixed(1).padStart(7)}   ${median(times).toFixed(1).padStart(9)}   ${Math.max(...times).toFixed(1).padStart(10)}`,
+      `  ${log.fileName.padEnd(55)} ${(bytes / 1024).toFixed(1).padStart(7)}   ${median(times).toFixed(1).padStart(9)}   ${Math.max(
+        ...times,
+      )
+        .toFixed(1)
+        .padStart(10)}`,
     );
   }
   const pair = logs.filter((l) => l.fileName.includes("kst-d4-runup"));
@@ -106,7 +114,9 @@ try {
       `  comparison page (server render), 2 run-ups: median ${median(times).toFixed(1)} ms, slowest ${Math.max(...times).toFixed(1)} ms`,
     );
   }
-  console.log("  (times are the whole HTTP request on loopback: session check, query, gunzip, JSON)");
+  console.log(
+    "  (times are the whole HTTP request on loopback: session check, query, gunzip, JSON)",
+  );
 } finally {
   server?.kill("SIGTERM");
   await new Promise((r) => setTimeout(r, 500));

@@ -265,7 +265,6 @@ export function AnalysisSummaryView({
           </ul>
         </Card>
       ) : null}
-
     </div>
   );
 }
@@ -274,61 +273,63 @@ export function AnalysisSummaryView({
 export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
   return (
     <div className="space-y-6">
-        <Tile title="Analysis settings">
-          <dl className="grid grid-cols-[auto_1fr] gap-x-3 text-sm sm:grid-cols-[auto_1fr_auto_1fr_auto_1fr]">
-            <dt className="text-neutral-600">Samples per rev</dt>
-            <dd>
-              {s.settings.samplesPerRevMin === s.settings.samplesPerRev
-                ? s.settings.samplesPerRev
-                : `${s.settings.samplesPerRevMin}–${s.settings.samplesPerRev}`}
-            </dd>
-            <dt className="text-neutral-600">Revs per block</dt>
-            <dd>
-              {s.settings.revsPerBlock} (order resolution {(1 / s.settings.revsPerBlock).toFixed(3)}
-              )
-            </dd>
-            <dt className="text-neutral-600">Block overlap</dt>
-            <dd>{Math.round(s.settings.overlap * 100)} %</dd>
-            <dt className="text-neutral-600">Bin width</dt>
-            <dd>{s.settings.binRpm} rpm</dd>
-            <dt className="text-neutral-600">Recording</dt>
-            <dd>
-              {s.durationS.toFixed(1)} s at {Math.round(s.sampleRateHz)} Hz
-            </dd>
-          </dl>
-        </Tile>
-      <details id="isolation" className="rounded-lg border border-neutral-200 bg-white p-5 shadow-xs">
+      <Tile title="Analysis settings">
+        <dl className="grid grid-cols-[auto_1fr] gap-x-3 text-sm sm:grid-cols-[auto_1fr_auto_1fr_auto_1fr]">
+          <dt className="text-neutral-600">Samples per rev</dt>
+          <dd>
+            {s.settings.samplesPerRevMin === s.settings.samplesPerRev
+              ? s.settings.samplesPerRev
+              : `${s.settings.samplesPerRevMin}–${s.settings.samplesPerRev}`}
+          </dd>
+          <dt className="text-neutral-600">Revs per block</dt>
+          <dd>
+            {s.settings.revsPerBlock} (order resolution {(1 / s.settings.revsPerBlock).toFixed(3)})
+          </dd>
+          <dt className="text-neutral-600">Block overlap</dt>
+          <dd>{Math.round(s.settings.overlap * 100)} %</dd>
+          <dt className="text-neutral-600">Bin width</dt>
+          <dd>{s.settings.binRpm} rpm</dd>
+          <dt className="text-neutral-600">Recording</dt>
+          <dd>
+            {s.durationS.toFixed(1)} s at {Math.round(s.sampleRateHz)} Hz
+          </dd>
+        </dl>
+      </Tile>
+      <details
+        id="isolation"
+        className="rounded-lg border border-neutral-200 bg-white p-5 shadow-xs"
+      >
         <summary className="cursor-pointer text-sm font-semibold">
           Isolation curve at the firing order as a table ({s.curve.length} engine speeds)
         </summary>
         <div className="mt-3">
-        {s.curve.length === 0 ? (
-          <p className="text-sm text-neutral-600">No engine-speed bins.</p>
-        ) : (
-          <div className="max-h-96 overflow-auto">
-            <table className={tableClass}>
-              <caption className="sr-only">Isolation in dB against engine speed</caption>
-              <thead className="sticky top-0 bg-white">
-                <tr>
-                  <th className={thClass}>Engine speed (rpm)</th>
-                  <th className={thClass}>Isolation (dB)</th>
-                  <th className={thClass}>Blocks</th>
-                  <th className={thClass}>Above noise</th>
-                </tr>
-              </thead>
-              <tbody>
-                {s.curve.map((p) => (
-                  <tr key={p.rpm}>
-                    <td className={tdClass}>{Math.round(p.rpm)}</td>
-                    <td className={`${tdClass} tabular-nums`}>{p.dB.toFixed(2)}</td>
-                    <td className={tdClass}>{p.blocks}</td>
-                    <td className={tdClass}>{p.aboveNoise ? "yes" : "no"}</td>
+          {s.curve.length === 0 ? (
+            <p className="text-sm text-neutral-600">No engine-speed bins.</p>
+          ) : (
+            <div className="max-h-96 overflow-auto">
+              <table className={tableClass}>
+                <caption className="sr-only">Isolation in dB against engine speed</caption>
+                <thead className="sticky top-0 bg-white">
+                  <tr>
+                    <th className={thClass}>Engine speed (rpm)</th>
+                    <th className={thClass}>Isolation (dB)</th>
+                    <th className={thClass}>Blocks</th>
+                    <th className={thClass}>Above noise</th>
                   </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-        )}
+                </thead>
+                <tbody>
+                  {s.curve.map((p) => (
+                    <tr key={p.rpm}>
+                      <td className={tdClass}>{Math.round(p.rpm)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{p.dB.toFixed(2)}</td>
+                      <td className={tdClass}>{p.blocks}</td>
+                      <td className={tdClass}>{p.aboveNoise ? "yes" : "no"}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          )}
         </div>
       </details>
     </div>

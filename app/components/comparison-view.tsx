@@ -50,9 +50,8 @@ export function ComparisonView({
             </p>
           )}
           <p className="text-sm text-neutral-500">
-            Isolation at the firing order, mean over each {comparison.bandRpm} rpm band;
-            differences under {comparison.sameWithinDb} dB count as the same. Reference:{" "}
-            {ref ? ref.name : "—"}.
+            Isolation at the firing order, mean over each {comparison.bandRpm} rpm band; differences
+            under {comparison.sameWithinDb} dB count as the same. Reference: {ref ? ref.name : "—"}.
           </p>
         </div>
       </header>
@@ -154,7 +153,9 @@ export function ComparisonView({
                     ))}
                     {row.changeDb.slice(1).map((v, i) => (
                       <td key={i} className={`${tdClass} text-right tabular-nums`}>
-                        {v === null ? "—" : `${v > 0 ? "+" : v < 0 ? "−" : "±"}${Math.abs(v).toFixed(1)}`}
+                        {v === null
+                          ? "—"
+                          : `${v > 0 ? "+" : v < 0 ? "−" : "±"}${Math.abs(v).toFixed(1)}`}
                       </td>
                     ))}
                     <td className={tdClass}>

@@ -129,4 +129,3 @@ export const comments = mysqlTable(
   },
   (t) => [index("comments_subject_idx").on(t.teamId, t.subjectKey, t.createdAt)],
 );
-

@@ -29,9 +29,13 @@ export async function comparisonLogs(
 ): Promise<ComparedLog[]> {
   const rows = await Promise.all(ids.map((id) => data.log(id)));
   for (const row of rows)
-    invariantResponse(row.vehicleId === vehicle.id, `Drive log ${row.id} is not one of ${vehicle.identifier}'s.`, {
-      status: 404,
-    });
+    invariantResponse(
+      row.vehicleId === vehicle.id,
+      `Drive log ${row.id} is not one of ${vehicle.identifier}'s.`,
+      {
+        status: 404,
+      },
+    );
   const distinct = (values: (string | null)[]) =>
     values.every((v) => v) && new Set(values).size === values.length;
   const byVariant = distinct(rows.map((r) => r.damperVariant));

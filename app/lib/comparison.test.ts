@@ -3,7 +3,12 @@ import { compareIsolation, type IsolationCurve } from "./comparison";
 
 // Constructed curves whose band means are known by construction (flat levels per range), so the
 // expected table and sentence follow from the rules in comparison.ts, not from running it.
-function curve(name: string, level: (rpm: number) => number, from = 800, to = 4500): IsolationCurve {
+function curve(
+  name: string,
+  level: (rpm: number) => number,
+  from = 800,
+  to = 4500,
+): IsolationCurve {
   const rpm: number[] = [];
   for (let r = from; r <= to; r += 50) rpm.push(r);
   return { logId: name.length, name, rpm, dB: rpm.map(level) };
@@ -44,22 +49,27 @@ describe("comparison of isolation curves", () => {
     expect(compared[0]!.fromRpm).toBe(2000);
     expect(compared.at(-1)!.toRpm).toBe(3250);
     expect(c.rows.find((r) => r.fromRpm === 1000)!.dB).toEqual([10, null]);
-    expect(c.verdicts[0]).toBe("Variant C isolates 2.0 dB more between 2000 and 3250 rpm than variant A.");
+    expect(c.verdicts[0]).toBe(
+      "Variant C isolates 2.0 dB more between 2000 and 3250 rpm than variant A.",
+    );
   });
 
   it("reports equal curves as equal, and disjoint ones as not comparable", () => {
     expect(compareIsolation([a, curve("variant A2", () => 10.3)]).verdicts[0]).toBe(
       "Variant A2 and variant A isolate within 0.5 dB of each other between 750 and 4750 rpm.",
     );
-    expect(compareIsolation([curve("x", () => 5, 800, 900), curve("y", () => 5, 3000, 3100)]).verdicts[0]).toMatch(
-      /share no engine-speed range/,
-    );
+    expect(
+      compareIsolation([curve("x", () => 5, 800, 900), curve("y", () => 5, 3000, 3100)])
+        .verdicts[0],
+    ).toMatch(/share no engine-speed range/);
   });
 
   it("compares every further drive log with the first", () => {
     const c = compareIsolation([a, b, curve("variant C", () => 8)]);
     expect(c.verdicts).toHaveLength(2);
-    expect(c.verdicts[1]).toBe("Variant C isolates 2.0 dB less between 750 and 4750 rpm than variant A.");
+    expect(c.verdicts[1]).toBe(
+      "Variant C isolates 2.0 dB less between 750 and 4750 rpm than variant A.",
+    );
     expect(c.rows.find((r) => r.fromRpm === 1500)!.best).toBe(1);
   });
 });

@@ -81,7 +81,9 @@ export function compareIsolation(
     }
     return { fromRpm: key * bandRpm, toRpm: (key + 1) * bandRpm, dB, changeDb, best };
   });
-  const verdicts = curves.slice(1).map((c, j) => verdict(c.name, curves[0]!.name, rows, j + 1, sameWithinDb));
+  const verdicts = curves
+    .slice(1)
+    .map((c, j) => verdict(c.name, curves[0]!.name, rows, j + 1, sameWithinDb));
   return { bandRpm, sameWithinDb, rows, verdicts };
 }
 
@@ -139,7 +141,8 @@ function where(run: Run): string {
 /** The largest run by (bands × |mean change|): the one that matters most to the engineer. */
 function largest(list: Run[]): Run | null {
   return list.reduce<Run | null>(
-    (best, r) => (!best || r.bands * Math.abs(r.mean) > best.bands * Math.abs(best.mean) ? r : best),
+    (best, r) =>
+      !best || r.bands * Math.abs(r.mean) > best.bands * Math.abs(best.mean) ? r : best,
     null,
   );
 }

@@ -21,8 +21,6 @@ export function securityHeaders(options: {
     "default-src 'self'",
     development ? "script-src 'self' 'unsafe-inline'" : `script-src 'self' 'nonce-${nonce}'`,
     development ? "style-src 'self' 'unsafe-inline'" : "style-src 'self'",
-    // Style attributes (chart and progress sizes rendered on the server) but no inline <style>.
-    "style-src-attr 'unsafe-inline'",
     "img-src 'self' data:",
     "font-src 'self'",
     development ? "connect-src 'self' ws://localhost:* ws://127.0.0.1:*" : "connect-src 'self'",

@@ -262,7 +262,12 @@ export function vehicleData(teamId: number) {
         orderMap: JSON.parse(gunzipSync(stored.orderMapGz).toString("utf8")) as unknown,
       });
       if (!parsed.success) return null;
-      return { id: stored.id, version: stored.version, createdAt: stored.createdAt, result: parsed.data };
+      return {
+        id: stored.id,
+        version: stored.version,
+        createdAt: stored.createdAt,
+        result: parsed.data,
+      };
     },
 
     /** The stored result JSON of the latest analysis, exactly as the signal core produced it. */

@@ -20,7 +20,12 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const analysis = await data.latestAnalysis(log.id);
   if (!analysis)
     return Response.json(
-      { error: { code: "no_result", message: `This drive log has no analysis yet (${log.status}).` } },
+      {
+        error: {
+          code: "no_result",
+          message: `This drive log has no analysis yet (${log.status}).`,
+        },
+      },
       { status: 404 },
     );
   return Response.json(

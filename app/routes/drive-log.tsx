@@ -206,15 +206,25 @@ export default function DriveLogPage() {
             </a>
             {summary ? (
               <>
-                <a href={`/api/v1/logs/${log.id}/result`} className={linkClass} download={`drive-log-${log.id}-result.json`}>
+                <a
+                  href={`/api/v1/logs/${log.id}/result`}
+                  className={linkClass}
+                  download={`drive-log-${log.id}-result.json`}
+                >
                   Result JSON
                 </a>
-                <a href={`/vehicles/${vehicle.id}/logs/${log.id}/result.csv`} className={linkClass} download>
+                <a
+                  href={`/vehicles/${vehicle.id}/logs/${log.id}/result.csv`}
+                  className={linkClass}
+                  download
+                >
                   Result CSV
                 </a>
               </>
             ) : null}
-            {summary && others.length ? <CompareWith vehicleId={vehicle.id} logId={log.id} others={others} /> : null}
+            {summary && others.length ? (
+              <CompareWith vehicleId={vehicle.id} logId={log.id} others={others} />
+            ) : null}
           </div>
           {log.notes ? (
             <p className="mt-2 max-w-3xl text-sm text-neutral-700 whitespace-pre-line">
@@ -260,7 +270,9 @@ export default function DriveLogPage() {
           <AnalysisSummaryView
             s={summary}
             targets={verdicts}
-            rattleHref={summary.rattle ? `/vehicles/${vehicle.id}/logs/${log.id}/rattle` : undefined}
+            rattleHref={
+              summary.rattle ? `/vehicles/${vehicle.id}/logs/${log.id}/rattle` : undefined
+            }
           />
         </section>
       ) : null}
@@ -312,7 +324,11 @@ function CompareWith({
   others: { id: number; label: string; fileName: string }[];
 }) {
   return (
-    <form method="get" action={`/vehicles/${vehicleId}/compare`} className="flex items-center gap-2">
+    <form
+      method="get"
+      action={`/vehicles/${vehicleId}/compare`}
+      className="flex items-center gap-2"
+    >
       <input type="hidden" name="logs" value={String(logId)} />
       <label htmlFor="compare-with" className="text-neutral-600">
         Compare with
@@ -333,7 +349,10 @@ function CompareWith({
           </option>
         ))}
       </select>
-      <button type="submit" className="rounded-md border border-neutral-300 px-2 py-1 text-sm hover:bg-neutral-50">
+      <button
+        type="submit"
+        className="rounded-md border border-neutral-300 px-2 py-1 text-sm hover:bg-neutral-50"
+      >
         Compare
       </button>
     </form>

@@ -35,7 +35,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       testDate: log.testDate,
       status: log.status,
     },
-    analysis: analysis ? { version: analysis.version, firingOrder: analysis.result.firingOrder } : null,
+    analysis: analysis
+      ? { version: analysis.version, firingOrder: analysis.result.firingOrder }
+      : null,
     idle: idle ? { ...idle, accelTrace: null } : null,
     reading: idle ? rattleReading(idle) : null,
   };
@@ -65,7 +67,9 @@ export default function RattlePage() {
         <h1 className="text-2xl font-semibold tracking-tight">Rattle check</h1>
         <p className="mt-1 text-sm text-neutral-600 break-all">
           {log.fileName} · {vehicle.name}
-          {analysis ? ` · analysis version ${analysis.version}, firing order ${analysis.firingOrder}` : ""}
+          {analysis
+            ? ` · analysis version ${analysis.version}, firing order ${analysis.firingOrder}`
+            : ""}
         </p>
       </header>
 
@@ -100,16 +104,25 @@ export default function RattlePage() {
               ))}
             </div>
             <dl className="mt-4 grid gap-4 text-sm sm:grid-cols-4">
-              <Figure term="Firing-order angular acceleration" value={`${idle.gearboxAngAccelRadS2.toFixed(0)} rad/s²`} />
-              <Figure term="Highest momentary value" value={`${idle.gearboxAngAccelPeakRadS2.toFixed(0)} rad/s²`} />
+              <Figure
+                term="Firing-order angular acceleration"
+                value={`${idle.gearboxAngAccelRadS2.toFixed(0)} rad/s²`}
+              />
+              <Figure
+                term="Highest momentary value"
+                value={`${idle.gearboxAngAccelPeakRadS2.toFixed(0)} rad/s²`}
+              />
               <Figure term="Limit" value={`${idle.limitRadS2.toFixed(0)} rad/s²`} />
-              <Figure term="Idle examined" value={`${idle.idleDurationS.toFixed(1)} s at ${idle.meanRpm.toFixed(0)} rpm`} />
+              <Figure
+                term="Idle examined"
+                value={`${idle.idleDurationS.toFixed(1)} s at ${idle.meanRpm.toFixed(0)} rpm`}
+              />
             </dl>
             <p className="mt-3 text-xs text-neutral-500">
-              Angular acceleration α = Δω·q·Ω from the gearbox-input firing-order amplitude Δω,
-              the firing order q and the mean engine speed Ω; the momentary value is the peak of
-              the filtered, differentiated gearbox-input speed. Limit: the vehicle&apos;s rattle
-              limit (default source: {RATTLE_LIMIT_SOURCE})
+              Angular acceleration α = Δω·q·Ω from the gearbox-input firing-order amplitude Δω, the
+              firing order q and the mean engine speed Ω; the momentary value is the peak of the
+              filtered, differentiated gearbox-input speed. Limit: the vehicle&apos;s rattle limit
+              (default source: {RATTLE_LIMIT_SOURCE})
             </p>
           </section>
           <VerdictCaution />
@@ -124,10 +137,18 @@ export default function RattlePage() {
                 </caption>
                 <thead>
                   <tr>
-                    <th scope="col" className={thClass}>From, s</th>
-                    <th scope="col" className={thClass}>To, s</th>
-                    <th scope="col" className={thClass}>Duration, s</th>
-                    <th scope="col" className={thClass}>Peak, rad/s²</th>
+                    <th scope="col" className={thClass}>
+                      From, s
+                    </th>
+                    <th scope="col" className={thClass}>
+                      To, s
+                    </th>
+                    <th scope="col" className={thClass}>
+                      Duration, s
+                    </th>
+                    <th scope="col" className={thClass}>
+                      Peak, rad/s²
+                    </th>
                   </tr>
                 </thead>
                 <tbody>

@@ -45,7 +45,11 @@ async function demoLogs(page: Page): Promise<Demo> {
   for (let i = 0; i < 240; i++) {
     const { logs } = await api<{ logs: ApiLog[] }>(page, `/api/v1/vehicles/${vehicle!.id}/logs`);
     const find = (part: string) => logs.find((l) => l.fileName.includes(part));
-    const wanted = [find("runup-3rd-full-load-damper-a"), find("runup-3rd-full-load-damper-b"), find("idle-neutral")];
+    const wanted = [
+      find("runup-3rd-full-load-damper-a"),
+      find("runup-3rd-full-load-damper-b"),
+      find("idle-neutral"),
+    ];
     if (wanted.every((l) => l && (l.status === "done" || l.status === "failed"))) {
       for (const l of wanted) expect(l!.status, l!.fileName).toBe("done");
       return { vehicleId: vehicle!.id, runupA: wanted[0]!, runupB: wanted[1]!, idle: wanted[2]! };
@@ -78,7 +82,7 @@ async function ready(page: Page, chart: string) {
 async function download(page: Page, name: string): Promise<{ path: string; file: string }> {
   const [d] = await Promise.all([
     page.waitForEvent("download"),
-    page.getByRole("button", { name }).click(),
+    page.getByRole("button", { name, exact: true }).click(),
   ]);
   const path = await d.path();
   return { path: path!, file: d.suggestedFilename() };
@@ -115,7 +119,9 @@ describe("the drive-log page's charts", () => {
     await page.setViewportSize({ width: 1024, height: 768 });
     await page.waitForTimeout(300);
     for (const chart of CHARTS)
-      expect(await inkOf(page, `[data-chart="${chart}"]`), `${chart} at 1024 px`).toBeGreaterThan(0.005);
+      expect(await inkOf(page, `[data-chart="${chart}"]`), `${chart} at 1024 px`).toBeGreaterThan(
+        0.005,
+      );
     await snap(page, "drive-log-1024");
     await page.setViewportSize({ width: 1440, height: 900 });
   });
@@ -125,12 +131,16 @@ describe("the drive-log page's charts", () => {
     const spectrum = page.locator('[data-chart="order-spectrum"]');
     const plot = page.locator('[data-chart="isolation-curve"] .u-over');
     await plot.waitFor();
+    await plot.scrollIntoViewIfNeeded();
     const box = (await plot.boundingBox())!;
-    await page.mouse.move(box.x + box.width * 0.2, box.y + box.height / 2);
-    await expect.poll(() => spectrum.getAttribute("data-rpm")).not.toBeNull();
-    const low = Number(await spectrum.getAttribute("data-rpm"));
-    await page.mouse.move(box.x + box.width * 0.8, box.y + box.height / 2);
-    await expect.poll(async () => Number(await spectrum.getAttribute("data-rpm"))).toBeGreaterThan(low);
+    // Before any move the spectrum shows a row of its own choosing; each move must change it.
+    const rpmOf = async () => Number(await spectrum.getAttribute("data-rpm"));
+    const initial = await rpmOf();
+    await page.mouse.move(box.x + box.width * 0.9, box.y + box.height / 2);
+    await expect.poll(rpmOf).not.toBe(initial);
+    const high = await rpmOf();
+    await page.mouse.move(box.x + box.width * 0.1, box.y + box.height / 2);
+    await expect.poll(rpmOf).toBeLessThan(high);
     // The title names the engine speed it shows.
     const rpm = Number(await spectrum.getAttribute("data-rpm"));
     await expect(spectrum.locator("h3").textContent()).resolves.toContain(`${Math.round(rpm)} rpm`);
@@ -140,14 +150,20 @@ describe("the drive-log page's charts", () => {
     const page = engineer;
     const chart = page.locator('[data-chart="order-curves"]');
     await expect(chart.getAttribute("data-unit")).resolves.toBe("rpm");
-    const before = await inkOf(page, '[data-chart="order-curves"]');
-    await chart.getByRole("radio", { name: "rad/s²" }).check();
+    const summary = chart.locator('p[id$="-summary"]');
+    const canvas = chart.locator("canvas").first();
+    const pixels = () => canvas.evaluate((c) => (c as HTMLCanvasElement).toDataURL());
+    await expect(summary.textContent()).resolves.not.toContain("rad/s²");
+    const before = await pixels();
+    // The radios are visually hidden inside their labels (a segmented switch): click the label.
+    await chart.locator("label", { hasText: /^rad\/s²$/ }).click();
     await expect.poll(() => chart.getAttribute("data-unit")).toBe("rad/s²");
-    // The axis label is drawn by uPlot on the canvas and mirrored in the text alternative.
-    await expect.poll(async () => (await chart.textContent()) ?? "").toContain("rad/s²");
+    // The text alternative states the new unit, and the plot (axis label and scale) is redrawn.
+    await expect.poll(async () => (await summary.textContent()) ?? "").toContain("rad/s²");
+    await expect.poll(pixels).not.toBe(before);
     expect(await inkOf(page, '[data-chart="order-curves"]')).toBeGreaterThan(0.005);
-    expect(before).toBeGreaterThan(0);
-    await chart.getByRole("radio", { name: "rpm" }).check();
+    await chart.locator("label", { hasText: /^rpm$/ }).click();
+    await expect.poll(() => chart.getAttribute("data-unit")).toBe("rpm");
   });
 
   it("exports the isolation curve as CSV with the API's numbers, and as a PNG image", async () => {
@@ -158,7 +174,9 @@ describe("the drive-log page's charts", () => {
     );
     const csv = await download(page, "Download Isolation curve as CSV");
     expect(csv.file).toMatch(/\.csv$/);
-    const parsed = Papa.parse<string[]>(readFileSync(csv.path, "utf8").trim(), { skipEmptyLines: true });
+    const parsed = Papa.parse<string[]>(readFileSync(csv.path, "utf8").trim(), {
+      skipEmptyLines: true,
+    });
     const [header, ...rows] = parsed.data;
     const rpmCol = header!.findIndex((h) => /engine speed/i.test(h) && /rpm/.test(h));
     const dbCol = header!.findIndex((h) => /isolation/i.test(h) && /dB/.test(h));
@@ -170,11 +188,15 @@ describe("the drive-log page's charts", () => {
     const png = await download(page, "Download Isolation curve as PNG");
     expect(png.file).toMatch(/\.png$/);
     // PNG signature (ISO/IEC 15948 / RFC 2083 §3.1): 89 50 4E 47 0D 0A 1A 0A.
-    expect([...readFileSync(png.path).subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+    expect([...readFileSync(png.path).subarray(0, 8)]).toEqual([
+      0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a,
+    ]);
   });
 
   it("keeps the chart JSON of a demo drive log under 300 KB", async () => {
-    const r = await engineer.request.get(`${baseUrl}/vehicles/${demo.vehicleId}/logs/${demo.runupA.id}/charts.json`);
+    const r = await engineer.request.get(
+      `${baseUrl}/vehicles/${demo.vehicleId}/logs/${demo.runupA.id}/charts.json`,
+    );
     expect(r.status()).toBe(200);
     expect((await r.body()).length).toBeLessThan(300 * 1024);
   });
@@ -184,20 +206,32 @@ describe("comparison of the two demo damper variants", () => {
   it("shows the band table and a verdict consistent with its numbers", async () => {
     const page = engineer;
     await page.goto(`${baseUrl}/vehicles/${demo.vehicleId}`);
-    await page.goto(`${baseUrl}/vehicles/${demo.vehicleId}/compare?logs=${demo.runupA.id},${demo.runupB.id}`);
-    const verdict = (await page.getByTestId("comparison-verdict").locator("p").first().textContent())!;
-    expect(verdict).toMatch(/^Variant B isolates /);
-    const rows = await page.getByTestId("band-table").locator("tbody tr").evaluateAll((trs) =>
-      trs.map((tr) => ({
-        from: Number(tr.getAttribute("data-from-rpm")),
-        cells: [...tr.querySelectorAll("td")].map((td) => td.textContent ?? ""),
-      })),
+    await page.goto(
+      `${baseUrl}/vehicles/${demo.vehicleId}/compare?logs=${demo.runupA.id},${demo.runupB.id}`,
     );
+    const verdict = (await page
+      .getByTestId("comparison-verdict")
+      .locator("p")
+      .first()
+      .textContent())!;
+    expect(verdict).toMatch(/^Variant B isolates /);
+    const rows = await page
+      .getByTestId("band-table")
+      .locator("tbody tr")
+      .evaluateAll((trs) =>
+        trs.map((tr) => ({
+          from: Number(tr.getAttribute("data-from-rpm")),
+          cells: [...tr.querySelectorAll("td")].map((td) => td.textContent ?? ""),
+        })),
+      );
     expect(rows.length).toBeGreaterThan(5);
-    const change = (cell: string) => Number(cell.replace("−", "-").replace("±", "").replace("+", ""));
+    const change = (cell: string) =>
+      Number(cell.replace("−", "-").replace("±", "").replace("+", ""));
     // Each phrase "X dB more|less between A and B rpm" (or "above A rpm") must be the mean of
     // the table's change column over those bands.
-    const phrases = [...verdict.matchAll(/(\d+\.\d) dB (more|less) (?:between (\d+) and (\d+)|above (\d+)) rpm/g)];
+    const phrases = [
+      ...verdict.matchAll(/(\d+\.\d) dB (more|less) (?:between (\d+) and (\d+)|above (\d+)) rpm/g),
+    ];
     expect(phrases.length).toBeGreaterThan(0);
     for (const m of phrases) {
       const from = Number(m[3] ?? m[5]);
@@ -210,7 +244,9 @@ describe("comparison of the two demo damper variants", () => {
       // The better column agrees with the sign in every band of the run that passes 0.5 dB.
       for (const r of inRun)
         if (Math.abs(change(r.cells[2]!)) >= 0.5)
-          expect(r.cells[3], `${r.from} rpm`).toContain(m[2] === "more" ? "Variant B" : "Variant A");
+          expect(r.cells[3], `${r.from} rpm`).toContain(
+            m[2] === "more" ? "Variant B" : "Variant A",
+          );
     }
     for (const chart of ["overlay-isolation", "overlay-order"]) {
       await ready(page, chart);
@@ -228,13 +264,22 @@ describe("the rattle check", () => {
   it("shows the idle log's angular acceleration against the limit and reads it in plain words", async () => {
     const page = engineer;
     await page.goto(`${baseUrl}/vehicles/${demo.vehicleId}/logs/${demo.idle.id}/rattle`);
-    const result = await api<{ idle: { gearboxAngAccelRadS2: number; limitRadS2: number; verdict: string } }>(
-      page,
-      `/api/v1/logs/${demo.idle.id}/result`,
-    );
-    await page.getByRole("heading", { name: result.idle.verdict === "ok" ? /Within the limit/ : /Over the limit/ }).waitFor();
-    await page.getByText(`${result.idle.gearboxAngAccelRadS2.toFixed(0)} rad/s²`).first().waitFor();
-    await page.getByText(/screening aid/).first().waitFor();
+    const result = await api<{
+      idle: { gearboxAngAccelRadS2: number; limitRadS2: number; verdict: string };
+    }>(page, `/api/v1/logs/${demo.idle.id}/result`);
+    await page
+      .getByRole("heading", {
+        name: result.idle.verdict === "ok" ? /Within the limit/ : /Over the limit/,
+      })
+      .waitFor();
+    await page
+      .getByText(`${result.idle.gearboxAngAccelRadS2.toFixed(0)} rad/s²`)
+      .first()
+      .waitFor();
+    await page
+      .getByText(/screening aid/)
+      .first()
+      .waitFor();
     for (const chart of ["rattle-accel", "rattle-fluctuation"]) {
       await ready(page, chart);
       expect(await inkOf(page, `[data-chart="${chart}"]`), chart).toBeGreaterThan(0.005);
@@ -244,5 +289,24 @@ describe("the rattle check", () => {
     await page.waitForTimeout(300);
     await snap(page, "rattle-1024");
     await page.setViewportSize({ width: 1440, height: 900 });
+  });
+});
+
+describe("a viewer", () => {
+  it("sees the charts, the comparison and the rattle check, but no way to set targets or share", async () => {
+    const page = await signIn(browser, "viewer@twistlog.test");
+    await page.goto(`${baseUrl}/vehicles/${demo.vehicleId}/logs/${demo.runupB.id}`);
+    for (const chart of CHARTS) await ready(page, chart);
+    await expect(page.getByText("Make a share link").count()).resolves.toBe(0);
+    await page.goto(`${baseUrl}/vehicles/${demo.vehicleId}`);
+    await page.getByRole("heading", { name: "Targets" }).waitFor();
+    await expect(page.getByText("Add a target").count()).resolves.toBe(0);
+    await page.goto(
+      `${baseUrl}/vehicles/${demo.vehicleId}/compare?logs=${demo.runupA.id},${demo.runupB.id}`,
+    );
+    await page.getByTestId("band-table").waitFor();
+    await page.goto(`${baseUrl}/vehicles/${demo.vehicleId}/logs/${demo.idle.id}/rattle`);
+    await ready(page, "rattle-accel");
+    await page.context().close();
   });
 });

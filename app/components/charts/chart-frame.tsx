@@ -71,7 +71,7 @@ export function ChartFrame({
         <div className="mt-2 flex min-h-8 flex-wrap items-center gap-x-4 gap-y-2">{controls}</div>
       ) : null}
       {note ? <p className="mt-2 text-xs text-neutral-600">{note}</p> : null}
-      <div className="relative mt-3" style={{ height }}>
+      <div className={`relative mt-3 ${heightClass(height)}`}>
         {status === "loading" ? (
           <div
             className="h-full w-full animate-pulse rounded-md bg-neutral-100"
@@ -99,6 +99,21 @@ export function ChartFrame({
       ) : null}
     </figure>
   );
+}
+
+/**
+ * The plot area's height as a class, not a style attribute: the CSP refuses inline style
+ * attributes in the server's HTML, and the skeleton must have its final height before hydration.
+ */
+const HEIGHTS: Record<number, string> = {
+  260: "h-[260px]",
+  300: "h-[300px]",
+  340: "h-[340px]",
+};
+function heightClass(height: number): string {
+  const cls = HEIGHTS[height];
+  if (!cls) throw new Error(`Add the chart height ${height} px to HEIGHTS in chart-frame.tsx.`);
+  return cls;
 }
 
 function ExportButton({

@@ -121,6 +121,7 @@ function clamp01(x: number): number {
 export function mapMaximum(maps: number[][][], fromColumn = 0): number {
   let max = 0;
   for (const map of maps)
-    for (const row of map) for (let k = fromColumn; k < row.length; k++) if (row[k]! > max) max = row[k]!;
+    for (const row of map)
+      for (let k = fromColumn; k < row.length; k++) if (row[k]! > max) max = row[k]!;
   return max;
 }

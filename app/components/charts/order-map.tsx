@@ -77,7 +77,10 @@ export const OrderMaps = memo(function OrderMaps({
       levelScale(
         mode,
         grids && charts
-          ? mapMaximum([grids[0]!.cells, grids[1]!.cells], Math.round(0.5 / charts.orderMap.orderStep))
+          ? mapMaximum(
+              [grids[0]!.cells, grids[1]!.cells],
+              Math.round(0.5 / charts.orderMap.orderStep),
+            )
           : 1,
       ),
     [mode, grids, charts],

@@ -133,7 +133,10 @@ export function rattleCheck(args: {
         open = -1;
       }
     }
-    const inner = { t: t.subarray(guard, y.length - guard), a: acc.subarray(guard, y.length - guard) };
+    const inner = {
+      t: t.subarray(guard, y.length - guard),
+      a: acc.subarray(guard, y.length - guard),
+    };
     const piece = envelopeMax(
       inner.t,
       inner.a,
