@@ -1,4 +1,4 @@
-import { chartData } from "~/lib/chart-data";
+import { chartsBody } from "~/lib/chart-data.server";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
@@ -17,8 +17,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   invariantResponse(log.vehicleId === vehicleId, "No such drive log for this vehicle.", {
     status: 404,
   });
-  const analysis = await data.latestAnalysis(log.id);
-  if (!analysis)
+  const body = await chartsBody(data, log);
+  if (body === null)
     return Response.json(
       {
         error: {
@@ -28,13 +28,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       },
       { status: 404 },
     );
-  return Response.json(
-    {
-      logId: log.id,
-      analysis: { id: analysis.id, version: analysis.version, createdAt: analysis.createdAt },
-      charts: chartData(analysis.result),
+  return new Response(body, {
+    headers: {
+      "Content-Type": "application/json; charset=utf-8",
+      // One analysis never changes; a new version has a new id, so the URL's answer may be cached briefly.
+      "Cache-Control": "private, max-age=30",
     },
-    // One analysis never changes; a new version has a new id, so the URL's answer may be cached briefly.
-    { headers: { "Cache-Control": "private, max-age=30" } },
-  );
+  });
 }

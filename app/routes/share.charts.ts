@@ -1,4 +1,4 @@
-import { chartData } from "~/lib/chart-data";
+import { chartsBody } from "~/lib/chart-data.server";
 import {
   shareForJson,
   shareHeaders,
@@ -24,15 +24,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const log = await data.log(logId);
   if (log.vehicleId !== active.share.vehicleId)
     return shareJsonError(404, "not_found", "That drive log is not part of this share link.");
-  const analysis = await data.latestAnalysis(log.id);
-  if (!analysis)
+  const body = await chartsBody(data, log);
+  if (body === null)
     return shareJsonError(404, "no_result", `This drive log has no analysis yet (${log.status}).`);
-  return Response.json(
-    {
-      logId: log.id,
-      analysis: { id: analysis.id, version: analysis.version, createdAt: analysis.createdAt },
-      charts: chartData(analysis.result),
-    },
-    { headers: shareHeaders },
-  );
+  return new Response(body, {
+    headers: { ...shareHeaders, "Content-Type": "application/json; charset=utf-8" },
+  });
 }

@@ -40,7 +40,9 @@ export function CurveOverlay({
   highlight?: number;
 }) {
   const query = useCurvesQuery(curvesUrl);
-  const [side, setSide] = useState<Side>("crank");
+  // The gearbox input first: that is where damper variants differ (the crank side is the engine's
+  // excitation, nearly the same for every variant).
+  const [side, setSide] = useState<Side>("gearbox");
   const [unit, setUnit] = useState<AmplitudeUnit>("rpm");
   const [readout, setReadout] = useState("");
   const plot = useRef<uPlot | null>(null);
