@@ -231,24 +231,7 @@ export function AnalysisSummaryView({
                     ? `${failed} of ${applicable.length} failed`
                     : `${passed} of ${applicable.length} passed`}
               </p>
-              <ul className="mt-2 space-y-1.5 text-sm" data-testid="target-verdicts">
-                {targets.map((t) => (
-                  <li key={t.targetId} data-status={t.status}>
-                    <span className={`font-semibold ${statusClass[t.status]}`}>
-                      {statusText[t.status]}
-                    </span>{" "}
-                    {t.name}
-                    {t.margin !== null ? (
-                      <span className="text-neutral-600">
-                        {" "}
-                        — margin {t.margin >= 0 ? "+" : "−"}
-                        {Math.abs(t.margin).toFixed(1)} {t.unit}
-                      </span>
-                    ) : null}
-                    <span className="block text-xs text-neutral-500">{t.detail}</span>
-                  </li>
-                ))}
-              </ul>
+              <TargetVerdictList verdicts={targets} className="mt-2" />
             </>
           )}
         </Tile>
@@ -333,6 +316,34 @@ export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
         </div>
       </details>
     </div>
+  );
+}
+
+/** Each target's verdict with its margin and the reason in one line (drive-log and rattle pages). */
+export function TargetVerdictList({
+  verdicts,
+  className = "",
+}: {
+  verdicts: TargetTileVerdict[];
+  className?: string;
+}) {
+  return (
+    <ul className={`space-y-1.5 text-sm ${className}`} data-testid="target-verdicts">
+      {verdicts.map((t) => (
+        <li key={t.targetId} data-status={t.status}>
+          <span className={`font-semibold ${statusClass[t.status]}`}>{statusText[t.status]}</span>{" "}
+          {t.name}
+          {t.margin !== null ? (
+            <span className="text-neutral-600">
+              {" "}
+              — margin {t.margin >= 0 ? "+" : "−"}
+              {Math.abs(t.margin).toFixed(1)} {t.unit}
+            </span>
+          ) : null}
+          <span className="block text-xs text-neutral-500">{t.detail}</span>
+        </li>
+      ))}
+    </ul>
   );
 }
 

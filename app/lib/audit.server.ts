@@ -19,6 +19,11 @@ export type AuditAction =
   | "team-settings-changed"
   | "token-created"
   | "token-revoked"
+  // Vehicles: added, changed, archived and restored (named by identifier).
+  | "vehicle-created"
+  | "vehicle-changed"
+  | "vehicle-archived"
+  | "vehicle-restored"
   // Targets of a vehicle (issue 6): named by id, vehicle and what they limit.
   | "target-created"
   | "target-changed"

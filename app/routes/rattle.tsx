@@ -1,4 +1,5 @@
 import { Link, useLoaderData } from "react-router";
+import { TargetVerdictList } from "~/components/analysis-summary";
 import { VerdictCaution } from "~/components/caution-note";
 import { RattleCharts } from "~/components/charts";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
@@ -8,6 +9,7 @@ import { conditionLabels, RATTLE_LIMIT_SOURCE } from "~/lib/drive-log-terms";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { rattleReading } from "~/lib/rattle-reading";
+import { targetData } from "~/lib/targets.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/rattle";
 
@@ -26,7 +28,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   });
   const analysis = await data.latestAnalysis(log.id);
   const idle = analysis?.result.idle ?? null;
+  // The vehicle's rattle targets, judged on this analysis (isolation targets are on the drive-log page).
+  const targets = analysis
+    ? (await targetData(team.id).verdictsForAnalysis(vehicle.id, log, analysis.result)).filter(
+        (v) => v.kind === "rattle",
+      )
+    : [];
   return {
+    targets,
     vehicle: { id: vehicle.id, name: vehicle.name, identifier: vehicle.identifier },
     log: {
       id: log.id,
@@ -44,7 +53,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export default function RattlePage() {
-  const { vehicle, log, analysis, idle, reading } = useLoaderData<typeof loader>();
+  const { vehicle, log, analysis, idle, reading, targets } = useLoaderData<typeof loader>();
   const logHref = `/vehicles/${vehicle.id}/logs/${log.id}`;
   return (
     <main className="space-y-6">
@@ -125,6 +134,11 @@ export default function RattlePage() {
               (default source: {RATTLE_LIMIT_SOURCE})
             </p>
           </section>
+          {targets.length ? (
+            <Card title="Rattle targets" id="rattle-targets">
+              <TargetVerdictList verdicts={targets} />
+            </Card>
+          ) : null}
           <VerdictCaution />
           <RattleCharts chartsUrl={`${logHref}/charts.json`} analysisVersion={analysis.version} />
           <Card title="Spans above the limit" id="spans">

@@ -7,6 +7,8 @@ import { assertCsrf } from "~/lib/csrf.server";
 import { idParam } from "~/lib/params";
 import { requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
+import { audit } from "~/lib/audit.server";
+import { clientIp } from "~/lib/request.server";
 import type { Route } from "./+types/vehicle.edit";
 
 export const meta = ({ data }: Route.MetaArgs) => [
@@ -19,10 +21,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { vehicle };
 }
 
-export async function action({ request, params }: Route.ActionArgs) {
+export async function action({ request, params, context }: Route.ActionArgs) {
   const form = await request.formData();
   await assertCsrf(request, form);
-  const { team } = await requireTeamRole(request, "engineer");
+  const { team, user } = await requireTeamRole(request, "engineer");
   const vehicles = vehicleData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
   const submission = parseWithZod(form, { schema: vehicleFormSchema });
@@ -38,6 +40,13 @@ export async function action({ request, params }: Route.ActionArgs) {
     );
   }
   await vehicles.update(vehicle.id, submission.value);
+  await audit({
+    teamId: team.id,
+    actor: { id: user.id, email: user.email },
+    action: "vehicle-changed",
+    detail: `vehicle ${vehicle.id} (${submission.value.identifier})`,
+    ip: clientIp(context),
+  });
   return redirect(`/vehicles/${vehicle.id}?notice=saved`);
 }
 

@@ -190,10 +190,10 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   const { team, user } = await requireTeamRole(request, "engineer");
   const vehicles = vehicleData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
+  const ip = clientIp(context);
+  const actor = { id: user.id, email: user.email };
   if (typeof intent === "string" && TARGET_INTENTS.includes(intent)) {
     const targets = targetData(team.id);
-    const ip = clientIp(context);
-    const actor = { id: user.id, email: user.email };
     let existing = null;
     if (intent !== "create-target") {
       const id = Number(form.get("targetId"));
@@ -246,6 +246,13 @@ export async function action({ request, params, context }: Route.ActionArgs) {
     status: 400,
   });
   await vehicles.setArchived(vehicle.id, intent === "archive");
+  await audit({
+    teamId: team.id,
+    actor,
+    action: intent === "archive" ? "vehicle-archived" : "vehicle-restored",
+    detail: `vehicle ${vehicle.id} (${vehicle.identifier})`,
+    ip,
+  });
   return {
     notice:
       intent === "archive"

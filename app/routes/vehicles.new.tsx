@@ -6,6 +6,8 @@ import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/ve
 import { assertCsrf } from "~/lib/csrf.server";
 import { requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
+import { audit } from "~/lib/audit.server";
+import { clientIp } from "~/lib/request.server";
 import type { Route } from "./+types/vehicles.new";
 
 export const meta = () => [{ title: "Add a vehicle · Twistlog" }];
@@ -15,10 +17,10 @@ export async function loader({ request }: Route.LoaderArgs) {
   return null;
 }
 
-export async function action({ request }: Route.ActionArgs) {
+export async function action({ request, context }: Route.ActionArgs) {
   const form = await request.formData();
   await assertCsrf(request, form);
-  const { team } = await requireTeamRole(request, "engineer");
+  const { team, user } = await requireTeamRole(request, "engineer");
   const submission = parseWithZod(form, { schema: vehicleFormSchema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });
   const vehicles = vehicleData(team.id);
@@ -33,6 +35,13 @@ export async function action({ request }: Route.ActionArgs) {
     );
   }
   const id = await vehicles.create(submission.value);
+  await audit({
+    teamId: team.id,
+    actor: { id: user.id, email: user.email },
+    action: "vehicle-created",
+    detail: `vehicle ${id} (${submission.value.identifier})`,
+    ip: clientIp(context),
+  });
   return redirect(`/vehicles/${id}`);
 }
 

@@ -11,6 +11,7 @@ import { useJobTestbed } from "../support/scratch-db";
 const testbed = await useJobTestbed("pages");
 const { pool } = await import("~/lib/db.server");
 const { vehicleData } = await import("~/lib/vehicles.server");
+const { teamData } = await import("~/lib/team-data.server");
 const { vehicleSchema } = await import("~/lib/vehicle-schema");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
@@ -129,6 +130,10 @@ describe("vehicle forms", () => {
     const again = await engineer.post("/vehicles/new", fields);
     expect(again.status).toBe(400);
     expect(again.html).toContain("Another vehicle of the team is FORM-1 already.");
+    // Both changes are in the team's audit log, with who made them.
+    const log = await teamData(team.id).auditLog();
+    const mine = log.filter((e) => e.detail === `vehicle ${id} (FORM-1)`).map((e) => e.action);
+    expect(mine.sort()).toEqual(["vehicle-changed", "vehicle-created"]);
   });
 
   it("a viewer's and a technician's POST to the create action get 403, and nothing is created", async () => {
@@ -174,6 +179,10 @@ describe("vehicle forms", () => {
       200,
     );
     expect((await engineer.get("/vehicles")).html).toContain(vehicle.identifier);
+    const actions = (await teamData(team.id).auditLog())
+      .filter((e) => e.detail === `vehicle ${vehicle.id} (${vehicle.identifier})`)
+      .map((e) => e.action);
+    expect(actions.sort()).toEqual(["vehicle-archived", "vehicle-restored"]);
   });
 
   it("another team's vehicle, drive log and raw file are 404", async () => {
