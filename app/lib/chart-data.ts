@@ -9,6 +9,7 @@
  * time s; angular acceleration rad/s². Conversions for display are in chart-units.ts.
  */
 import type { AnalysisResult } from "./signal/result-schema";
+import { modelIsolationDb } from "./signal/two-mass-model";
 
 export type SegmentKind = AnalysisResult["segments"][number]["kind"];
 
@@ -23,7 +24,11 @@ export interface ChartData {
   segments: AnalysisResult["segments"];
   /** Every tracked order's curve; `firingOrder` is one of them. */
   orderCurves: { order: number; rpm: number[]; crankRpm: number[]; gearboxRpm: number[] }[];
-  isolation: { rpm: number[]; dB: number[]; aboveNoise: boolean[] };
+  /**
+   * `modelDb`: the fitted two-mass model's predicted isolation at the same engine speeds, dB
+   * (−20·log10 T(r), two-mass-model.ts); null when no model was fitted.
+   */
+  isolation: { rpm: number[]; dB: number[]; aboveNoise: boolean[]; modelDb: number[] | null };
   resonance: AnalysisResult["resonance"];
   model: AnalysisResult["model"];
   /**
@@ -161,6 +166,19 @@ export function chartData(result: AnalysisResult): ChartData {
       rpm: result.isolation.map((p) => p.rpm),
       dB: result.isolation.map((p) => p.dB),
       aboveNoise: result.isolation.map((p) => p.aboveNoise),
+      modelDb: result.model
+        ? result.isolation.map(
+            (p) =>
+              Math.round(
+                modelIsolationDb(
+                  p.rpm,
+                  result.firingOrder,
+                  result.model!.naturalFrequencyHz,
+                  result.model!.dampingRatio,
+                ) * 100,
+              ) / 100,
+          )
+        : null,
     },
     resonance: result.resonance,
     model: result.model,

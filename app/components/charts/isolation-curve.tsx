@@ -49,6 +49,7 @@ export const IsolationCurve = memo(function IsolationCurve({
   const bands = useTargets(targets);
   const iso = charts?.isolation ?? null;
   const resonance = charts?.resonance ?? null;
+  const model = charts?.model ?? null;
 
   const data = useMemo<uPlot.AlignedData>(() => {
     if (!iso) return [[]];
@@ -56,6 +57,7 @@ export const IsolationCurve = memo(function IsolationCurve({
       iso.rpm,
       iso.dB.map((v, i) => (iso.aboveNoise[i] ? v : null)),
       iso.dB.map((v, i) => (iso.aboveNoise[i] ? null : v)),
+      ...(iso.modelDb ? [iso.modelDb] : []),
     ];
   }, [iso]);
 
@@ -79,6 +81,9 @@ export const IsolationCurve = memo(function IsolationCurve({
           paths: () => null,
           points: { show: false },
         },
+        ...(iso.modelDb
+          ? [lineSeries("Two-mass model", COLOURS.marker, { width: 1.25, dash: [6, 4] })]
+          : []),
       ],
       legend: { show: false },
       cursor: cursor(syncKey),
@@ -99,9 +104,10 @@ export const IsolationCurve = memo(function IsolationCurve({
             const rpm = iso.rpm[i]!;
             report.current?.(rpm);
             const dB = iso.dB[i]!;
+            const predicted = iso.modelDb?.[i];
             const target = bands.find((b) => rpm >= b.rpmFrom && rpm <= b.rpmTo);
             setReadout(
-              `${formatValue(rpm)} rpm · ${iso.aboveNoise[i] ? `isolation ${formatValue(dB)} dB` : `isolation at least ${formatValue(dB)} dB (gearbox input at the noise floor)`}${target ? ` · target ${target.name}: at least ${formatValue(target.minDb)} dB, ${dB >= target.minDb ? "met" : iso.aboveNoise[i] ? "not met" : "not shown (lower bound)"}` : ""}`,
+              `${formatValue(rpm)} rpm · ${iso.aboveNoise[i] ? `isolation ${formatValue(dB)} dB` : `isolation at least ${formatValue(dB)} dB (gearbox input at the noise floor)`}${predicted !== undefined ? ` · model ${formatValue(predicted)} dB` : ""}${target ? ` · target ${target.name}: at least ${formatValue(target.minDb)} dB, ${dB >= target.minDb ? "met" : iso.aboveNoise[i] ? "not met" : "not shown (lower bound)"}` : ""}`,
             );
           },
         ],
@@ -122,6 +128,17 @@ export const IsolationCurve = memo(function IsolationCurve({
             shape: "caret" as const,
             label: "Lower bound: gearbox input at the noise floor, isolation at least this",
             colour: COLOURS.isolation,
+          },
+        ]
+      : []),
+    ...(model && iso?.modelDb
+      ? [
+          {
+            kind: "line" as const,
+            label: `Two-mass model fit: natural frequency ${formatValue(model.naturalFrequencyHz)} Hz, damping ratio ${formatValue(model.dampingRatio)}`,
+            colour: COLOURS.marker,
+            dash: [6, 4],
+            width: 1.25,
           },
         ]
       : []),
@@ -192,8 +209,13 @@ export const IsolationCurve = memo(function IsolationCurve({
         downloadCsv(
           TITLE,
           buildCsv(
-            ["engine speed (rpm)", `isolation order ${charts.firingOrder} (dB)`, "above noise"],
-            columnsToRows([iso.rpm, iso.dB, iso.aboveNoise]),
+            [
+              "engine speed (rpm)",
+              `isolation order ${charts.firingOrder} (dB)`,
+              "above noise",
+              ...(iso.modelDb ? ["two-mass model isolation (dB)"] : []),
+            ],
+            columnsToRows([iso.rpm, iso.dB, iso.aboveNoise, ...(iso.modelDb ? [iso.modelDb] : [])]),
           ),
           fileSuffix,
         )
