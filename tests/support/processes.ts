@@ -6,7 +6,10 @@ import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 
 export const repoRoot = fileURLToPath(new URL("../..", import.meta.url));
-const tsx = `${repoRoot}node_modules/.bin/tsx`;
+// `node --import tsx` rather than the tsx wrapper: the child is then the program itself, so a
+// kill on a timeout stops it, instead of leaving the real process running behind a dead wrapper.
+const node = process.execPath;
+const tsxArgs = ["--import", "tsx"];
 
 /** A TCP port on 127.0.0.1 that nothing listens on right now. */
 export async function freePort(): Promise<number> {
@@ -37,7 +40,7 @@ export function runTs(
   timeoutMs = 20_000,
 ): Promise<Finished> {
   return new Promise((resolve, reject) => {
-    const child = spawn(tsx, [entry], {
+    const child = spawn(node, [...tsxArgs, entry], {
       cwd: repoRoot,
       env: { ...process.env, ...env },
       stdio: ["ignore", "pipe", "pipe"],
@@ -72,7 +75,7 @@ export async function startServer(
 ): Promise<{ url: string; mailDir: string; stop: () => Promise<void> }> {
   const port = await freePort();
   const mail = await ownMail();
-  const child = spawn(tsx, ["server/index.ts"], {
+  const child = spawn(node, [...tsxArgs, "server/index.ts"], {
     cwd: repoRoot,
     env: {
       ...process.env,
