@@ -10,11 +10,36 @@
  * falls back to the careful path, and the tests hold it against papaparse + Number().
  *
  * Every problem is a value with a code, a row (1-based file line, header = 1) and a column.
+ * The scanner is in ingest-scan.ts, the whole-log checks (sampling, length, clipping) in
+ * ingest-checks.ts; this file drives them chunk by chunk.
  */
 import Papa from "papaparse";
 import { resolveColumns, type ColumnMap, type ColumnOptions } from "./columns.ts";
+import { checkLog, type CheckOptions } from "./ingest-checks.ts";
+import {
+  bytesToText,
+  Column,
+  concat,
+  detectDecimal,
+  detectDelimiter,
+  EMPTY,
+  firstControlByte,
+  fmt,
+  MAX_LINE_BYTES,
+  NONFINITE,
+  OK,
+  parseNumberText,
+  POW10,
+  SAMPLE_LINES,
+  scanLine,
+  TWO53,
+  type RowScratch,
+} from "./ingest-scan.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 import { RAD_S_PER_UNIT, S_PER_UNIT } from "./units.ts";
+
+export { parseNumberText };
+export type { CheckOptions };
 
 export interface IngestOptions extends ColumnOptions, CheckOptions {
   /** Field delimiter; detected from the first lines when not given. */
@@ -36,366 +61,6 @@ export interface IngestOptions extends ColumnOptions, CheckOptions {
 export interface Ingester {
   push(chunk: string | Uint8Array): void;
   finish(): Outcome<DriveLog>;
-}
-
-const POW10 = Array.from({ length: 23 }, (_, i) => 10 ** i); // exact doubles up to 1e22
-const TWO53 = 2 ** 53;
-const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
-const NON_FINITE = /^[+-]?(nan|inf|infinity)$/i;
-const MAX_LINE_BYTES = 1 << 20;
-const SAMPLE_LINES = 6;
-
-/** Field status from the scanner. */
-const OK = 0,
-  EMPTY = 1,
-  TEXT = 2,
-  NONFINITE = 3;
-
-/**
- * The careful number reader for one field's text (also used on quoted fields): trims, strips
- * quotes, accepts an exponent, rejects hex and thousands separators. Unitless.
- */
-export function parseNumberText(
-  raw: string,
-  decimal: "." | ",",
-): { status: number; value: number } {
-  let text = raw.trim();
-  if (text.length >= 2 && text.startsWith('"') && text.endsWith('"'))
-    text = text.slice(1, -1).trim();
-  if (text === "") return { status: EMPTY, value: NaN };
-  if (NON_FINITE.test(text)) return { status: NONFINITE, value: NaN };
-  if (decimal === ",") {
-    if (text.includes(".")) return { status: TEXT, value: NaN };
-    text = text.replace(",", ".");
-  }
-  if (!NUMBER.test(text)) return { status: TEXT, value: NaN };
-  const value = Number(text);
-  return Number.isFinite(value) ? { status: OK, value } : { status: NONFINITE, value };
-}
-
-function bytesToText(b: Uint8Array, s: number, e: number): string {
-  let ascii = e - s < 256;
-  for (let i = s; ascii && i < e; i++) if ((b[i] ?? 0) >= 128) ascii = false;
-  return ascii
-    ? String.fromCharCode(...b.subarray(s, e))
-    : new TextDecoder().decode(b.subarray(s, e));
-}
-
-/** The first byte in [s, e) that plain text never holds (controls other than tab and CR), or −1. */
-function firstControlByte(b: Uint8Array, s: number, e: number): number {
-  for (let i = s; i < e; i++) {
-    const c = b[i] ?? 0;
-    if (c < 32 && c !== 9 && c !== 13) return c;
-  }
-  return -1;
-}
-
-/** Row scratch: one value, status and (for bad fields) text per column. */
-interface RowScratch {
-  vals: Float64Array;
-  stat: Uint8Array;
-  texts: string[];
-}
-
-/**
- * Scan one unquoted line [s, e) into `row`. Returns the field count, −1 when the line has a
- * quote (papaparse must split it), −2 when it holds a control byte (the file is not text).
- */
-function scanLine(
-  b: Uint8Array,
-  s: number,
-  e: number,
-  delim: number,
-  dec: number,
-  decimal: "." | ",",
-  row: RowScratch,
-): number {
-  const max = row.vals.length;
-  let f = 0;
-  let i = s;
-  for (;;) {
-    const fs = i;
-    let mant = 0,
-      frac = -1,
-      nd = 0,
-      neg = false,
-      plain = true;
-    if (i < e && (b[i] === 45 || b[i] === 43)) neg = b[i++] === 45;
-    for (; i < e; i++) {
-      const c = b[i]!; // i < e ≤ b.length
-      if (c === delim) break;
-      const d = c - 48;
-      if (d >= 0 && d <= 9) {
-        mant = mant * 10 + d;
-        nd++;
-        if (frac >= 0) frac++;
-      } else if (c === dec && frac < 0) frac = 0;
-      else if (c === 34) return -1;
-      else if (c < 32 && c !== 9 && c !== 13) return -2;
-      else plain = false;
-    }
-    if (f < max) {
-      if (plain && nd > 0 && mant < TWO53 && frac <= 22) {
-        const v = frac > 0 ? mant / (POW10[frac] ?? 1) : mant;
-        row.vals[f] = neg ? -v : v;
-        row.stat[f] = OK;
-      } else if (fs === i) {
-        row.vals[f] = NaN;
-        row.stat[f] = EMPTY;
-      } else {
-        const text = bytesToText(b, fs, i);
-        const r = parseNumberText(text, decimal);
-        row.vals[f] = r.value;
-        row.stat[f] = r.status;
-        row.texts[f] = text;
-      }
-    }
-    f++;
-    if (i >= e) return f;
-    i++;
-  }
-}
-
-/** Grow-on-demand Float64Array column. */
-class Column {
-  data: Float64Array;
-  private readonly sized: boolean;
-  constructor(capacity: number, sized = false) {
-    this.data = new Float64Array(capacity);
-    this.sized = sized;
-  }
-  ensure(n: number): void {
-    if (n < this.data.length) return;
-    // Grow by half when unsized; by a tenth once sized from a hint (a near miss should not
-    // leave a third of the buffer unused).
-    const factor = this.sized ? 1.1 : 1.5;
-    const next = new Float64Array(Math.max(1024, Math.ceil(this.data.length * factor)));
-    next.set(this.data);
-    this.data = next;
-  }
-  /**
-   * The first n values as a view, never a copy: a copy would double the peak, while the unused
-   * tail of a fresh buffer was never written and so holds no resident memory.
-   */
-  take(n: number): Float64Array {
-    return this.data.subarray(0, n);
-  }
-}
-
-function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
-  const out = new Uint8Array(a.length + b.length);
-  out.set(a);
-  out.set(b, a.length);
-  return out;
-}
-
-const fmt = (v: number) => String(Number(v.toPrecision(10)));
-
-/** Choose the delimiter whose field count is the same (and > 1) on the header and sample lines. */
-function detectDelimiter(lines: string[], forced?: string): string {
-  const count = (line: string, d: string) =>
-    (Papa.parse<string[]>(line, { delimiter: d }).data[0] ?? []).length;
-  const cands = forced ? [forced] : ["\t", ";", ","];
-  const header = lines[0] ?? "";
-  for (const d of cands) {
-    const n = count(header, d);
-    if (n > 1 && lines.slice(1).every((l) => [n, n + 1].includes(count(l, d)))) return d;
-  }
-  let best = cands[cands.length - 1] ?? ",";
-  for (const d of cands) if (count(header, d) > count(header, best)) best = d;
-  return best;
-}
-
-/** Decimal comma when a non-comma delimiter is used and data fields are written "12,5". */
-function detectDecimal(lines: string[], delimiter: string): "." | "," {
-  if (delimiter === ",") return ".";
-  let comma = 0,
-    point = 0;
-  for (const line of lines.slice(1)) {
-    for (const field of Papa.parse<string[]>(line, { delimiter }).data[0] ?? []) {
-      if (/^\s*[+-]?\d*,\d+([eE][+-]?\d+)?\s*$/.test(field)) comma++;
-      else if (/^\s*[+-]?\d*\.\d+([eE][+-]?\d+)?\s*$/.test(field)) point++;
-    }
-  }
-  return comma > point ? "," : ".";
-}
-
-/** Limits for the checks that need the whole log (sampling, length, clipping). */
-export interface CheckOptions {
-  /** Allowed deviation of a sampling interval from the nominal one, as a fraction (default 0.1). */
-  samplingTolerance?: number;
-  /** An interval longer than this many nominal intervals is a gap (default 1.5). */
-  gapFactor?: number;
-  /** Highest order the analysis will look at, for the sampling-rate warning (default 6). */
-  topOrder?: number;
-  /** Logs shorter than this in s get a warning (default 2). */
-  minDurationS?: number;
-  /** Logs with fewer crank revolutions get a warning (default 20). */
-  minRevs?: number;
-  /** This many equal samples at a channel's maximum count as clipped (default 10). */
-  clipRunSamples?: number;
-}
-
-/** Nominal sampling interval in s: the median of up to 4001 intervals spread over the log. */
-function nominalInterval(timeS: Float64Array): number {
-  const n = timeS.length - 1;
-  const step = Math.max(1, Math.floor(n / 4001));
-  const d: number[] = [];
-  for (let i = 1; i <= n; i += step) d.push((timeS[i] ?? 0) - (timeS[i - 1] ?? 0));
-  d.sort((a, b) => a - b);
-  return d[Math.floor(d.length / 2)] ?? 0;
-}
-
-/** Sampling, length, rate and clipping checks on an ingested log; rowOf maps a sample index to its file row. */
-/** Running figures over the log, gathered piece by piece (see logStats). */
-interface Stats {
-  revRad: number;
-  maxC: number;
-  minC: number;
-  maxG: number;
-  minG: number;
-  minDt: number;
-  maxDt: number;
-}
-
-/** Fold samples [from, to) (from ≥ 1) into st. Units: s, rad/s, rad. */
-function statsPiece(
-  t: Float64Array,
-  c: Float64Array,
-  g: Float64Array,
-  from: number,
-  to: number,
-  st: Stats,
-): void {
-  let { revRad, maxC, minC, maxG, minG, minDt, maxDt } = st;
-  let tPrev = t[from - 1]!,
-    cPrev = c[from - 1]!;
-  for (let i = from; i < to; i++) {
-    const ti = t[i]!,
-      ci = c[i]!,
-      gi = g[i]!;
-    const dt = ti - tPrev;
-    if (dt < minDt) minDt = dt;
-    if (dt > maxDt) maxDt = dt;
-    revRad += (ci + cPrev) * 0.5 * dt;
-    if (ci > maxC) maxC = ci;
-    if (ci < minC) minC = ci;
-    if (gi > maxG) maxG = gi;
-    if (gi < minG) minG = gi;
-    tPrev = ti;
-    cPrev = ci;
-  }
-  Object.assign(st, { revRad, maxC, minC, maxG, minG, minDt, maxDt });
-}
-
-/**
- * One pass for sampling extremes, revolutions and channel extremes. Run in pieces of 16 k
- * samples because a single call with a 3 M-sample loop runs long before V8 optimises it
- * (measured: ~50 ms as one loop, ~25 ms in pieces, on the bench log).
- */
-function logStats(log: DriveLog): Stats {
-  const st: Stats = {
-    revRad: 0,
-    maxC: -Infinity,
-    minC: Infinity,
-    maxG: -Infinity,
-    minG: Infinity,
-    minDt: Infinity,
-    maxDt: -Infinity,
-  };
-  const n = log.timeS.length;
-  if (n > 0) {
-    st.maxC = st.minC = log.crankRadS[0]!;
-    st.maxG = st.minG = log.gearboxRadS[0]!;
-  }
-  for (let s = 1; s < n; s += 16384)
-    statsPiece(log.timeS, log.crankRadS, log.gearboxRadS, s, Math.min(n, s + 16384), st);
-  return st;
-}
-
-/** Index where `values` first stays equal to `max` for `need` samples in a row, or −1. */
-function firstRunAt(values: Float64Array, max: number, need: number): number {
-  let run = 0;
-  for (let i = 0; i < values.length; i++) {
-    run = values[i] === max ? run + 1 : 0;
-    if (run === need) return i - need + 1;
-  }
-  return -1;
-}
-
-/** Sampling, length, rate and clipping checks on an ingested log; rowOf maps a sample index to its file row. */
-function checkLog(
-  log: DriveLog,
-  rowOf: (i: number) => number,
-  o: CheckOptions,
-): { error?: SignalIssue; warnings: SignalIssue[] } {
-  const warnings: SignalIssue[] = [];
-  const { timeS } = log;
-  const n = timeS.length;
-  const col = log.source.timeColumn;
-  const u = log.source.timeUnit;
-  const inFile = (s: number) => `${fmt(s / S_PER_UNIT[u])} ${u}`;
-  const st = logStats(log);
-  const nom = n >= 3 ? nominalInterval(timeS) : 0;
-  const tol = (o.samplingTolerance ?? 0.1) * nom;
-  const gap = (o.gapFactor ?? 1.5) * nom;
-  // The row-by-row search only runs when the extremes show that something is off.
-  if (n >= 3 && (st.maxDt - nom > tol || nom - st.minDt > tol)) {
-    const irregular: number[] = [];
-    let count = 0;
-    for (let i = 1; i < n; i++) {
-      const dt = timeS[i]! - timeS[i - 1]!;
-      if (dt > gap) {
-        const r = rowOf(i);
-        const message = `gap in the time at row ${r}: ${inFile(timeS[i - 1]!)} to ${inFile(timeS[i]!)}, the sampling interval is ${inFile(nom)}`;
-        return { warnings, error: { code: "time_gap", message, row: r, column: col } };
-      }
-      if (dt - nom > tol || nom - dt > tol) {
-        count++;
-        if (irregular.length < 5) irregular.push(rowOf(i));
-      }
-    }
-    const rows =
-      (count === 1 ? "row " : "rows ") +
-      irregular.join(", ") +
-      (count > irregular.length ? ", …" : "");
-    const pct = Math.round((o.samplingTolerance ?? 0.1) * 100);
-    const message = `sampling is irregular at ${count} ${count === 1 ? "row" : "rows"} (${rows}): intervals differ from ${inFile(nom)} by more than ${pct} %`;
-    return {
-      warnings,
-      error: { code: "irregular_sampling", message, row: irregular[0] ?? 0, column: col },
-    };
-  }
-  const durationS = n > 1 ? timeS[n - 1]! - timeS[0]! : 0;
-  const revs = st.revRad / (2 * Math.PI);
-  const minS = o.minDurationS ?? 2;
-  const minRevs = o.minRevs ?? 20;
-  if (durationS < minS || revs < minRevs) {
-    const message = `the log is short (${fmt(durationS)} s, ${Math.round(revs)} crank revolutions); results need at least ${minS} s and ${minRevs} revolutions to be reliable`;
-    warnings.push({ code: "short_log", message });
-  }
-  const topOrder = o.topOrder ?? 6;
-  // Sampling theorem: order q at shaft frequency f needs a sampling rate above 2·q·f.
-  const needHz = (2 * topOrder * st.maxC) / (2 * Math.PI);
-  if (n > 1 && log.sampleRateHz < needHz) {
-    const rpm = Math.round((st.maxC * 60) / (2 * Math.PI));
-    const message = `the sampling rate ${fmt(log.sampleRateHz)} Hz is too low for order ${topOrder} at ${rpm} rpm (needs more than ${Math.ceil(needHz)} Hz)`;
-    warnings.push({ code: "low_sample_rate", message });
-  }
-  const need = o.clipRunSamples ?? 10;
-  const channels = [
-    [log.crankRadS, log.source.crankColumn, st.maxC, st.minC],
-    [log.gearboxRadS, log.source.gearboxColumn, st.maxG, st.minG],
-  ] as const;
-  for (const [values, name, max, min] of channels) {
-    if (!(max > min) || max <= 0) continue;
-    const at = firstRunAt(values, max, need);
-    if (at < 0) continue;
-    const r = rowOf(at);
-    const message = `column "${name}" stays at its maximum for ${need} or more samples from row ${r}; the sensor or logger may be clipping`;
-    warnings.push({ code: "clipped_values", message, row: r, column: name });
-  }
-  return { warnings };
 }
 
 /** A chunked ingester; feed it with push() and call finish() once. Options as IngestOptions. */
