@@ -1,5 +1,6 @@
 import { Link } from "react-router";
 import type { AnalysisResult } from "~/lib/signal";
+import { marginText, TARGET_STATUS_LABELS, type TargetVerdict } from "~/lib/targets";
 import { VerdictCaution } from "./caution-note";
 import { linkClass } from "./form-fields";
 import { Card, tableClass, tdClass, thClass } from "./page";
@@ -88,25 +89,7 @@ const dB = (x: number) => `${x >= 0 ? "" : "−"}${Math.abs(x).toFixed(1)} dB`;
 const rpm = (x: number) => `${Math.round(x)} rpm`;
 const rad = (x: number) => `${x.toFixed(0)} rad/s²`;
 
-/** A target's verdict as the summary shows it (app/lib/targets.ts computes them). */
-export interface TargetTileVerdict {
-  targetId: number;
-  name: string;
-  status: "pass" | "fail" | "not-covered" | "not-applicable";
-  value: number | null;
-  limit: number;
-  margin: number | null;
-  unit: string;
-  detail: string;
-}
-
-const statusText: Record<TargetTileVerdict["status"], string> = {
-  pass: "pass",
-  fail: "fail",
-  "not-covered": "not covered",
-  "not-applicable": "does not apply",
-};
-const statusClass: Record<TargetTileVerdict["status"], string> = {
+const statusClass: Record<TargetVerdict["status"], string> = {
   pass: "text-green-700",
   fail: "text-red-700",
   "not-covered": "text-neutral-500",
@@ -124,7 +107,7 @@ export function AnalysisSummaryView({
 }: {
   s: AnalysisSummary;
   /** Null when the caller does not show targets (e.g. a share link without them). */
-  targets?: TargetTileVerdict[] | null;
+  targets?: TargetVerdict[] | null;
   rattleHref?: string;
 }) {
   const applicable = targets?.filter((t) => t.status !== "not-applicable") ?? [];
@@ -324,21 +307,19 @@ export function TargetVerdictList({
   verdicts,
   className = "",
 }: {
-  verdicts: TargetTileVerdict[];
+  verdicts: TargetVerdict[];
   className?: string;
 }) {
   return (
     <ul className={`space-y-1.5 text-sm ${className}`} data-testid="target-verdicts">
       {verdicts.map((t) => (
         <li key={t.targetId} data-status={t.status}>
-          <span className={`font-semibold ${statusClass[t.status]}`}>{statusText[t.status]}</span>{" "}
+          <span className={`font-semibold ${statusClass[t.status]}`}>
+            {TARGET_STATUS_LABELS[t.status]}
+          </span>{" "}
           {t.name}
           {t.margin !== null ? (
-            <span className="text-neutral-600">
-              {" "}
-              — margin {t.margin >= 0 ? "+" : "−"}
-              {Math.abs(t.margin).toFixed(1)} {t.unit}
-            </span>
+            <span className="text-neutral-600"> — margin {marginText(t)}</span>
           ) : null}
           <span className="block text-xs text-neutral-500">{t.detail}</span>
         </li>

@@ -1,10 +1,9 @@
 import { useMemo } from "react";
 import { Form } from "react-router";
-import { conditionLabels, LOG_CONDITIONS } from "~/lib/drive-log-terms";
+import { conditionLabels, gearLabel, LOG_CONDITIONS } from "~/lib/drive-log-terms";
 import { FORM_ID } from "./drive-log-columns";
 import {
   gearKey,
-  gearLabel,
   VERDICTS,
   type DriveLogTableRow,
   type Filters,

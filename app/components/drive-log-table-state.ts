@@ -52,9 +52,6 @@ export const VERDICTS = [
 
 export const isIdle = (c: LogCondition) => c === "idle-neutral" || c === "idle-in-gear";
 
-export function gearLabel(g: number | null): string {
-  return g === null ? "—" : g === 0 ? "neutral" : g === -1 ? "reverse" : String(g);
-}
 export const gearKey = (g: number | null) => (g === null ? "none" : String(g));
 
 /** The rows that pass the filters (exact matches; the date range includes both ends). */

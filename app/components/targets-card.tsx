@@ -7,6 +7,7 @@ import {
   limitText,
   marginText,
   scopeText,
+  TARGET_STATUS_LABELS,
   targetSchema,
   type Target,
   type TargetInput,
@@ -192,13 +193,6 @@ function Disclosure({
   );
 }
 
-const statusText: Record<TargetVerdict["status"], string> = {
-  pass: "pass",
-  fail: "fail",
-  "not-covered": "not covered",
-  "not-applicable": "does not apply",
-};
-
 /** The newest applicable drive log's verdict, with its margin and the reason in words. */
 function Latest({
   vehicleId,
@@ -222,7 +216,7 @@ function Latest({
       >
         {fileName}
       </Link>{" "}
-      <span className={`font-medium ${tone}`}>{statusText[v.status]}</span>
+      <span className={`font-medium ${tone}`}>{TARGET_STATUS_LABELS[v.status]}</span>
       {v.margin !== null ? <span className="tabular-nums"> (margin {marginText(v)})</span> : null}
       <span className="block text-xs text-neutral-500">{v.detail}</span>
     </p>

@@ -26,6 +26,11 @@ export const conditionLabels: Record<LogCondition, string> = {
   other: "Other",
 };
 
+/** A drive log's gear as pages show it: "—" when not given, neutral (0), reverse (−1) or its number. */
+export function gearLabel(g: number | null): string {
+  return g === null ? "—" : g === 0 ? "neutral" : g === -1 ? "reverse" : String(g);
+}
+
 /** A drive log's state as the API reports it. */
 export const LOG_STATES = ["queued", "analysing", "done", "failed"] as const;
 export type LogState = (typeof LOG_STATES)[number];

@@ -8,7 +8,7 @@ import { firingOrder } from "./signal";
 import { NOT_FOUND_MESSAGE, UNAVAILABLE_MESSAGE } from "./share-schema";
 import { resolveShare, sharedLogIds, type ResolvedShare } from "./shares.server";
 import { teamData } from "./team-data.server";
-import { vehicleData } from "./vehicles.server";
+import { vehicleData, type DriveLogRow } from "./vehicles.server";
 
 /**
  * What every answer under /s/:token carries: the URL holds a secret, so it must not leave in a
@@ -51,15 +51,28 @@ export async function shareForJson(token: string | undefined): Promise<ActiveSha
  * One drive-log id from `?log=` that the share opens (its own log when absent), or null when
  * the id is not one of the share's: a share link never reaches another drive log.
  */
-export function sharedLogFromQuery(
-  share: ActiveShare["share"],
-  value: string | null,
-): number | null {
+function sharedLogFromQuery(share: ActiveShare["share"], value: string | null): number | null {
   const ids = sharedLogIds(share);
   if (value === null || value === "") return ids[0] ?? null;
   if (!/^\d{1,15}$/.test(value)) return null;
   const id = Number(value);
   return ids.includes(id) ? id : null;
+}
+
+/**
+ * The drive log a share link's JSON route is asked for (`?log=ID`, default its first): the row,
+ * or a 404 answer when the id is not one of the share's drive logs.
+ */
+export async function sharedLogFor(
+  active: ActiveShare,
+  request: Request,
+): Promise<DriveLogRow | Response> {
+  const logId = sharedLogFromQuery(active.share, new URL(request.url).searchParams.get("log"));
+  const missing = () =>
+    shareJsonError(404, "not_found", "That drive log is not part of this share link.");
+  if (logId === null) return missing();
+  const log = await vehicleData(active.teamId).log(logId);
+  return log.vehicleId === active.share.vehicleId ? log : missing();
 }
 
 /** Everything the shared page shows, and nothing else of the team (no ids of other records). */

@@ -37,6 +37,14 @@ export interface Target {
 
 export type TargetStatus = "pass" | "fail" | "not-covered" | "not-applicable";
 
+/** A verdict's status in words, as pages show it. */
+export const TARGET_STATUS_LABELS: Record<TargetStatus, string> = {
+  pass: "pass",
+  fail: "fail",
+  "not-covered": "not covered",
+  "not-applicable": "does not apply",
+};
+
 export interface TargetVerdict {
   targetId: number;
   name: string;

@@ -56,10 +56,18 @@ export function vehicleData(teamId: number) {
     return row;
   }
 
+  /** A drive log in its vehicle, as a URL names them: 404 unless the log is that vehicle's. */
+  async function vehicleLog(vehicleId: number, logId: number) {
+    const [v, l] = await Promise.all([vehicle(vehicleId), log(logId)]);
+    invariantResponse(l.vehicleId === v.id, "No such drive log for this vehicle.", { status: 404 });
+    return { vehicle: v, log: l };
+  }
+
   return {
     teamId,
     vehicle,
     log,
+    vehicleLog,
 
     list(options: { archived?: boolean } = {}) {
       return db

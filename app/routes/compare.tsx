@@ -1,9 +1,9 @@
-import { Link, redirect, useLoaderData } from "react-router";
+import { redirect, useLoaderData } from "react-router";
 import { CommentsPanel } from "~/components/comments-panel";
 import { ComparisonView } from "~/components/comparison-view";
 import { SharePanel } from "~/components/share-panel";
+import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
-import { linkClass } from "~/components/form-fields";
 import { compareIsolation } from "~/lib/comparison";
 import { comparisonLogs } from "~/lib/comparison.server";
 import { curvesForLogs, parseLogIds } from "~/lib/curves.server";
@@ -59,16 +59,13 @@ export default function ComparePage() {
   const ids = logs.map((l) => l.id);
   return (
     <main className="space-y-6">
-      <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
-        <Link to="/vehicles" className={linkClass}>
-          Vehicles
-        </Link>{" "}
-        ›{" "}
-        <Link to={`/vehicles/${vehicle.id}`} className={linkClass}>
-          {vehicle.identifier}
-        </Link>{" "}
-        › Comparison
-      </nav>
+      <Breadcrumb
+        trail={[
+          { label: "Vehicles", to: "/vehicles" },
+          { label: vehicle.identifier, to: `/vehicles/${vehicle.id}` },
+          { label: "Comparison" },
+        ]}
+      />
       <ComparisonView
         vehicle={vehicle}
         logs={logs}

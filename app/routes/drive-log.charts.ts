@@ -1,6 +1,6 @@
 import { chartsBody } from "~/lib/chart-data.server";
 import { idParam } from "~/lib/params";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/drive-log.charts";
 
@@ -12,11 +12,7 @@ import type { Route } from "./+types/drive-log.charts";
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "viewer");
   const data = vehicleData(team.id);
-  const vehicleId = idParam(params.vehicleId);
-  const log = await data.log(idParam(params.logId));
-  invariantResponse(log.vehicleId === vehicleId, "No such drive log for this vehicle.", {
-    status: 404,
-  });
+  const { log } = await data.vehicleLog(idParam(params.vehicleId), idParam(params.logId));
   const body = await chartsBody(data, log);
   if (body === null)
     return Response.json(

@@ -8,14 +8,7 @@ import type { Route } from "./+types/drive-log.result-csv";
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "viewer");
   const data = vehicleData(team.id);
-  const log = await data.log(idParam(params.logId));
-  invariantResponse(
-    log.vehicleId === idParam(params.vehicleId),
-    "No such drive log for this vehicle.",
-    {
-      status: 404,
-    },
-  );
+  const { log } = await data.vehicleLog(idParam(params.vehicleId), idParam(params.logId));
   const analysis = await data.latestAnalysis(log.id);
   invariantResponse(analysis, "This drive log has no analysis yet.", { status: 404 });
   const name = `drive-log-${log.id}-analysis-${analysis.version}.csv`;

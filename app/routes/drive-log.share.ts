@@ -1,5 +1,4 @@
 import { idParam } from "~/lib/params";
-import { invariantResponse } from "~/lib/permissions.server";
 import { sharePanelAction, sharePanelLoader, type SubjectResolver } from "~/lib/share-panel.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/drive-log.share";
@@ -12,11 +11,10 @@ import type { Route } from "./+types/drive-log.share";
 function subjectOf(params: Route.LoaderArgs["params"]): SubjectResolver {
   return async (current) => {
     const data = vehicleData(current.team.id);
-    const vehicle = await data.vehicle(idParam(params.vehicleId));
-    const log = await data.log(idParam(params.logId));
-    invariantResponse(log.vehicleId === vehicle.id, "No such drive log for this vehicle.", {
-      status: 404,
-    });
+    const { vehicle, log } = await data.vehicleLog(
+      idParam(params.vehicleId),
+      idParam(params.logId),
+    );
     return { kind: "log", vehicleId: vehicle.id, logId: log.id };
   };
 }

@@ -1,9 +1,10 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Link, useActionData, useLoaderData } from "react-router";
+import { data, useActionData, useLoaderData } from "react-router";
 import { AnalysisDetails, AnalysisSummaryView, summarise } from "~/components/analysis-summary";
 import { ColumnMapping, mappingSchema } from "~/components/column-mapping";
 import { DriveLogCharts } from "~/components/charts";
 import { Failure, MAPPING_CODES } from "~/components/log-failure";
+import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
 import { isActive, LogStatus } from "~/components/log-status";
@@ -14,7 +15,7 @@ import { SharePanel } from "~/components/share-panel";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
 import { assertCsrf } from "~/lib/csrf.server";
 import { logLabel } from "~/lib/curves.server";
-import { conditionLabels, type IngestMapping } from "~/lib/drive-log-terms";
+import { conditionLabels, gearLabel, type IngestMapping } from "~/lib/drive-log-terms";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { atLeast } from "~/lib/roles";
@@ -36,11 +37,10 @@ async function load(
 ) {
   const current = await requireTeamRole(request, role);
   const vehicles = vehicleData(current.team.id);
-  const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
-  const log = await vehicles.log(idParam(params.logId));
-  invariantResponse(log.vehicleId === vehicle.id, "No such drive log for this vehicle.", {
-    status: 404,
-  });
+  const { vehicle, log } = await vehicles.vehicleLog(
+    idParam(params.vehicleId),
+    idParam(params.logId),
+  );
   return { ...current, vehicles, vehicle, log };
 }
 
@@ -165,32 +165,20 @@ export default function DriveLogPage() {
   const latest = versions[0];
   return (
     <main className="space-y-6">
-      <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
-        <Link to="/vehicles" className={linkClass}>
-          Vehicles
-        </Link>{" "}
-        ›{" "}
-        <Link to={`/vehicles/${vehicle.id}`} className={linkClass}>
-          {vehicle.identifier}
-        </Link>{" "}
-        › {conditionLabels[log.condition]}
-        {log.testDate ? `, ${log.testDate}` : ""}
-      </nav>
+      <Breadcrumb
+        trail={[
+          { label: "Vehicles", to: "/vehicles" },
+          { label: vehicle.identifier, to: `/vehicles/${vehicle.id}` },
+          { label: `${conditionLabels[log.condition]}${log.testDate ? `, ${log.testDate}` : ""}` },
+        ]}
+      />
       <header className="flex flex-wrap items-start justify-between gap-4">
         <div>
           <h1 className="text-2xl font-semibold tracking-tight break-all">{log.fileName}</h1>
           <dl className="mt-3 flex flex-wrap gap-x-6 gap-y-1 text-sm">
             <Meta term="Vehicle">{vehicle.name}</Meta>
             <Meta term="Condition">{conditionLabels[log.condition]}</Meta>
-            <Meta term="Gear">
-              {log.gear === null
-                ? "—"
-                : log.gear === 0
-                  ? "neutral"
-                  : log.gear === -1
-                    ? "reverse"
-                    : log.gear}
-            </Meta>
+            <Meta term="Gear">{gearLabel(log.gear)}</Meta>
             <Meta term="Damper variant">{log.damperVariant}</Meta>
             <Meta term="Test date">
               {log.testDate ? <When date={log.testDate} dateOnly /> : "—"}

@@ -2,12 +2,13 @@ import { Link, useLoaderData } from "react-router";
 import { TargetVerdictList } from "~/components/analysis-summary";
 import { VerdictCaution } from "~/components/caution-note";
 import { RattleCharts } from "~/components/charts";
+import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
 import { Card, EmptyState, tableClass, tdClass, thClass } from "~/components/page";
 import { conditionLabels, RATTLE_LIMIT_SOURCE } from "~/lib/drive-log-terms";
 import { idParam } from "~/lib/params";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { requireTeamRole } from "~/lib/permissions.server";
 import { rattleReading } from "~/lib/rattle-reading";
 import { targetData } from "~/lib/targets.server";
 import { vehicleData } from "~/lib/vehicles.server";
@@ -21,11 +22,7 @@ export const meta = ({ data }: Route.MetaArgs) => [
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "viewer");
   const data = vehicleData(team.id);
-  const vehicle = await data.vehicle(idParam(params.vehicleId));
-  const log = await data.log(idParam(params.logId));
-  invariantResponse(log.vehicleId === vehicle.id, "No such drive log for this vehicle.", {
-    status: 404,
-  });
+  const { vehicle, log } = await data.vehicleLog(idParam(params.vehicleId), idParam(params.logId));
   const analysis = await data.latestAnalysis(log.id);
   const idle = analysis?.result.idle ?? null;
   // The vehicle's rattle targets, judged on this analysis (isolation targets are on the drive-log page).
@@ -57,21 +54,17 @@ export default function RattlePage() {
   const logHref = `/vehicles/${vehicle.id}/logs/${log.id}`;
   return (
     <main className="space-y-6">
-      <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
-        <Link to="/vehicles" className={linkClass}>
-          Vehicles
-        </Link>{" "}
-        ›{" "}
-        <Link to={`/vehicles/${vehicle.id}`} className={linkClass}>
-          {vehicle.identifier}
-        </Link>{" "}
-        ›{" "}
-        <Link to={logHref} className={linkClass}>
-          {conditionLabels[log.condition]}
-          {log.testDate ? `, ${log.testDate}` : ""}
-        </Link>{" "}
-        › Rattle check
-      </nav>
+      <Breadcrumb
+        trail={[
+          { label: "Vehicles", to: "/vehicles" },
+          { label: vehicle.identifier, to: `/vehicles/${vehicle.id}` },
+          {
+            label: `${conditionLabels[log.condition]}${log.testDate ? `, ${log.testDate}` : ""}`,
+            to: logHref,
+          },
+          { label: "Rattle check" },
+        ]}
+      />
       <header>
         <h1 className="text-2xl font-semibold tracking-tight">Rattle check</h1>
         <p className="mt-1 text-sm text-neutral-600 break-all">

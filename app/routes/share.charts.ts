@@ -1,10 +1,5 @@
 import { chartsBody } from "~/lib/chart-data.server";
-import {
-  shareForJson,
-  shareHeaders,
-  shareJsonError,
-  sharedLogFromQuery,
-} from "~/lib/share-page.server";
+import { shareForJson, shareHeaders, shareJsonError, sharedLogFor } from "~/lib/share-page.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/share.charts";
 
@@ -17,14 +12,9 @@ import type { Route } from "./+types/share.charts";
 export async function loader({ request, params }: Route.LoaderArgs) {
   const active = await shareForJson(params.token);
   if (active instanceof Response) return active;
-  const logId = sharedLogFromQuery(active.share, new URL(request.url).searchParams.get("log"));
-  if (logId === null)
-    return shareJsonError(404, "not_found", "That drive log is not part of this share link.");
-  const data = vehicleData(active.teamId);
-  const log = await data.log(logId);
-  if (log.vehicleId !== active.share.vehicleId)
-    return shareJsonError(404, "not_found", "That drive log is not part of this share link.");
-  const body = await chartsBody(data, log);
+  const log = await sharedLogFor(active, request);
+  if (log instanceof Response) return log;
+  const body = await chartsBody(vehicleData(active.teamId), log);
   if (body === null)
     return shareJsonError(404, "no_result", `This drive log has no analysis yet (${log.status}).`);
   return new Response(body, {

@@ -4,7 +4,7 @@ import { DriveLogCharts } from "~/components/charts/drive-log-charts";
 import { ComparisonView } from "~/components/comparison-view";
 import { LogoMark } from "~/components/logo-mark";
 import { Card, When } from "~/components/page";
-import { conditionLabels } from "~/lib/drive-log-terms";
+import { conditionLabels, gearLabel } from "~/lib/drive-log-terms";
 import { countShareView } from "~/lib/shares.server";
 import { requireShareForPage, shareHeaders, sharedPageData } from "~/lib/share-page.server";
 import { NOT_FOUND_MESSAGE, UNAVAILABLE_MESSAGE } from "~/lib/share-schema";
@@ -99,15 +99,7 @@ export default function SharedPage() {
             </Heading>
             <dl className="mt-2 flex flex-wrap gap-x-6 gap-y-1 text-sm">
               <Inline term="Condition">{conditionLabels[log.condition]}</Inline>
-              <Inline term="Gear">
-                {log.gear === null
-                  ? "—"
-                  : log.gear === 0
-                    ? "neutral"
-                    : log.gear === -1
-                      ? "reverse"
-                      : log.gear}
-              </Inline>
+              <Inline term="Gear">{gearLabel(log.gear)}</Inline>
               <Inline term="Damper variant">{log.damperVariant}</Inline>
               <Inline term="Test date">
                 {log.testDate ? <When date={log.testDate} dateOnly /> : "—"}

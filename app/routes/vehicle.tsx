@@ -14,6 +14,7 @@ import {
 import { RoadTestCaution, VerdictCaution } from "~/components/caution-note";
 import { CurveOverlay } from "~/components/charts";
 import { CsrfInput } from "~/components/csrf-input";
+import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { SubmitButton } from "~/components/form";
 import { buttonLinkClass, linkClass } from "~/components/form-fields";
@@ -291,12 +292,7 @@ export default function VehiclePage() {
 
   return (
     <main className="space-y-6">
-      <nav aria-label="Breadcrumb" className="text-sm text-neutral-500">
-        <Link to="/vehicles" className={linkClass}>
-          Vehicles
-        </Link>{" "}
-        › {vehicle.identifier}
-      </nav>
+      <Breadcrumb trail={[{ label: "Vehicles", to: "/vehicles" }, { label: vehicle.identifier }]} />
       <div className="flex flex-wrap items-start justify-between gap-4">
         <div>
           <h1 className="text-2xl font-semibold tracking-tight">

@@ -5,7 +5,7 @@ import { extent, formatValue } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
-import type { LegendEntry } from "./legend";
+import { commentLegend, type LegendEntry } from "./legend";
 import { ENGINE_SPEED_CHART_HEIGHT } from "./order-curves";
 import { COLOURS, FONT_FAMILY } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -164,17 +164,7 @@ export const IsolationCurve = memo(function IsolationCurve({
           },
         ]
       : []),
-    ...(rpmMarkers.length
-      ? [
-          {
-            kind: "line" as const,
-            label: "Comment",
-            colour: COLOURS.marker,
-            dash: [4, 3],
-            width: 1.25,
-          },
-        ]
-      : []),
+    ...commentLegend(rpmMarkers),
   ];
 
   const status = !charts ? "loading" : iso && iso.rpm.length ? "ready" : "empty";

@@ -14,6 +14,13 @@ export type LegendEntry =
 const W = 22;
 const H = 12;
 
+/** The legend entry for pinned comments, when the chart draws any (else nothing). */
+export function commentLegend(markers: readonly unknown[]): LegendEntry[] {
+  return markers.length
+    ? [{ kind: "line", label: "Comment", colour: COLOURS.marker, dash: [4, 3], width: 1.25 }]
+    : [];
+}
+
 export function Swatch({ entry }: { entry: LegendEntry }) {
   return (
     <svg width={W} height={H} viewBox={`0 0 ${W} ${H}`} aria-hidden="true" className="shrink-0">

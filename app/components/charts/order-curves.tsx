@@ -11,7 +11,7 @@ import { formatValue } from "./chart-math";
 import { ChartFrame, Segmented, SelectControl } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
-import type { LegendEntry } from "./legend";
+import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
 import { cursor, drawXMarkers, fromZero, lineSeries, xAxis, xRangeAround, yAxis } from "./plot-kit";
@@ -100,17 +100,7 @@ export const OrderCurves = memo(function OrderCurves({
   const legend: LegendEntry[] = [
     { kind: "line", label: `Crank, order ${order}`, colour: COLOURS.crank },
     { kind: "line", label: `Gearbox input, order ${order}`, colour: COLOURS.gearbox, dash: [6, 3] },
-    ...(rpmMarkers.length
-      ? [
-          {
-            kind: "line" as const,
-            label: "Comment",
-            colour: COLOURS.marker,
-            dash: [4, 3],
-            width: 1.25,
-          },
-        ]
-      : []),
+    ...commentLegend(rpmMarkers),
   ];
 
   const status = !charts ? "loading" : curve && curve.rpm.length ? "ready" : "empty";

@@ -6,7 +6,7 @@ import { extent, formatValue, withGaps } from "./chart-math";
 import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
-import type { LegendEntry } from "./legend";
+import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
 import {
@@ -144,17 +144,7 @@ const AccelChart = memo(function AccelChart({
           },
         ]
       : []),
-    ...(timeMarkers.length
-      ? [
-          {
-            kind: "line" as const,
-            label: "Comment",
-            colour: COLOURS.marker,
-            dash: [4, 3],
-            width: 1.25,
-          },
-        ]
-      : []),
+    ...commentLegend(timeMarkers),
   ];
   const status = !charts ? "loading" : trace && trace.timeS.length ? "ready" : "empty";
   const summary = idle
@@ -273,17 +263,7 @@ const FluctuationChart = memo(function FluctuationChart({
   const legend: LegendEntry[] = [
     { kind: "line", label: "Crank", colour: COLOURS.crank },
     { kind: "line", label: "Gearbox input", colour: COLOURS.gearbox, dash: [6, 3] },
-    ...(timeMarkers.length
-      ? [
-          {
-            kind: "line" as const,
-            label: "Comment",
-            colour: COLOURS.marker,
-            dash: [4, 3],
-            width: 1.25,
-          },
-        ]
-      : []),
+    ...commentLegend(timeMarkers),
   ];
   const status = !charts ? "loading" : trace && trace.timeS.length ? "ready" : "empty";
   const c = trace ? extent(trace.crankRpm) : null;

@@ -5,7 +5,7 @@ import { extent, formatValue } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
-import type { LegendEntry } from "./legend";
+import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
 import {
@@ -95,17 +95,7 @@ export const SpeedTrace = memo(function SpeedTrace({
     { kind: "line", label: "Crank", colour: COLOURS.crank },
     { kind: "line", label: "Gearbox input", colour: COLOURS.gearbox, dash: [6, 3] },
     { kind: "area", label: "Operating segment (labelled)", colour: COLOURS.bandA },
-    ...(timeMarkers.length
-      ? [
-          {
-            kind: "line" as const,
-            label: "Comment",
-            colour: COLOURS.marker,
-            dash: [4, 3],
-            width: 1.25,
-          },
-        ]
-      : []),
+    ...commentLegend(timeMarkers),
   ];
 
   const status = !charts ? "loading" : trace && trace.timeS.length ? "ready" : "empty";
