@@ -3,6 +3,11 @@
 # and ports, so it can run beside a running `npm start`. Then the type check, vitest (unit and
 # integration tests against the real MariaDB), the production build and the browser tests in
 # Debian's Chromium. Every step runs; the exit code is non-zero if any failed.
+#
+#   npm test                      everything (what CI runs)
+#   npm test -- FILTER...         the same bootstrap, then only the test files whose path contains a
+#                                 FILTER (vitest's own filter), without the type check; the browser
+#                                 step runs when a filter names a file under tests/e2e
 set -uo pipefail
 cd "$(dirname "$0")/.."
 source scripts/lib.sh
@@ -51,11 +56,12 @@ step() {
   if "$@"; then passed=$((passed + 1)); else failed=$((failed + 1)); failed_steps+=("$name"); fi
 }
 
-step "type check" npm run -s typecheck
+filters=("$@")
+if [ ${#filters[@]} -eq 0 ]; then step "type check" npm run -s typecheck; fi
 step "test database" bash -c 'bash scripts/mariadb.sh start && node_modules/.bin/tsx scripts/migrate.ts && node_modules/.bin/tsx scripts/seed.ts >/dev/null'
 # Built before vitest: integration tests start the production server with broken settings.
 step "production build" bash -c 'npm run -s build >/dev/null'
-step "unit and integration tests" node_modules/.bin/vitest run
+step "unit and integration tests" node_modules/.bin/vitest run --passWithNoTests "${filters[@]}"
 
 start_server() {
   if port_busy "$TEST_PORT"; then log "port $TEST_PORT is in use: set TEST_PORT to a free port"; return 1; fi
@@ -63,8 +69,15 @@ start_server() {
   server_pid=$!
   wait_for_http "$TWISTLOG_BASE_URL/healthz" "$server_pid" 60 || { cat "$TEST_ROOT/server.log" >&2; return 1; }
 }
-step "test server" start_server
-step "browser tests" node_modules/.bin/vitest run --config vitest.e2e.config.ts
+wants_browser() {
+  [ ${#filters[@]} -eq 0 ] && return 0
+  local f; for f in "${filters[@]}"; do case "$f" in *e2e*) return 0 ;; esac; done
+  return 1
+}
+if wants_browser; then
+  step "test server" start_server
+  step "browser tests" node_modules/.bin/vitest run --config vitest.e2e.config.ts --passWithNoTests "${filters[@]}"
+fi
 
 echo
 if [ "$failed" -gt 0 ]; then log "failed: ${failed_steps[*]}"; fi
