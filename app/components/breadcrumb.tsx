@@ -3,7 +3,7 @@ import { Link } from "react-router";
 import { linkClass } from "./form-fields";
 
 /**
- * The trail under the header on deep pages (UI.md): "Vehicles › KST-D4 › Run-up, 2026-11-04".
+ * The trail under the header on deep pages (docs/ui.md): "Vehicles › KST-D4 › Run-up, 2026-11-04".
  * Every step but the last is a link; the last names the page itself.
  */
 export function Breadcrumb({ trail }: { trail: { label: string; to?: string }[] }) {

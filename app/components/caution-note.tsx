@@ -1,4 +1,4 @@
-// The cautions of DESIGN.md §8, shown where a user uploads a drive log or reads a verdict.
+// The cautions of docs/architecture.md §8, shown where a user uploads a drive log or reads a verdict.
 
 const box =
   "rounded-md border border-amber-500 bg-amber-50 px-4 py-3 text-sm leading-relaxed text-amber-950";

@@ -8,7 +8,7 @@ import {
 } from "./drive-log-table-state";
 
 // The drive-log table's filters and URL state: our own product behaviour (the vehicle page in
-// ../shared/UI.md; issue 6 item 2). Expected rows are picked by hand from the three below.
+// docs/ui.md; issue 6 item 2). Expected rows are picked by hand from the three below.
 
 const base: DriveLogTableRow = {
   id: 1,
@@ -56,7 +56,7 @@ const rows: DriveLogTableRow[] = [
 const none: Filters = { condition: "", gear: "", variant: "", from: "", to: "", verdict: "" };
 const ids = (f: Partial<Filters>) => filterRows(rows, { ...none, ...f }).map((r) => r.id);
 
-describe("drive-log table filters (product behaviour, UI.md vehicle page)", () => {
+describe("drive-log table filters (product behaviour, docs/ui.md vehicle page)", () => {
   it("condition, gear (with 'none' for logs without one) and damper variant match exactly", () => {
     expect(ids({})).toEqual([1, 2, 3]);
     expect(ids({ condition: "run-up" })).toEqual([2]);

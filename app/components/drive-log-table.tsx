@@ -34,7 +34,7 @@ function useHydrated() {
 }
 
 /**
- * The vehicle page's drive logs (UI.md, vehicle page item 3): TanStack Table for sorting,
+ * The vehicle page's drive logs (docs/ui.md, vehicle page item 3): TanStack Table for sorting,
  * paging and row selection; filters above it. Its state is mirrored into the URL
  * (?condition=…&sort=…&page=…) so a filtered view can be bookmarked, and every control also
  * works as a plain GET form before JavaScript runs.

@@ -11,7 +11,7 @@ import type { z } from "zod";
 
 /**
  * One zod schema per form, used here for the browser's hints and in the action for the real
- * check (CONVENTIONS.md). After a refused submission the first field with an error gets focus,
+ * check (docs/conventions.md). After a refused submission the first field with an error gets focus,
  * with and without JavaScript (conform sets autoFocus on it when rendered on the server).
  */
 export function useSchemaForm<S extends z.ZodType<unknown, Record<string, unknown>>>(

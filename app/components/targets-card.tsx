@@ -68,7 +68,7 @@ function useHydrated() {
   return hydrated;
 }
 
-/** The vehicle page's "Targets" card (UI.md, vehicle page item 2). */
+/** The vehicle page's "Targets" card (docs/ui.md, vehicle page item 2). */
 export function TargetsCard({
   vehicleId,
   targets,

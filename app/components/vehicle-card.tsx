@@ -10,7 +10,7 @@ import {
 import { Card } from "./page";
 import { fuelLabels } from "./vehicle-form";
 
-/** The vehicle's data, every figure with its unit (UI.md, vehicle page item 1). */
+/** The vehicle's data, every figure with its unit (docs/ui.md, vehicle page item 1). */
 export function VehicleCard({
   vehicle: v,
 }: {

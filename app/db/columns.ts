@@ -1,7 +1,7 @@
 import { sql } from "drizzle-orm";
 import { bigint, customType, datetime } from "drizzle-orm/mysql-core";
 
-// Column helpers shared by the schema files. MariaDB notes (STACK-NOTES.md): no serial();
+// Column helpers shared by the schema files. MariaDB notes (docs/stack-notes.md): no serial();
 // ids are unsigned bigint auto-increment; datetimes keep milliseconds and are stored in UTC.
 export const id = () =>
   bigint("id", { mode: "number", unsigned: true }).autoincrement().primaryKey();

@@ -6,7 +6,7 @@ import { fileURLToPath } from "node:url";
 export const migrationsFolder = fileURLToPath(new URL("../../drizzle", import.meta.url));
 
 /**
- * Applies the committed drizzle-kit migrations on one connection (STACK-NOTES: drizzle-kit
+ * Applies the committed drizzle-kit migrations on one connection (docs/stack-notes.md: drizzle-kit
  * migrate hides the SQL error). Throws MigrationError whose message names the failing
  * statement and MariaDB's own error text.
  */

@@ -20,7 +20,7 @@ export const TARGET_KINDS = ["isolation", "rattle"] as const;
 export type TargetKind = (typeof TARGET_KINDS)[number];
 
 /**
- * A programme pass/fail limit of a vehicle (DESIGN.md §3 "target"). Isolation targets hold a
+ * A programme pass/fail limit of a vehicle (docs/architecture.md §3 "target"). Isolation targets hold a
  * minimum isolation at the firing order over an engine-speed range; rattle targets a maximum
  * gearbox-input angular acceleration at idle. Empty `conditions` / `gears` mean "every log".
  */

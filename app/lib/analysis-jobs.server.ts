@@ -2,7 +2,7 @@
  * The analysis queue. A job row per analysis makes the work restartable: any app instance
  * claims queued jobs (SELECT … FOR UPDATE SKIP LOCKED), keeps a heartbeat while it runs them,
  * and a job whose heartbeat went stale (its instance died) is claimed again. The computation
- * runs in a piscina worker pool, never on the request thread (DESIGN.md §5).
+ * runs in a piscina worker pool, never on the request thread (docs/architecture.md §5).
  */
 import { and, eq, isNull, lt, or, sql } from "drizzle-orm";
 import { randomBytes } from "node:crypto";
@@ -105,7 +105,7 @@ export async function claimJob(
 /** Test hook: called inside the save transaction after the rows are written, before commit. */
 export type BeforeCommit = (tx: Tx) => Promise<void>;
 
-/** Saves a finished analysis in one transaction: all rows or none (DESIGN.md §5). */
+/** Saves a finished analysis in one transaction: all rows or none (docs/architecture.md §5). */
 export async function saveAnalysis(
   db: Db,
   job: ClaimedJob,

@@ -39,7 +39,7 @@ export function listApiTokens(userId: number) {
     .orderBy(desc(apiTokens.createdAt));
 }
 
-/** Live tokens of the team's other members, for its admins (DESIGN.md §2). */
+/** Live tokens of the team's other members, for its admins (docs/architecture.md §2). */
 export function listTeamApiTokens(teamId: number, exceptUserId: number) {
   return db
     .select({

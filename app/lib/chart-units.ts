@@ -6,7 +6,7 @@
  * 1 rpm = 1 rev/min = 2π rad / 60 s (SI Brochure, 9th ed., the radian and the minute).
  * For ω(t) = Ω + Δω·sin(q·Ω·t) — order q of a fluctuation Δω about the mean speed Ω — the
  * angular acceleration is dω/dt = Δω·q·Ω·cos(q·Ω·t), so its amplitude is α = Δω·q·Ω (rad/s²
- * with Δω and Ω in rad/s; DESIGN.md §4).
+ * with Δω and Ω in rad/s; docs/architecture.md §4).
  */
 
 export type AmplitudeUnit = "rpm" | "rad/s" | "rad/s²";

@@ -1,5 +1,5 @@
 /**
- * Comparison of two or more drive logs' isolation curves (DESIGN.md §3 "comparison"): the change
+ * Comparison of two or more drive logs' isolation curves (docs/architecture.md §3 "comparison"): the change
  * in isolation per engine-speed band against the first (reference) drive log, which one isolates
  * better in each band, and a one-sentence verdict. Pure; shared by the page and its tests.
  *

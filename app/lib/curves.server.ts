@@ -17,7 +17,7 @@ export function logLabel(log: {
 
 /**
  * The isolation curve and the firing-order curve of the latest analysis of each drive log,
- * from the relational tables (DESIGN.md §5), in the order of `logIds`. Logs of another team or
+ * from the relational tables (docs/architecture.md §5), in the order of `logIds`. Logs of another team or
  * vehicle, and logs without a finished analysis, are left out.
  */
 export async function curvesForLogs(

@@ -1,5 +1,5 @@
 /**
- * The product's words for vehicles and drive logs (DESIGN.md §3), shared by the schema, the
+ * The product's words for vehicles and drive logs (docs/architecture.md §3), shared by the schema, the
  * forms, the API and the pages. The API values are a public contract: keep them stable.
  */
 
@@ -73,7 +73,7 @@ export const damperLabels: Record<DamperType, string> = {
   "clutch-disc-damper-pendulum": "Clutch-disc damper with pendulum absorber",
 };
 
-/** Default rattle limit and where it comes from (../shared/REFERENCES.md). */
+/** Default rattle limit and where it comes from (docs/references.md). */
 export const DEFAULT_RATTLE_LIMIT_RAD_S2 = 500;
 export const RATTLE_LIMIT_SOURCE =
   "Design limit on input-shaft angular acceleration reported in Shock and Vibration 2022, art. 2954825.";

@@ -9,7 +9,7 @@ import { SMTPServer } from "smtp-server";
 /**
  * A local stand-in for a mail provider: accepts every message on 127.0.0.1 and stores it as
  * `<time>-<random>.eml` in `dir`. Started by server/index.ts when SMTP_URL is unset.
- * No TLS and no AUTH: smtp-server's bundled certificate is expired (STACK-NOTES.md).
+ * No TLS and no AUTH: smtp-server's bundled certificate is expired (docs/stack-notes.md).
  */
 export async function startFakeSmtp(options: { port: number; dir: string }) {
   await mkdir(options.dir, { recursive: true });

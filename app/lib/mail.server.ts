@@ -9,7 +9,7 @@ import { getEnv } from "./env.server";
 function createTransport() {
   const env = getEnv();
   if (env.SMTP_URL) return nodemailer.createTransport(env.SMTP_URL);
-  // The fake has no TLS: smtp-server's bundled certificate is expired (STACK-NOTES.md).
+  // The fake has no TLS: smtp-server's bundled certificate is expired (docs/stack-notes.md).
   return nodemailer.createTransport({
     host: "127.0.0.1",
     port: env.FAKE_SMTP_PORT,

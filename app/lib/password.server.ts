@@ -1,7 +1,7 @@
 import argon2 from "argon2";
 
 // argon2id with the library's defaults (memory 64 MiB, 3 passes, 4 lanes: RFC 9106's second
-// recommended option, scaled down in memory). argon2@0.44.0 is pinned (STACK-NOTES.md).
+// recommended option, scaled down in memory). argon2@0.44.0 is pinned (docs/stack-notes.md).
 export function hashPassword(password: string): Promise<string> {
   return argon2.hash(password, { type: argon2.argon2id });
 }

@@ -1,8 +1,8 @@
-/** Roles inside a team, most powerful first (DESIGN.md §2). */
+/** Roles inside a team, most powerful first (docs/architecture.md §2). */
 export const ROLES = ["admin", "engineer", "technician", "viewer"] as const;
 export type Role = (typeof ROLES)[number];
 
-// Shared by server and browser: what each role may do (DESIGN.md §2). Ranks compare roles:
+// Shared by server and browser: what each role may do (docs/architecture.md §2). Ranks compare roles:
 // "at least engineer" admits engineers and admins.
 const rank: Record<Role, number> = { admin: 4, engineer: 3, technician: 2, viewer: 1 };
 

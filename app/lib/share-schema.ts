@@ -1,6 +1,6 @@
 import { z } from "zod";
 
-// Share links (DESIGN.md §3 "share link"): the limits and form schemas shared by the browser's
+// Share links (docs/architecture.md §3 "share link"): the limits and form schemas shared by the browser's
 // hints, the share actions and the API (issue 7). Limits match app/db/schema-results.ts.
 
 /** A share link works this many days unless the sharer chooses otherwise. */

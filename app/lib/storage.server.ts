@@ -10,7 +10,7 @@ import { createGunzip, createGzip } from "node:zlib";
  * Where raw drive logs are kept, so any of them can be analysed again. Files are keyed by the
  * SHA-256 of their raw (uncompressed) bytes: the same file uploaded twice has the same key.
  * The local folder is the default; an S3-compatible store can implement the same interface
- * (DESIGN.md §5, scale-out path).
+ * (docs/architecture.md §5, scale-out path).
  */
 export interface BlobStore {
   /** Streams `source` into the store, compressed. Never holds the whole file in memory. */

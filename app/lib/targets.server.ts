@@ -78,7 +78,7 @@ export interface LogForVerdicts {
 }
 
 /**
- * Every read and write of a team's targets (DESIGN.md §2): another team's target or vehicle is a
+ * Every read and write of a team's targets (docs/architecture.md §2): another team's target or vehicle is a
  * 404, like one that does not exist. Verdicts are computed when asked for, from the stored
  * analysis (docs/targets.md), so a changed target applies to every drive log at once.
  */

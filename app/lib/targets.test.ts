@@ -169,7 +169,7 @@ describe("isolation targets (product rule, see docs/targets.md)", () => {
 
 describe("rattle targets (product rule, see docs/targets.md; the larger figure, as the rattle verdict in app/lib/signal/rattle.ts)", () => {
   it("value is the larger of the firing-order amplitude and the time-domain peak; margin = limit − value", () => {
-    // 175.5 rad/s² is α = Δω·q·Ω for 10 rpm of order 2 at 800 rpm (REFERENCES.md [computed]).
+    // 175.5 rad/s² is α = Δω·q·Ω for 10 rpm of order 2 at 800 rpm (docs/references.md [computed]).
     const peakLarger = one(
       rattle,
       evidence([], { gearboxAngAccelRadS2: 175.5, gearboxAngAccelPeakRadS2: 180.2, meanRpm: 800 }),

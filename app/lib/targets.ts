@@ -1,5 +1,5 @@
 /**
- * Targets: a vehicle's programme pass/fail limits (DESIGN.md §3 "target") and how a drive log's
+ * Targets: a vehicle's programme pass/fail limits (docs/architecture.md §3 "target") and how a drive log's
  * analysis is judged against them. Pure and shared by the server, the forms and the pages; the
  * rules are explained for users in docs/targets.md (a product rule of Twistlog, not a standard).
  *

@@ -16,7 +16,7 @@ const memberColumns = {
 
 /**
  * Every read and write of a team's rows goes through this object, which adds the team to each
- * query, so a route cannot forget the scope (DESIGN.md §2). A record of another team is
+ * query, so a route cannot forget the scope (docs/architecture.md §2). A record of another team is
  * reported as 404, exactly like a record that does not exist.
  */
 export function teamData(teamId: number) {

@@ -1,6 +1,6 @@
 /**
  * Multipart uploads streamed straight into storage with busboy: a drive log never sits in
- * memory whole (STACK-NOTES: never request.formData() on a large upload). Each file passes a
+ * memory whole (docs/stack-notes.md: never request.formData() on a large upload). Each file passes a
  * content check on its first bytes and the size limit while it streams.
  */
 import busboy from "busboy";

@@ -7,7 +7,7 @@ import {
   TRANSMISSION_TYPES,
 } from "./drive-log-terms";
 
-// One schema per form, shared by the browser's hints and the actions and API (CONVENTIONS.md).
+// One schema per form, shared by the browser's hints and the actions and API (docs/conventions.md).
 // Limits match the columns in app/db/schema-drive-logs.ts, so nothing is cut silently.
 
 const optionalNumber = (schema: z.ZodNumber) =>

@@ -33,7 +33,7 @@ export function jobSettingsFor(
 
 /**
  * Every read and write of vehicles and drive logs goes through here with the team in each
- * query (DESIGN.md §2): another team's vehicle or log is a 404, like one that does not exist.
+ * query (docs/architecture.md §2): another team's vehicle or log is a 404, like one that does not exist.
  */
 export function vehicleData(teamId: number) {
   const inTeam = eq(vehicles.teamId, teamId);

@@ -117,7 +117,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   await assertCsrf(request, form);
   const intent = form.get("intent");
   if (intent === "map") {
-    // Fixing the columns of an upload is the technician's own job (DESIGN.md §2).
+    // Fixing the columns of an upload is the technician's own job (docs/architecture.md §2).
     const { vehicles, vehicle, log } = await load(request, params, "technician");
     const submission = parseWithZod(form, { schema: mappingSchema });
     if (submission.status !== "success") return data({ map: submission.reply() }, { status: 400 });

@@ -27,7 +27,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  // remix-auth's FormStrategy reads the body itself: read a clone here (STACK-NOTES.md).
+  // remix-auth's FormStrategy reads the body itself: read a clone here (docs/stack-notes.md).
   const form = await request.clone().formData();
   await assertCsrf(request, form);
   const submission = parseWithZod(form, { schema });

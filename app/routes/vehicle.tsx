@@ -187,7 +187,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   const form = await request.formData();
   await assertCsrf(request, form);
   const intent = form.get("intent");
-  // Vehicles and their targets are the engineer's (DESIGN.md §2): 403 for technicians and viewers.
+  // Vehicles and their targets are the engineer's (docs/architecture.md §2): 403 for technicians and viewers.
   const { team, user } = await requireTeamRole(request, "engineer");
   const vehicles = vehicleData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));

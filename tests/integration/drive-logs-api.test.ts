@@ -128,7 +128,7 @@ describe("API v1: vehicles and drive logs", () => {
     const at800 = result.isolation.find((p) => Math.abs(p.rpm - 800) <= 25);
     expect(at800).toBeDefined();
     expect(Math.abs(at800!.dB - expectedIsolationDb(idle))).toBeLessThan(0.3);
-    // α = Δω·q·Ω on the gearbox side (REFERENCES.md), within 5 %.
+    // α = Δω·q·Ω on the gearbox side (docs/references.md), within 5 %.
     const omega = (800 * 2 * Math.PI) / 60;
     const r800 = ((800 / 60) * 2) / idle.naturalHz;
     const gearboxAmpRadS =
@@ -151,7 +151,7 @@ describe("API v1: vehicles and drive logs", () => {
     const { log } = (await r.json()) as { log: { id: number } };
     expect((await waitForLog(log.id)).status).toBe("done");
     const stored = await (await api(`/api/v1/logs/${log.id}/result`, tokens.viewer!)).json();
-    // One code path (DESIGN.md §4): the server's result is the CLI's, field for field.
+    // One code path (docs/architecture.md §4): the server's result is the CLI's, field for field.
     const direct = await analyseSource({
       source: sample,
       ingest: {},

@@ -29,7 +29,7 @@ let path: string;
 // 11.2 dB here; the pipeline meets it within 0.3 dB (the tolerance of the API and page tests).
 const idle = IDLE_800;
 const expectedDb = expectedIsolationDb(idle);
-// Gearbox-input angular acceleration α = Δω·q·Ω (REFERENCES.md [computed]) with the gearbox
+// Gearbox-input angular acceleration α = Δω·q·Ω (docs/references.md [computed]) with the gearbox
 // amplitude Δω = crank amplitude / 10^(isolation/20); the pipeline meets it within 5 % (the
 // tolerance of the signal tests). For a pure tone the time-domain peak is the same figure.
 const rpmToRadS = (2 * Math.PI) / 60;

@@ -1,6 +1,6 @@
 import { afterEach, beforeEach, vi } from "vitest";
 
-// A console error or warning during a test fails that test (CONVENTIONS.md, Tests).
+// A console error or warning during a test fails that test (docs/conventions.md, Tests).
 let messages: string[] = [];
 
 beforeEach(() => {

@@ -1,7 +1,7 @@
 import { issueCsrfToken } from "~/lib/csrf.server";
 import { startSession } from "~/lib/session.server";
 
-// Calling route loaders and actions directly in node tests (STACK-NOTES.md: "Loaders and
+// Calling route loaders and actions directly in node tests (docs/stack-notes.md: "Loaders and
 // actions can be called directly with a Request"), with a real session row and a real signed
 // CSRF cookie, so the same checks run as behind the HTTP server.
 

@@ -9,7 +9,7 @@ import type { ChartMarker, TargetBand } from "./types";
 import { useChartCursor } from "./use-chart-cursor";
 
 /**
- * The drive-log page's charts, in the order of UI.md: speed trace; order curves | isolation
+ * The drive-log page's charts, in the order of docs/ui.md: speed trace; order curves | isolation
  * curve sharing one engine-speed cursor; the order maps; the order spectrum at the cursor.
  */
 export function DriveLogCharts({

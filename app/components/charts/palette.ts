@@ -1,5 +1,5 @@
 /**
- * Colours of the charts. Meaning colours follow UI.md (crank side amber-600, gearbox side
+ * Colours of the charts. Meaning colours follow docs/ui.md (crank side amber-600, gearbox side
  * teal-600, isolation indigo-600, pass green-600, fail red-600) as the app's Tailwind theme
  * defines them (oklch, so canvas and CSS show the same colour).
  */

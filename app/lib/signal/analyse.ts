@@ -1,5 +1,5 @@
 /**
- * The analysis pipeline: drive log in, result JSON out (DESIGN.md §4; method and defaults in
+ * The analysis pipeline: drive log in, result JSON out (docs/architecture.md §4; method and defaults in
  * docs/signal-computation.md). Pure computation; errors come back as values.
  */
 import { firingOrder as firingOrderOf, RPM_PER_RAD_S, type Stroke } from "./firing-order.ts";

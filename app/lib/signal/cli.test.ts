@@ -47,7 +47,7 @@ describe("analyse CLI", () => {
     const doc = JSON.parse(r.stdout) as unknown;
     const parsed = analysisResultSchema.safeParse(doc);
     expect(parsed.success).toBe(true);
-    // Four-stroke, four cylinders: firing order z/2 = 2 (common practice; REFERENCES.md, Engines).
+    // Four-stroke, four cylinders: firing order z/2 = 2 (common practice; docs/references.md, Engines).
     expect(parsed.success && parsed.data.firingOrder).toBe(2);
     expect(parsed.success && parsed.data.sampleRateHz).toBeCloseTo(2000, 3);
   });

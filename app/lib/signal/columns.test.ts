@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { recogniseColumn, resolveColumns, type ColumnIssue } from "./columns.ts";
 
-// The header forms are the examples in issue 4 and DESIGN.md §4 (roles: crank / engine /
+// The header forms are the examples in issue 4 and docs/architecture.md §4 (roles: crank / engine /
 // primary / flywheel → crank side; gearbox / transmission / input shaft / secondary → gearbox).
 describe("header recognition", () => {
   it.each([

@@ -1,5 +1,5 @@
 /**
- * The signal core's public face (DESIGN.md §4): drive log in, analysis result out.
+ * The signal core's public face (docs/architecture.md §4): drive log in, analysis result out.
  * Pure TypeScript; only ingest-stream.ts touches Node streams. The server, the CLI and the
  * tests use these exports; the modules behind them are documented in
  * docs/signal-ingest.md and docs/signal-computation.md.

@@ -52,7 +52,7 @@ describe("bad input gives its error code, row and column", () => {
       column: "gearbox input speed [rpm]",
     });
   });
-  it("time going backwards names both values (the CONVENTIONS.md example form)", () => {
+  it("time going backwards names both values (the docs/conventions.md example form)", () => {
     const e = errorOf(
       file(2100, (i, l) =>
         i === 1999 ? "1.995,800,800" : l.replace(/^[^,]+/, (i * 0.001 + 0.001).toFixed(3)),

@@ -1,5 +1,5 @@
 /**
- * Drive log in, checked result out: the path every caller shares (DESIGN.md §4: the CLI and
+ * Drive log in, checked result out: the path every caller shares (docs/architecture.md §4: the CLI and
  * the server run the same pipeline and produce the same JSON).
  */
 import type { Readable } from "node:stream";

@@ -7,7 +7,7 @@ import {
 } from "./two-mass-model.ts";
 
 describe("base-excited transmissibility", () => {
-  // Harris' Shock and Vibration Handbook ch. 30; Ogata, System Dynamics 4th ed., eq. 9-14. Values [computed] in REFERENCES.md.
+  // Harris' Shock and Vibration Handbook ch. 30; Ogata, System Dynamics 4th ed., eq. 9-14. Values [computed] in docs/references.md.
   it("T(3, 0) = 0.125, T(3, 0.1) = 0.1454, T(1, 0.1) = 5.099 (Harris ch. 30 / Ogata eq. 9-14; 4 decimals)", () => {
     expect(transmissibility(3, 0)).toBeCloseTo(0.125, 4);
     expect(transmissibility(3, 0.1)).toBeCloseTo(0.1454, 4);

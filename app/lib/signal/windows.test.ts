@@ -10,7 +10,7 @@ import {
 } from "./windows.ts";
 
 describe("periodic Hann window", () => {
-  // Harris 1978, Table 1 [memory in REFERENCES.md; the computation below agrees with it].
+  // Harris 1978, Table 1 [memory in docs/references.md; the computation below agrees with it].
   for (const n of [64, 1000, 1001, 4096]) {
     it(`coherent gain 0.50 and ENBW 1.50 bins at N = ${n} (Harris 1978, Table 1 [memory]; tolerance 1e-12)`, () => {
       const w = hannPeriodic(n);
