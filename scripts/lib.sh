@@ -2,13 +2,16 @@
 
 log() { printf '\033[1m[twistlog]\033[0m %s\n' "$*" >&2; }
 
-# npm ci when node_modules is missing or older than package-lock.json.
+# npm ci when node_modules is missing, older than package-lock.json, or lacks the build tools.
+# --include=dev: `npm start` builds the app, so it needs the devDependencies even when
+# NODE_ENV=production is set (in the caller's shell or by start.sh), which npm would read as
+# "leave them out".
 ensure_node_modules() {
   local stamp=node_modules/.twistlog-lock.sha
   local want; want=$(sha256sum package-lock.json | cut -c1-64)
-  if [ ! -f "$stamp" ] || [ "$(cat "$stamp")" != "$want" ]; then
+  if [ ! -f "$stamp" ] || [ "$(cat "$stamp")" != "$want" ] || [ ! -x node_modules/.bin/react-router ]; then
     log "installing npm dependencies (npm ci) ..."
-    npm ci --no-audit --no-fund --loglevel=error
+    npm ci --include=dev --no-audit --no-fund --loglevel=error || return 1
     printf '%s' "$want" >"$stamp"
   fi
 }

@@ -9,7 +9,6 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 source scripts/lib.sh
 
-export NODE_ENV=production
 export PORT=${PORT:-3000}
 export TWISTLOG_DB_DIR=${TWISTLOG_DB_DIR:-.data/mariadb}
 
@@ -18,7 +17,9 @@ if port_busy "$PORT"; then
   exit 1
 fi
 
+# Installs the devDependencies too (the build needs them), whatever NODE_ENV says.
 ensure_node_modules
+export NODE_ENV=production
 
 server_pid=""
 stop_all() {
