@@ -73,17 +73,17 @@ describe("the reference of a comparison", () => {
 
   it("says why in one sentence", () => {
     expect(referenceSentence({ ...a, name: "variant A" }, "fitted-damper", "A")).toBe(
-      "Reference: variant A, the only one here with the damper variant the vehicle is fitted with (A).",
+      "Reference: variant A, the only drive log here with the vehicle's fitted damper variant (A).",
     );
     expect(referenceSentence({ ...a, name: "variant A" }, "tested-first", "C")).toBe(
-      "Reference: variant A, the earliest tested drive log here (test date 2026-11-04).",
+      "Reference: variant A, the one tested first (test date 2026-11-04).",
     );
     expect(
       referenceSentence({ ...a, name: "the drive log of 2026-11-04" }, "tested-first", "C"),
-    ).toBe("Reference: the drive log of 2026-11-04, the earliest tested drive log here.");
+    ).toBe("Reference: the drive log of 2026-11-04, the one tested first.");
     const undated = log(9, "A", null, day("2026-11-10"));
     expect(referenceSentence({ ...undated, name: "drive log 9" }, "tested-first", "C")).toBe(
-      "Reference: drive log 9, the earliest tested drive log here (no test date, uploaded 2026-11-10).",
+      "Reference: drive log 9, the one tested first (no test date, uploaded 2026-11-10).",
     );
   });
 });

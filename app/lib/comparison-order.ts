@@ -134,7 +134,7 @@ function variantKey(p: SuggestedPair<SuggestionCandidate>): string {
 
 /** The rule in one sentence, shown under every comparison. */
 export const REFERENCE_RULE =
-  "The reference does not depend on how the comparison was opened: it is the drive log with the vehicle's fitted damper variant when exactly one has it, otherwise the one tested first (by test date, else by upload day).";
+  "However the comparison is opened, the reference is the drive log with the vehicle's fitted damper variant when exactly one has it, otherwise the one tested first (by test date, else by upload day).";
 
 /** Why this comparison's reference is the one it is, in one sentence. */
 export function referenceSentence(
@@ -143,8 +143,8 @@ export function referenceSentence(
   fittedVariant: string,
 ): string {
   if (reason === "fitted-damper")
-    return `Reference: ${ref.name}, the only one here with the damper variant the vehicle is fitted with (${fittedVariant}).`;
+    return `Reference: ${ref.name}, the only drive log here with the vehicle's fitted damper variant (${fittedVariant}).`;
   const day = testedOn(ref);
   const when = ref.testDate ? `test date ${day}` : `no test date, uploaded ${day}`;
-  return `Reference: ${ref.name}, the earliest tested drive log here${ref.name.includes(day) ? "" : ` (${when})`}.`;
+  return `Reference: ${ref.name}, the one tested first${ref.name.includes(day) ? "" : ` (${when})`}.`;
 }

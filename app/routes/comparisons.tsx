@@ -71,7 +71,7 @@ export default function Comparisons() {
           {vehicles
             .filter((v) => v.suggestions.length)
             .map((v) => (
-              <Card key={v.id} title={`${v.name} (${v.identifier})`}>
+              <Card key={v.id} id={`vehicle-${v.id}`} title={`${v.name} (${v.identifier})`}>
                 <ul className="space-y-2 text-sm">
                   {v.suggestions.map((s) => (
                     <li key={s.href} data-testid="suggested-pair">
@@ -81,7 +81,7 @@ export default function Comparisons() {
                         {s.logs[0]!.damperVariant} (reference) vs {s.logs[1]!.damperVariant}
                       </Link>
                       <span className="ml-2 text-neutral-500">
-                        {s.logs.map((l) => l.testDate ?? "no test date").join(" and ")}
+                        test dates {s.logs.map((l) => l.testDate ?? "none").join(" and ")}
                       </span>
                     </li>
                   ))}
