@@ -1,5 +1,6 @@
 import { Link } from "react-router";
 import type { Comparison } from "~/lib/comparison";
+import { REFERENCE_RULE } from "~/lib/comparison-order";
 import type { ComparedLog } from "~/lib/comparison.server";
 import { conditionLabels } from "~/lib/drive-log-terms";
 import { CurveOverlay, overlayStyle } from "./charts";
@@ -9,23 +10,24 @@ import { Card, EmptyState, tableClass, tdClass, thClass } from "./page";
 
 /**
  * The comparison of two or more drive logs (the signed-in page and a share link): the verdict,
- * the drive logs with their key, the overlaid curves and the band table. Links are passed in,
- * so a share link can leave them out.
+ * the reference and why, the drive logs with their key, the overlaid curves and the band table.
+ * `logs` come reference first (comparisonLogs). Links are passed in, so a share link can leave
+ * them out.
  */
 export function ComparisonView({
   vehicle,
   logs,
+  referenceNote,
   comparison,
   curvesUrl,
   logHref,
-  reorderHref,
 }: {
   vehicle: { name: string; identifier: string };
   logs: ComparedLog[];
+  referenceNote: string | null;
   comparison: Comparison;
   curvesUrl: string;
   logHref?: (id: number) => string;
-  reorderHref?: (ids: number[]) => string;
 }) {
   const analysed = logs.filter((l) => l.analysed);
   const missing = logs.filter((l) => !l.analysed);
@@ -49,9 +51,14 @@ export function ComparisonView({
               At least two analysed drive logs are needed for a verdict.
             </p>
           )}
+          {referenceNote ? (
+            <p className="text-sm text-neutral-700" data-testid="comparison-reference">
+              {referenceNote}
+            </p>
+          ) : null}
           <p className="text-sm text-neutral-500">
-            Isolation at the firing order, mean over each {comparison.bandRpm} rpm band; differences
-            under {comparison.sameWithinDb} dB count as the same. Reference: {ref ? ref.name : "—"}.
+            {REFERENCE_RULE} Isolation at the firing order, mean over each {comparison.bandRpm} rpm
+            band; differences under {comparison.sameWithinDb} dB count as the same.
           </p>
         </div>
       </header>
@@ -88,14 +95,6 @@ export function ComparisonView({
             {logHref ? (
               <Link to={logHref(l.id)} className={linkClass}>
                 Open<span className="sr-only"> {l.fileName}</span>
-              </Link>
-            ) : null}
-            {reorderHref && i > 0 ? (
-              <Link
-                to={reorderHref([l.id, ...logs.filter((x) => x.id !== l.id).map((x) => x.id)])}
-                className={linkClass}
-              >
-                Make reference<span className="sr-only"> ({l.name})</span>
               </Link>
             ) : null}
           </li>

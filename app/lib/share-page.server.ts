@@ -105,10 +105,11 @@ export async function sharedPageData(active: ActiveShare) {
   );
   let comparison = null;
   if (share.kind === "comparison") {
-    const compared = await comparisonLogs(vehicles, vehicle, ids);
+    const { logs: compared, referenceNote } = await comparisonLogs(vehicles, vehicle, ids);
     const curves = await curvesForLogs(teamId, vehicle.id, ids);
     comparison = {
       logs: compared,
+      referenceNote,
       result: compareIsolation(
         compared
           .filter((l) => l.analysed)

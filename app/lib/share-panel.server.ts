@@ -51,9 +51,11 @@ export async function sharePanelLoader(
     if (subject.kind === "log") {
       shares = await listShares(current.team.id, caller, { logId: subject.logId });
     } else {
-      const key = subject.logIds.join(",");
+      // The same set of drive logs is the same comparison: the page orders them by its rule.
+      const setOf = (ids: number[]) => [...ids].sort((a, b) => a - b).join(",");
+      const key = setOf(subject.logIds);
       shares = (await listShares(current.team.id, caller, { vehicleId: subject.vehicleId })).filter(
-        (s) => s.kind === "comparison" && s.logIds.join(",") === key,
+        (s) => s.kind === "comparison" && setOf(s.logIds) === key,
       );
     }
     return Response.json({ shares }, { headers: noStore });

@@ -18,8 +18,9 @@ export const meta = ({ data }: Route.MetaArgs) => [
 ];
 
 /**
- * /vehicles/:vehicleId/compare?logs=ID,ID[,ID…]: two to eight drive logs of one vehicle, the
- * first one the reference. The URL is the comparison, so it can be bookmarked and shared.
+ * /vehicles/:vehicleId/compare?logs=ID,ID[,ID…]: two to eight drive logs of one vehicle. The
+ * reference follows one rule (app/lib/comparison-order.ts), not the order of `logs`, so every way
+ * into a comparison reads the same. The URL is the comparison: it can be bookmarked and shared.
  */
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "viewer");
@@ -36,7 +37,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     "A comparison needs two to eight drive logs: choose them on the vehicle page and press “Compare selected”.",
     { status: 400 },
   );
-  const logs = await comparisonLogs(data, vehicle, ids);
+  const { logs, referenceNote } = await comparisonLogs(data, vehicle, ids);
   const curves = await curvesForLogs(team.id, vehicle.id, ids);
   const comparison = compareIsolation(
     logs
@@ -50,12 +51,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     role: team.role,
     vehicle: { id: vehicle.id, name: vehicle.name, identifier: vehicle.identifier },
     logs,
+    referenceNote,
     comparison,
   };
 }
 
 export default function ComparePage() {
-  const { role, vehicle, logs, comparison } = useLoaderData<typeof loader>();
+  const { role, vehicle, logs, referenceNote, comparison } = useLoaderData<typeof loader>();
   const ids = logs.map((l) => l.id);
   return (
     <main className="space-y-6">
@@ -69,10 +71,10 @@ export default function ComparePage() {
       <ComparisonView
         vehicle={vehicle}
         logs={logs}
+        referenceNote={referenceNote}
         comparison={comparison}
-        curvesUrl={`/vehicles/${vehicle.id}/curves.json?logs=${logs.map((l) => l.id).join(",")}`}
+        curvesUrl={`/vehicles/${vehicle.id}/curves.json?logs=${ids.join(",")}`}
         logHref={(id) => `/vehicles/${vehicle.id}/logs/${id}`}
-        reorderHref={(order) => `/vehicles/${vehicle.id}/compare?logs=${order.join(",")}`}
       />
       {atLeast(role, "engineer") ? (
         <SharePanel endpoint={`/vehicles/${vehicle.id}/compare/share`} logs={ids} />

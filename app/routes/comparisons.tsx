@@ -2,7 +2,8 @@ import { Link, useLoaderData } from "react-router";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
 import { Card, EmptyState, PageHeader } from "~/components/page";
-import { conditionLabels, type LogCondition } from "~/lib/drive-log-terms";
+import { suggestedPairs } from "~/lib/comparison-order";
+import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "~/lib/drive-log-terms";
 import { requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/comparisons";
@@ -12,14 +13,16 @@ export const meta = () => [{ title: "Comparisons · Twistlog" }];
 interface Suggestion {
   condition: LogCondition;
   gear: number | null;
-  variants: string[];
+  /** The two drive logs, the reference first. */
+  logs: { damperVariant: string; testDate: string | null }[];
   href: string;
 }
 
 /**
- * /comparisons: ready-made before/after comparisons, one per vehicle, condition and gear where
- * analysed drive logs of two or more damper variants exist (the newest drive log of each
- * variant). Any other set is picked on the vehicle page.
+ * /comparisons: ready-made before/after pairs: for each vehicle, condition and gear, every pair
+ * of damper variants with analysed drive logs, reference first (suggestedPairs in
+ * app/lib/comparison-order.ts: stable, a file uploaded again is no new candidate). Any other set
+ * is picked on the vehicle page.
  */
 export async function loader({ request }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "viewer");
@@ -27,28 +30,18 @@ export async function loader({ request }: Route.LoaderArgs) {
   const vehicles = await data.list();
   const rows = await Promise.all(
     vehicles.map(async (v) => {
-      const logs = (await data.logs(v.id)).filter((l) => l.latestAnalysisId);
-      const groups = new Map<string, typeof logs>();
-      for (const l of logs) {
-        const key = `${l.condition}|${l.gear ?? ""}`;
-        groups.set(key, [...(groups.get(key) ?? []), l]);
-      }
-      const suggestions: Suggestion[] = [];
-      for (const group of groups.values()) {
-        // logs() is newest first: the first drive log seen of each variant is its newest.
-        const newest = new Map<string, (typeof logs)[number]>();
-        for (const l of group) if (!newest.has(l.damperVariant)) newest.set(l.damperVariant, l);
-        if (newest.size < 2) continue;
-        const picked = [...newest.values()]
-          .sort((a, b) => a.damperVariant.localeCompare(b.damperVariant))
-          .slice(0, 8);
-        suggestions.push({
-          condition: group[0]!.condition,
-          gear: group[0]!.gear,
-          variants: picked.map((l) => l.damperVariant),
-          href: `/vehicles/${v.id}/compare?logs=${picked.map((l) => l.id).join(",")}`,
-        });
-      }
+      const logs = (await data.logs(v.id)).map((l) => ({
+        ...l,
+        analysed: l.latestAnalysisId !== null,
+      }));
+      const suggestions: Suggestion[] = suggestedPairs(logs, v.damperVariant, LOG_CONDITIONS).map(
+        (p) => ({
+          condition: p.condition,
+          gear: p.gear,
+          logs: p.logs.map((l) => ({ damperVariant: l.damperVariant, testDate: l.testDate })),
+          href: `/vehicles/${v.id}/compare?logs=${p.logs.map((l) => l.id).join(",")}`,
+        }),
+      );
       return { id: v.id, name: v.name, identifier: v.identifier, suggestions };
     }),
   );
@@ -62,7 +55,7 @@ export default function Comparisons() {
     <main>
       <PageHeader
         title="Comparisons"
-        lead="Before-and-after views of drive logs of one vehicle. Below are the pairs ready to compare (the same condition and gear with different damper variants); for any other set, tick the drive logs on a vehicle page and press “Compare selected”. A comparison's address can be bookmarked."
+        lead="Before-and-after views of drive logs of one vehicle. Below is every pair ready to compare (the same condition and gear with different damper variants, the latest tested drive log of each variant), the reference first; for any other set, tick the drive logs on a vehicle page and press “Compare selected”. A comparison's address can be bookmarked."
       />
       {!any ? (
         <EmptyState>
@@ -78,15 +71,18 @@ export default function Comparisons() {
           {vehicles
             .filter((v) => v.suggestions.length)
             .map((v) => (
-              <Card key={v.id} title={`${v.name} (${v.identifier})`}>
+              <Card key={v.id} id={`vehicle-${v.id}`} title={`${v.name} (${v.identifier})`}>
                 <ul className="space-y-2 text-sm">
                   {v.suggestions.map((s) => (
-                    <li key={s.href}>
+                    <li key={s.href} data-testid="suggested-pair">
                       <Link to={s.href} className={linkClass}>
                         {conditionLabels[s.condition]}
                         {s.gear && s.gear > 0 ? `, gear ${s.gear}` : ""}: damper{" "}
-                        {s.variants.join(" vs ")}
+                        {s.logs[0]!.damperVariant} (reference) vs {s.logs[1]!.damperVariant}
                       </Link>
+                      <span className="ml-2 text-neutral-500">
+                        test dates {s.logs.map((l) => l.testDate ?? "none").join(" and ")}
+                      </span>
                     </li>
                   ))}
                 </ul>

@@ -76,8 +76,9 @@ export default function SharedPage() {
         <ComparisonView
           vehicle={page.vehicle}
           logs={page.comparison.logs}
+          referenceNote={page.comparison.referenceNote}
           comparison={page.comparison.result}
-          curvesUrl={`${base}/curves.json`}
+          curvesUrl={`${base}/curves.json?logs=${page.comparison.logs.map((l) => l.id).join(",")}`}
         />
       ) : null}
 
