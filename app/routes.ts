@@ -18,6 +18,8 @@ export default [
     route("account", "routes/account.tsx"),
     route("account/tokens", "routes/account.tokens.tsx"),
     route("outbox", "routes/outbox.tsx"),
+    // Any other address: our own 404 page in the app's frame (/api/v1/* has its own, in JSON).
+    route("*", "routes/not-found.tsx"),
   ]),
   // Signed-out pages in a small centred frame.
   layout("routes/_auth.tsx", [

@@ -1,6 +1,8 @@
 import { Link } from "react-router";
 import type { AnalysisResult } from "~/lib/signal";
+import { countText } from "~/lib/plural";
 import { marginText, TARGET_STATUS_LABELS, type TargetVerdict } from "~/lib/targets";
+import { warningText } from "~/lib/warning-text";
 import { VerdictCaution } from "./caution-note";
 import { linkClass } from "./form-fields";
 import { Card, tableClass, tdClass, thClass } from "./page";
@@ -163,7 +165,9 @@ export function AnalysisSummaryView({
             Two-mass model fit:{" "}
             {s.model
               ? `natural frequency ${s.model.naturalFrequencyHz.toFixed(2)} Hz (${rpm(s.model.resonanceRpm)} at the firing order), damping ratio ${s.model.dampingRatio.toFixed(3)}`
-              : "not fitted (too few engine-speed bins)"}
+              : s.warnings.some((w) => w.code === "no_model_fit")
+                ? "not fitted; the warnings below say why"
+                : "not fitted"}
           </p>
         </Tile>
         <Tile title="Rattle check">
@@ -224,9 +228,7 @@ export function AnalysisSummaryView({
         <Card title="Warnings" id="warnings">
           <ul className="list-disc space-y-1 pl-5 text-sm">
             {s.warnings.map((w, i) => (
-              <li key={i}>
-                {w.message} <span className="font-mono text-xs text-neutral-500">{w.code}</span>
-              </li>
+              <li key={i}>{warningText(w)}</li>
             ))}
           </ul>
         </Card>
@@ -266,7 +268,8 @@ export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
         className="rounded-lg border border-neutral-200 bg-white p-5 shadow-xs"
       >
         <summary className="cursor-pointer text-sm font-semibold">
-          Isolation curve at the firing order as a table ({s.curve.length} engine speeds)
+          Isolation curve at the firing order as a table (
+          {countText(s.curve.length, "engine speed")})
         </summary>
         <div className="mt-3">
           {s.curve.length === 0 ? (

@@ -23,7 +23,10 @@ export function GeneralErrorBoundary() {
   let detail: string | undefined;
   if (isRouteErrorResponse(error)) {
     status = error.status;
-    detail = typeof error.data === "string" ? error.data : undefined;
+    // The router's own answers (e.g. 405 'Error: You made a POST request to …') are for
+    // developers: readers get the friendly text; our invariantResponse messages are shown.
+    const internal = "internal" in error && (error as { internal?: boolean }).internal === true;
+    detail = typeof error.data === "string" && !internal ? error.data : undefined;
   } else if (import.meta.env.DEV && error instanceof Error) {
     detail = error.stack;
   }

@@ -149,19 +149,20 @@ export function SubmitButton({
   value?: string;
   tone?: "primary" | "secondary" | "danger";
 }) {
-  const tones = {
-    primary: "bg-indigo-600 text-white hover:bg-indigo-700",
-    secondary: "border border-neutral-300 bg-white text-neutral-800 hover:bg-neutral-50",
-    danger: "border border-red-300 bg-white text-red-700 hover:bg-red-50",
-  };
   return (
-    <button
-      type="submit"
-      name={name}
-      value={value}
-      className={`inline-flex items-center justify-center rounded-md px-4 py-2 text-sm font-medium focus-visible:outline-2 focus-visible:outline-offset-2 focus-visible:outline-indigo-600 ${tones[tone]}`}
-    >
+    <button type="submit" name={name} value={value} className={buttonClass(tone)}>
       {children}
     </button>
   );
+}
+
+const tones = {
+  primary: "bg-indigo-600 text-white hover:bg-indigo-700",
+  secondary: "border border-neutral-300 bg-white text-neutral-800 hover:bg-neutral-50",
+  danger: "border border-red-300 bg-white text-red-700 hover:bg-red-50",
+};
+
+/** The look of SubmitButton, for plain buttons (type="button") beside it. */
+export function buttonClass(tone: keyof typeof tones = "primary") {
+  return `inline-flex items-center justify-center rounded-md px-4 py-2 text-sm font-medium focus-visible:outline-2 focus-visible:outline-offset-2 focus-visible:outline-indigo-600 ${tones[tone]}`;
 }

@@ -1,5 +1,5 @@
 import { getCollectionProps, type SubmissionResult } from "@conform-to/react";
-import { useEffect, useState } from "react";
+import { useEffect, useRef, useState } from "react";
 import { Form, Link } from "react-router";
 import type { z } from "zod";
 import { conditionLabels, LOG_CONDITIONS } from "~/lib/drive-log-terms";
@@ -13,8 +13,9 @@ import {
   type TargetInput,
   type TargetVerdict,
 } from "~/lib/targets";
+import { countText } from "~/lib/plural";
 import { CsrfInput } from "./csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "./form";
+import { buttonClass, Field, FormError, SubmitButton, useSchemaForm } from "./form";
 import { ChoiceField, fieldsetClass, InputField, legendClass } from "./form-fields";
 import { Card, EmptyState } from "./page";
 
@@ -74,6 +75,7 @@ export function TargetsCard({
   targets,
   canEdit,
   reply,
+  confirmDelete = null,
   analysedLogs,
   rattleLimitRadS2,
 }: {
@@ -81,6 +83,8 @@ export function TargetsCard({
   targets: TargetSummary[];
   canEdit: boolean;
   reply: TargetFormReply | null;
+  /** The target whose delete button was pressed without JavaScript: the page asks first. */
+  confirmDelete?: number | null;
   /** Drive logs of the vehicle with a finished analysis. */
   analysedLogs: number;
   rattleLimitRadS2: number;
@@ -115,6 +119,7 @@ export function TargetsCard({
                   <Disclosure
                     className="mt-2"
                     reply={reply?.form === `target-${t.id}` ? reply.result : null}
+                    forceOpen={confirmDelete === t.id}
                     summary={
                       <span className="text-sm text-indigo-700 hover:text-indigo-900">
                         Edit or delete <span className="sr-only">{t.name}</span>
@@ -128,13 +133,11 @@ export function TargetsCard({
                         reply={reply?.form === `target-${t.id}` ? reply.result : null}
                         rattleLimitRadS2={rattleLimitRadS2}
                       />
-                      <Form method="post" className="border-t border-neutral-100 pt-3">
-                        <CsrfInput />
-                        <input type="hidden" name="targetId" value={t.id} />
-                        <SubmitButton name="intent" value="delete-target" tone="danger">
-                          Delete target <span className="sr-only">{t.name}</span>
-                        </SubmitButton>
-                      </Form>
+                      <DeleteTarget
+                        vehicleId={vehicleId}
+                        target={t}
+                        asked={confirmDelete === t.id}
+                      />
                     </div>
                   </Disclosure>
                 ) : null}
@@ -171,17 +174,20 @@ export function TargetsCard({
  */
 function Disclosure({
   reply,
+  forceOpen = false,
   summary,
   className,
   children,
 }: {
   reply: SubmissionResult<string[]> | null;
+  /** Open regardless of the reply (a delete waiting for its confirmation). */
+  forceOpen?: boolean;
   summary: React.ReactNode;
   className?: string;
   children: React.ReactNode;
 }) {
   const refused = reply?.status === "error";
-  const [open, setOpen] = useState(refused);
+  const [open, setOpen] = useState(refused || forceOpen);
   useEffect(() => {
     if (reply) setOpen(reply.status === "error");
   }, [reply]);
@@ -190,6 +196,107 @@ function Disclosure({
       <summary className="cursor-pointer">{summary}</summary>
       {children}
     </details>
+  );
+}
+
+/**
+ * "Delete target" asks first (issue 11): with JavaScript the question opens in place and takes
+ * the focus (Escape or "Keep the target" closes it and gives the focus back to the button);
+ * without, the button posts and the page comes back with the same question. Only the second
+ * button, which posts confirm=yes, deletes.
+ */
+function DeleteTarget({
+  vehicleId,
+  target,
+  asked,
+}: {
+  vehicleId: number;
+  target: Target;
+  asked: boolean;
+}) {
+  const hydrated = useHydrated();
+  const [asking, setAsking] = useState(asked);
+  const askButton = useRef<HTMLButtonElement>(null);
+  const question = useRef<HTMLDivElement>(null);
+  const opened = useRef(false);
+  useEffect(() => {
+    if (asking && opened.current) question.current?.focus();
+  }, [asking]);
+  const panelId = `delete-target-${target.id}`;
+  const keep = () => {
+    setAsking(false);
+    askButton.current?.focus();
+  };
+  return (
+    <div className="space-y-3 border-t border-neutral-100 pt-3">
+      {hydrated ? (
+        <button
+          ref={askButton}
+          type="button"
+          aria-expanded={asking}
+          aria-controls={panelId}
+          onClick={() => {
+            opened.current = true;
+            setAsking(true);
+          }}
+          className={buttonClass("danger")}
+        >
+          Delete target <span className="sr-only">{target.name}</span>
+        </button>
+      ) : (
+        <Form method="post">
+          <CsrfInput />
+          <input type="hidden" name="targetId" value={target.id} />
+          <SubmitButton name="intent" value="delete-target" tone="danger">
+            Delete target <span className="sr-only">{target.name}</span>
+          </SubmitButton>
+        </Form>
+      )}
+      {asking ? (
+        <div
+          id={panelId}
+          ref={question}
+          role="group"
+          tabIndex={-1}
+          autoFocus={asked}
+          aria-labelledby={`${panelId}-question`}
+          aria-describedby={`${panelId}-effect`}
+          onKeyDown={(e) => {
+            if (e.key === "Escape" && hydrated) {
+              e.preventDefault();
+              keep();
+            }
+          }}
+          className="rounded-md border border-red-200 bg-red-50 p-3 focus:outline-2 focus:outline-red-600"
+          data-delete-confirm={target.id}
+        >
+          <p id={`${panelId}-question`} className="text-sm font-semibold text-red-900">
+            Delete the target “{target.name}”?
+          </p>
+          <p id={`${panelId}-effect`} className="mt-1 text-sm text-red-900">
+            Its pass and fail verdicts disappear from every drive log of this vehicle. This cannot
+            be undone.
+          </p>
+          <Form method="post" className="mt-3 flex flex-wrap items-center gap-3">
+            <CsrfInput />
+            <input type="hidden" name="targetId" value={target.id} />
+            <input type="hidden" name="confirm" value="yes" />
+            <SubmitButton name="intent" value="delete-target" tone="danger">
+              Yes, delete <span className="sr-only">{target.name}</span>
+            </SubmitButton>
+            {hydrated ? (
+              <button type="button" onClick={keep} className={buttonClass("secondary")}>
+                Keep the target
+              </button>
+            ) : (
+              <a href={`/vehicles/${vehicleId}#targets`} className={buttonClass("secondary")}>
+                Keep the target
+              </a>
+            )}
+          </Form>
+        </div>
+      ) : null}
+    </div>
   );
 }
 
@@ -252,9 +359,7 @@ function Counts({
           {c.notCovered} not covered
         </span>
       ) : null}
-      <span>
-        of {c.applicable} analysed drive {c.applicable === 1 ? "log" : "logs"} it applies to
-      </span>
+      <span>of {countText(c.applicable, "analysed drive log")} it applies to</span>
     </p>
   );
 }

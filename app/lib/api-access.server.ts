@@ -7,6 +7,8 @@ export interface ApiAccess {
   userId: number;
   teamId: number;
   role: Role;
+  user: { id: number; email: string };
+  team: { id: number; name: string };
 }
 
 /**
@@ -17,7 +19,13 @@ export interface ApiAccess {
 export async function requireApiAccess(request: Request, needed: Role): Promise<ApiAccess> {
   if (request.headers.has("Authorization")) {
     const caller = await requireApiRole(request, needed);
-    return { userId: caller.user.id, teamId: caller.team.id, role: caller.role };
+    return {
+      userId: caller.user.id,
+      teamId: caller.team.id,
+      role: caller.role,
+      user: caller.user,
+      team: caller.team,
+    };
   }
   // A cookie rides along on any request the browser makes, so a write with the cookie must
   // come from our own pages (SameSite=Lax already stops most cross-site posts; this stops the rest).
@@ -47,7 +55,14 @@ export async function requireApiAccess(request: Request, needed: Role): Promise<
       `This needs the ${roleLabels[needed]} role or higher; you are ${roleLabels[current.team.role]}.`,
     );
   }
-  return { userId: current.user.id, teamId: current.team.id, role: current.team.role };
+  const { id, email } = current.user;
+  return {
+    userId: id,
+    teamId: current.team.id,
+    role: current.team.role,
+    user: { id, email },
+    team: { id: current.team.id, name: current.team.name },
+  };
 }
 
 /**

@@ -1,3 +1,4 @@
+import { countText } from "./plural";
 import type { AnalysisResult } from "./signal/result-schema";
 
 type Idle = NonNullable<AnalysisResult["idle"]>;
@@ -32,7 +33,7 @@ export function rattleReading(idle: Idle): RattleReading {
   ];
   if (idle.spans.length)
     sentences.push(
-      `It stays above the limit in ${idle.spans.length} ${idle.spans.length === 1 ? "span" : "spans"}, ${overS.toFixed(1)} s in all, ${overPercent.toFixed(0)} % of the ${idle.idleDurationS.toFixed(1)} s of idle examined.`,
+      `It stays above the limit in ${countText(idle.spans.length, "span")}, ${overS.toFixed(1)} s in all, ${overPercent.toFixed(0)} % of the ${idle.idleDurationS.toFixed(1)} s of idle examined.`,
     );
   const headline =
     idle.verdict === "over-limit"

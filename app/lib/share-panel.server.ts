@@ -5,6 +5,7 @@ import { audit } from "./audit.server";
 import { assertCsrf } from "./csrf.server";
 import { requireTeamRole, type CurrentUser, type TeamRole } from "./permissions.server";
 import { appOrigin, clientIp } from "./request.server";
+import { countText } from "./plural";
 import { emailShare, type ShareSubject } from "./share-mail.server";
 import {
   createShareSchema,
@@ -179,14 +180,12 @@ export async function sharePanelAction(
       });
       const parts = [
         sent.guests ? `${sent.guests} with a share link` : null,
-        sent.members
-          ? `${sent.members} team member${sent.members === 1 ? "" : "s"} with the normal link`
-          : null,
+        sent.members ? `${countText(sent.members, "team member")} with the normal link` : null,
       ].filter(Boolean);
       const reply: SharePanelReply = {
         intent,
         result: replyOf(submission, true),
-        notice: `Sent to ${recipients.length} address${recipients.length === 1 ? "" : "es"}: ${parts.join(", ")}.`,
+        notice: `Sent to ${countText(recipients.length, "address", "addresses")}: ${parts.join(", ")}.`,
       };
       return Response.json(reply, { headers: noStore });
     }
@@ -216,7 +215,7 @@ export async function sharePanelAction(
       const reply: SharePanelReply = {
         intent,
         share,
-        notice: `The link works for ${parsed.data.expiresInDays} more day${parsed.data.expiresInDays === 1 ? "" : "s"}.`,
+        notice: `The link works for ${countText(parsed.data.expiresInDays, "more day")}.`,
       };
       return Response.json(reply, { headers: noStore });
     }

@@ -307,7 +307,7 @@ describe("targetSchema (the form and API input)", () => {
       minDb: "The minimum isolation is at least -40 dB.",
     });
     expect(errors({ ...form, minDb: "ten" })).toEqual({
-      minDb: "Enter the minimum isolation in dB.",
+      minDb: "The minimum isolation is a number of dB, e.g. 10 or −2.5.",
     });
     expect(errors({ kind: "rattle", name: "x", maxRadS2: "0" })).toEqual({
       maxRadS2: "The maximum angular acceleration is more than 0 rad/s².",
@@ -330,5 +330,26 @@ describe("targetSchema (the form and API input)", () => {
     expect(errors({ ...form, gears: "2 x" })).toEqual({
       "gears.1": "Gears are whole numbers, e.g. 2 3 4 (R for reverse, N for neutral).",
     });
+  });
+
+  it("reports every problem of one submission together: field errors and the range order (issue 11)", () => {
+    expect(
+      errors({ kind: "isolation", name: "", rpmFrom: "3000", rpmTo: "1000", minDb: "abc" }),
+    ).toEqual({
+      name: "Give the target a name, e.g. “Run-up isolation 1000–3000 rpm”.",
+      rpmTo: "The highest engine speed must be above the lowest (3000 rpm).",
+      minDb: "The minimum isolation is a number of dB, e.g. 10 or −2.5.",
+    });
+    // A range end that is itself wrong is not compared; the other missing fields still show.
+    expect(errors({ kind: "isolation", name: "x", rpmFrom: "abc", rpmTo: "1000" })).toEqual({
+      rpmFrom: "The lowest engine speed is a number of rpm, e.g. 1000.",
+      minDb: "Enter the minimum isolation in dB.",
+    });
+    expect(errors({ kind: "rattle", name: "", gears: "x" })).toEqual({
+      name: "Give the target a name, e.g. “Run-up isolation 1000–3000 rpm”.",
+      "gears.0": "Gears are whole numbers, e.g. 2 3 4 (R for reverse, N for neutral).",
+      maxRadS2: "Enter the maximum angular acceleration in rad/s².",
+    });
+    expect(targetSchema.safeParse(null).success).toBe(false);
   });
 });

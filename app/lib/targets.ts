@@ -12,6 +12,7 @@
 import { z } from "zod";
 import type { TargetKind } from "~/db/schema-results";
 import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "./drive-log-terms";
+import { countText, plural } from "./plural";
 
 // Kept here (not imported from the schema file) so the browser bundle carries no Drizzle code.
 export const TARGET_KINDS = ["isolation", "rattle"] as const satisfies readonly TargetKind[];
@@ -91,7 +92,7 @@ const rpmField = (what: string) =>
   z.preprocess(
     toNumber,
     z
-      .number({ error: `Enter the ${what} engine speed in rpm.` })
+      .number({ error: `The ${what} engine speed is a number of rpm, e.g. 1000.` })
       .min(RPM_MIN, `The ${what} engine speed is at least ${RPM_MIN} rpm.`)
       .max(RPM_MAX, `The ${what} engine speed is at most ${RPM_MAX} rpm.`)
       .optional(),
@@ -146,7 +147,7 @@ const targetFields = z
     minDb: z.preprocess(
       toNumber,
       z
-        .number({ error: "Enter the minimum isolation in dB." })
+        .number({ error: "The minimum isolation is a number of dB, e.g. 10 or −2.5." })
         .min(MIN_DB_LOW, `The minimum isolation is at least ${MIN_DB_LOW} dB.`)
         .max(MIN_DB_HIGH, `The minimum isolation is at most ${MIN_DB_HIGH} dB.`)
         .optional(),
@@ -154,7 +155,7 @@ const targetFields = z
     maxRadS2: z.preprocess(
       toNumber,
       z
-        .number({ error: "Enter the maximum angular acceleration in rad/s²." })
+        .number({ error: "The maximum angular acceleration is a number of rad/s², e.g. 400." })
         .positive("The maximum angular acceleration is more than 0 rad/s².")
         .max(
           MAX_RAD_S2_HIGH,
@@ -184,29 +185,38 @@ const targetFields = z
         .transform((gs) => [...new Set(gs)].sort((a, b) => a - b)),
     ),
   })
-  .superRefine((t, ctx) => {
-    if (t.kind === "isolation") {
-      const need = [
-        ["rpmFrom", "Enter the lowest engine speed in rpm."],
-        ["rpmTo", "Enter the highest engine speed in rpm."],
-        ["minDb", "Enter the minimum isolation in dB."],
-      ] as const;
-      for (const [key, message] of need)
-        if (t[key] === undefined) ctx.addIssue({ code: "custom", path: [key], message });
-      if (t.rpmFrom !== undefined && t.rpmTo !== undefined && !(t.rpmFrom < t.rpmTo))
+  // The checks across fields run even when a field has its own error, so one submission
+  // reports every problem at once (issue 11). A field that failed may hold anything (NaN, a
+  // string), so only readable numbers are compared, and only an absent field is "missing".
+  .superRefine(
+    (t, ctx) => {
+      const num = (v: unknown) => (typeof v === "number" && Number.isFinite(v) ? v : undefined);
+      if (t.kind === "isolation") {
+        const need = [
+          ["rpmFrom", "Enter the lowest engine speed in rpm."],
+          ["rpmTo", "Enter the highest engine speed in rpm."],
+          ["minDb", "Enter the minimum isolation in dB."],
+        ] as const;
+        for (const [key, message] of need)
+          if (t[key] === undefined) ctx.addIssue({ code: "custom", path: [key], message });
+        const from = num(t.rpmFrom);
+        const to = num(t.rpmTo);
+        if (from !== undefined && to !== undefined && !(from < to))
+          ctx.addIssue({
+            code: "custom",
+            path: ["rpmTo"],
+            message: `The highest engine speed must be above the lowest (${from} rpm).`,
+          });
+      } else if (t.kind === "rattle" && t.maxRadS2 === undefined) {
         ctx.addIssue({
           code: "custom",
-          path: ["rpmTo"],
-          message: `The highest engine speed must be above the lowest (${t.rpmFrom} rpm).`,
+          path: ["maxRadS2"],
+          message: "Enter the maximum angular acceleration in rad/s².",
         });
-    } else if (t.maxRadS2 === undefined) {
-      ctx.addIssue({
-        code: "custom",
-        path: ["maxRadS2"],
-        message: "Enter the maximum angular acceleration in rad/s².",
-      });
-    }
-  })
+      }
+    },
+    { when: (payload) => typeof payload.value === "object" && payload.value !== null },
+  )
   .transform((t): TargetInput =>
     t.kind === "isolation"
       ? {
@@ -279,7 +289,7 @@ export function scopeText(t: Pick<Target, "conditions" | "gears">): string {
   if (t.conditions.length) parts.push(t.conditions.map((c) => conditionLabels[c]).join(", "));
   if (t.gears.length)
     parts.push(
-      `${t.gears.length === 1 ? "gear" : "gears"} ${t.gears.map((g) => (g === -1 ? "R" : g === 0 ? "N" : String(g))).join(", ")}`,
+      `${plural(t.gears.length, "gear")} ${t.gears.map((g) => (g === -1 ? "R" : g === 0 ? "N" : String(g))).join(", ")}`,
     );
   return parts.length ? parts.join("; ") : "Every drive log";
 }
@@ -386,7 +396,9 @@ function isolationVerdict(t: Target, result: TargetEvidence): TargetVerdict {
     const worst = misses.reduce((w, p) => (p.dB < w.dB ? p : w));
     const margin = round(worst.dB - minDb, 2);
     const count =
-      misses.length > 1 ? ` Under the target in ${misses.length} of ${points.length} bins.` : "";
+      misses.length > 1
+        ? ` Under the target in ${misses.length} of ${countText(points.length, "bin")}.`
+        : "";
     return {
       ...shell,
       status: "fail",

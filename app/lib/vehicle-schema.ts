@@ -10,10 +10,11 @@ import {
 // One schema per form, shared by the browser's hints and the actions and API (docs/conventions.md).
 // Limits match the columns in app/db/schema-drive-logs.ts, so nothing is cut silently.
 
-const optionalNumber = (schema: z.ZodNumber) =>
+/** An optional number; `notNumber` says what to type when the text is not one. */
+const optionalNumber = (schema: z.ZodNumber, notNumber: string) =>
   z.preprocess(
     (v) => (v === "" || v === null ? undefined : v),
-    z.coerce.number().pipe(schema).optional(),
+    z.coerce.number({ error: notNumber }).pipe(schema).optional(),
   );
 
 const text = (max: number, what: string) =>
@@ -22,7 +23,7 @@ const text = (max: number, what: string) =>
 export const vehicleSchema = z.object({
   name: text(120, "A name").min(1, "Give the vehicle a name."),
   identifier: text(40, "An identifier")
-    .min(1, "Give the vehicle a short identifier, e.g. its fleet number.")
+    .min(1, { error: "Give the vehicle a short identifier, e.g. its fleet number.", abort: true })
     .regex(/^[A-Za-z0-9][A-Za-z0-9 ._/-]*$/, "Use letters, digits, spaces and . _ / - only."),
   cylinders: z.coerce
     .number({ error: "Enter the number of cylinders." })
@@ -44,6 +45,7 @@ export const vehicleSchema = z.object({
       .number()
       .positive("The firing order is a positive number of orders.")
       .max(12, "At most order 12."),
+    "The firing order is a number, e.g. 2 or 1.5.",
   ),
   transmissionType: z
     .enum(TRANSMISSION_TYPES, { error: "Choose the transmission type." })
@@ -75,15 +77,18 @@ export const vehicleSchema = z.object({
     .default("A"),
   primaryInertiaKgM2: optionalNumber(
     z.number().positive("Inertia is positive.").max(5, "At most 5 kg·m²."),
+    "Inertia is a number in kg·m², e.g. 0.12.",
   ),
   secondaryInertiaKgM2: optionalNumber(
     z.number().positive("Inertia is positive.").max(5, "At most 5 kg·m²."),
+    "Inertia is a number in kg·m², e.g. 0.05.",
   ),
   springRateNmPerDeg: optionalNumber(
     z.number().positive("Spring rate is positive.").max(1000, "At most 1000 N·m/°."),
+    "Spring rate is a number in N·m/°, e.g. 8.",
   ),
   rattleLimitRadS2: z.coerce
-    .number()
+    .number({ error: "The rattle limit is a number of rad/s², e.g. 500." })
     .positive("The rattle limit is a positive angular acceleration in rad/s².")
     .max(100_000, "At most 100 000 rad/s².")
     .default(DEFAULT_RATTLE_LIMIT_RAD_S2),
@@ -102,6 +107,7 @@ export const logMetadataSchema = z.object({
       .int("The gear is a whole number.")
       .min(-1, "Reverse is -1.")
       .max(12, "At most gear 12."),
+    "The gear is a whole number: -1 for reverse, 0 for neutral.",
   ),
   damperVariant: z.preprocess(
     (v) => (v === "" ? undefined : v),

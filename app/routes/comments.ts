@@ -10,6 +10,7 @@ import {
 import { commentData } from "~/lib/comments.server";
 import { idParam } from "~/lib/params";
 import { requireTeamRole } from "~/lib/permissions.server";
+import { plural } from "~/lib/plural";
 import { appOrigin } from "~/lib/request.server";
 import type { Route } from "./+types/comments";
 
@@ -131,7 +132,7 @@ export async function action({ request, params }: Route.ActionArgs) {
         id,
         result: submission.reply({ resetForm: true }),
         notice: notified.length
-          ? `Comment posted; ${notified.join(", ")} ${notified.length === 1 ? "was" : "were"} notified by e-mail.`
+          ? `Comment posted; ${notified.join(", ")} ${plural(notified.length, "was", "were")} notified by e-mail.`
           : "Comment posted.",
       },
       { status: 201, headers: noStore },

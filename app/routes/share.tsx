@@ -66,7 +66,8 @@ export default function SharedPage() {
             {page.vehicle.engine}; firing order {page.vehicle.firingOrder}
           </Item>
           <Item term="Transmission">{page.vehicle.transmission}</Item>
-          <Item term="Damper">
+          {/* The vehicle's current damper; each drive log below names the one it was recorded with. */}
+          <Item term="Vehicle's fitted damper">
             {page.vehicle.damper}, variant {page.vehicle.damperVariant}
           </Item>
         </dl>
@@ -101,7 +102,11 @@ export default function SharedPage() {
             <dl className="mt-2 flex flex-wrap gap-x-6 gap-y-1 text-sm">
               <Inline term="Condition">{conditionLabels[log.condition]}</Inline>
               <Inline term="Gear">{gearLabel(log.gear)}</Inline>
-              <Inline term="Damper variant">{log.damperVariant}</Inline>
+              <Inline term="Damper in this drive log">
+                <span data-log-damper>
+                  {page.vehicle.damper}, variant {log.damperVariant}
+                </span>
+              </Inline>
               <Inline term="Test date">
                 {log.testDate ? <When date={log.testDate} dateOnly /> : "—"}
               </Inline>

@@ -29,6 +29,7 @@ import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { countText, plural } from "~/lib/plural";
 import { clientIp } from "~/lib/request.server";
 import { atLeast } from "~/lib/roles";
 import { firingOrder } from "~/lib/signal/firing-order";
@@ -205,6 +206,9 @@ export async function action({ request, params, context }: Route.ActionArgs) {
       });
     }
     if (intent === "delete-target" && existing) {
+      // Deleting asks first: without confirm=yes (the delete button without JavaScript) the
+      // page comes back with the question for this target, and nothing changes.
+      if (form.get("confirm") !== "yes") return { confirmDelete: existing.id };
       await targets.remove(existing.id);
       await audit({
         teamId: team.id,
@@ -289,6 +293,7 @@ export default function VehiclePage() {
   const actionNotice = result && "notice" in result ? result.notice : null;
   const uploadError = result && "uploadError" in result ? result.uploadError : null;
   const targetReply = result && "targetForm" in result ? (result.targetForm ?? null) : null;
+  const confirmDelete = result && "confirmDelete" in result ? result.confirmDelete : null;
 
   return (
     <main className="space-y-6">
@@ -330,10 +335,8 @@ export default function VehiclePage() {
       {actionNotice ? <Notice>{actionNotice}</Notice> : null}
       {uploaded.length ? (
         <Notice>
-          {uploaded.length === 1
-            ? "1 drive log uploaded"
-            : `${uploaded.length} drive logs uploaded`}
-          ; its analysis runs in the background.
+          {countText(uploaded.length, "drive log")} uploaded;{" "}
+          {plural(uploaded.length, "its analysis runs", "their analyses run")} in the background.
         </Notice>
       ) : null}
       {duplicates.map(([id, earlier]) => (
@@ -369,6 +372,7 @@ export default function VehiclePage() {
           targets={targets}
           canEdit={engineer}
           reply={targetReply}
+          confirmDelete={confirmDelete}
           analysedLogs={analysedLogs}
           rattleLimitRadS2={vehicle.rattleLimitRadS2}
         />

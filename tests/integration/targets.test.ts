@@ -331,7 +331,18 @@ describe("targets on the vehicle page", () => {
     expect(verdict).toMatchObject({ name: "Idle isolation, lowered", status: "pass" });
     expect(Math.abs(verdict.margin! - 2)).toBeLessThan(0.3);
 
-    const deleted = await engineer.post(path, { intent: "delete-target", targetId: String(id) });
+    // Deleting asks first (issue 11): the delete button alone (as posted without JavaScript)
+    // brings the question back and changes nothing; only confirm=yes deletes.
+    const asked = await engineer.post(path, { intent: "delete-target", targetId: String(id) });
+    expect(asked.status).toBe(200);
+    expect(asked.html).toContain("Delete the target “Idle isolation, lowered”?");
+    expect(asked.html).toContain(`data-delete-confirm="${id}"`);
+    expect((await targetData(team.id).get(id)).name).toBe("Idle isolation, lowered");
+    const deleted = await engineer.post(path, {
+      intent: "delete-target",
+      targetId: String(id),
+      confirm: "yes",
+    });
     expect(deleted.status).toBe(200);
     expect(deleted.html).toContain("The target “Idle isolation, lowered” is deleted.");
     await expect(targetData(team.id).get(id)).rejects.toMatchObject({ status: 404 });

@@ -19,6 +19,7 @@ import { findSegments } from "./segments.ts";
 import { pickSpectrumSegment, timeSpectrum } from "./time-spectrum.ts";
 import { speedTrace } from "./traces.ts";
 import { fitTwoMassModel } from "./two-mass-model.ts";
+import { countText, plural } from "../plural.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
 export interface AnalysisOptions {
@@ -200,7 +201,7 @@ export function analyseDriveLog(
   if (tracked.droppedSlowBlocks > 0) {
     warnings.push({
       code: "slow_blocks_dropped",
-      message: `${tracked.droppedSlowBlocks === 1 ? "1 block was" : `${tracked.droppedSlowBlocks} blocks were`} left out because the engine ran too slowly in them (below ${minValidRpm.toFixed(0)} rpm) for an alias-free angle grid`,
+      message: `${countText(tracked.droppedSlowBlocks, "block")} ${plural(tracked.droppedSlowBlocks, "was", "were")} left out because the engine ran too slowly in ${plural(tracked.droppedSlowBlocks, "it", "them")} (below ${minValidRpm.toFixed(0)} rpm) for an alias-free angle grid`,
     });
   }
   if (tracked.blockCount === 0) {
@@ -219,7 +220,7 @@ export function analyseDriveLog(
   if (nearNoise > 0)
     warnings.push({
       code: "gearbox_near_noise",
-      message: `at ${nearNoise} engine speeds the gearbox firing-order amplitude is close to the sensor noise; isolation there is a lower bound`,
+      message: `at ${countText(nearNoise, "engine speed")} the gearbox firing-order amplitude is close to the sensor noise; isolation there is a lower bound`,
     });
   const measured = isolation.filter((p) => p.aboveNoise);
   const res = findResonance(isolation);

@@ -7,6 +7,7 @@ import type { ColumnMap } from "./columns.ts";
 import { fmt } from "./ingest-scan.ts";
 import type { DriveLog, SignalIssue } from "./types.ts";
 import { S_PER_UNIT } from "./units.ts";
+import { countText, plural } from "../plural.ts";
 /** Limits for the checks that need the whole log (sampling, length, clipping). */
 export interface CheckOptions {
   /** Allowed deviation of a sampling interval from the nominal one, as a fraction (default 0.1). */
@@ -143,11 +144,9 @@ export function checkLog(
       }
     }
     const rows =
-      (count === 1 ? "row " : "rows ") +
-      irregular.join(", ") +
-      (count > irregular.length ? ", …" : "");
+      `${plural(count, "row")} ` + irregular.join(", ") + (count > irregular.length ? ", …" : "");
     const pct = Math.round((o.samplingTolerance ?? 0.1) * 100);
-    const message = `sampling is irregular at ${count} ${count === 1 ? "row" : "rows"} (${rows}): intervals differ from ${inFile(nom)} by more than ${pct} %`;
+    const message = `sampling is irregular at ${countText(count, "row")} (${rows}): intervals differ from ${inFile(nom)} by more than ${pct} %`;
     return {
       warnings,
       error: { code: "irregular_sampling", message, row: irregular[0] ?? 0, column: col },

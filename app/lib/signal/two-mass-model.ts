@@ -11,6 +11,7 @@
  * √(k(J1+J2)/(J1·J2)) at which both sides swing most.
  */
 import { orderFrequencyHz } from "./firing-order.ts";
+import { countText } from "../plural.ts";
 
 /** Transmissibility |H| (dimensionless) at frequency ratio r ≥ 0 and damping ratio ζ ≥ 0. */
 export function transmissibility(r: number, zeta: number): number {
@@ -89,7 +90,7 @@ export function fitTwoMassModel(
   if (usable.length < lim.minBins) {
     return {
       ok: false,
-      reason: `only ${usable.length} engine-speed ${usable.length === 1 ? "bin" : "bins"} with isolation; the fit needs ${lim.minBins}`,
+      reason: `only ${countText(usable.length, "engine-speed bin")} with isolation; the fit needs ${lim.minBins}`,
     };
   }
   const rpms = usable.map((p) => p.rpm);
