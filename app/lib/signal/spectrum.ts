@@ -134,7 +134,8 @@ export type Detrend = "mean" | "linear";
  * to it (its projection is the Hann spectrum of a ramp at bin k, ∝ 1/(k(k²−1))), so removing the
  * line leaves the tone as it was. An unweighted fit takes up to 6A/(πk) end to end from a tone of
  * amplitude A, and that line leaks back into the lowest bins (2.9 % of A at bin 1 for k = 16).
- * A pure line is fitted exactly either way. Returns a function writing [a, b] for a block.
+ * A pure line is fitted exactly either way. Returns, for a block x, [value at n = 0, slope per
+ * sample]: the line is value + slope·n.
  */
 export function windowTrend(window: Float64Array): (x: Float64Array) => [number, number] {
   const size = window.length;
