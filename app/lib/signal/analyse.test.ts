@@ -196,6 +196,30 @@ describe("linear run-up through the damper resonance", () => {
       expect(Math.abs(p.crankRpm / 10 - 1)).toBeLessThan(0.01);
   });
 
+  it("the order map and the order-0.5 curve hold no speed trend: above 700 rpm orders 0.125–0.5 stay below 1 % of the imposed 10 rpm of order 2 on both channels (the log has no content there; analytic signal)", () => {
+    // Without the line removed per block, order 0.125 read 3/(4π) of the block's speed rise
+    // (order-tracking.test.ts): about 7 rpm at 700 rpm here. Below 700 rpm the speed is not
+    // a straight line in crank angle within a block (ω(θ) = √(ω0² + 2αθ) bends most at low ω),
+    // and what is left reaches about 2 % at 350 rpm.
+    const m = v.orderMap;
+    expect(m.orderStep).toBe(0.125);
+    let rows = 0;
+    for (let r = 0; r < m.crankRpm.length; r++) {
+      if (m.blockRpm[r]! < 700) continue;
+      rows++;
+      for (const k of [1, 2, 3, 4]) {
+        expect(m.crankRpm[r]![k]!).toBeLessThan(0.01 * 10);
+        expect(m.gearboxRpm[r]![k]!).toBeLessThan(0.01 * 10);
+      }
+    }
+    expect(rows).toBeGreaterThan(100);
+    const half = v.orderCurves.find((c) => c.order === 0.5)!;
+    for (const p of half.points.filter((x) => x.rpm >= 700)) {
+      expect(p.crankRpm).toBeLessThan(0.01 * 10);
+      expect(p.gearboxRpm).toBeLessThan(0.01 * 10);
+    }
+  });
+
   it("segments: one run-up across the log", () => {
     expect(v.segments.map((s) => s.kind)).toContain("run-up");
     const up = v.segments.find((s) => s.kind === "run-up")!;

@@ -267,6 +267,7 @@ export function analyseDriveLog(
       lowPassHz: grid.lowPassHz === null ? null : round(grid.lowPassHz, 2),
       minValidRpm: round(minValidRpm, 1),
       window: "hann-periodic",
+      detrend: "linear",
     },
     blocks: tracked.blockCount,
     isolation,

@@ -5,11 +5,13 @@
  * 2. optional zero-phase low-pass of both channels (anti-alias, see `chooseAngleGrid`);
  * 3. resampling of both channels to a uniform angle grid of S samples per revolution
  *    (4-point cubic Lagrange interpolation in the sample index);
- * 4. blocks of R revolutions (N = S·R samples, order resolution 1/R) with overlap, mean
- *    removed, periodic Hann window, single-sided 0-peak amplitude (spectrum.ts).
+ * 4. blocks of R revolutions (N = S·R samples, order resolution 1/R) with overlap, a straight
+ *    line removed (window-weighted least squares: the speed trend of a run-up or coast-down
+ *    inside the block would otherwise leak into orders 1/R…4/R), periodic Hann window,
+ *    single-sided 0-peak amplitude (spectrum.ts).
  * Units: angle rad, speed rad/s, time s, orders per crank revolution.
  */
-import { createPairAmplitudePlan } from "./spectrum.ts";
+import { createPairAmplitudePlan, type Detrend } from "./spectrum.ts";
 
 /** Crank angle in rad by the trapezoid rule; negative speeds count as standstill (angle never runs back). */
 export function integrateAngle(timeS: Float64Array, radS: Float64Array): Float64Array {
@@ -227,6 +229,8 @@ export function trackBlocks(args: {
   revsPerBlock: number;
   overlap: number;
   topBin: number;
+  /** What each block loses before the window; "linear" (the default) except for comparisons. */
+  detrend?: Detrend;
   onProgress?: (fraction: number) => void;
 }): TrackedBlocks {
   const { timeS, angleRad, crankRadS, gearboxRadS, revsPerBlock: R } = args;
@@ -275,7 +279,7 @@ export function trackBlocks(args: {
     const N = S * R;
     let plan = plans.get(N);
     if (!plan) {
-      plan = createPairAmplitudePlan(N);
+      plan = createPairAmplitudePlan(N, { detrend: args.detrend ?? "linear" });
       plans.set(N, plan);
     }
     if (bufC.length < N) {

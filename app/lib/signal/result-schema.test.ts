@@ -46,6 +46,14 @@ describe("result schema (the public JSON contract)", () => {
   it("accepts the documented shape", () => {
     expect(analysisResultSchema.safeParse(minimal).success).toBe(true);
   });
+  it("accepts a result stored before settings.detrend existed, and refuses values other than mean / linear", () => {
+    expect(analysisResultSchema.parse(minimal).settings.detrend).toBeUndefined();
+    const r = structuredClone(minimal) as { settings: Record<string, unknown> };
+    r.settings.detrend = "linear";
+    expect(analysisResultSchema.parse(r).settings.detrend).toBe("linear");
+    r.settings.detrend = "quadratic";
+    expect(analysisResultSchema.safeParse(r).success).toBe(false);
+  });
   it("refuses NaN and Infinity anywhere a number goes (zod 4 z.number() is finite)", () => {
     for (const bad of [NaN, Infinity, -Infinity]) {
       const r = structuredClone(minimal);

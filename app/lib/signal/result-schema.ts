@@ -30,6 +30,13 @@ export const analysisSettingsSchema = z.object({
   /** Blocks dipping below this engine speed are dropped (no alias-free grid for them), rpm. */
   minValidRpm: z.number().nonnegative(),
   window: z.literal("hann-periodic"),
+  /**
+   * What each block lost before the window: "linear" (a window-weighted least-squares line, so a
+   * run-up's speed trend stays out of the low orders). Absent in results stored before it
+   * existed: those removed only the block mean ("mean"). Optional rather than defaulted so code
+   * that builds a result by hand still type-checks.
+   */
+  detrend: z.enum(["mean", "linear"]).optional(),
 });
 
 export const analysisResultSchema = z.object({

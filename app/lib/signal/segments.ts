@@ -1,10 +1,16 @@
 /**
  * Operating segments from the crank speed profile: start, idle, steady, run-up, coast-down.
  *
- * Method: the crank speed is averaged into 0.1 s frames, smoothed with a 1 s moving average and
- * differentiated over ±0.5 s (slope in rpm/s). Each frame is classified, runs of one kind are
- * formed and runs shorter than `minDurationS` are merged into their longer neighbour.
- * Speeds are rpm, times s.
+ * Method: the crank speed is averaged into 0.1 s frames and smoothed with a 1 s moving average.
+ * Steady means the speed holds: a stretch of at least `minSteadyS` in which the speed stays
+ * within ±B of its mid value, B = max(`bandMinRpm`, `bandFraction` · speed), and whose
+ * least-squares parabola moves by less than B and line by less than B per 10 s (so a slow sweep,
+ * which also crosses any band slowly, is not steady: across a window whose range is 2B its
+ * fitted trend moves by ≈ 2B, and by 15/16 · 2B over the turn of an up-and-down sweep). Steady
+ * stretches at the idle speed are idle. Everything else is run-up or coast-down by the sign of
+ * the slope over ±0.5 s, so a slow sweep 800 → 4000 → 800 rpm is a run-up and a coast-down
+ * whatever its rate. Runs shorter than `minDurationS` are merged into their longer neighbour.
+ * Speeds are rpm, times s. docs/signal-computation.md, step 12, states the band.
  */
 import { RPM_PER_RAD_S } from "./firing-order.ts";
 
@@ -18,8 +24,12 @@ export interface Segment {
 }
 
 export interface SegmentOptions {
-  /** |slope| below this is steady, rpm/s. Default 40. */
-  steadySlopeRpmS?: number;
+  /** Half-width of the steady band as a fraction of the speed. Default 0.02 (±2 %). */
+  bandFraction?: number;
+  /** Least half-width of the steady band, rpm. Default 25 (so ±25 rpm up to 1250 rpm). */
+  bandMinRpm?: number;
+  /** Shortest steady (or idle) stretch, s. Default 3. */
+  minSteadyS?: number;
   /** Segments shorter than this are merged into a neighbour, s. Default 1.5. */
   minDurationS?: number;
   /** Idle speeds are looked for in this band, rpm. Default 450–1300. */
@@ -27,6 +37,11 @@ export interface SegmentOptions {
 }
 
 const FRAME_S = 0.1;
+/** A steady stretch's line may move at most B in this time (frames below), s. */
+const RATE_REF_S = 10;
+const rateRefFrames = RATE_REF_S / FRAME_S;
+/** Below this |slope| a frame outside a steady stretch has no direction of its own, rpm/s. */
+const FLAT_RPM_S = 1;
 /** Longest rise from cranking to running speed that still counts as a start, s. */
 const START_RISE_S = 3;
 
@@ -43,20 +58,98 @@ function movingAverage(x: Float64Array, half: number): Float64Array {
   return out;
 }
 
-/** Idle speed (rpm): median of steady frames inside the idle band, or null when there are none. */
+/**
+ * The trend of y[a…b): `span`, how far its least-squares parabola moves across the stretch
+ * (max − min), and `rise`, the end-to-end change of its least-squares line, both in the unit of
+ * y. Orthogonal basis 1, x, x² − mean(x²) on the symmetric grid x ∈ [−1, 1], so the line's
+ * slope is the parabola's x coefficient.
+ */
+export function trendOf(y: Float64Array, a: number, b: number): { span: number; rise: number } {
+  const n = b - a;
+  if (n < 3) return { span: 0, rise: 0 };
+  const h = (n - 1) / 2;
+  let m2 = 0;
+  for (let i = 0; i < n; i++) m2 += ((i - h) / h) ** 2;
+  m2 /= n;
+  let s1 = 0;
+  let s2 = 0;
+  let p1 = 0;
+  let p2 = 0;
+  const ref = y[a]!;
+  for (let i = 0; i < n; i++) {
+    const x = (i - h) / h;
+    const q = x * x - m2;
+    const v = y[a + i]! - ref;
+    s1 += v * x;
+    s2 += v * q;
+    p1 += x * x;
+    p2 += q * q;
+  }
+  const c1 = s1 / p1;
+  const c2 = s2 / p2;
+  const at = (x: number) => c1 * x + c2 * x * x; // the constant part does not move
+  const vals = [at(-1), at(1)];
+  if (c2 !== 0 && Math.abs(c1 / (2 * c2)) < 1) vals.push(at(-c1 / (2 * c2)));
+  return { span: Math.max(...vals) - Math.min(...vals), rise: 2 * c1 };
+}
+
+/** Steady stretches [a, b) of frames: the speed within ±B for minFrames or more, no trend (see top). */
+export function findHolds(
+  rpm: Float64Array,
+  minFrames: number,
+  band: (rpm: number) => number,
+): [number, number][] {
+  const n = rpm.length;
+  const holds: [number, number][] = [];
+  let a = 0;
+  while (a < n) {
+    let lo = rpm[a]!;
+    let hi = lo;
+    let b = a + 1;
+    for (; b < n; b++) {
+      const l = Math.min(lo, rpm[b]!);
+      const h = Math.max(hi, rpm[b]!);
+      if (h - l > 2 * band(0.5 * (h + l))) break;
+      lo = l;
+      hi = h;
+    }
+    if (b - a < minFrames) {
+      a++;
+      continue;
+    }
+    // The longest stretch from a may begin and end on the ramps around a hold: its ends farther
+    // than B from its median are trimmed (what stays of a ramp crosses at most B: B/rate in time).
+    const B = band(0.5 * (lo + hi));
+    const sorted = Array.from(rpm.subarray(a, b)).sort((x, y) => x - y);
+    const med = sorted[sorted.length >> 1]!;
+    let s = a;
+    let e = b;
+    while (s < e && Math.abs(rpm[s]! - med) > B) s++;
+    while (e > s && Math.abs(rpm[e - 1]! - med) > B) e--;
+    // No trend: the parabola moves less than B (a sweep's stretch moves ≈ 2B, its turn 15/16 of
+    // 2B), and the line less than B per RATE_REF_S (a stretch cut short by the log's start or
+    // end has not had the time to cross the band).
+    const t = trendOf(rpm, s, e);
+    if (e - s >= minFrames && t.span < B && Math.abs(t.rise) * (rateRefFrames / (e - s)) < B) {
+      holds.push([s, e]);
+      a = e;
+    } else a++;
+  }
+  return holds;
+}
+
+/** Idle speed (rpm): median of the lowest cluster of steady frames inside the idle band, or null. */
 export function estimateIdleRpm(
   rpm: Float64Array,
-  slope: Float64Array,
-  thr: number,
+  holds: [number, number][],
   band: [number, number],
 ): number | null {
   const vals: number[] = [];
-  for (let i = 0; i < rpm.length; i++) {
-    if (Math.abs(slope[i]!) < thr && rpm[i]! >= band[0] && rpm[i]! <= band[1]) vals.push(rpm[i]!);
-  }
+  for (const [a, b] of holds)
+    for (let f = a; f < b; f++) if (rpm[f]! >= band[0] && rpm[f]! <= band[1]) vals.push(rpm[f]!);
   if (vals.length === 0) return null;
-  vals.sort((a, b) => a - b);
-  // The lowest steady cluster is idle: take the median of the lower quarter-range of values.
+  vals.sort((x, y) => x - y);
+  // The lowest steady cluster is idle: the median of the values within 150 rpm of the lowest.
   const lowest = vals[0]!;
   const cluster = vals.filter((v) => v < lowest + 150);
   return cluster[cluster.length >> 1]!;
@@ -67,9 +160,11 @@ export function findSegments(
   crankRadS: Float64Array,
   options: SegmentOptions = {},
 ): Segment[] {
-  const thr = options.steadySlopeRpmS ?? 40;
+  const bandFraction = options.bandFraction ?? 0.02;
+  const bandMin = options.bandMinRpm ?? 25;
+  const minSteadyS = options.minSteadyS ?? 3;
   const minDur = options.minDurationS ?? 1.5;
-  const band = options.idleBandRpm ?? [450, 1300];
+  const idleBand = options.idleBandRpm ?? [450, 1300];
   const n = timeS.length;
   if (n < 2) return [];
   const t0 = timeS[0]!;
@@ -97,19 +192,28 @@ export function findSegments(
     const b = Math.min(frames - 1, f + 5);
     slope[f] = b > a ? (rpm[b]! - rpm[a]!) / ((b - a) * FRAME_S) : 0;
   }
-  const idle = estimateIdleRpm(rpm, slope, thr, band);
+  const holds = findHolds(rpm, Math.round(minSteadyS / FRAME_S), (v) =>
+    Math.max(bandMin, bandFraction * Math.abs(v)),
+  );
+  const idle = estimateIdleRpm(rpm, holds, idleBand);
   const idleTol = idle === null ? 0 : Math.max(100, 0.15 * idle);
-  const runningRpm = 0.6 * (idle ?? 800);
   const kinds: SegmentKind[] = new Array(frames);
+  // Direction by the slope's sign; a frame without a slope (standstill) continues the kind before.
   for (let f = 0; f < frames; f++) {
-    const s = slope[f]!;
-    if (Math.abs(s) < thr)
-      kinds[f] = idle !== null && Math.abs(rpm[f]! - idle) < idleTol ? "idle" : "steady";
-    else kinds[f] = s > 0 ? "run-up" : "coast-down";
+    const sl = slope[f]!;
+    if (Math.abs(sl) >= FLAT_RPM_S || f === 0) kinds[f] = sl >= 0 ? "run-up" : "coast-down";
+    else kinds[f] = kinds[f - 1]!;
+  }
+  for (const [a, b] of holds) {
+    let s = 0;
+    for (let f = a; f < b; f++) s += rpm[f]!;
+    const isIdle = idle !== null && Math.abs(s / (b - a) - idle) < idleTol;
+    for (let f = a; f < b; f++) kinds[f] = isIdle ? "idle" : "steady";
   }
   // A start: from standstill or cranking (below 0.4× idle), up through running speed (0.6× idle)
   // within START_RISE_S, through the flare-up, to the first idle or steady frame. A slow climb
   // from low speed is a run-up, not a start.
+  const runningRpm = 0.6 * (idle ?? 800);
   const crankingRpm = 0.4 * (idle ?? 800);
   for (let f = 0; f < frames; f++) {
     if (rpm[f]! >= runningRpm || (f > 0 && kinds[f - 1] === "coast-down")) continue;
