@@ -127,9 +127,9 @@ function FailureReason({
   if (!error) {
     return (
       <p className="text-neutral-700">
-        The analysis of {fileName} failed.{" "}
+        {query.isError ? "The reason could not be fetched: " : "Reading the reason… "}
         <Link to={`${page}#failure-title`} className={linkClass}>
-          See why on its page
+          see it on the drive log&apos;s page
         </Link>
         .
       </p>

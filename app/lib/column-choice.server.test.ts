@@ -55,3 +55,15 @@ describe("the columns of one run", () => {
     });
   });
 });
+
+describe("a file that cannot be read", () => {
+  it("leaves the remembered choice out (the worker then reports the file's own problem)", async () => {
+    const missing = () => {
+      throw new Error("ENOENT");
+    };
+    await expect(chooseColumns({}, remembered, missing)).resolves.toEqual({
+      source: "header",
+      mapping: {},
+    });
+  });
+});

@@ -60,8 +60,11 @@ export async function chooseColumns(
   if (isEmpty(remembered)) return { source: "header", mapping: {} };
   // A file that cannot be read fails in the worker with its own message; here it only means
   // the remembered choice cannot be checked, so it is left out.
-  const header = await readHeader(open()).catch(() => null);
-  const fitted = header ? fitRemembered(header, remembered!) : null;
+  const header = await Promise.resolve()
+    .then(() => readHeader(open()))
+    .catch(() => null);
+  if (!header) return { source: "header", mapping: {} };
+  const fitted = fitRemembered(header, remembered!);
   if (fitted) return { source: "remembered", mapping: fitted as IngestMapping };
   return { source: "header", mapping: {}, skipped: remembered! };
 }
