@@ -246,7 +246,7 @@ export default function DriveLogPage() {
             lastResult={result && "map" in result ? result.map : undefined}
           />
         </Card>
-      ) : applied && !(preview && atLeast(role, "technician")) ? (
+      ) : applied ? (
         <p className="text-sm text-neutral-600" data-columns-used={applied.source}>
           {columnsUsedText(applied)}
         </p>
