@@ -1,4 +1,5 @@
 import type { SubmissionResult } from "@conform-to/react";
+import type { AppliedMapping, IngestMapping } from "~/lib/drive-log-terms";
 import { Form } from "react-router";
 import { z } from "zod";
 import { CsrfInput } from "./csrf-input";
@@ -6,8 +7,9 @@ import { FormError, SubmitButton, useSchemaForm } from "./form";
 import { ChoiceField } from "./form-fields";
 import { tableClass, tdClass, thClass } from "./page";
 
-// The column-mapping step of a drive log whose header could not be read: a preview of the
-// file's first rows and a choice of columns and units, remembered for the vehicle's next uploads.
+// The column-mapping step of a drive log whose columns could not be read: a preview of the
+// file's first rows and a choice of columns and units, remembered for the vehicle's next uploads
+// (where they fit the file: app/lib/column-choice.server.ts).
 
 const speedUnits = ["rpm", "rad/s", "deg/s", "rev/s"] as const;
 const blank = (v: unknown) => (v === "" ? undefined : v);
@@ -104,10 +106,49 @@ export function ColumnMapping({
           <ChoiceField label="Gearbox speed unit" meta={fields.gearboxUnit} options={unitOptions} />
         </div>
         <p className="text-sm text-neutral-600">
-          The choice is remembered for this vehicle, so its next uploads use it too.
+          The choice is remembered for this vehicle: its next uploads use it when their files have
+          these columns, and are recognised from the header otherwise.
         </p>
         <SubmitButton>Use these columns and analyse again</SubmitButton>
       </Form>
     </div>
   );
+}
+
+/** "time from “Zeit”, the crank side from “Kanal1” (rpm)" — the channels a mapping sets. */
+function mappingText(m: IngestMapping): string {
+  const unit = (u: string | undefined) => (u ? ` (${u})` : "");
+  const parts = [
+    m.timeColumn ? `time from “${m.timeColumn}”${unit(m.timeUnit)}` : null,
+    m.crankColumn ? `the crank side from “${m.crankColumn}”${unit(m.crankUnit)}` : null,
+    m.gearboxColumn ? `the gearbox side from “${m.gearboxColumn}”${unit(m.gearboxUnit)}` : null,
+    !m.timeColumn && m.timeUnit ? `time in ${m.timeUnit}` : null,
+    !m.crankColumn && m.crankUnit ? `the crank side in ${m.crankUnit}` : null,
+    !m.gearboxColumn && m.gearboxUnit ? `the gearbox side in ${m.gearboxUnit}` : null,
+  ].filter((p): p is string => p !== null);
+  const named = [m.timeColumn, m.crankColumn, m.gearboxColumn].filter(Boolean).length;
+  const rest = named < 3 ? "; the rest from the header" : "";
+  return parts.length > 1
+    ? `${parts.slice(0, -1).join(", ")} and ${parts[parts.length - 1]}${rest}`
+    : `${parts[0] ?? ""}${rest}`;
+}
+
+/** Which columns the last analysis read, and whether they came from the header or a choice. */
+export function columnsUsedText(applied: AppliedMapping): string {
+  if (applied.source === "chosen")
+    return `The last analysis read the columns chosen for this drive log: ${mappingText(applied.mapping)}.`;
+  if (applied.source === "remembered")
+    return `The last analysis used this vehicle's remembered column choice: ${mappingText(applied.mapping)}.`;
+  const skipped = applied.skipped
+    ? ` This vehicle's remembered choice (${mappingText(applied.skipped)}) was left out: this file does not have its columns.`
+    : "";
+  return `The last analysis recognised the columns from the header.${skipped}`;
+}
+
+/** The form's starting values: the columns the last analysis really used. */
+export function mappingDefaults(applied: AppliedMapping | null): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const [k, v] of Object.entries(applied?.mapping ?? {}))
+    if (typeof v === "string") out[k] = v;
+  return out;
 }

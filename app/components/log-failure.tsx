@@ -3,6 +3,15 @@ import type { LogError } from "~/lib/drive-log-terms";
 /** Error codes about the header, for which the drive-log page offers the column-mapping step. */
 export const MAPPING_CODES = new Set(["missing_channel", "ambiguous_columns", "unknown_column"]);
 
+/**
+ * True when another choice of columns or units may fix the failure, so the drive-log page offers
+ * the column-mapping step: a header problem, or a problem in one column's values (text in a
+ * speed column, a speed out of range because its unit was read wrongly, …).
+ */
+export function canChooseColumns(e: LogError): boolean {
+  return MAPPING_CODES.has(e.code) || (e.column !== undefined && e.column !== null);
+}
+
 /** "Row 4, column 'crank speed [rpm]': …" — the signal core's message with where it happened. */
 export function errorText(e: LogError): string {
   // The core's message may name the place itself ("row 4, column …: …"); say it once, in front.
@@ -14,7 +23,7 @@ export function errorText(e: LogError): string {
 }
 
 export function Failure({ error }: { error: LogError }) {
-  const mapping = MAPPING_CODES.has(error.code);
+  const header = MAPPING_CODES.has(error.code);
   return (
     <section
       aria-labelledby="failure-title"
@@ -27,9 +36,11 @@ export function Failure({ error }: { error: LogError }) {
         {errorText(error)}
       </p>
       <p className="mt-2 text-sm text-red-800">
-        {mapping
+        {header
           ? "Choose the columns below and it is analysed again; the raw file is kept."
-          : "The raw file is kept: fix the file and upload it again, or ask an engineer to re-analyse it with other settings."}
+          : canChooseColumns(error)
+            ? "The raw file is kept. If a column or its unit was read wrongly, choose them below; otherwise fix the file and upload it again."
+            : "The raw file is kept: fix the file and upload it again, or ask an engineer to re-analyse it with other settings."}
       </p>
     </section>
   );

@@ -13,7 +13,8 @@ export interface Item {
   damperVariant: string;
   testDate: string;
   notes: string;
-  phase: "ready" | "uploading" | "sent" | "refused";
+  /** "unsendable": the file itself is refused (empty, binary): it is never counted or sent. */
+  phase: "ready" | "uploading" | "sent" | "refused" | "unsendable";
   /** Bytes sent so far / total, 0–1. */
   sent: number;
   logId?: number;

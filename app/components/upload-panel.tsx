@@ -3,6 +3,7 @@ import { linkClass } from "./form-fields";
 import type { LogProgress } from "./log-status";
 import { FileRow, send } from "./upload-file-row";
 import { PlainUpload, primaryButton, type Item } from "./upload-fields";
+import { refusalOf } from "./upload-format";
 
 /**
  * The upload panel. Before the page's JavaScript runs it is a plain multipart form posting to
@@ -41,8 +42,11 @@ function EnhancedUpload({
   const patch = (key: string, change: Partial<Item>) =>
     setItems((all) => all.map((i) => (i.key === key ? { ...i, ...change } : i)));
 
-  function add(files: FileList | File[]) {
-    const added = [...files].map((file): Item => ({
+  async function add(chosen: FileList | File[]) {
+    const files = [...chosen]; // before the input is reset
+    // An empty or binary file would only be refused: it is listed with the reason, never counted.
+    const refusals = await Promise.all(files.map((f) => refusalOf(f).catch(() => null)));
+    const added = files.map((file, i): Item => ({
       key: `f${counter.current++}`,
       file,
       condition: "other",
@@ -50,8 +54,9 @@ function EnhancedUpload({
       damperVariant,
       testDate: "",
       notes: "",
-      phase: "ready",
+      phase: refusals[i] ? "unsendable" : "ready",
       sent: 0,
+      message: refusals[i] ?? undefined,
     }));
     setItems((all) => [...all, ...added]);
   }
@@ -69,6 +74,7 @@ function EnhancedUpload({
   }
 
   const pending = items.filter((i) => i.phase === "ready" || i.phase === "refused").length;
+  const unsendable = items.filter((i) => i.phase === "unsendable").length;
   const waiting = pending > 0;
   return (
     <div className="space-y-4">
@@ -81,7 +87,7 @@ function EnhancedUpload({
         onDrop={(e) => {
           e.preventDefault();
           setDragging(false);
-          add(e.dataTransfer.files);
+          void add(e.dataTransfer.files);
         }}
         className={`rounded-lg border-2 border-dashed px-6 py-8 text-center ${
           dragging ? "border-indigo-600 bg-indigo-50" : "border-neutral-300 bg-neutral-50"
@@ -101,7 +107,7 @@ function EnhancedUpload({
             accept=".csv,.txt,.tsv,text/csv,text/plain"
             className="sr-only"
             onChange={(e) => {
-              if (e.target.files) add(e.target.files);
+              if (e.target.files) void add(e.target.files);
               e.target.value = "";
             }}
           />
@@ -121,23 +127,48 @@ function EnhancedUpload({
         />
       ))}
       {items.length > 0 ? (
-        <div className="flex items-center gap-4">
+        <div className="flex flex-wrap items-center gap-4">
           {busy || waiting ? (
             <button
               type="button"
               className={primaryButton}
               disabled={busy}
               onClick={() => void uploadAll()}
+              aria-describedby={unsendable ? "upload-left-out" : undefined}
             >
-              {busy ? "Uploading…" : pending === 1 ? "Upload 1 file" : `Upload ${pending} files`}
+              {busy ? "Uploading…" : uploadLabel(pending, unsendable)}
             </button>
           ) : (
             <button type="button" className={linkClass} onClick={() => setItems([])}>
               Clear the list
             </button>
           )}
+          {unsendable ? (
+            <>
+              <p id="upload-left-out" className="text-sm text-neutral-700">
+                {unsendable === 1
+                  ? "1 file cannot be sent and is left out (the reason is in its row)."
+                  : `${unsendable} files cannot be sent and are left out (the reasons are in their rows).`}
+              </p>
+              {busy || waiting ? (
+                <button
+                  type="button"
+                  className={`text-sm ${linkClass}`}
+                  onClick={() => setItems((all) => all.filter((i) => i.phase !== "unsendable"))}
+                >
+                  Remove the files that cannot be sent
+                </button>
+              ) : null}
+            </>
+          ) : null}
         </div>
       ) : null}
     </div>
   );
+}
+
+/** "Upload 2 files", or "Upload 1 of 3 files" when some files in the list cannot be sent. */
+function uploadLabel(pending: number, unsendable: number): string {
+  if (unsendable === 0) return pending === 1 ? "Upload 1 file" : `Upload ${pending} files`;
+  return `Upload ${pending} of ${pending + unsendable} files`;
 }

@@ -18,14 +18,21 @@ import {
   orderCurvePoints,
 } from "~/db/schema-drive-logs";
 import type { AnalysisOptions, AnalysisResult } from "~/lib/signal";
-import type { IngestMapping, LogError } from "./drive-log-terms";
+import { chooseColumns } from "./column-choice.server";
+import type { AppliedMapping, IngestMapping, LogError } from "./drive-log-terms";
 import type { Db } from "./db.server";
+import { localBlobStore } from "./storage.server";
 import type { AnalysisTask, AnalysisTaskOutcome } from "~/workers/analysis.worker";
 
 /** The frozen inputs of one job: what the analysis ran with is always on record. */
 export interface JobSettings {
   analysis: AnalysisOptions;
+  /** Columns chosen by hand for this drive log: always used. */
   ingest: IngestMapping;
+  /** The vehicle's remembered choice: used only where it fits the file (column-choice.server.ts). */
+  remembered?: IngestMapping | null;
+  /** What the run really used, written when it starts (shown on the drive-log page). */
+  applied?: AppliedMapping;
 }
 
 /** A running job whose heartbeat is older than this is taken to be orphaned. */
@@ -127,7 +134,11 @@ export async function saveAnalysis(
         teamId: job.teamId,
         driveLogId: job.driveLogId,
         version: latest + 1,
-        settings: { ...result.settings, mapping: job.settings.ingest },
+        settings: {
+          ...result.settings,
+          mapping: job.settings.applied?.mapping ?? job.settings.ingest,
+          mappingSource: job.settings.applied?.source ?? "chosen",
+        },
         firingOrder: result.firingOrder,
         isolationMinDb: dBs.length ? Math.min(...dBs) : null,
         isolationMaxDb: dBs.length ? Math.max(...dBs) : null,
@@ -287,15 +298,25 @@ export function startJobRunner(options: RunnerOptions) {
 async function runClaimedJob(
   options: RunnerOptions,
   instanceId: string,
-  job: ClaimedJob,
+  claimed: ClaimedJob,
   signal: AbortSignal,
 ) {
   const { db } = options;
   const [log] = await db
     .select({ blobKey: driveLogs.blobKey, sizeBytes: driveLogs.sizeBytes })
     .from(driveLogs)
-    .where(eq(driveLogs.id, job.driveLogId));
+    .where(eq(driveLogs.id, claimed.driveLogId));
   if (!log) return; // deleted meanwhile; the job row went with it (cascade)
+
+  const store = localBlobStore(options.blobRoot);
+  const applied = await chooseColumns(claimed.settings.ingest, claimed.settings.remembered, () =>
+    store.read(log.blobKey),
+  );
+  const job: ClaimedJob = { ...claimed, settings: { ...claimed.settings, applied } };
+  await db
+    .update(analysisJobs)
+    .set({ settings: { ...job.settings } })
+    .where(eq(analysisJobs.id, job.id));
 
   const channel = new MessageChannel();
   let pending: { stage: string; progress: number } | null = null;
@@ -321,7 +342,7 @@ async function runClaimedJob(
       blobRoot: options.blobRoot,
       blobKey: log.blobKey,
       sizeBytes: log.sizeBytes,
-      ingest: job.settings.ingest,
+      ingest: applied.mapping,
       analysis: job.settings.analysis,
       progress: channel.port1,
     };

@@ -88,6 +88,18 @@ export interface IngestMapping {
   gearboxUnit?: "rpm" | "rad/s" | "deg/s" | "rev/s";
 }
 
+/**
+ * The columns an analysis really read a drive log with, and where they came from: chosen for
+ * this drive log by hand, the vehicle's remembered choice (it fitted this file's header), or
+ * recognised from the header alone. Stored with the job and the analysis settings.
+ */
+export interface AppliedMapping {
+  source: "chosen" | "remembered" | "header";
+  mapping: IngestMapping;
+  /** The vehicle's remembered choice when it did not fit this file and was left out. */
+  skipped?: IngestMapping;
+}
+
 /** Why a drive log failed, as the page and the API show it. */
 export interface LogError {
   code: string;

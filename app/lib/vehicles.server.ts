@@ -1,10 +1,10 @@
-import { and, asc, desc, eq, isNull, ne } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNull, ne } from "drizzle-orm";
 import { gunzipSync } from "node:zlib";
-import { analyses, driveLogs, vehicles } from "~/db/schema-drive-logs";
+import { analyses, analysisJobs, driveLogs, vehicles } from "~/db/schema-drive-logs";
 import { analysisResultSchema, type AnalysisOptions, type AnalysisResult } from "~/lib/signal";
 import { enqueueAnalysis, type JobSettings } from "./analysis-jobs.server";
 import { db } from "./db.server";
-import type { IngestMapping } from "./drive-log-terms";
+import type { AppliedMapping, IngestMapping } from "./drive-log-terms";
 import { invariantResponse } from "./permissions.server";
 import type { StoredBlob } from "./storage.server";
 import type { LogMetadata, VehicleInput } from "./vehicle-schema";
@@ -15,10 +15,14 @@ export type DriveLogRow = typeof driveLogs.$inferSelect;
 /** Settings a re-analysis may change (issue: order override, block length, bin width). */
 export type AnalysisOverrides = Pick<AnalysisOptions, "firingOrder" | "revsPerBlock" | "binRpm">;
 
-/** What a job runs with: the vehicle's engine and limit, the column mapping, any overrides. */
+/**
+ * What a job runs with: the vehicle's engine and limit, any overrides, and the columns — those
+ * `chosen` for this drive log, else the vehicle's remembered choice as a suggestion that the job
+ * uses only where it fits the file (column-choice.server.ts).
+ */
 export function jobSettingsFor(
   vehicle: Vehicle,
-  mapping: IngestMapping | null,
+  chosen: IngestMapping | null,
   overrides: AnalysisOverrides = {},
 ): JobSettings {
   const analysis: AnalysisOptions = {
@@ -28,7 +32,9 @@ export function jobSettingsFor(
     ...(vehicle.firingOrderOverride ? { firingOrder: vehicle.firingOrderOverride } : {}),
     ...Object.fromEntries(Object.entries(overrides).filter(([, v]) => v !== undefined)),
   };
-  return { analysis, ingest: mapping ?? {} };
+  return chosen
+    ? { analysis, ingest: chosen, remembered: null }
+    : { analysis, ingest: {}, remembered: vehicle.columnMapping };
 }
 
 /**
@@ -61,6 +67,28 @@ export function vehicleData(teamId: number) {
     const [v, l] = await Promise.all([vehicle(vehicleId), log(logId)]);
     invariantResponse(l.vehicleId === v.id, "No such drive log for this vehicle.", { status: 404 });
     return { vehicle: v, log: l };
+  }
+
+  /** The columns the drive log's last finished run read (and where they came from), or null. */
+  async function appliedColumns(logId: number): Promise<AppliedMapping | null> {
+    const [job] = await db
+      .select({ settings: analysisJobs.settings })
+      .from(analysisJobs)
+      .where(
+        and(
+          eq(analysisJobs.driveLogId, logId),
+          eq(analysisJobs.teamId, teamId),
+          inArray(analysisJobs.status, ["done", "failed"]),
+        ),
+      )
+      .orderBy(desc(analysisJobs.id))
+      .limit(1);
+    if (!job) return null;
+    const settings = job.settings as unknown as JobSettings;
+    if (settings.applied) return settings.applied;
+    // Jobs queued before the choice was recorded ran with `ingest` as it stood.
+    const mapping = settings.ingest ?? {};
+    return { source: Object.keys(mapping).length ? "chosen" : "header", mapping };
   }
 
   return {
@@ -219,22 +247,29 @@ export function vehicleData(teamId: number) {
         await enqueueAnalysis(tx, {
           teamId,
           driveLogId: id,
-          settings: jobSettingsFor(v, v.columnMapping),
+          settings: jobSettingsFor(v, null),
         });
         return { id, duplicateOf: earlier?.id ?? null };
       });
     },
 
-    /** Queues a new analysis version of a drive log (the older ones are kept). */
+    /**
+     * Queues a new analysis version of a drive log (the older ones are kept). Without a new
+     * `mapping`, columns chosen by hand for this drive log before are kept.
+     */
     async reanalyse(logId: number, overrides: AnalysisOverrides = {}, mapping?: IngestMapping) {
       const row = await log(logId);
       const v = await vehicle(row.vehicleId);
+      const last = mapping ? null : await appliedColumns(row.id);
+      const chosen = mapping ?? (last?.source === "chosen" ? last.mapping : null);
       return enqueueAnalysis(db, {
         teamId,
         driveLogId: row.id,
-        settings: jobSettingsFor(v, mapping ?? v.columnMapping, overrides),
+        settings: jobSettingsFor(v, chosen, overrides),
       });
     },
+
+    appliedColumns,
 
     /** A drive log's analysis versions, newest first. */
     versions(logId: number) {

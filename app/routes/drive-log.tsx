@@ -1,9 +1,14 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, useActionData, useLoaderData } from "react-router";
 import { AnalysisDetails, AnalysisSummaryView, summarise } from "~/components/analysis-summary";
-import { ColumnMapping, mappingSchema } from "~/components/column-mapping";
+import {
+  ColumnMapping,
+  columnsUsedText,
+  mappingDefaults,
+  mappingSchema,
+} from "~/components/column-mapping";
 import { DriveLogCharts } from "~/components/charts";
-import { Failure, MAPPING_CODES } from "~/components/log-failure";
+import { canChooseColumns, Failure } from "~/components/log-failure";
 import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
@@ -69,14 +74,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     .slice(0, 12)
     .map((l) => ({ id: l.id, label: logLabel(l), fileName: l.fileName }));
   const error = log.status === "failed" ? log.error : null;
-  const mapping = error && MAPPING_CODES.has(error.code) ? await readPreview(log.blobKey) : null;
+  const mapping = error && canChooseColumns(error) ? await readPreview(log.blobKey) : null;
+  const applied = await vehicles.appliedColumns(log.id);
   return {
     role: team.role,
     vehicle: {
       id: vehicle.id,
       name: vehicle.name,
       identifier: vehicle.identifier,
-      mapping: vehicle.columnMapping,
     },
     log: {
       id: log.id,
@@ -109,6 +114,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     versions,
     others,
     preview: mapping,
+    applied,
   };
 }
 
@@ -158,6 +164,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 export default function DriveLogPage() {
   const { role, vehicle, log, summary, verdicts, bands, current, versions, others, preview } =
     useLoaderData<typeof loader>();
+  const { applied } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const progress = useLiveStatus(log);
   const markers = useCommentMarkers(vehicle.id, `log:${log.id}`);
@@ -228,12 +235,21 @@ export default function DriveLogPage() {
       {log.status === "failed" && log.error ? <Failure error={log.error} /> : null}
       {preview && atLeast(role, "technician") ? (
         <Card title="Choose the columns" id="mapping">
+          {applied ? (
+            <p className="mb-4 text-sm text-neutral-700" data-columns-used={applied.source}>
+              {columnsUsedText(applied)}
+            </p>
+          ) : null}
           <ColumnMapping
             preview={preview}
-            current={mappingDefaults(vehicle.mapping)}
+            current={mappingDefaults(applied)}
             lastResult={result && "map" in result ? result.map : undefined}
           />
         </Card>
+      ) : applied ? (
+        <p className="text-sm text-neutral-600" data-columns-used={applied.source}>
+          {columnsUsedText(applied)}
+        </p>
       ) : null}
       {isActive(progress.log.status) && !summary ? (
         <p className="text-sm text-neutral-600">
@@ -354,12 +370,6 @@ function Meta({ term, children }: { term: string; children: React.ReactNode }) {
       <dd className="font-medium text-neutral-900">{children}</dd>
     </div>
   );
-}
-
-function mappingDefaults(m: IngestMapping | null): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const [k, v] of Object.entries(m ?? {})) if (typeof v === "string") out[k] = v;
-  return out;
 }
 
 export function ErrorBoundary() {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { recogniseColumn, resolveColumns, type ColumnIssue } from "./columns.ts";
+import { fitRemembered, recogniseColumn, resolveColumns, type ColumnIssue } from "./columns.ts";
 
 // The header forms are the examples in issue 4 and docs/architecture.md §4 (roles: crank / engine /
 // primary / flywheel → crank side; gearbox / transmission / input shaft / secondary → gearbox).
@@ -109,5 +109,46 @@ describe("column map", () => {
       "unit_assumed",
       "unit_assumed",
     ]);
+  });
+});
+
+// Issue 11 §3.1: a vehicle remembers the columns chosen by hand for one odd file; that choice is
+// only a suggestion for the next files and applies when the columns it names are there.
+describe("a remembered column choice", () => {
+  const odd = ["Zeit", "Kanal1", "Kanal2", "Kanal3"];
+  const standard = ["time [s]", "crank speed [rpm]", "gearbox input speed [rpm]"];
+  const remembered = {
+    timeColumn: "Zeit",
+    crankColumn: "Kanal1",
+    gearboxColumn: "Kanal2",
+    crankUnit: "rpm",
+    gearboxUnit: "rpm",
+  } as const;
+
+  it("applies to a file that has every column it names (names matched like overrides)", () => {
+    expect(fitRemembered(odd, remembered)).toEqual(remembered);
+    expect(fitRemembered([" zeit", "KANAL1", "kanal2"], remembered)).toEqual(remembered);
+  });
+  it("does not apply when one named column is missing: the header is recognised as usual", () => {
+    expect(fitRemembered(standard, remembered)).toBeNull();
+    expect(fitRemembered(["Zeit", "Kanal1", "Kanal9"], remembered)).toBeNull();
+    const r = resolveColumns(standard, fitRemembered(standard, remembered) ?? {});
+    expect(r.ok && r.map).toMatchObject({ time: 0, crank: 1, gearbox: 2, crankUnit: "rpm" });
+  });
+  it("a partial choice applies where its column exists; the header decides the rest", () => {
+    const partial = { gearboxColumn: "shaft b [rpm]", gearboxUnit: "rpm" } as const;
+    const header = ["time [s]", "engine speed [rpm]", "shaft b [rpm]"];
+    expect(fitRemembered(header, partial)).toEqual(partial);
+    expect(fitRemembered(standard, partial)).toBeNull();
+  });
+  it("a unit for a channel left to the header only fills in a unit the header does not give", () => {
+    const units = { timeUnit: "ms", crankUnit: "rad/s" } as const;
+    // "time [s]" and "crank speed [rpm]" say their units: the remembered ones must not override them.
+    expect(fitRemembered(standard, units)).toBeNull();
+    // Names without units: the remembered units fill in what would otherwise be assumed.
+    expect(fitRemembered(["time", "engine speed", "gearbox speed [rpm]"], units)).toEqual(units);
+  });
+  it("a choice that names no column and no unit applies to nothing", () => {
+    expect(fitRemembered(standard, {})).toBeNull();
   });
 });

@@ -265,3 +265,34 @@ export function resolveColumns(
     warnings,
   };
 }
+
+/**
+ * The part of a remembered column choice (a vehicle's mapping, made for an earlier file) that
+ * fits a new file's header, or null when nothing of it applies. It is a suggestion: when a column
+ * it names is not in this header, none of it applies and the header is recognised as usual (a
+ * choice made for one odd file must not break the next, ordinary one). A remembered unit goes
+ * with a column the choice names; for a channel left to the header it only fills in a unit that
+ * the recognised column's name does not give (the header's own unit always wins).
+ */
+export function fitRemembered(headers: string[], remembered: ColumnOptions): ColumnOptions | null {
+  const has = (name: string) => headers.some((h) => norm(h) === norm(name));
+  const named = [remembered.timeColumn, remembered.crankColumn, remembered.gearboxColumn];
+  if (named.some((n) => n !== undefined && !has(n))) return null;
+  const guesses = headers.map(recogniseColumn);
+  const headerUnit = (role: "time" | "crank" | "gearbox") =>
+    guesses.some((g) => g.role === role && (role === "time" ? g.timeUnit : g.speedUnit));
+  const fitted: ColumnOptions = {};
+  if (remembered.timeColumn !== undefined) fitted.timeColumn = remembered.timeColumn;
+  if (remembered.crankColumn !== undefined) fitted.crankColumn = remembered.crankColumn;
+  if (remembered.gearboxColumn !== undefined) fitted.gearboxColumn = remembered.gearboxColumn;
+  const timeUnit = remembered.timeUnit;
+  if (timeUnit && (fitted.timeColumn !== undefined || !headerUnit("time")))
+    fitted.timeUnit = timeUnit;
+  const crankUnit = remembered.crankUnit ?? remembered.unit;
+  if (crankUnit && (fitted.crankColumn !== undefined || !headerUnit("crank")))
+    fitted.crankUnit = crankUnit;
+  const gearboxUnit = remembered.gearboxUnit ?? remembered.unit;
+  if (gearboxUnit && (fitted.gearboxColumn !== undefined || !headerUnit("gearbox")))
+    fitted.gearboxUnit = gearboxUnit;
+  return Object.keys(fitted).length > 0 ? fitted : null;
+}

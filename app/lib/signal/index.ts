@@ -9,7 +9,13 @@ export type { DriveLog, Outcome, SignalIssue, SpeedUnit, TimeUnit } from "./type
 // Ingest: CSV → DriveLog (SI units), errors as values with row and column.
 export { createIngester, ingestCsv, type Ingester, type IngestOptions } from "./ingest.ts";
 export { ingestFile, ingestStream } from "./ingest-stream.ts";
-export { recogniseColumn, resolveColumns, type ColumnGuess, type ColumnIssue } from "./columns.ts";
+export {
+  fitRemembered,
+  recogniseColumn,
+  resolveColumns,
+  type ColumnGuess,
+  type ColumnIssue,
+} from "./columns.ts";
 export { SPEED_UNITS, TIME_UNITS, fromRadS, toRadS } from "./units.ts";
 
 // The whole pipeline (file or stream → checked result), shared by the CLI and the server.
