@@ -22,7 +22,7 @@ describe("the repository stands alone", () => {
     const missing: string[] = [];
     for (const path of tracked) {
       for (const match of read(path).matchAll(/(?<![\w-])((?:[\w.-]+\/)*[\w-]+\.md)\b/g)) {
-        const named = match[1].replace(/^(\.\.?\/)+/, "");
+        const named = (match[1] ?? "").replace(/^(\.\.?\/)+/, "");
         if (!tracked.some((file) => file === named || file.endsWith(`/${named}`)))
           missing.push(`${path}: ${match[1]}`);
       }
