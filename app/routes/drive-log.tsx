@@ -164,7 +164,7 @@ export default function DriveLogPage() {
   const notice = result && "notice" in result ? result.notice : null;
   const latest = versions[0];
   return (
-    <main className="space-y-6">
+    <div className="space-y-6">
       <Breadcrumb
         trail={[
           { label: "Vehicles", to: "/vehicles" },
@@ -173,7 +173,7 @@ export default function DriveLogPage() {
         ]}
       />
       <header className="flex flex-wrap items-start justify-between gap-4">
-        <div>
+        <div className="min-w-0">
           <h1 className="text-2xl font-semibold tracking-tight break-all">{log.fileName}</h1>
           <dl className="mt-3 flex flex-wrap gap-x-6 gap-y-1 text-sm">
             <Meta term="Vehicle">{vehicle.name}</Meta>
@@ -297,7 +297,7 @@ export default function DriveLogPage() {
         </Card>
       ) : null}
       <CommentsPanel vehicleId={vehicle.id} subject={`log:${log.id}`} />
-    </main>
+    </div>
   );
 }
 
@@ -315,7 +315,7 @@ function CompareWith({
     <form
       method="get"
       action={`/vehicles/${vehicleId}/compare`}
-      className="flex items-center gap-2"
+      className="flex flex-wrap items-center gap-2"
     >
       <input type="hidden" name="logs" value={String(logId)} />
       <label htmlFor="compare-with" className="text-neutral-600">
@@ -325,7 +325,7 @@ function CompareWith({
         id="compare-with"
         name="with"
         required
-        className="max-w-72 rounded-md border border-neutral-300 px-2 py-1 text-sm"
+        className="max-w-64 rounded-md border border-neutral-300 px-2 py-1 text-sm sm:max-w-72"
         defaultValue=""
       >
         <option value="" disabled>

@@ -291,7 +291,7 @@ export default function VehiclePage() {
   const targetReply = result && "targetForm" in result ? (result.targetForm ?? null) : null;
 
   return (
-    <main className="space-y-6">
+    <div className="space-y-6">
       <Breadcrumb trail={[{ label: "Vehicles", to: "/vehicles" }, { label: vehicle.identifier }]} />
       <div className="flex flex-wrap items-start justify-between gap-4">
         <div>
@@ -432,7 +432,7 @@ export default function VehiclePage() {
           </div>
         </Card>
       ) : null}
-    </main>
+    </div>
   );
 }
 
