@@ -6,7 +6,7 @@ export function SkipLink() {
   return (
     <a
       href="#main"
-      className="sr-only rounded-md bg-white px-3 py-2 text-sm font-medium text-indigo-800 shadow-lg ring-2 ring-indigo-600 focus:not-sr-only focus:fixed focus:top-2 focus:left-2 focus:z-50"
+      className="sr-only rounded-md bg-white text-sm font-medium text-indigo-800 shadow-lg ring-2 ring-indigo-600 focus:not-sr-only focus:fixed focus:top-2 focus:left-2 focus:z-50 focus:px-3 focus:py-2"
     >
       Skip to main content
     </a>

@@ -103,12 +103,18 @@ export function teamAuditLog(teamId: number, limit: number, filter: AuditFilter 
     .limit(limit);
 }
 
-/** Everyone who appears in the team's log (the person filter's choices), by e-mail. */
-export async function teamAuditActors(teamId: number): Promise<string[]> {
-  const rows = await db
-    .selectDistinct({ email: auditEvents.actorEmail })
-    .from(auditEvents)
-    .where(inTeamLog(teamId))
-    .orderBy(asc(auditEvents.actorEmail));
-  return rows.map((r) => r.email);
+/**
+ * What the filters offer: the people (by e-mail) and the actions that appear in the team's log,
+ * so a filter never names something that cannot match.
+ */
+export async function teamAuditChoices(teamId: number) {
+  const [people, actions] = await Promise.all([
+    db
+      .selectDistinct({ value: auditEvents.actorEmail })
+      .from(auditEvents)
+      .where(inTeamLog(teamId))
+      .orderBy(asc(auditEvents.actorEmail)),
+    db.selectDistinct({ value: auditEvents.action }).from(auditEvents).where(inTeamLog(teamId)),
+  ]);
+  return { people: people.map((r) => r.value), actions: actions.map((r) => r.value) };
 }

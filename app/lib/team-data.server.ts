@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, gt, isNull } from "drizzle-orm";
 import { invitations, memberships, teams, users, type Role } from "~/db/schema";
-import { teamAuditActors, teamAuditLog, type AuditFilter } from "./audit.server";
+import { teamAuditChoices, teamAuditLog, type AuditFilter } from "./audit.server";
 import { db } from "./db.server";
 import { invariantResponse } from "./permissions.server";
 
@@ -120,8 +120,8 @@ export function teamData(teamId: number) {
       return teamAuditLog(teamId, limit, filter);
     },
 
-    auditActors() {
-      return teamAuditActors(teamId);
+    auditChoices() {
+      return teamAuditChoices(teamId);
     },
   };
 }

@@ -91,7 +91,7 @@ export default function Account() {
             <tbody>
               {sessions.map((s) => (
                 <tr key={s.id}>
-                  <td className={`${tdClass} max-w-sm truncate`} title={s.userAgent}>
+                  <td className={`${tdClass} max-w-40 truncate sm:max-w-sm`} title={s.userAgent}>
                     {s.userAgent || "unknown browser"}
                     {s.current ? (
                       <span className="ml-2 rounded bg-indigo-50 px-1.5 py-0.5 text-xs font-medium text-indigo-800">

@@ -68,20 +68,26 @@ export async function loader({ request }: Route.LoaderArgs) {
     [...new URL(request.url).searchParams].filter(([, v]) => v.trim() !== ""),
   );
   const parsed = filterSchema.safeParse(raw);
-  const people = await scoped.auditActors();
+  const found = await scoped.auditChoices();
   const shown = {
     action: raw.action ?? "",
     person: raw.person ?? "",
     from: raw.from ?? "",
     to: raw.to ?? "",
   };
+  // The filters offer what the log holds, and whatever a bookmark names (so it stays visible).
+  const actions = ACTIONS.filter((a) => a === shown.action || found.actions.includes(a));
+  const people =
+    shown.person && !found.people.includes(shown.person)
+      ? [shown.person, ...found.people]
+      : found.people;
   const filtered = Object.values(shown).some((v) => v !== "");
   if (!parsed.success) {
     const errors: FilterErrors = {};
     for (const issue of parsed.error.issues)
       errors[issue.path[0] as keyof FilterErrors] ??= issue.message;
     return data(
-      { teamName: team.name, events: null, people, shown, filtered, errors },
+      { teamName: team.name, events: null, actions, people, shown, filtered, errors },
       { status: 400 },
     );
   }
@@ -93,18 +99,33 @@ export async function loader({ request }: Route.LoaderArgs) {
     from: f.from ? new Date(`${f.from}T00:00:00Z`) : undefined,
     before: f.to ? new Date(Date.parse(`${f.to}T00:00:00Z`) + DAY_MS) : undefined,
   });
-  return { teamName: team.name, events, people, shown, filtered, errors: {} as FilterErrors };
+  return {
+    teamName: team.name,
+    events,
+    actions,
+    people,
+    shown,
+    filtered,
+    errors: {} as FilterErrors,
+  };
 }
 
 export default function AuditLog() {
-  const { teamName, events, people, shown, filtered, errors } = useLoaderData<typeof loader>();
+  const { teamName, events, actions, people, shown, filtered, errors } =
+    useLoaderData<typeof loader>();
   return (
     <div>
       <PageHeader
         title="Audit log"
         lead={`${teamName}: team changes and the sign-ins of its members. The newest ${LIMIT} entries that match the filters.`}
       />
-      <AuditFilters people={people} shown={shown} errors={errors} filtered={filtered} />
+      <AuditFilters
+        actions={actions}
+        people={people}
+        shown={shown}
+        errors={errors}
+        filtered={filtered}
+      />
       {events === null ? (
         <EmptyState>Correct the filters above to see the entries.</EmptyState>
       ) : events.length === 0 ? (
@@ -154,11 +175,13 @@ export default function AuditLog() {
 
 /** A plain GET form: works without JavaScript, and its URL is the bookmark. */
 function AuditFilters({
+  actions,
   people,
   shown,
   errors,
   filtered,
 }: {
+  actions: AuditAction[];
   people: string[];
   shown: Record<"action" | "person" | "from" | "to", string>;
   errors: FilterErrors;
@@ -195,7 +218,7 @@ function AuditFilters({
           {...described("action")}
         >
           <option value="">Any action</option>
-          {ACTIONS.map((a) => (
+          {actions.map((a) => (
             <option key={a} value={a}>
               {actionLabels[a]}
             </option>
@@ -215,11 +238,7 @@ function AuditFilters({
           {...described("person")}
         >
           <option value="">Anyone</option>
-          {/* A person from an old bookmark who is no longer in the log stays selectable. */}
-          {(people.includes(shown.person) || !shown.person
-            ? people
-            : [shown.person, ...people]
-          ).map((p) => (
+          {people.map((p) => (
             <option key={p} value={p}>
               {p}
             </option>
