@@ -129,12 +129,10 @@ describe("390 px wide (issue 11 §3.4)", () => {
       ["account", "/account"],
       ["tokens", "/account/tokens"],
     ];
-    const measured: string[] = [];
     for (const [name, path] of pages) {
       await open(admin, path);
       const { scrollWidth, innerWidth } = await widths(admin);
       expect(innerWidth).toBe(PHONE.width);
-      measured.push(`${path}: ${scrollWidth}`);
       expect(
         scrollWidth,
         `${path} is ${scrollWidth} px wide at ${innerWidth} px`,
