@@ -10,6 +10,7 @@ import { data, Links, Meta, Outlet, Scripts, ScrollRestoration } from "react-rou
 import type { Route } from "./+types/root";
 import { GeneralErrorBoundary } from "./components/error-boundary";
 import { useNonce } from "./components/nonce";
+import { mainProps, SkipLink } from "./components/skip-link";
 import { issueCsrfToken } from "./lib/csrf.server";
 
 /** Every page gets this browser's CSRF token for its forms (docs/decisions/005-csrf.md). */
@@ -61,6 +62,14 @@ export default function App() {
   );
 }
 
+/** Errors outside the shell (its loader, the sign-in frame): the same message in a frame of its own. */
 export function ErrorBoundary() {
-  return <GeneralErrorBoundary />;
+  return (
+    <>
+      <SkipLink />
+      <main {...mainProps} className="outline-none">
+        <GeneralErrorBoundary />
+      </main>
+    </>
+  );
 }

@@ -7,6 +7,7 @@ import { CurveOverlay, overlayStyle } from "./charts";
 import { VerdictCaution } from "./caution-note";
 import { linkClass } from "./form-fields";
 import { Card, EmptyState, tableClass, tdClass, thClass } from "./page";
+import { ScrollArea } from "./scroll-area";
 
 /**
  * The comparison of two or more drive logs (the signed-in page and a share link): the verdict,
@@ -110,7 +111,7 @@ export function ComparisonView({
         {comparison.rows.length === 0 ? (
           <EmptyState>No isolation curves to compare yet.</EmptyState>
         ) : (
-          <div className="overflow-x-auto">
+          <ScrollArea label="Isolation change per band">
             <table className={tableClass} data-testid="band-table">
               <caption className="sr-only">
                 Mean isolation at the firing order per engine-speed band, dB, for each drive log,
@@ -168,7 +169,7 @@ export function ComparisonView({
                 ))}
               </tbody>
             </table>
-          </div>
+          </ScrollArea>
         )}
       </Card>
       <VerdictCaution />

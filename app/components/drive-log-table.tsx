@@ -24,6 +24,7 @@ import {
 import { linkClass } from "./form-fields";
 import type { LogProgress } from "./log-status";
 import { EmptyState } from "./page";
+import { ScrollArea } from "./scroll-area";
 
 export { TABLE_PARAMS, type DriveLogTableRow } from "./drive-log-table-state";
 
@@ -222,12 +223,15 @@ export function DriveLogTable({
           </Link>
         </div>
       ) : (
-        <div className="overflow-x-auto">
+        <ScrollArea label="Drive logs">
           <table className="w-full text-left text-sm">
             <caption className="caption-top pb-2 text-left text-sm text-neutral-600">
-              Drive logs of {vehicleIdentifier}: {first}–{last} of {filtered.length}
-              {filtering ? ` matching the filters (${rows.length} in all)` : ""}, sorted by{" "}
-              {sortLabel(sort!.id, sort!.desc)}.
+              {/* As wide as the screen shows, not as the table: on a phone the table scrolls. */}
+              <span className="block max-w-[calc(100vw-6rem)] sm:max-w-none">
+                Drive logs of {vehicleIdentifier}: {first}–{last} of {filtered.length}
+                {filtering ? ` matching the filters (${rows.length} in all)` : ""}, sorted by{" "}
+                {sortLabel(sort!.id, sort!.desc)}.
+              </span>
             </caption>
             <thead>
               {table.getHeaderGroups().map((group) => (
@@ -280,7 +284,7 @@ export function DriveLogTable({
               ))}
             </tbody>
           </table>
-        </div>
+        </ScrollArea>
       )}
 
       {filtered.length > PAGE_SIZE ? (

@@ -16,7 +16,10 @@ const friendly: Record<number, { title: string; hint: string }> = {
   },
 };
 
-/** The one error boundary every route shares: a friendly message; stack traces only in development. */
+/**
+ * The one error boundary every route shares: a friendly message; stack traces only in development.
+ * Inside the shell it sits in the shell's <main>; root.tsx gives it a frame of its own.
+ */
 export function GeneralErrorBoundary() {
   const error = useRouteError();
   let status = 500;
@@ -35,7 +38,7 @@ export function GeneralErrorBoundary() {
     hint: "The error has been logged. Try again, and tell an admin if it keeps happening.",
   };
   return (
-    <main className="mx-auto max-w-2xl px-6 py-24" role="alert">
+    <div className="mx-auto max-w-2xl px-6 py-24" role="alert">
       <p className="text-sm font-semibold text-neutral-500">Error {status}</p>
       <h1 className="mt-2 text-2xl font-semibold">{text.title}</h1>
       <p className="mt-3 text-neutral-700">{detail && status < 500 ? detail : text.hint}</p>
@@ -47,6 +50,6 @@ export function GeneralErrorBoundary() {
       <a href="/" className="mt-8 inline-block text-indigo-700 underline underline-offset-4">
         Back to the start page
       </a>
-    </main>
+    </div>
   );
 }

@@ -21,7 +21,7 @@ export function Card({
   return (
     <section
       aria-labelledby={headingId}
-      className="rounded-lg border border-neutral-200 bg-white p-6 shadow-xs"
+      className="rounded-lg border border-neutral-200 bg-white p-4 shadow-xs sm:p-6"
     >
       <h2 id={headingId} className="text-base font-semibold">
         {title}

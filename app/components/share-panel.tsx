@@ -15,6 +15,7 @@ import { CsrfInput } from "./csrf-input";
 import { FormError, SubmitButton, useSchemaForm } from "./form";
 import { inputClass, InputField, TextAreaField } from "./form-fields";
 import { EmptyState, tableClass, tdClass, thClass, When } from "./page";
+import { ScrollArea } from "./scroll-area";
 
 /**
  * The share panel of a drive log (and of a comparison): make a share link (shown once, with a
@@ -338,7 +339,7 @@ function ShareTable({
   onDone: () => void;
 }) {
   return (
-    <div className="overflow-x-auto">
+    <ScrollArea label="Share links">
       <table className={tableClass}>
         <caption className="sr-only">Share links of these results</caption>
         <thead>
@@ -372,7 +373,7 @@ function ShareTable({
           ))}
         </tbody>
       </table>
-    </div>
+    </ScrollArea>
   );
 }
 

@@ -1,4 +1,4 @@
-import { and, desc, eq, inArray, isNull, or } from "drizzle-orm";
+import { and, asc, desc, eq, gte, inArray, isNull, lt, or } from "drizzle-orm";
 import { auditEvents, memberships } from "~/db/schema";
 import { db } from "./db.server";
 
@@ -54,15 +54,32 @@ export async function audit(entry: AuditEntry): Promise<void> {
   });
 }
 
-/**
- * The team's log, newest first: its own events and the personal events (sign-ins) of its
- * current members. Only the team-scoped data layer calls this (team-data.server.ts).
- */
-export function teamAuditLog(teamId: number, limit: number) {
+/** What the audit log page may narrow the log to; every part is optional (team.audit.tsx). */
+export interface AuditFilter {
+  action?: AuditAction;
+  actorEmail?: string;
+  /** Inclusive start and exclusive end, UTC. */
+  from?: Date;
+  before?: Date;
+}
+
+/** The team's events and the personal events (sign-ins) of its current members. */
+function inTeamLog(teamId: number) {
   const members = db
     .select({ userId: memberships.userId })
     .from(memberships)
     .where(eq(memberships.teamId, teamId));
+  return or(
+    eq(auditEvents.teamId, teamId),
+    and(isNull(auditEvents.teamId), inArray(auditEvents.actorUserId, members)),
+  );
+}
+
+/**
+ * The team's log, newest first, narrowed by `filter`. Only the team-scoped data layer calls
+ * this (team-data.server.ts).
+ */
+export function teamAuditLog(teamId: number, limit: number, filter: AuditFilter = {}) {
   return db
     .select({
       id: auditEvents.id,
@@ -74,11 +91,30 @@ export function teamAuditLog(teamId: number, limit: number) {
     })
     .from(auditEvents)
     .where(
-      or(
-        eq(auditEvents.teamId, teamId),
-        and(isNull(auditEvents.teamId), inArray(auditEvents.actorUserId, members)),
+      and(
+        inTeamLog(teamId),
+        filter.action ? eq(auditEvents.action, filter.action) : undefined,
+        filter.actorEmail ? eq(auditEvents.actorEmail, filter.actorEmail) : undefined,
+        filter.from ? gte(auditEvents.createdAt, filter.from) : undefined,
+        filter.before ? lt(auditEvents.createdAt, filter.before) : undefined,
       ),
     )
     .orderBy(desc(auditEvents.createdAt), desc(auditEvents.id))
     .limit(limit);
+}
+
+/**
+ * What the filters offer: the people (by e-mail) and the actions that appear in the team's log,
+ * so a filter never names something that cannot match.
+ */
+export async function teamAuditChoices(teamId: number) {
+  const [people, actions] = await Promise.all([
+    db
+      .selectDistinct({ value: auditEvents.actorEmail })
+      .from(auditEvents)
+      .where(inTeamLog(teamId))
+      .orderBy(asc(auditEvents.actorEmail)),
+    db.selectDistinct({ value: auditEvents.action }).from(auditEvents).where(inTeamLog(teamId)),
+  ]);
+  return { people: people.map((r) => r.value), actions: actions.map((r) => r.value) };
 }

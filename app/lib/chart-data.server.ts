@@ -15,16 +15,21 @@ const MAX_ENTRIES = 64;
 export async function chartsBody(
   data: ReturnType<typeof vehicleData>,
   log: DriveLogRow,
+  // An earlier version (?analysis= on the drive-log page); the caller has checked it is this log's.
+  analysisId: number | null = log.latestAnalysisId,
 ): Promise<string | null> {
-  if (!log.latestAnalysisId) return null;
-  const hit = cache.get(log.latestAnalysisId);
+  if (!analysisId) return null;
+  const hit = cache.get(analysisId);
   if (hit !== undefined) {
     // Least recently used goes first: move this one to the end.
-    cache.delete(log.latestAnalysisId);
-    cache.set(log.latestAnalysisId, hit);
+    cache.delete(analysisId);
+    cache.set(analysisId, hit);
     return hit;
   }
-  const analysis = await data.latestAnalysis(log.id);
+  const analysis =
+    analysisId === log.latestAnalysisId
+      ? await data.latestAnalysis(log.id)
+      : await data.analysisOf(log.id, analysisId);
   if (!analysis) return null;
   const body = JSON.stringify({
     logId: log.id,

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, gt, isNull } from "drizzle-orm";
 import { invitations, memberships, teams, users, type Role } from "~/db/schema";
-import { teamAuditLog } from "./audit.server";
+import { teamAuditChoices, teamAuditLog, type AuditFilter } from "./audit.server";
 import { db } from "./db.server";
 import { invariantResponse } from "./permissions.server";
 
@@ -116,8 +116,12 @@ export function teamData(teamId: number) {
       });
     },
 
-    auditLog(limit = 200) {
-      return teamAuditLog(teamId, limit);
+    auditLog(limit = 200, filter: AuditFilter = {}) {
+      return teamAuditLog(teamId, limit, filter);
+    },
+
+    auditChoices() {
+      return teamAuditChoices(teamId);
     },
   };
 }

@@ -1,5 +1,6 @@
 import { and, asc, desc, eq, inArray, isNull, ne } from "drizzle-orm";
 import { gunzipSync } from "node:zlib";
+import { z } from "zod";
 import { analyses, analysisJobs, driveLogs, vehicles } from "~/db/schema-drive-logs";
 import { analysisResultSchema, type AnalysisOptions, type AnalysisResult } from "~/lib/signal";
 import { enqueueAnalysis, type JobSettings } from "./analysis-jobs.server";
@@ -11,6 +12,20 @@ import type { LogMetadata, VehicleInput } from "./vehicle-schema";
 
 export type Vehicle = typeof vehicles.$inferSelect;
 export type DriveLogRow = typeof driveLogs.$inferSelect;
+
+/** One analysis version with its result (checked against the schema). */
+export interface StoredAnalysis {
+  id: number;
+  version: number;
+  createdAt: Date;
+  result: AnalysisResult;
+}
+
+/** The two settings of analyses.settings the version list names (besides the firing order). */
+const versionSettings = z.looseObject({
+  revsPerBlock: z.number().optional(),
+  binRpm: z.number().optional(),
+});
 
 /** Settings a re-analysis may change (issue: order override, block length, bin width). */
 export type AnalysisOverrides = Pick<AnalysisOptions, "firingOrder" | "revsPerBlock" | "binRpm">;
@@ -89,6 +104,38 @@ export function vehicleData(teamId: number) {
     // Jobs queued before the choice was recorded ran with `ingest` as it stood.
     const mapping = settings.ingest ?? {};
     return { source: Object.keys(mapping).length ? "chosen" : "header", mapping };
+  }
+
+  /** An analysis row of this team and drive log with its result parsed; null if none or unreadable. */
+  async function readAnalysis(logId: number, analysisId: number): Promise<StoredAnalysis | null> {
+    const [stored] = await db
+      .select({
+        id: analyses.id,
+        version: analyses.version,
+        createdAt: analyses.createdAt,
+        resultGz: analyses.resultGz,
+        orderMapGz: analyses.orderMapGz,
+      })
+      .from(analyses)
+      .where(
+        and(
+          eq(analyses.id, analysisId),
+          eq(analyses.driveLogId, logId),
+          eq(analyses.teamId, teamId),
+        ),
+      );
+    if (!stored) return null;
+    const parsed = analysisResultSchema.safeParse({
+      ...(JSON.parse(gunzipSync(stored.resultGz).toString("utf8")) as object),
+      orderMap: JSON.parse(gunzipSync(stored.orderMapGz).toString("utf8")) as unknown,
+    });
+    if (!parsed.success) return null;
+    return {
+      id: stored.id,
+      version: stored.version,
+      createdAt: stored.createdAt,
+      result: parsed.data,
+    };
   }
 
   return {
@@ -271,46 +318,45 @@ export function vehicleData(teamId: number) {
 
     appliedColumns,
 
-    /** A drive log's analysis versions, newest first. */
-    versions(logId: number) {
-      return db
-        .select({ id: analyses.id, version: analyses.version, createdAt: analyses.createdAt })
+    /** A drive log's analysis versions, newest first, with the settings each was made with. */
+    async versions(logId: number) {
+      const rows = await db
+        .select({
+          id: analyses.id,
+          version: analyses.version,
+          createdAt: analyses.createdAt,
+          firingOrder: analyses.firingOrder,
+          settings: analyses.settings,
+        })
         .from(analyses)
         .where(and(eq(analyses.driveLogId, logId), eq(analyses.teamId, teamId)))
         .orderBy(desc(analyses.version));
+      return rows.map(({ settings, ...v }) => {
+        // Stored as the signal core wrote them; an old row without a field shows null.
+        const known = versionSettings.safeParse(settings);
+        return {
+          ...v,
+          revsPerBlock: known.success ? (known.data.revsPerBlock ?? null) : null,
+          binRpm: known.success ? (known.data.binRpm ?? null) : null,
+        };
+      });
     },
 
     /**
      * The latest analysis of a drive log, its result checked against the schema (results
      * stored before a field existed get its default); null until one has finished.
      */
-    async latestAnalysis(
-      logId: number,
-    ): Promise<{ id: number; version: number; createdAt: Date; result: AnalysisResult } | null> {
+    async latestAnalysis(logId: number): Promise<StoredAnalysis | null> {
       const row = await log(logId);
-      if (!row.latestAnalysisId) return null;
-      const [stored] = await db
-        .select({
-          id: analyses.id,
-          version: analyses.version,
-          createdAt: analyses.createdAt,
-          resultGz: analyses.resultGz,
-          orderMapGz: analyses.orderMapGz,
-        })
-        .from(analyses)
-        .where(and(eq(analyses.id, row.latestAnalysisId), eq(analyses.teamId, teamId)));
-      if (!stored) return null;
-      const parsed = analysisResultSchema.safeParse({
-        ...(JSON.parse(gunzipSync(stored.resultGz).toString("utf8")) as object),
-        orderMap: JSON.parse(gunzipSync(stored.orderMapGz).toString("utf8")) as unknown,
-      });
-      if (!parsed.success) return null;
-      return {
-        id: stored.id,
-        version: stored.version,
-        createdAt: stored.createdAt,
-        result: parsed.data,
-      };
+      return row.latestAnalysisId ? readAnalysis(row.id, row.latestAnalysisId) : null;
+    },
+
+    /** One analysis version of a drive log, the latest or an earlier one; 404 unless it is this log's. */
+    async analysisOf(logId: number, analysisId: number): Promise<StoredAnalysis> {
+      const row = await log(logId);
+      const found = await readAnalysis(row.id, analysisId);
+      invariantResponse(found, "No such analysis version of this drive log.", { status: 404 });
+      return found;
     },
 
     /** The stored result JSON of the latest analysis, exactly as the signal core produced it. */

@@ -1,5 +1,6 @@
 import { Outlet, useLoaderData } from "react-router";
 import { AppHeader } from "~/components/app-header";
+import { mainProps, SkipLink } from "~/components/skip-link";
 import { usingFakeMail } from "~/lib/mail.server";
 import { getCurrentUser } from "~/lib/permissions.server";
 import type { Route } from "./+types/_shell";
@@ -23,12 +24,17 @@ export default function Shell() {
   const { user } = useLoaderData<typeof loader>();
   return (
     <div className="flex min-h-full flex-col">
+      <SkipLink />
       <AppHeader user={user} />
-      <div className="mx-auto w-full max-w-[1400px] flex-1 px-6 py-10">
+      {/* The one <main> of every signed-in page (pages render their content without one). */}
+      <main
+        {...mainProps}
+        className="mx-auto w-full max-w-[1400px] flex-1 px-4 py-6 outline-none sm:px-6 sm:py-10"
+      >
         <Outlet />
-      </div>
+      </main>
       <footer className="border-t border-neutral-200 bg-white">
-        <p className="mx-auto max-w-[1400px] px-6 py-4 text-xs text-neutral-500">
+        <p className="mx-auto max-w-[1400px] px-4 py-4 text-xs text-neutral-500 sm:px-6">
           Road tests belong on a proving ground or closed course, driven by trained staff under
           local rules; never operate Twistlog while driving. Keep sensor wiring clear of rotating
           parts. Damper and clutch work is for licensed workshops. Local codes and licensed practice

@@ -26,6 +26,7 @@ import { clientIp } from "~/lib/request.server";
 import { atLeast } from "~/lib/roles";
 import type { Route } from "./+types/account.tokens";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { ScrollArea } from "~/components/scroll-area";
 
 const expiryChoices = [
   { value: "30", label: "30 days" },
@@ -112,7 +113,7 @@ export default function Tokens() {
     { expires: "90" },
   );
   return (
-    <main className="max-w-4xl space-y-6">
+    <div className="max-w-4xl space-y-6">
       <PageHeader
         title="API tokens"
         lead={
@@ -180,6 +181,7 @@ export default function Tokens() {
           <TokenTable
             rows={tokens.map((t) => ({ ...t, who: t.teamName }))}
             whoLabel="Team"
+            label="Your tokens"
             intent="revoke"
           />
         )}
@@ -189,17 +191,19 @@ export default function Tokens() {
           <TokenTable
             rows={teamTokens.map((t) => ({ ...t, who: t.ownerEmail }))}
             whoLabel="Owner"
+            label="Other members' tokens"
             intent="revoke-other"
           />
         </Card>
       ) : null}
-    </main>
+    </div>
   );
 }
 
 function TokenTable({
   rows,
   whoLabel,
+  label,
   intent,
 }: {
   rows: {
@@ -211,43 +215,46 @@ function TokenTable({
     lastUsedAt: Date | null;
   }[];
   whoLabel: string;
+  label: string;
   intent: string;
 }) {
   return (
-    <table className={tableClass}>
-      <thead>
-        <tr>
-          <th className={thClass}>Name</th>
-          <th className={thClass}>Starts with</th>
-          <th className={thClass}>{whoLabel}</th>
-          <th className={thClass}>Expires</th>
-          <th className={thClass}>Last used</th>
-          <th className={thClass}>
-            <span className="sr-only">Revoke</span>
-          </th>
-        </tr>
-      </thead>
-      <tbody>
-        {rows.map((t) => (
-          <tr key={t.id}>
-            <td className={tdClass}>{t.name}</td>
-            <td className={`${tdClass} font-mono`}>{t.prefix}…</td>
-            <td className={tdClass}>{t.who}</td>
-            <td className={tdClass}>{t.expiresAt ? <When date={t.expiresAt} /> : "never"}</td>
-            <td className={tdClass}>{t.lastUsedAt ? <When date={t.lastUsedAt} /> : "not yet"}</td>
-            <td className={`${tdClass} text-right`}>
-              <Form method="post">
-                <CsrfInput />
-                <input type="hidden" name="tokenId" value={t.id} />
-                <SubmitButton name="intent" value={intent} tone="danger">
-                  Revoke<span className="sr-only"> {t.name}</span>
-                </SubmitButton>
-              </Form>
-            </td>
+    <ScrollArea label={label}>
+      <table className={tableClass}>
+        <thead>
+          <tr>
+            <th className={thClass}>Name</th>
+            <th className={thClass}>Starts with</th>
+            <th className={thClass}>{whoLabel}</th>
+            <th className={thClass}>Expires</th>
+            <th className={thClass}>Last used</th>
+            <th className={thClass}>
+              <span className="sr-only">Revoke</span>
+            </th>
           </tr>
-        ))}
-      </tbody>
-    </table>
+        </thead>
+        <tbody>
+          {rows.map((t) => (
+            <tr key={t.id}>
+              <td className={tdClass}>{t.name}</td>
+              <td className={`${tdClass} font-mono`}>{t.prefix}…</td>
+              <td className={tdClass}>{t.who}</td>
+              <td className={tdClass}>{t.expiresAt ? <When date={t.expiresAt} /> : "never"}</td>
+              <td className={tdClass}>{t.lastUsedAt ? <When date={t.lastUsedAt} /> : "not yet"}</td>
+              <td className={`${tdClass} text-right`}>
+                <Form method="post">
+                  <CsrfInput />
+                  <input type="hidden" name="tokenId" value={t.id} />
+                  <SubmitButton name="intent" value={intent} tone="danger">
+                    Revoke<span className="sr-only"> {t.name}</span>
+                  </SubmitButton>
+                </Form>
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </ScrollArea>
   );
 }
 

@@ -3,6 +3,7 @@ import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
 import { SubmitButton } from "~/components/form";
 import { Card, Notice, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
+import { ScrollArea } from "~/components/scroll-area";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
 import { invariantResponse, requireUser } from "~/lib/permissions.server";
@@ -55,7 +56,7 @@ export default function Account() {
   const { user, teams, sessions } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   return (
-    <main className="max-w-4xl space-y-6">
+    <div className="max-w-4xl space-y-6">
       <PageHeader title="Your account" lead={`${user.name} · ${user.email}`} />
       {result?.notice ? <Notice>{result.notice}</Notice> : null}
       <Card title="Teams" id="teams">
@@ -75,45 +76,47 @@ export default function Account() {
           Each browser you signed in with. End any you do not recognise; a password reset ends them
           all.
         </p>
-        <table className={tableClass}>
-          <thead>
-            <tr>
-              <th className={thClass}>Browser</th>
-              <th className={thClass}>Address</th>
-              <th className={thClass}>Signed in</th>
-              <th className={thClass}>
-                <span className="sr-only">End</span>
-              </th>
-            </tr>
-          </thead>
-          <tbody>
-            {sessions.map((s) => (
-              <tr key={s.id}>
-                <td className={`${tdClass} max-w-sm truncate`} title={s.userAgent}>
-                  {s.userAgent || "unknown browser"}
-                  {s.current ? (
-                    <span className="ml-2 rounded bg-indigo-50 px-1.5 py-0.5 text-xs font-medium text-indigo-800">
-                      this one
-                    </span>
-                  ) : null}
-                </td>
-                <td className={tdClass}>{s.ip}</td>
-                <td className={tdClass}>
-                  <When date={s.createdAt} />
-                </td>
-                <td className={`${tdClass} text-right`}>
-                  <Form method="post">
-                    <CsrfInput />
-                    <input type="hidden" name="sessionId" value={s.id} />
-                    <SubmitButton name="intent" value="revoke" tone="secondary">
-                      {s.current ? "Sign out here" : "End"}
-                    </SubmitButton>
-                  </Form>
-                </td>
+        <ScrollArea label="Signed-in sessions">
+          <table className={tableClass}>
+            <thead>
+              <tr>
+                <th className={thClass}>Browser</th>
+                <th className={thClass}>Address</th>
+                <th className={thClass}>Signed in</th>
+                <th className={thClass}>
+                  <span className="sr-only">End</span>
+                </th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {sessions.map((s) => (
+                <tr key={s.id}>
+                  <td className={`${tdClass} max-w-40 truncate sm:max-w-sm`} title={s.userAgent}>
+                    {s.userAgent || "unknown browser"}
+                    {s.current ? (
+                      <span className="ml-2 rounded bg-indigo-50 px-1.5 py-0.5 text-xs font-medium text-indigo-800">
+                        this one
+                      </span>
+                    ) : null}
+                  </td>
+                  <td className={tdClass}>{s.ip}</td>
+                  <td className={tdClass}>
+                    <When date={s.createdAt} />
+                  </td>
+                  <td className={`${tdClass} text-right`}>
+                    <Form method="post">
+                      <CsrfInput />
+                      <input type="hidden" name="sessionId" value={s.id} />
+                      <SubmitButton name="intent" value="revoke" tone="secondary">
+                        {s.current ? "Sign out here" : "End"}
+                      </SubmitButton>
+                    </Form>
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </ScrollArea>
         {sessions.length > 1 ? (
           <Form method="post" className="mt-4">
             <CsrfInput />
@@ -123,7 +126,7 @@ export default function Account() {
           </Form>
         ) : null}
       </Card>
-    </main>
+    </div>
   );
 }
 

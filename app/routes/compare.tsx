@@ -60,7 +60,7 @@ export default function ComparePage() {
   const { role, vehicle, logs, referenceNote, comparison } = useLoaderData<typeof loader>();
   const ids = logs.map((l) => l.id);
   return (
-    <main className="space-y-6">
+    <div className="space-y-6">
       <Breadcrumb
         trail={[
           { label: "Vehicles", to: "/vehicles" },
@@ -84,7 +84,7 @@ export default function ComparePage() {
         vehicleId={vehicle.id}
         subject={`compare:${[...ids].sort((a, b) => a - b).join(",")}`}
       />
-    </main>
+    </div>
   );
 }
 

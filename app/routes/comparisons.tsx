@@ -52,7 +52,7 @@ export default function Comparisons() {
   const { vehicles } = useLoaderData<typeof loader>();
   const any = vehicles.some((v) => v.suggestions.length);
   return (
-    <main>
+    <div>
       <PageHeader
         title="Comparisons"
         lead="Before-and-after views of drive logs of one vehicle. Below is every pair ready to compare (the same condition and gear with different damper variants, the latest tested drive log of each variant), the reference first; for any other set, tick the drive logs on a vehicle page and press “Compare selected”. A comparison's address can be bookmarked."
@@ -90,7 +90,7 @@ export default function Comparisons() {
             ))}
         </div>
       )}
-    </main>
+    </div>
   );
 }
 

@@ -1,19 +1,29 @@
 import { chartsBody } from "~/lib/chart-data.server";
+import { analysisParam } from "~/lib/analysis-param";
 import { idParam } from "~/lib/params";
-import { requireTeamRole } from "~/lib/permissions.server";
+import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/drive-log.charts";
 
 /**
  * GET /vehicles/:vehicleId/logs/:logId/charts.json: the chart data of the latest analysis
- * (app/lib/chart-data.ts), for the drive-log and rattle-check pages (viewer and up).
+ * (app/lib/chart-data.ts), for the drive-log and rattle-check pages (viewer and up);
+ * `?analysis=<id>` gives an earlier version of this drive log (404 for any other id).
  * 404 with { error } until an analysis has finished.
  */
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "viewer");
   const data = vehicleData(team.id);
   const { log } = await data.vehicleLog(idParam(params.vehicleId), idParam(params.logId));
-  const body = await chartsBody(data, log);
+  const wanted = analysisParam(request);
+  if (wanted !== undefined)
+    // Checked before the cache is asked: the cache answers any id it holds.
+    invariantResponse(
+      wanted !== null && (await data.versions(log.id)).some((v) => v.id === wanted),
+      "No such analysis version of this drive log.",
+      { status: 404 },
+    );
+  const body = await chartsBody(data, log, wanted ?? log.latestAnalysisId);
   if (body === null)
     return Response.json(
       {

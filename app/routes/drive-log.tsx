@@ -1,6 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, useActionData, useLoaderData } from "react-router";
 import { AnalysisDetails, AnalysisSummaryView, summarise } from "~/components/analysis-summary";
+import { AnalysisVersions, EarlierVersionNote } from "~/components/analysis-versions";
 import {
   ColumnMapping,
   columnsUsedText,
@@ -18,6 +19,7 @@ import { Card, Notice, When } from "~/components/page";
 import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
 import { SharePanel } from "~/components/share-panel";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
+import { analysisParam } from "~/lib/analysis-param";
 import { assertCsrf } from "~/lib/csrf.server";
 import { logLabel } from "~/lib/curves.server";
 import { conditionLabels, gearLabel, type IngestMapping } from "~/lib/drive-log-terms";
@@ -51,7 +53,17 @@ async function load(
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { team, vehicles, vehicle, log } = await load(request, params, "viewer");
-  const analysis = await vehicles.latestAnalysis(log.id);
+  const versions = await vehicles.versions(log.id);
+  // ?analysis=<id> shows an earlier version, read only; without it the latest, as always.
+  const wanted = analysisParam(request);
+  const chosen = wanted === undefined ? null : versions.find((v) => v.id === wanted);
+  invariantResponse(chosen !== undefined, "No such analysis version of this drive log.", {
+    status: 404,
+  });
+  const analysis =
+    chosen && chosen.id !== log.latestAnalysisId
+      ? await vehicles.analysisOf(log.id, chosen.id)
+      : await vehicles.latestAnalysis(log.id);
   const result = analysis?.result ?? null;
   const targets = targetData(team.id);
   const verdicts = result ? await targets.verdictsForAnalysis(vehicle.id, log, result) : null;
@@ -66,7 +78,6 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       : [],
   );
   const members = await teamData(team.id).members();
-  const versions = await vehicles.versions(log.id);
   // Other analysed drive logs of this vehicle to compare with, the same condition first.
   const others = (await vehicles.logs(vehicle.id))
     .filter((l) => l.id !== log.id && l.latestAnalysisId)
@@ -112,6 +123,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         }
       : null,
     versions,
+    shownId: analysis?.id,
     others,
     preview: mapping,
     applied,
@@ -162,16 +174,31 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function DriveLogPage() {
-  const { role, vehicle, log, summary, verdicts, bands, current, versions, others, preview } =
-    useLoaderData<typeof loader>();
-  const { applied } = useLoaderData<typeof loader>();
+  const {
+    role,
+    vehicle,
+    log,
+    summary,
+    verdicts,
+    bands,
+    current,
+    versions,
+    shownId,
+    others,
+    preview,
+    applied,
+  } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const progress = useLiveStatus(log);
   const markers = useCommentMarkers(vehicle.id, `log:${log.id}`);
   const notice = result && "notice" in result ? result.notice : null;
   const latest = versions[0];
+  const logHref = `/vehicles/${vehicle.id}/logs/${log.id}`;
+  const shown = versions.find((v) => v.id === shownId) ?? latest;
+  // An earlier version is for reading: no downloads of the latest, no sharing, no re-analysis.
+  const earlier = shown && latest && shown.id !== latest.id ? shown : null;
   return (
-    <main className="space-y-6">
+    <div className="space-y-6">
       <Breadcrumb
         trail={[
           { label: "Vehicles", to: "/vehicles" },
@@ -180,7 +207,7 @@ export default function DriveLogPage() {
         ]}
       />
       <header className="flex flex-wrap items-start justify-between gap-4">
-        <div>
+        <div className="min-w-0">
           <h1 className="text-2xl font-semibold tracking-tight break-all">{log.fileName}</h1>
           <dl className="mt-3 flex flex-wrap gap-x-6 gap-y-1 text-sm">
             <Meta term="Vehicle">{vehicle.name}</Meta>
@@ -199,7 +226,7 @@ export default function DriveLogPage() {
             <a href={`/vehicles/${vehicle.id}/logs/${log.id}/file`} className={linkClass} download>
               Download the raw file
             </a>
-            {summary ? (
+            {summary && !earlier ? (
               <>
                 <a
                   href={`/api/v1/logs/${log.id}/result`}
@@ -233,7 +260,7 @@ export default function DriveLogPage() {
       </p>
       {notice ? <Notice>{notice}</Notice> : null}
       {log.status === "failed" && log.error ? <Failure error={log.error} /> : null}
-      {preview && atLeast(role, "technician") ? (
+      {preview && !earlier && atLeast(role, "technician") ? (
         <Card title="Choose the columns" id="mapping">
           {applied ? (
             <p className="mb-4 text-sm text-neutral-700" data-columns-used={applied.source}>
@@ -259,14 +286,17 @@ export default function DriveLogPage() {
       {summary ? (
         <section aria-labelledby="analysis-title" className="space-y-4">
           <h2 id="analysis-title" className="text-lg font-semibold">
-            Analysis{latest ? ` version ${latest.version}` : ""}
-            {latest ? (
+            Analysis{shown ? ` version ${shown.version}` : ""}
+            {shown ? (
               <span className="ml-2 text-sm font-normal text-neutral-500">
-                made <When date={latest.createdAt} />
+                made <When date={shown.createdAt} />
               </span>
             ) : null}
           </h2>
-          {isActive(progress.log.status) ? (
+          {earlier && latest ? (
+            <EarlierVersionNote shown={earlier} latest={latest} logHref={logHref} />
+          ) : null}
+          {isActive(progress.log.status) && !earlier ? (
             <p className="text-sm text-neutral-600">
               A new analysis is running; these are the figures of the previous version.
             </p>
@@ -275,24 +305,29 @@ export default function DriveLogPage() {
             s={summary}
             targets={verdicts}
             rattleHref={
-              summary.rattle ? `/vehicles/${vehicle.id}/logs/${log.id}/rattle` : undefined
+              summary.rattle && !earlier
+                ? `/vehicles/${vehicle.id}/logs/${log.id}/rattle`
+                : undefined
             }
           />
         </section>
       ) : null}
       {summary ? (
         <DriveLogCharts
-          chartsUrl={`/vehicles/${vehicle.id}/logs/${log.id}/charts.json`}
-          analysisVersion={latest?.version}
+          chartsUrl={`${logHref}/charts.json${earlier ? `?analysis=${earlier.id}` : ""}`}
+          analysisVersion={shown?.version}
           markers={markers}
           targets={bands}
         />
       ) : null}
       {summary ? <AnalysisDetails s={summary} /> : null}
-      {atLeast(role, "engineer") ? (
+      {atLeast(role, "engineer") && !earlier ? (
         <SharePanel endpoint={`/vehicles/${vehicle.id}/logs/${log.id}/share`} />
       ) : null}
-      {atLeast(role, "engineer") && log.status !== "queued" && log.status !== "analysing" ? (
+      {atLeast(role, "engineer") &&
+      !earlier &&
+      log.status !== "queued" &&
+      log.status !== "analysing" ? (
         <Card title="Re-analyse with other settings" id="reanalyse">
           <ReanalyseForm
             current={current}
@@ -301,19 +336,10 @@ export default function DriveLogPage() {
         </Card>
       ) : null}
       {versions.length > 1 ? (
-        <Card title="Analysis versions" id="versions">
-          <ul className="space-y-1 text-sm">
-            {versions.map((v) => (
-              <li key={v.id}>
-                Version {v.version}, made <When date={v.createdAt} />
-                {v === latest ? " (shown)" : ""}
-              </li>
-            ))}
-          </ul>
-        </Card>
+        <AnalysisVersions versions={versions} shownId={shown?.id} logHref={logHref} />
       ) : null}
-      <CommentsPanel vehicleId={vehicle.id} subject={`log:${log.id}`} />
-    </main>
+      {earlier ? null : <CommentsPanel vehicleId={vehicle.id} subject={`log:${log.id}`} />}
+    </div>
   );
 }
 
@@ -331,7 +357,7 @@ function CompareWith({
     <form
       method="get"
       action={`/vehicles/${vehicleId}/compare`}
-      className="flex items-center gap-2"
+      className="flex flex-wrap items-center gap-2"
     >
       <input type="hidden" name="logs" value={String(logId)} />
       <label htmlFor="compare-with" className="text-neutral-600">
@@ -341,7 +367,7 @@ function CompareWith({
         id="compare-with"
         name="with"
         required
-        className="max-w-72 rounded-md border border-neutral-300 px-2 py-1 text-sm"
+        className="max-w-64 rounded-md border border-neutral-300 px-2 py-1 text-sm sm:max-w-72"
         defaultValue=""
       >
         <option value="" disabled>

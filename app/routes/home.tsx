@@ -6,7 +6,7 @@ export const meta: Route.MetaFunction = () => [
 
 export default function Home() {
   return (
-    <main className="max-w-3xl">
+    <div className="max-w-3xl">
       <h1 className="text-3xl font-semibold tracking-tight">
         Prove the damper works, drive log by drive log.
       </h1>
@@ -36,7 +36,7 @@ export default function Home() {
           text="20·log10(crank / gearbox) in dB, per engine speed."
         />
       </dl>
-    </main>
+    </div>
   );
 }
 

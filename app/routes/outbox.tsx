@@ -26,7 +26,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 export default function Outbox() {
   const { messages } = useLoaderData<typeof loader>();
   return (
-    <main className="max-w-4xl">
+    <div className="max-w-4xl">
       <PageHeader
         title="Outbox"
         lead="No real e-mail leaves this installation: the local mail server keeps every message here instead. Newest first."
@@ -58,7 +58,7 @@ export default function Outbox() {
           ))}
         </ol>
       )}
-    </main>
+    </div>
   );
 }
 

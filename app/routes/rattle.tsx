@@ -53,7 +53,7 @@ export default function RattlePage() {
   const { vehicle, log, analysis, idle, reading, targets } = useLoaderData<typeof loader>();
   const logHref = `/vehicles/${vehicle.id}/logs/${log.id}`;
   return (
-    <main className="space-y-6">
+    <div className="space-y-6">
       <Breadcrumb
         trail={[
           { label: "Vehicles", to: "/vehicles" },
@@ -173,7 +173,7 @@ export default function RattlePage() {
           </Card>
         </>
       )}
-    </main>
+    </div>
   );
 }
 

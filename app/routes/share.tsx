@@ -3,6 +3,7 @@ import { AnalysisDetails, AnalysisSummaryView } from "~/components/analysis-summ
 import { DriveLogCharts } from "~/components/charts/drive-log-charts";
 import { ComparisonView } from "~/components/comparison-view";
 import { LogoMark } from "~/components/logo-mark";
+import { mainProps, SkipLink } from "~/components/skip-link";
 import { Card, When } from "~/components/page";
 import { conditionLabels, gearLabel } from "~/lib/drive-log-terms";
 import { countShareView } from "~/lib/shares.server";
@@ -152,16 +153,22 @@ export default function SharedPage() {
 function ShareFrame({ children }: { children: React.ReactNode }) {
   return (
     <div className="flex min-h-full flex-col">
+      <SkipLink />
       <header className="border-b border-neutral-200 bg-white">
-        <div className="mx-auto flex max-w-[1400px] items-center gap-2 px-6 py-4">
+        <div className="mx-auto flex max-w-[1400px] flex-wrap items-center gap-2 px-4 py-4 sm:px-6">
           <LogoMark />
           <span className="text-lg font-semibold tracking-tight">Twistlog</span>
           <span className="ml-3 text-sm text-neutral-500">Shared results, read only</span>
         </div>
       </header>
-      <main className="mx-auto w-full max-w-[1400px] flex-1 space-y-6 px-6 py-10">{children}</main>
+      <main
+        {...mainProps}
+        className="mx-auto w-full max-w-[1400px] flex-1 space-y-6 px-4 py-6 outline-none sm:px-6 sm:py-10"
+      >
+        {children}
+      </main>
       <footer className="border-t border-neutral-200 bg-white">
-        <p className="mx-auto max-w-[1400px] px-6 py-4 text-xs text-neutral-500">
+        <p className="mx-auto max-w-[1400px] px-4 py-4 text-xs text-neutral-500 sm:px-6">
           Road tests belong on a proving ground or closed course, driven by trained staff under
           local rules; never operate Twistlog while driving. Keep sensor wiring clear of rotating
           parts. Damper and clutch work is for licensed workshops. Local codes and licensed practice

@@ -1,5 +1,8 @@
-import { useLoaderData } from "react-router";
+import { data, Form, Link, useLoaderData } from "react-router";
+import { z } from "zod";
+import { inputClass, linkClass } from "~/components/form-fields";
 import { EmptyState, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
+import { ScrollArea } from "~/components/scroll-area";
 import { requireTeamRole } from "~/lib/permissions.server";
 import type { AuditAction } from "~/lib/audit.server";
 import { teamData } from "~/lib/team-data.server";
@@ -36,52 +39,255 @@ const actionLabels: Record<AuditAction, string> = {
   "share-revoked": "Revoked a share link",
   "share-emailed": "Sent a share link by e-mail",
 };
+const ACTIONS = Object.keys(actionLabels) as [AuditAction, ...AuditAction[]];
+
+const LIMIT = 200;
+const dateParam = z.iso.date({ error: "Use a date like 2026-11-04." });
+/** The filters are GET parameters, so a filtered view can be bookmarked and shared among admins. */
+const filterSchema = z
+  .object({
+    action: z.enum(ACTIONS, { error: "Choose an action from the list." }).optional(),
+    person: z.string().trim().max(254, "That is longer than any e-mail address.").optional(),
+    from: dateParam.optional(),
+    to: dateParam.optional(),
+  })
+  .refine((f) => !f.from || !f.to || f.from <= f.to, {
+    path: ["to"],
+    message: "The end date is before the start date.",
+  });
+type FilterErrors = Partial<Record<"action" | "person" | "from" | "to", string>>;
+
+const DAY_MS = 86_400_000;
 
 /** /team/audit — admins read who did what, when and from where, newest first (last 200). */
 export async function loader({ request }: Route.LoaderArgs) {
   const { team } = await requireTeamRole(request, "admin");
-  return { teamName: team.name, events: await teamData(team.id).auditLog(200) };
+  const scoped = teamData(team.id);
+  // An empty field of the form means "any".
+  const raw = Object.fromEntries(
+    [...new URL(request.url).searchParams].filter(([, v]) => v.trim() !== ""),
+  );
+  const parsed = filterSchema.safeParse(raw);
+  const found = await scoped.auditChoices();
+  const shown = {
+    action: raw.action ?? "",
+    person: raw.person ?? "",
+    from: raw.from ?? "",
+    to: raw.to ?? "",
+  };
+  // The filters offer what the log holds, and whatever a bookmark names (so it stays visible).
+  const actions = ACTIONS.filter((a) => a === shown.action || found.actions.includes(a));
+  const people =
+    shown.person && !found.people.includes(shown.person)
+      ? [shown.person, ...found.people]
+      : found.people;
+  const filtered = Object.values(shown).some((v) => v !== "");
+  if (!parsed.success) {
+    const errors: FilterErrors = {};
+    for (const issue of parsed.error.issues)
+      errors[issue.path[0] as keyof FilterErrors] ??= issue.message;
+    return data(
+      { teamName: team.name, events: null, actions, people, shown, filtered, errors },
+      { status: 400 },
+    );
+  }
+  const f = parsed.data;
+  const events = await scoped.auditLog(LIMIT, {
+    action: f.action,
+    actorEmail: f.person,
+    // The dates are days in UTC, as the log shows its times; "to" includes its whole day.
+    from: f.from ? new Date(`${f.from}T00:00:00Z`) : undefined,
+    before: f.to ? new Date(Date.parse(`${f.to}T00:00:00Z`) + DAY_MS) : undefined,
+  });
+  return {
+    teamName: team.name,
+    events,
+    actions,
+    people,
+    shown,
+    filtered,
+    errors: {} as FilterErrors,
+  };
 }
 
 export default function AuditLog() {
-  const { teamName, events } = useLoaderData<typeof loader>();
+  const { teamName, events, actions, people, shown, filtered, errors } =
+    useLoaderData<typeof loader>();
   return (
-    <main>
+    <div>
       <PageHeader
         title="Audit log"
-        lead={`${teamName}: team changes and the sign-ins of its members. The newest 200 entries.`}
+        lead={`${teamName}: team changes and the sign-ins of its members. The newest ${LIMIT} entries that match the filters.`}
       />
-      {events.length === 0 ? (
-        <EmptyState>Nothing recorded yet.</EmptyState>
+      <AuditFilters
+        actions={actions}
+        people={people}
+        shown={shown}
+        errors={errors}
+        filtered={filtered}
+      />
+      {events === null ? (
+        <EmptyState>Correct the filters above to see the entries.</EmptyState>
+      ) : events.length === 0 ? (
+        filtered ? (
+          <EmptyState>
+            No entries match these filters.{" "}
+            <Link to="/team/audit" className={linkClass}>
+              Clear the filters
+            </Link>
+          </EmptyState>
+        ) : (
+          <EmptyState>Nothing recorded yet.</EmptyState>
+        )
       ) : (
-        <div className="rounded-lg border border-neutral-200 bg-white px-6 py-2">
-          <table className={tableClass}>
-            <thead>
-              <tr>
-                <th className={thClass}>When</th>
-                <th className={thClass}>Who</th>
-                <th className={thClass}>What</th>
-                <th className={thClass}>Details</th>
-                <th className={thClass}>From</th>
-              </tr>
-            </thead>
-            <tbody>
-              {events.map((e) => (
-                <tr key={e.id}>
-                  <td className={`${tdClass} whitespace-nowrap`}>
-                    <When date={e.createdAt} />
-                  </td>
-                  <td className={tdClass}>{e.actorEmail}</td>
-                  <td className={tdClass}>{actionLabels[e.action as AuditAction] ?? e.action}</td>
-                  <td className={`${tdClass} text-neutral-600`}>{e.detail}</td>
-                  <td className={`${tdClass} font-mono text-xs`}>{e.ip}</td>
+        <div className="rounded-lg border border-neutral-200 bg-white px-4 py-2 sm:px-6">
+          <ScrollArea label="Audit log entries">
+            <table className={tableClass}>
+              <thead>
+                <tr>
+                  <th className={thClass}>When</th>
+                  <th className={thClass}>Who</th>
+                  <th className={thClass}>What</th>
+                  <th className={thClass}>Details</th>
+                  <th className={thClass}>From</th>
                 </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody>
+                {events.map((e) => (
+                  <tr key={e.id} data-audit-action={e.action}>
+                    <td className={`${tdClass} whitespace-nowrap`}>
+                      <When date={e.createdAt} />
+                    </td>
+                    <td className={tdClass}>{e.actorEmail}</td>
+                    <td className={tdClass}>{actionLabels[e.action as AuditAction] ?? e.action}</td>
+                    <td className={`${tdClass} text-neutral-600`}>{e.detail}</td>
+                    <td className={`${tdClass} font-mono text-xs`}>{e.ip}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </ScrollArea>
         </div>
       )}
-    </main>
+    </div>
+  );
+}
+
+/** A plain GET form: works without JavaScript, and its URL is the bookmark. */
+function AuditFilters({
+  actions,
+  people,
+  shown,
+  errors,
+  filtered,
+}: {
+  actions: AuditAction[];
+  people: string[];
+  shown: Record<"action" | "person" | "from" | "to", string>;
+  errors: FilterErrors;
+  filtered: boolean;
+}) {
+  const label = "block text-xs font-medium text-neutral-700";
+  const control = `mt-1 ${inputClass} py-1.5`;
+  const described = (name: keyof FilterErrors) =>
+    errors[name] ? { "aria-invalid": true, "aria-describedby": `audit-${name}-error` } : undefined;
+  const error = (name: keyof FilterErrors) =>
+    errors[name] ? (
+      <p id={`audit-${name}-error`} className="mt-1 text-sm text-red-700">
+        {errors[name]}
+      </p>
+    ) : null;
+  return (
+    <Form
+      // A new key per loaded filter set: "Clear filters" and back/forward reset the fields.
+      key={Object.values(shown).join("|")}
+      method="get"
+      role="search"
+      aria-label="Filter the audit log"
+      className="mb-6 grid gap-3 sm:grid-cols-2 lg:grid-cols-[2fr_2fr_1fr_1fr_auto]"
+    >
+      <div>
+        <label htmlFor="audit-action" className={label}>
+          Action
+        </label>
+        <select
+          id="audit-action"
+          name="action"
+          defaultValue={shown.action}
+          className={control}
+          {...described("action")}
+        >
+          <option value="">Any action</option>
+          {actions.map((a) => (
+            <option key={a} value={a}>
+              {actionLabels[a]}
+            </option>
+          ))}
+        </select>
+        {error("action")}
+      </div>
+      <div>
+        <label htmlFor="audit-person" className={label}>
+          Person
+        </label>
+        <select
+          id="audit-person"
+          name="person"
+          defaultValue={shown.person}
+          className={control}
+          {...described("person")}
+        >
+          <option value="">Anyone</option>
+          {people.map((p) => (
+            <option key={p} value={p}>
+              {p}
+            </option>
+          ))}
+        </select>
+        {error("person")}
+      </div>
+      <div>
+        <label htmlFor="audit-from" className={label}>
+          From date (UTC)
+        </label>
+        <input
+          id="audit-from"
+          type="date"
+          name="from"
+          defaultValue={shown.from}
+          className={control}
+          {...described("from")}
+        />
+        {error("from")}
+      </div>
+      <div>
+        <label htmlFor="audit-to" className={label}>
+          To date (UTC)
+        </label>
+        <input
+          id="audit-to"
+          type="date"
+          name="to"
+          defaultValue={shown.to}
+          className={control}
+          {...described("to")}
+        />
+        {error("to")}
+      </div>
+      <div className="flex flex-wrap items-end gap-3">
+        <button
+          type="submit"
+          className="rounded-md border border-neutral-300 bg-white px-3 py-1.5 text-sm font-medium hover:bg-neutral-50"
+        >
+          Apply filters
+        </button>
+        {filtered ? (
+          <Link to="/team/audit" className={`${linkClass} py-1.5 text-sm`}>
+            Clear filters
+          </Link>
+        ) : null}
+      </div>
+    </Form>
   );
 }
 

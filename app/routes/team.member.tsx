@@ -86,7 +86,7 @@ export default function Member() {
   const { member, teamName } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   return (
-    <main className="max-w-2xl">
+    <div className="max-w-2xl">
       <p className="mb-2 text-sm">
         <Link to="/team" className="text-indigo-700 underline underline-offset-4">
           {teamName}
@@ -143,7 +143,7 @@ export default function Member() {
           </Form>
         </Card>
       </div>
-    </main>
+    </div>
   );
 }
 

@@ -23,6 +23,7 @@ import { teamData } from "~/lib/team-data.server";
 import { emailField, roleField } from "~/lib/validation";
 import type { Route } from "./+types/team";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { ScrollArea } from "~/components/scroll-area";
 
 const inviteSchema = z.object({ intent: z.literal("invite"), email: emailField, role: roleField });
 const unitSchema = z.object({ intent: z.literal("set-units"), unit: z.enum(["rpm", "rad/s"]) });
@@ -114,61 +115,64 @@ export default function Team() {
   const result = useActionData<typeof action>();
   const admin = atLeast(me.role, "admin");
   return (
-    <main>
+    <div>
       <PageHeader
         title={team.name}
         lead={`${members.length} ${members.length === 1 ? "member" : "members"}. You are ${roleLabels[me.role]} in this team.`}
       />
       {result && "notice" in result && result.notice ? <Notice>{result.notice}</Notice> : null}
+      {/* min-w-0: a wide table scrolls in its box instead of widening the column and the page. */}
       <div className="grid gap-6 lg:grid-cols-[2fr_1fr]">
-        <div className="space-y-6">
+        <div className="min-w-0 space-y-6">
           <Card title="Members" id="members">
-            <table className={tableClass}>
-              <thead>
-                <tr>
-                  <th className={thClass}>Name</th>
-                  <th className={thClass}>E-mail</th>
-                  <th className={thClass}>Role</th>
-                  <th className={thClass}>Joined</th>
-                  {admin ? (
-                    <th className={thClass}>
-                      <span className="sr-only">Manage</span>
-                    </th>
-                  ) : null}
-                </tr>
-              </thead>
-              <tbody>
-                {members.map((m) => (
-                  <tr key={m.id}>
-                    <td className={tdClass}>
-                      {m.name}
-                      {m.userId === me.userId ? (
-                        <span className="ml-1 text-neutral-500">(you)</span>
-                      ) : null}
-                    </td>
-                    <td className={tdClass}>{m.email}</td>
-                    <td className={tdClass}>{roleLabels[m.role]}</td>
-                    <td className={`${tdClass} whitespace-nowrap`}>
-                      <When date={m.joinedAt} dateOnly />
-                    </td>
+            <ScrollArea label="Members">
+              <table className={tableClass}>
+                <thead>
+                  <tr>
+                    <th className={thClass}>Name</th>
+                    <th className={thClass}>E-mail</th>
+                    <th className={thClass}>Role</th>
+                    <th className={thClass}>Joined</th>
                     {admin ? (
-                      <td className={`${tdClass} text-right`}>
-                        <Link
-                          to={`/team/members/${m.id}`}
-                          className="text-indigo-700 underline underline-offset-4"
-                        >
-                          Manage<span className="sr-only"> {m.name}</span>
-                        </Link>
-                      </td>
+                      <th className={thClass}>
+                        <span className="sr-only">Manage</span>
+                      </th>
                     ) : null}
                   </tr>
-                ))}
-              </tbody>
-            </table>
+                </thead>
+                <tbody>
+                  {members.map((m) => (
+                    <tr key={m.id}>
+                      <td className={tdClass}>
+                        {m.name}
+                        {m.userId === me.userId ? (
+                          <span className="ml-1 text-neutral-500">(you)</span>
+                        ) : null}
+                      </td>
+                      <td className={tdClass}>{m.email}</td>
+                      <td className={tdClass}>{roleLabels[m.role]}</td>
+                      <td className={`${tdClass} whitespace-nowrap`}>
+                        <When date={m.joinedAt} dateOnly />
+                      </td>
+                      {admin ? (
+                        <td className={`${tdClass} text-right`}>
+                          <Link
+                            to={`/team/members/${m.id}`}
+                            className="text-indigo-700 underline underline-offset-4"
+                          >
+                            Manage<span className="sr-only"> {m.name}</span>
+                          </Link>
+                        </td>
+                      ) : null}
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </ScrollArea>
           </Card>
           {admin ? <Invitations invitations={invitations} /> : null}
         </div>
-        <div className="space-y-6">
+        <div className="min-w-0 space-y-6">
           {admin ? (
             // A new key after each invitation empties the form for the next one.
             <InviteForm
@@ -189,7 +193,7 @@ export default function Team() {
           </Card>
         </div>
       </div>
-    </main>
+    </div>
   );
 }
 
@@ -203,38 +207,40 @@ function Invitations({
       {invitations.length === 0 ? (
         <EmptyState>No open invitations. Invite a colleague with the form on this page.</EmptyState>
       ) : (
-        <table className={tableClass}>
-          <thead>
-            <tr>
-              <th className={thClass}>E-mail</th>
-              <th className={thClass}>Role</th>
-              <th className={thClass}>Link works until</th>
-              <th className={thClass}>
-                <span className="sr-only">Withdraw</span>
-              </th>
-            </tr>
-          </thead>
-          <tbody>
-            {invitations.map((i) => (
-              <tr key={i.id}>
-                <td className={tdClass}>{i.email}</td>
-                <td className={tdClass}>{roleLabels[i.role]}</td>
-                <td className={tdClass}>
-                  <When date={i.expiresAt} />
-                </td>
-                <td className={`${tdClass} text-right`}>
-                  <Form method="post">
-                    <CsrfInput />
-                    <input type="hidden" name="invitationId" value={i.id} />
-                    <SubmitButton name="intent" value="revoke-invitation" tone="danger">
-                      Withdraw<span className="sr-only"> the invitation for {i.email}</span>
-                    </SubmitButton>
-                  </Form>
-                </td>
+        <ScrollArea label="Open invitations">
+          <table className={tableClass}>
+            <thead>
+              <tr>
+                <th className={thClass}>E-mail</th>
+                <th className={thClass}>Role</th>
+                <th className={thClass}>Link works until</th>
+                <th className={thClass}>
+                  <span className="sr-only">Withdraw</span>
+                </th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {invitations.map((i) => (
+                <tr key={i.id}>
+                  <td className={tdClass}>{i.email}</td>
+                  <td className={tdClass}>{roleLabels[i.role]}</td>
+                  <td className={tdClass}>
+                    <When date={i.expiresAt} />
+                  </td>
+                  <td className={`${tdClass} text-right`}>
+                    <Form method="post">
+                      <CsrfInput />
+                      <input type="hidden" name="invitationId" value={i.id} />
+                      <SubmitButton name="intent" value="revoke-invitation" tone="danger">
+                        Withdraw<span className="sr-only"> the invitation for {i.email}</span>
+                      </SubmitButton>
+                    </Form>
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </ScrollArea>
       )}
     </Card>
   );

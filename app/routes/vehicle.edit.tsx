@@ -54,7 +54,7 @@ export default function EditVehicle() {
   const { vehicle } = useLoaderData<typeof loader>();
   const lastResult = useActionData<typeof action>();
   return (
-    <main className="max-w-4xl">
+    <div className="max-w-4xl">
       <PageHeader
         title={`Edit ${vehicle.name}`}
         lead="Changes apply to the next analyses; finished analyses keep the settings they were made with."
@@ -65,7 +65,7 @@ export default function EditVehicle() {
         submitLabel="Save vehicle"
         cancelTo={`/vehicles/${vehicle.id}`}
       />
-    </main>
+    </div>
   );
 }
 

@@ -296,7 +296,7 @@ export default function VehiclePage() {
   const confirmDelete = result && "confirmDelete" in result ? result.confirmDelete : null;
 
   return (
-    <main className="space-y-6">
+    <div className="space-y-6">
       <Breadcrumb trail={[{ label: "Vehicles", to: "/vehicles" }, { label: vehicle.identifier }]} />
       <div className="flex flex-wrap items-start justify-between gap-4">
         <div>
@@ -436,7 +436,7 @@ export default function VehiclePage() {
           </div>
         </Card>
       ) : null}
-    </main>
+    </div>
   );
 }
 

@@ -48,7 +48,7 @@ export async function action({ request, context }: Route.ActionArgs) {
 export default function NewVehicle() {
   const lastResult = useActionData<typeof action>();
   return (
-    <main className="max-w-4xl">
+    <div className="max-w-4xl">
       <PageHeader
         title="Add a vehicle"
         lead="The engine, transmission and damper decide how its drive logs are analysed; you can change them later."
@@ -59,7 +59,7 @@ export default function NewVehicle() {
         submitLabel="Add vehicle"
         cancelTo="/vehicles"
       />
-    </main>
+    </div>
   );
 }
 

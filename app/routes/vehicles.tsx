@@ -9,6 +9,7 @@ import { atLeast } from "~/lib/roles";
 import { firingOrder } from "~/lib/signal/firing-order";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/vehicles";
+import { ScrollArea } from "~/components/scroll-area";
 
 export const meta = () => [{ title: "Vehicles · Twistlog" }];
 
@@ -43,7 +44,7 @@ export default function Vehicles() {
   const { role, teamName, vehicles, showArchived, archivedCount } = useLoaderData<typeof loader>();
   const engineer = atLeast(role, "engineer");
   return (
-    <main>
+    <div>
       <div className="flex flex-wrap items-start justify-between gap-4">
         <PageHeader
           title="Vehicles"
@@ -74,7 +75,7 @@ export default function Vehicles() {
             )}
           </EmptyState>
         ) : (
-          <div className="overflow-x-auto">
+          <ScrollArea label="Vehicles in use">
             <table className={tableClass}>
               <thead>
                 <tr>
@@ -114,7 +115,7 @@ export default function Vehicles() {
                 ))}
               </tbody>
             </table>
-          </div>
+          </ScrollArea>
         )}
         {archivedCount > 0 || showArchived ? (
           <p className="mt-4 text-sm">
@@ -126,7 +127,7 @@ export default function Vehicles() {
           </p>
         ) : null}
       </Card>
-    </main>
+    </div>
   );
 }
 

@@ -130,11 +130,13 @@ describe("share links in the browser", () => {
         .first()
         .textContent()) ?? "";
     expect(leastIsolation).toMatch(/dB$/);
-    // No navigation to anything of the team: no app header, no link outside this share.
+    // No navigation to anything of the team: no app header, no link outside this share (the
+    // skip link "#main" stays on the page).
     const hrefs = await guest
       .locator("a[href]")
       .evaluateAll((as) => as.map((a) => a.getAttribute("href")));
-    expect(hrefs.filter((h) => !h!.startsWith(new URL(url).pathname))).toEqual([]);
+    expect(hrefs).toContain("#main");
+    expect(hrefs.filter((h) => h !== "#main" && !h!.startsWith(new URL(url).pathname))).toEqual([]);
     await expect(guest.getByRole("button", { name: "Sign out" }).count()).resolves.toBe(0);
     await expect(guest.getByRole("link", { name: "Vehicles" }).count()).resolves.toBe(0);
     // Nothing of the raw file unless the sharer allowed it.
@@ -333,7 +335,9 @@ describe("a comparison's share link in the browser", () => {
     const hrefs = await guest
       .locator("a[href]")
       .evaluateAll((as) => as.map((a) => a.getAttribute("href")));
-    expect(hrefs.filter((h) => !h!.startsWith(new URL(created.url).pathname))).toEqual([]);
+    expect(
+      hrefs.filter((h) => h !== "#main" && !h!.startsWith(new URL(created.url).pathname)),
+    ).toEqual([]);
     await snap(guest, "share-comparison");
     const curves = await guest.request.get(`${created.url}/curves.json`);
     expect(
