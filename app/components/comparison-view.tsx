@@ -2,6 +2,7 @@ import { Link } from "react-router";
 import type { Comparison } from "~/lib/comparison";
 import type { ComparedLog } from "~/lib/comparison.server";
 import { conditionLabels } from "~/lib/drive-log-terms";
+import { dbChangeNumber, dbNumber } from "~/lib/format";
 import { CurveOverlay, overlayStyle } from "./charts";
 import { VerdictCaution } from "./caution-note";
 import { linkClass } from "./form-fields";
@@ -148,14 +149,12 @@ export function ComparisonView({
                         key={i}
                         className={`${tdClass} text-right tabular-nums ${row.best === i ? "font-semibold text-green-700" : ""}`}
                       >
-                        {v === null ? "—" : v.toFixed(1)}
+                        {dbNumber(v)}
                       </td>
                     ))}
                     {row.changeDb.slice(1).map((v, i) => (
                       <td key={i} className={`${tdClass} text-right tabular-nums`}>
-                        {v === null
-                          ? "—"
-                          : `${v > 0 ? "+" : v < 0 ? "−" : "±"}${Math.abs(v).toFixed(1)}`}
+                        {dbChangeNumber(v)}
                       </td>
                     ))}
                     <td className={tdClass}>
