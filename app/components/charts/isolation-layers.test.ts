@@ -1,0 +1,104 @@
+import type uPlot from "uplot";
+import { describe, expect, it } from "vitest";
+import { isolationLayers, LABEL_BOX, placeLabels, targetLabel } from "./isolation-layers";
+import type { TargetBand } from "./types";
+
+// A stand-in for uPlot with a 2D context that records every call, in order, so the test sees what
+// is painted over what (a canvas paints later calls over earlier ones: HTML Living Standard,
+// "The canvas element", drawing model).
+type Op = { op: string; args: unknown[]; fillStyle?: unknown };
+
+function fakePlot() {
+  const ops: Op[] = [];
+  const state: Record<string, unknown> = {};
+  const ctx = new Proxy(state, {
+    get(target, prop: string) {
+      if (prop === "canvas") return { width: 600, clientWidth: 600 };
+      if (prop === "measureText") return (text: string) => ({ width: text.length * 6 }); // 6 px a character
+      if (prop in target) return target[prop];
+      return (...args: unknown[]) => ops.push({ op: prop, args, fillStyle: target.fillStyle });
+    },
+    set(target, prop: string, value) {
+      target[prop] = value;
+      return true;
+    },
+  });
+  // x: 1000–4000 rpm over 600 px; y: 0–40 dB over 300 px (top = 40 dB).
+  const scales = { x: { min: 1000, max: 4000 }, y: { min: 0, max: 40 } };
+  const u = {
+    ctx,
+    bbox: { left: 0, top: 0, width: 600, height: 300 },
+    scales,
+    valToPos: (v: number, scale: "x" | "y") =>
+      scale === "x" ? ((v - 1000) / 3000) * 600 : 300 - (v / 40) * 300,
+  } as unknown as uPlot;
+  return { u, ops };
+}
+
+describe("the isolation curve's target labels", () => {
+  it("are painted after every point, on a box that covers their text", () => {
+    const { u, ops } = fakePlot();
+    // Points below the 20 dB target right under its label's place (1100–1400 rpm, 18–19 dB).
+    const iso = {
+      rpm: [1100, 1200, 1300, 1400],
+      dB: [18, 19, 18.5, 19],
+      aboveNoise: [true, true, false, true],
+      modelDb: null,
+    };
+    const band: TargetBand = {
+      id: 1,
+      name: "Kestrel cruise",
+      rpmFrom: 1000,
+      rpmTo: 3000,
+      minDb: 20,
+    };
+    for (const layer of isolationLayers(iso, [band], { rpm: 1300, isolationDb: 18.5 }, []))
+      layer(u);
+
+    const label = ops.findIndex((o) => o.op === "fillText" && o.args[0] === targetLabel(band));
+    expect(label, "the label is drawn").toBeGreaterThanOrEqual(0);
+    const lastPoint = ops.findLastIndex((o) => o.op === "arc");
+    expect(lastPoint, "points are drawn").toBeGreaterThanOrEqual(0);
+    expect(label, "label after the last point").toBeGreaterThan(lastPoint);
+
+    // The box right before the text, in the label colour's backdrop, covers the text's extent.
+    const box = ops.slice(0, label).findLast((o) => o.op === "fillRect")!;
+    expect(box.fillStyle).toBe(LABEL_BOX);
+    const [bx, by, bw, bh] = box.args as number[];
+    const [, tx, ty] = ops[label]!.args as [string, number, number];
+    const tw = targetLabel(band).length * 6;
+    expect(bx).toBeLessThanOrEqual(tx);
+    expect(bx! + bw!).toBeGreaterThanOrEqual(tx + tw);
+    expect(ty).toBeGreaterThan(by!);
+    expect(ty).toBeLessThan(by! + bh!);
+  });
+
+  it("never overlap each other", () => {
+    // Two targets starting at the same speed with nearly the same minimum: the second label moves.
+    const boxes = placeLabels(
+      [
+        { x0: 100, top: 50, w: 120 },
+        { x0: 110, top: 55, w: 120 },
+        { x0: 400, top: 50, w: 80 },
+      ],
+      { left: 0, right: 600, bottom: 300 },
+      15,
+      3,
+    );
+    const overlap = (a: (typeof boxes)[number], b: (typeof boxes)[number]) =>
+      a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;
+    for (let i = 0; i < boxes.length; i++)
+      for (let j = i + 1; j < boxes.length; j++)
+        expect(overlap(boxes[i]!, boxes[j]!), `${i} and ${j}`).toBe(false);
+    // A label that does not collide stays just under its own line.
+    expect(boxes[2]!.y).toBe(53);
+    // A label that would run off the right edge is moved left inside the plot.
+    const [edge] = placeLabels(
+      [{ x0: 560, top: 50, w: 100 }],
+      { left: 0, right: 600, bottom: 300 },
+      15,
+      3,
+    );
+    expect(edge!.x + edge!.w).toBeLessThanOrEqual(600);
+  });
+});
