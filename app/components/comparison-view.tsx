@@ -31,6 +31,7 @@ export function ComparisonView({
   const analysed = logs.filter((l) => l.analysed);
   const missing = logs.filter((l) => !l.analysed);
   const ref = analysed[0];
+  const exportContext = { vehicle: `${vehicle.name} (${vehicle.identifier})` };
   return (
     <>
       <header>
@@ -104,8 +105,8 @@ export function ComparisonView({
       </ol>
 
       <div className="grid gap-6 lg:grid-cols-2">
-        <CurveOverlay curvesUrl={curvesUrl} kind="isolation" />
-        <CurveOverlay curvesUrl={curvesUrl} kind="order" />
+        <CurveOverlay curvesUrl={curvesUrl} kind="isolation" exportContext={exportContext} />
+        <CurveOverlay curvesUrl={curvesUrl} kind="order" exportContext={exportContext} />
       </div>
 
       <Card title={`Isolation change per ${comparison.bandRpm} rpm band`} id="bands">

@@ -270,6 +270,10 @@ export default function DriveLogPage() {
           analysisVersion={latest?.version}
           markers={markers}
           targets={bands}
+          exportContext={{
+            vehicle: `${vehicle.name} (${vehicle.identifier})`,
+            driveLog: log.fileName,
+          }}
         />
       ) : null}
       {summary ? <AnalysisDetails s={summary} /> : null}

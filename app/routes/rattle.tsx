@@ -134,7 +134,14 @@ export default function RattlePage() {
             </Card>
           ) : null}
           <VerdictCaution />
-          <RattleCharts chartsUrl={`${logHref}/charts.json`} analysisVersion={analysis.version} />
+          <RattleCharts
+            chartsUrl={`${logHref}/charts.json`}
+            analysisVersion={analysis.version}
+            exportContext={{
+              vehicle: `${vehicle.name} (${vehicle.identifier})`,
+              driveLog: log.fileName,
+            }}
+          />
           <Card title="Spans above the limit" id="spans">
             {idle.spans.length === 0 ? (
               <EmptyState>The angular acceleration never rises above the limit.</EmptyState>

@@ -22,7 +22,7 @@ import { COLOURS, OVERLAY_STYLES } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
 import { cursor, drawYLine, fromZero, rangeWith, xAxis, xRangeAround, yAxis } from "./plot-kit";
 import { useCurvesQuery } from "./queries";
-import type { CurveSet } from "./types";
+import type { CurveSet, ExportContext } from "./types";
 
 export const OVERLAY_HEIGHT = 340;
 type Side = "crank" | "gearbox";
@@ -40,11 +40,14 @@ export function CurveOverlay({
   curvesUrl,
   kind,
   highlight,
+  exportContext,
 }: {
   curvesUrl: string;
   kind: "isolation" | "order";
   /** A drive-log id drawn heavier than the others. */
   highlight?: number;
+  /** The vehicle named in the PNG export's caption (the drive logs are the curves' labels). */
+  exportContext?: ExportContext;
 }) {
   const query = useCurvesQuery(curvesUrl);
   // The gearbox input first: that is where damper variants differ (the crank side is the engine's
@@ -224,7 +227,13 @@ export function CurveOverlay({
       readout={readout || "Point at the chart to read each drive log's value."}
       summary={summary}
       onCsv={csv}
-      onPng={() => plot.current && void downloadPng(title, plot.current.ctx.canvas, legend)}
+      onPng={() =>
+        plot.current &&
+        void downloadPng(title, plot.current.ctx.canvas, legend, undefined, {
+          driveLog: curves?.map((c) => c.label).join(", "),
+          ...exportContext,
+        })
+      }
     >
       {(summaryId) =>
         options ? (

@@ -12,6 +12,7 @@ import {
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { ENGINE_SPEED_CHART_HEIGHT } from "./order-curves";
 import { drawTargetFills, isolationLayers } from "./isolation-layers";
@@ -39,6 +40,7 @@ export const IsolationCurve = memo(function IsolationCurve({
   targets?: TargetBand[];
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const [readout, setReadout] = useState("");
   const plot = useRef<uPlot | null>(null);
   const report = useRef(onCursorRpm);
@@ -202,7 +204,8 @@ export const IsolationCurve = memo(function IsolationCurve({
         )
       }
       onPng={() =>
-        plot.current && void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+        plot.current &&
+        void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
       }
     >
       {(summaryId) =>

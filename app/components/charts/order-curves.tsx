@@ -11,6 +11,7 @@ import {
 import { ChartFrame, Segmented, SelectControl } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -39,6 +40,7 @@ export const OrderCurves = memo(function OrderCurves({
   markers?: ChartMarker[];
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const [chosen, setChosen] = useState<number | null>(null);
   const [unit, setUnit] = useState<AmplitudeUnit>("rpm");
   const [readout, setReadout] = useState("");
@@ -165,7 +167,13 @@ export const OrderCurves = memo(function OrderCurves({
       onCsv={csv}
       onPng={() =>
         plot.current &&
-        void downloadPng(`${TITLE}, order ${order}`, plot.current.ctx.canvas, legend, fileSuffix)
+        void downloadPng(
+          `${TITLE}, order ${order}`,
+          plot.current.ctx.canvas,
+          legend,
+          fileSuffix,
+          exportContext,
+        )
       }
     >
       {(summaryId) =>

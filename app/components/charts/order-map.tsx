@@ -32,6 +32,7 @@ import {
 } from "./colour-scale";
 import { buildCsv } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import { COLOURS, FONT_FAMILY } from "./palette";
 
 export const ORDER_MAP_HEIGHT = 300;
@@ -169,6 +170,7 @@ function HeatMap({
   cursorRpm: number | null;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const status =
     !charts || !grid
       ? "loading"
@@ -338,6 +340,7 @@ function HeatMap({
           canvas.current,
           [{ kind: "area", label: legendLine, colour: rgbCss(viridis(0.6)) }],
           fileSuffix,
+          exportContext,
         )
       }
     >

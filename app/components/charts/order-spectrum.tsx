@@ -6,6 +6,7 @@ import { nearestIndex } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import type { LegendEntry } from "./legend";
 import { COLOURS, FONT_FAMILY } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -39,6 +40,7 @@ export const OrderSpectrum = memo(function OrderSpectrum({
   cursorRpm: number | null;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const [readout, setReadout] = useState("");
   const plot = useRef<uPlot | null>(null);
   const map = charts?.orderMap ?? null;
@@ -134,7 +136,8 @@ export const OrderSpectrum = memo(function OrderSpectrum({
         )
       }
       onPng={() =>
-        plot.current && void downloadPng(title, plot.current.ctx.canvas, legend, fileSuffix)
+        plot.current &&
+        void downloadPng(title, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
       }
     >
       {(summaryId) =>

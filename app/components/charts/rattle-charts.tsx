@@ -15,6 +15,7 @@ import { extent, withGaps } from "./chart-math";
 import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { ChartExportContext, useExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -30,7 +31,7 @@ import {
   yAxis,
 } from "./plot-kit";
 import { useChartsQuery } from "./queries";
-import type { ChartMarker } from "./types";
+import type { ChartMarker, ExportContext } from "./types";
 import { useTimeMarkers } from "./use-stable";
 
 export const RATTLE_CHART_HEIGHT = 260;
@@ -41,16 +42,20 @@ export function RattleCharts({
   chartsUrl,
   markers,
   analysisVersion,
+  exportContext,
 }: {
   chartsUrl: string;
   markers?: ChartMarker[];
   /** As for DriveLogCharts: the latest analysis version the page knows of. */
   analysisVersion?: number;
+  /** As for DriveLogCharts: the vehicle and drive log named in the PNG exports' caption. */
+  exportContext?: Pick<ExportContext, "vehicle" | "driveLog">;
 }) {
   const query = useChartsQuery(chartsUrl, analysisVersion);
   const syncKey = `twistlog-time-${useId()}`;
   const charts = query.data?.charts ?? null;
   const suffix = query.data ? `log-${query.data.logId}-v${query.data.analysis.version}` : undefined;
+  const exportValue = { ...exportContext, analysis: query.data?.analysis };
   if (query.isError)
     return (
       <section aria-label="Rattle check charts" data-charts="rattle" data-status="error">
@@ -64,8 +69,10 @@ export function RattleCharts({
       data-status={charts ? "ready" : "loading"}
       className="space-y-6"
     >
-      <AccelChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
-      <FluctuationChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+      <ChartExportContext.Provider value={exportValue}>
+        <AccelChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+        <FluctuationChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+      </ChartExportContext.Provider>
     </section>
   );
 }
@@ -83,6 +90,7 @@ const AccelChart = memo(function AccelChart({
   syncKey: string;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const idle = charts?.idle ?? null;
   const trace = idle?.accelTrace ?? null;
   const [readout, setReadout] = useState("");
@@ -187,7 +195,8 @@ const AccelChart = memo(function AccelChart({
         )
       }
       onPng={() =>
-        plot.current && void downloadPng(ACCEL_TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+        plot.current &&
+        void downloadPng(ACCEL_TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
       }
     >
       {(summaryId) =>
@@ -220,6 +229,7 @@ const FluctuationChart = memo(function FluctuationChart({
   syncKey: string;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const idle = charts?.idle ?? null;
   const trace = idle?.firingOrderTrace ?? null;
   const [unit, setUnit] = useState<SpeedUnit>("rpm");
@@ -328,7 +338,13 @@ const FluctuationChart = memo(function FluctuationChart({
       onCsv={csv}
       onPng={() =>
         plot.current &&
-        void downloadPng(FLUCTUATION_TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+        void downloadPng(
+          FLUCTUATION_TITLE,
+          plot.current.ctx.canvas,
+          legend,
+          fileSuffix,
+          exportContext,
+        )
       }
     >
       {(summaryId) =>

@@ -6,6 +6,7 @@ import { extent } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -42,6 +43,7 @@ export const SpeedTrace = memo(function SpeedTrace({
   markers?: ChartMarker[];
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const trace = charts?.speedTrace ?? null;
   const plot = useRef<uPlot | null>(null);
   const [readout, setReadout] = useState("");
@@ -135,7 +137,8 @@ export const SpeedTrace = memo(function SpeedTrace({
         )
       }
       onPng={() =>
-        plot.current && void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+        plot.current &&
+        void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
       }
     >
       {(summaryId) =>
