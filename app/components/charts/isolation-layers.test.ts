@@ -1,6 +1,12 @@
 import type uPlot from "uplot";
 import { describe, expect, it } from "vitest";
-import { isolationLayers, LABEL_BOX, placeLabels, targetLabel } from "./isolation-layers";
+import {
+  isolationLayers,
+  LABEL_BOX,
+  placeLabels,
+  targetLabel,
+  type LabelBox,
+} from "./isolation-layers";
 import type { TargetBand } from "./types";
 
 // A stand-in for uPlot with a 2D context that records every call, in order, so the test sees what
@@ -71,34 +77,52 @@ describe("the isolation curve's target labels", () => {
     expect(bx! + bw!).toBeGreaterThanOrEqual(tx + tw);
     expect(ty).toBeGreaterThan(by!);
     expect(ty).toBeLessThan(by! + bh!);
+    // The points lie under the line at the label's left edge, so it goes above: it hides none.
+    for (let i = 0; i < iso.rpm.length; i++) {
+      const x = u.valToPos(iso.rpm[i]!, "x");
+      const y = u.valToPos(iso.dB[i]!, "y");
+      expect(x > bx! && x < bx! + bw! && y > by! && y < by! + bh!, `point ${i}`).toBe(false);
+    }
   });
 
   it("never overlap each other", () => {
     // Two targets starting at the same speed with nearly the same minimum: the second label moves.
     const boxes = placeLabels(
       [
-        { x0: 100, top: 50, w: 120 },
-        { x0: 110, top: 55, w: 120 },
-        { x0: 400, top: 50, w: 80 },
+        { x0: 100, x1: 260, top: 50, w: 120 },
+        { x0: 110, x1: 250, top: 55, w: 120 },
+        { x0: 400, x1: 560, top: 50, w: 80 },
       ],
-      { left: 0, right: 600, bottom: 300 },
+      PLOT,
+      [],
       15,
       3,
     );
-    const overlap = (a: (typeof boxes)[number], b: (typeof boxes)[number]) =>
-      a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;
     for (let i = 0; i < boxes.length; i++)
       for (let j = i + 1; j < boxes.length; j++)
         expect(overlap(boxes[i]!, boxes[j]!), `${i} and ${j}`).toBe(false);
-    // A label that does not collide stays just under its own line.
+    // A label that collides with nothing sits just under its own line.
     expect(boxes[2]!.y).toBe(53);
     // A label that would run off the right edge is moved left inside the plot.
-    const [edge] = placeLabels(
-      [{ x0: 560, top: 50, w: 100 }],
-      { left: 0, right: 600, bottom: 300 },
-      15,
-      3,
-    );
+    const [edge] = placeLabels([{ x0: 560, x1: 600, top: 50, w: 100 }], PLOT, [], 15, 3);
     expect(edge!.x + edge!.w).toBeLessThanOrEqual(600);
   });
+
+  it("go where they cover no data point: under the line, above it, or at the range's end", () => {
+    const label = { x0: 100, x1: 500, top: 150, w: 100 };
+    // Free plot: under the line from the range's left edge.
+    expect(placeLabels([label], PLOT, [], 15, 3)[0]).toMatchObject({ x: 103, y: 153 });
+    // Points under the line there (a curve below the target): above the line.
+    const below = [{ x: 130, y: 160 }];
+    expect(placeLabels([label], PLOT, below, 15, 3)[0]).toMatchObject({ x: 103, y: 132 });
+    // Points under and above at the left: at the range's right end.
+    const both = [...below, { x: 130, y: 140 }];
+    const [end] = placeLabels([label], PLOT, both, 15, 3);
+    expect(end!.x + end!.w).toBe(500 - 3);
+    for (const p of both) expect(p.x >= end!.x && p.x <= end!.x + end!.w).toBe(false);
+  });
 });
+
+const PLOT = { left: 0, right: 600, top: 0, bottom: 300 };
+const overlap = (a: LabelBox, b: LabelBox) =>
+  a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;

@@ -1,7 +1,7 @@
 /**
  * What the isolation curve draws over its series, in order (uPlot's `draw` hook runs after the
  * series). The target labels come last, each on a white box, so no point, bound or marker ever
- * covers them; their places are chosen so two labels never overlap (placeLabels).
+ * covers them; placeLabels puts them where they cover no point and no other label if it can.
  */
 import type uPlot from "uplot";
 import type { ChartData } from "~/lib/chart-data";
@@ -33,7 +33,7 @@ export function isolationLayers(
     (u) => drawBelowTarget(u, iso, bands),
     (u) => resonance && drawResonance(u, resonance),
     (u) => drawXMarkers(u, markers),
-    (u) => drawTargetLabels(u, bands),
+    (u) => drawTargetLabels(u, iso, bands),
   ];
 }
 
@@ -94,32 +94,56 @@ export interface LabelBox {
 }
 
 /**
- * Places each label just under its target line, from the left edge of its range (or right-aligned
- * against the plot's right edge when it would run off), one line lower for as long as it would
- * overlap a label placed before it. Pure: canvas pixels in, boxes out.
+ * Places each label by its target line, inside the plot, where it covers no data point and no
+ * label placed before it: under the line from the left edge of the target's range, else above
+ * it, else the same right-aligned at the range's end; when every place covers a point, under the
+ * line from the left (its white box then keeps it legible). Pure: canvas pixels in, boxes out.
  */
 export function placeLabels(
-  wanted: { x0: number; top: number; w: number }[],
-  plot: { left: number; right: number; bottom: number },
+  wanted: { x0: number; x1: number; top: number; w: number }[],
+  plot: { left: number; right: number; top: number; bottom: number },
+  points: readonly { x: number; y: number }[],
   lineH: number,
   pad: number,
+  pointR = 4,
 ): LabelBox[] {
   const placed: LabelBox[] = [];
+  const overlaps = (a: LabelBox, b: LabelBox) =>
+    a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;
+  const coversPoint = (b: LabelBox) =>
+    points.some(
+      (p) =>
+        p.x + pointR > b.x &&
+        p.x - pointR < b.x + b.w &&
+        p.y + pointR > b.y &&
+        p.y - pointR < b.y + b.h,
+    );
   for (const l of wanted) {
     const w = l.w + 2 * pad;
-    let x = Math.max(plot.left, l.x0) + pad;
-    if (x + w > plot.right - pad) x = Math.max(plot.left + pad, plot.right - pad - w);
-    let y = l.top + pad;
-    const hits = (b: LabelBox) => x < b.x + b.w && b.x < x + w && y < b.y + b.h && b.y < y + lineH;
-    for (let guard = 0; placed.some(hits) && guard < 20; guard++) y += lineH;
-    // Near the bottom of the plot, above the line instead.
-    if (y + lineH > plot.bottom) y = Math.max(0, l.top - pad - lineH);
-    placed.push({ x, y, w, h: lineH });
+    const inside = (x: number) => Math.min(Math.max(x, plot.left + pad), plot.right - pad - w);
+    const xs = [
+      inside(Math.max(plot.left, l.x0) + pad),
+      inside(Math.min(plot.right, l.x1) - pad - w),
+    ];
+    const candidates: LabelBox[] = [];
+    for (const x of xs)
+      for (const y of [l.top + pad, l.top - pad - lineH])
+        if (y >= plot.top && y + lineH <= plot.bottom) candidates.push({ x, y, w, h: lineH });
+    if (!candidates.length)
+      candidates.push({ x: xs[0]!, y: Math.max(plot.top, l.top - pad - lineH), w, h: lineH });
+    const free = (b: LabelBox) => !placed.some((q) => overlaps(b, q));
+    let box = candidates.find((b) => free(b) && !coversPoint(b)) ?? candidates.find(free);
+    // Every place is taken by another label: one line lower until it is free.
+    if (!box) {
+      box = { ...candidates[0]! };
+      for (let guard = 0; !free(box) && guard < 20; guard++) box.y += lineH;
+    }
+    placed.push(box);
   }
   return placed;
 }
 
-function drawTargetLabels(u: uPlot, bands: TargetBand[]) {
+function drawTargetLabels(u: uPlot, iso: Iso, bands: TargetBand[]) {
   const y = u.scales.y!;
   if (!bands.length || y.min == null || y.max == null) return;
   const { ctx, bbox } = u;
@@ -131,12 +155,23 @@ function drawTargetLabels(u: uPlot, bands: TargetBand[]) {
   const boxes = placeLabels(
     bands.map((b, i) => ({
       x0: u.valToPos(b.rpmFrom, "x", true),
+      x1: u.valToPos(b.rpmTo, "x", true),
       top: targetY(u, b),
       w: ctx.measureText(texts[i]!).width,
     })),
-    { left: bbox.left, right: bbox.left + bbox.width, bottom: bbox.top + bbox.height },
+    {
+      left: bbox.left,
+      right: bbox.left + bbox.width,
+      top: bbox.top,
+      bottom: bbox.top + bbox.height,
+    },
+    iso.rpm.map((rpm, i) => ({
+      x: u.valToPos(rpm, "x", true),
+      y: u.valToPos(iso.dB[i]!, "y", true),
+    })),
     15 * s,
     3 * s,
+    4 * s,
   );
   ctx.textAlign = "left";
   ctx.textBaseline = "middle";
