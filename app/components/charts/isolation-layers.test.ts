@@ -108,18 +108,28 @@ describe("the isolation curve's target labels", () => {
     expect(edge!.x + edge!.w).toBeLessThanOrEqual(600);
   });
 
-  it("go where they cover no data point: under the line, above it, or at the range's end", () => {
+  it("go where they cover no data point: under the line, above it, then further off", () => {
     const label = { x0: 100, x1: 500, top: 150, w: 100 };
     // Free plot: under the line from the range's left edge.
     expect(placeLabels([label], PLOT, [], 15, 3)[0]).toMatchObject({ x: 103, y: 153 });
-    // Points under the line there (a curve below the target): above the line.
-    const below = [{ x: 130, y: 160 }];
-    expect(placeLabels([label], PLOT, below, 15, 3)[0]).toMatchObject({ x: 103, y: 132 });
-    // Points under and above at the left: at the range's right end.
-    const both = [...below, { x: 130, y: 140 }];
-    const [end] = placeLabels([label], PLOT, both, 15, 3);
-    expect(end!.x + end!.w).toBe(500 - 3);
-    for (const p of both) expect(p.x >= end!.x && p.x <= end!.x + end!.w).toBe(false);
+    // A point under the line there: still under the line, further along the range, clear of it.
+    const [along] = placeLabels([label], PLOT, [{ x: 130, y: 160 }], 15, 3);
+    expect(along!.y).toBe(153);
+    expect(along!.x).toBeGreaterThan(134);
+    // Points under the line all along the range (a curve below the target): above the line.
+    const under = Array.from({ length: 50 }, (_, i) => ({ x: 100 + 8 * i, y: 160 }));
+    expect(placeLabels([label], PLOT, under, 15, 3)[0]).toMatchObject({ x: 103, y: 132 });
+    // A curve crossing the line all along the range: a line further off, still covering none.
+    const crossing = Array.from({ length: 50 }, (_, i) => ({
+      x: 100 + 8 * i,
+      y: 150 + (i % 2 ? 6 : -6),
+    }));
+    const [off] = placeLabels([label], PLOT, crossing, 15, 3);
+    expect(Math.abs(off!.y - 150)).toBeGreaterThan(15);
+    for (const p of crossing)
+      expect(p.x > off!.x && p.x < off!.x + off!.w && p.y > off!.y && p.y < off!.y + 15).toBe(
+        false,
+      );
   });
 });
 

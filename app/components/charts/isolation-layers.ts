@@ -95,9 +95,10 @@ export interface LabelBox {
 
 /**
  * Places each label by its target line, inside the plot, where it covers no data point and no
- * label placed before it: under the line from the left edge of the target's range, else above
- * it, else the same right-aligned at the range's end; when every place covers a point, under the
- * line from the left (its white box then keeps it legible). Pure: canvas pixels in, boxes out.
+ * label placed before it. Tried in order: right under the line (from the range's left edge
+ * towards its right end), right above it (the same), then one and two lines further away. When
+ * every place covers a point, right under the line from the left (its white box keeps it
+ * legible). Pure: canvas pixels in, boxes out.
  */
 export function placeLabels(
   wanted: { x0: number; x1: number; top: number; w: number }[],
@@ -121,16 +122,16 @@ export function placeLabels(
   for (const l of wanted) {
     const w = l.w + 2 * pad;
     const inside = (x: number) => Math.min(Math.max(x, plot.left + pad), plot.right - pad - w);
-    const xs = [
-      inside(Math.max(plot.left, l.x0) + pad),
-      inside(Math.min(plot.right, l.x1) - pad - w),
-    ];
+    const start = inside(Math.max(plot.left, l.x0) + pad);
+    const end = Math.max(start, inside(Math.min(plot.right, l.x1) - pad - w));
+    const xs = [0, 1, 2, 3, 4].map((k) => start + ((end - start) * k) / 4);
     const candidates: LabelBox[] = [];
-    for (const x of xs)
-      for (const y of [l.top + pad, l.top - pad - lineH])
-        if (y >= plot.top && y + lineH <= plot.bottom) candidates.push({ x, y, w, h: lineH });
+    for (const away of [0, 1, 2])
+      for (const y of [l.top + pad + away * lineH, l.top - pad - (away + 1) * lineH])
+        for (const x of xs)
+          if (y >= plot.top && y + lineH <= plot.bottom) candidates.push({ x, y, w, h: lineH });
     if (!candidates.length)
-      candidates.push({ x: xs[0]!, y: Math.max(plot.top, l.top - pad - lineH), w, h: lineH });
+      candidates.push({ x: start, y: Math.max(plot.top, l.top - pad - lineH), w, h: lineH });
     const free = (b: LabelBox) => !placed.some((q) => overlaps(b, q));
     let box = candidates.find((b) => free(b) && !coversPoint(b)) ?? candidates.find(free);
     // Every place is taken by another label: one line lower until it is free.
