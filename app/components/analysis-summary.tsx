@@ -1,4 +1,17 @@
 import { Link } from "react-router";
+import {
+  dampingRatioText,
+  dbNumber,
+  dbText,
+  frequencyText,
+  isolationRangeText,
+  percentText,
+  radS2Text,
+  rpmNumber,
+  rpmText,
+  sampleRateText,
+  secondsText,
+} from "~/lib/format";
 import type { AnalysisResult } from "~/lib/signal";
 import { countText } from "~/lib/plural";
 import { marginText, TARGET_STATUS_LABELS, type TargetVerdict } from "~/lib/targets";
@@ -87,9 +100,10 @@ export function summarise(result: AnalysisResult, idleRpm: number): AnalysisSumm
   };
 }
 
-const dB = (x: number) => `${x >= 0 ? "" : "−"}${Math.abs(x).toFixed(1)} dB`;
-const rpm = (x: number) => `${Math.round(x)} rpm`;
-const rad = (x: number) => `${x.toFixed(0)} rad/s²`;
+// Figures by the rules of ~/lib/format (one per quantity, shared with the charts).
+const dB = dbText;
+const rpm = rpmText;
+const rad = radS2Text;
 
 const statusClass: Record<TargetVerdict["status"], string> = {
   pass: "text-green-700",
@@ -164,7 +178,7 @@ export function AnalysisSummaryView({
           <p className="mt-3 text-sm text-neutral-600">
             Two-mass model fit:{" "}
             {s.model
-              ? `natural frequency ${s.model.naturalFrequencyHz.toFixed(2)} Hz (${rpm(s.model.resonanceRpm)} at the firing order), damping ratio ${s.model.dampingRatio.toFixed(3)}`
+              ? `natural frequency ${frequencyText(s.model.naturalFrequencyHz)} (${rpm(s.model.resonanceRpm)} at the firing order), damping ratio ${dampingRatioText(s.model.dampingRatio)}`
               : s.warnings.some((w) => w.code === "no_model_fit")
                 ? "not fitted; the warnings below say why"
                 : "not fitted"}
@@ -187,7 +201,7 @@ export function AnalysisSummaryView({
                 <dd>{rad(s.rattle.limitRadS2)}</dd>
                 <dt className="text-neutral-600">Idle</dt>
                 <dd>
-                  {rpm(s.rattle.meanRpm)}, {s.rattle.idleDurationS.toFixed(1)} s
+                  {rpm(s.rattle.meanRpm)}, {secondsText(s.rattle.idleDurationS)}
                 </dd>
               </dl>
               {rattleHref ? (
@@ -239,6 +253,11 @@ export function AnalysisSummaryView({
 
 /** The settings and the isolation curve as a table: below the charts, for tracing every figure. */
 export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
+  // The same range, by the same rule, as the isolation curve's text alternative.
+  const range = isolationRangeText(
+    s.curve.map((p) => p.dB),
+    s.curve.map((p) => p.aboveNoise),
+  );
   return (
     <div className="space-y-6">
       <Tile title="Analysis settings">
@@ -254,12 +273,12 @@ export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
             {s.settings.revsPerBlock} (order resolution {(1 / s.settings.revsPerBlock).toFixed(3)})
           </dd>
           <dt className="text-neutral-600">Block overlap</dt>
-          <dd>{Math.round(s.settings.overlap * 100)} %</dd>
+          <dd>{percentText(s.settings.overlap)}</dd>
           <dt className="text-neutral-600">Bin width</dt>
           <dd>{s.settings.binRpm} rpm</dd>
           <dt className="text-neutral-600">Recording</dt>
           <dd>
-            {s.durationS.toFixed(1)} s at {Math.round(s.sampleRateHz)} Hz
+            {secondsText(s.durationS)} at {sampleRateText(s.sampleRateHz)}
           </dd>
         </dl>
       </Tile>
@@ -269,7 +288,8 @@ export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
       >
         <summary className="cursor-pointer text-sm font-semibold">
           Isolation curve at the firing order as a table (
-          {countText(s.curve.length, "engine speed")})
+          {countText(s.curve.length, "engine speed")}
+          {range ? `, ${range}` : ""})
         </summary>
         <div className="mt-3">
           {s.curve.length === 0 ? (
@@ -289,8 +309,8 @@ export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
                 <tbody>
                   {s.curve.map((p) => (
                     <tr key={p.rpm}>
-                      <td className={tdClass}>{Math.round(p.rpm)}</td>
-                      <td className={`${tdClass} tabular-nums`}>{p.dB.toFixed(2)}</td>
+                      <td className={tdClass}>{rpmNumber(p.rpm)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{dbNumber(p.dB)}</td>
                       <td className={tdClass}>{p.blocks}</td>
                       <td className={tdClass}>{p.aboveNoise ? "yes" : "no"}</td>
                     </tr>

@@ -3,6 +3,7 @@ import type { Comparison } from "~/lib/comparison";
 import { REFERENCE_RULE } from "~/lib/comparison-order";
 import type { ComparedLog } from "~/lib/comparison.server";
 import { conditionLabels } from "~/lib/drive-log-terms";
+import { dbChangeNumber, dbNumber } from "~/lib/format";
 import { CurveOverlay, overlayStyle } from "./charts";
 import { VerdictCaution } from "./caution-note";
 import { linkClass } from "./form-fields";
@@ -33,6 +34,7 @@ export function ComparisonView({
   const analysed = logs.filter((l) => l.analysed);
   const missing = logs.filter((l) => !l.analysed);
   const ref = analysed[0];
+  const exportContext = { vehicle: `${vehicle.name} (${vehicle.identifier})` };
   return (
     <>
       <header>
@@ -103,8 +105,8 @@ export function ComparisonView({
       </ol>
 
       <div className="grid gap-6 lg:grid-cols-2">
-        <CurveOverlay curvesUrl={curvesUrl} kind="isolation" />
-        <CurveOverlay curvesUrl={curvesUrl} kind="order" />
+        <CurveOverlay curvesUrl={curvesUrl} kind="isolation" exportContext={exportContext} />
+        <CurveOverlay curvesUrl={curvesUrl} kind="order" exportContext={exportContext} />
       </div>
 
       <Card title={`Isolation change per ${comparison.bandRpm} rpm band`} id="bands">
@@ -148,14 +150,12 @@ export function ComparisonView({
                         key={i}
                         className={`${tdClass} text-right tabular-nums ${row.best === i ? "font-semibold text-green-700" : ""}`}
                       >
-                        {v === null ? "—" : v.toFixed(1)}
+                        {dbNumber(v)}
                       </td>
                     ))}
                     {row.changeDb.slice(1).map((v, i) => (
                       <td key={i} className={`${tdClass} text-right tabular-nums`}>
-                        {v === null
-                          ? "—"
-                          : `${v > 0 ? "+" : v < 0 ? "−" : "±"}${Math.abs(v).toFixed(1)}`}
+                        {dbChangeNumber(v)}
                       </td>
                     ))}
                     <td className={tdClass}>

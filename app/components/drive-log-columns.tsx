@@ -2,7 +2,7 @@ import { createColumnHelper, type Column, type Table } from "@tanstack/react-tab
 import { useEffect, useRef } from "react";
 import { Link } from "react-router";
 import { conditionLabels, type LogState } from "~/lib/drive-log-terms";
-import { dbText, radS2Text } from "~/lib/targets";
+import { dbRangeText, radS2Text, rpmRangeText } from "~/lib/format";
 import { gearLabel } from "~/lib/drive-log-terms";
 import { isIdle, type DriveLogTableRow } from "./drive-log-table-state";
 import { linkClass } from "./form-fields";
@@ -134,23 +134,15 @@ export const columns = [
   }),
 ];
 
-const numText = (x: number) => `${x < 0 ? "−" : ""}${Math.abs(x).toFixed(1)}`;
-
 function IsolationCell({ row }: { row: DriveLogTableRow }) {
   const iso = row.isolation;
   if (!iso) return <span className="text-neutral-400">—</span>;
   if (iso.minDb === null || iso.maxDb === null)
     return <span className="text-xs text-neutral-500">no bins above the noise</span>;
-  const value =
-    Math.abs(iso.maxDb - iso.minDb) < 0.05
-      ? dbText(iso.minDb)
-      : `${numText(iso.minDb)} … ${numText(iso.maxDb)} dB`;
+  // The same range string, by the same rule, as the drive-log page and its isolation curve.
+  const value = dbRangeText(iso.minDb, iso.maxDb);
   const range =
-    iso.rpmMin === null || iso.rpmMax === null
-      ? ""
-      : iso.rpmMin === iso.rpmMax
-        ? `${Math.round(iso.rpmMin)} rpm`
-        : `${Math.round(iso.rpmMin)}–${Math.round(iso.rpmMax)} rpm`;
+    iso.rpmMin === null || iso.rpmMax === null ? "" : rpmRangeText(iso.rpmMin, iso.rpmMax);
   return (
     <span className="whitespace-nowrap tabular-nums">
       <span className="text-indigo-800">{value}</span>

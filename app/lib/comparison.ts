@@ -11,6 +11,7 @@
  * - Differences smaller than `sameWithinDb` count as "about the same" (default 0.5 dB, a common
  *   practice for repeat road-test measurements; adjust per programme).
  */
+import { dbText } from "./format";
 
 export interface IsolationCurve {
   logId: number;
@@ -164,8 +165,8 @@ function verdict(
   if (!gain && !loss)
     return `${capitalise(name)} and ${refName} isolate within ${sameWithinDb} dB of each other between ${from} and ${to} rpm.`;
   const parts: string[] = [];
-  if (gain) parts.push(`${r1(gain.mean).toFixed(1)} dB more ${where(gain)}`);
-  if (loss) parts.push(`${Math.abs(r1(loss.mean)).toFixed(1)} dB less ${where(loss)}`);
+  if (gain) parts.push(`${dbText(gain.mean)} more ${where(gain)}`);
+  if (loss) parts.push(`${dbText(Math.abs(loss.mean))} less ${where(loss)}`);
   return `${capitalise(name)} isolates ${parts.join(", ")} than ${refName}.`;
 }
 

@@ -1,4 +1,5 @@
 import { countText } from "./plural";
+import { percentText, radS2Text, rpmText, secondsText } from "./format";
 import type { AnalysisResult } from "./signal/result-schema";
 
 type Idle = NonNullable<AnalysisResult["idle"]>;
@@ -12,8 +13,6 @@ export interface RattleReading {
   overPercent: number;
 }
 
-const pct = (x: number) => Math.round(x * 100);
-
 /**
  * The rattle check in plain words, from the stored idle result only (no re-computation). The
  * verdict rule is the signal core's (rattle.ts): over the limit when the firing-order amplitude
@@ -26,14 +25,14 @@ export function rattleReading(idle: Idle): RattleReading {
   const overS = idle.spans.reduce((s, x) => s + x.durationS, 0);
   const overPercent = idle.idleDurationS > 0 ? (100 * overS) / idle.idleDurationS : 0;
   const rel = (v: number) =>
-    v > limit ? `${pct(v / limit - 1)} % above` : `${pct(1 - v / limit)} % below`;
+    v > limit ? `${percentText(v / limit - 1)} above` : `${percentText(1 - v / limit)} below`;
   const sentences = [
-    `At a mean idle speed of ${idle.meanRpm.toFixed(0)} rpm, the gearbox input's angular acceleration at the firing order is ${order.toFixed(0)} rad/s², ${rel(order)} the ${limit.toFixed(0)} rad/s² limit.`,
-    `Its highest momentary value is ${peak.toFixed(0)} rad/s² (${rel(peak)} the limit).`,
+    `At a mean idle speed of ${rpmText(idle.meanRpm)}, the gearbox input's angular acceleration at the firing order is ${radS2Text(order)}, ${rel(order)} the ${radS2Text(limit)} limit.`,
+    `Its highest momentary value is ${radS2Text(peak)} (${rel(peak)} the limit).`,
   ];
   if (idle.spans.length)
     sentences.push(
-      `It stays above the limit in ${countText(idle.spans.length, "span")}, ${overS.toFixed(1)} s in all, ${overPercent.toFixed(0)} % of the ${idle.idleDurationS.toFixed(1)} s of idle examined.`,
+      `It stays above the limit in ${countText(idle.spans.length, "span")}, ${secondsText(overS)} in all, ${percentText(overPercent / 100)} of the ${secondsText(idle.idleDurationS)} of idle examined.`,
     );
   const headline =
     idle.verdict === "over-limit"

@@ -13,6 +13,7 @@ import { z } from "zod";
 import type { TargetKind } from "~/db/schema-results";
 import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "./drive-log-terms";
 import { countText, plural } from "./plural";
+import { dbChangeText, dbText, radS2Text, rpmRangeText, rpmText } from "./format";
 
 // Kept here (not imported from the schema file) so the browser bundle carries no Drizzle code.
 export const TARGET_KINDS = ["isolation", "rattle"] as const satisfies readonly TargetKind[];
@@ -254,32 +255,23 @@ export type TargetInput =
 // ---------------------------------------------------------------------------------------------
 // Words and figures
 
-/** "−3.2 dB" with a real minus sign, one decimal. */
-export function dbText(x: number): string {
-  return `${x < 0 ? "−" : ""}${Math.abs(x).toFixed(1)} dB`;
-}
-export function radS2Text(x: number): string {
-  return `${Math.round(x)} rad/s²`;
-}
-export function rpmText(x: number): string {
-  return `${Math.round(x)} rpm`;
-}
+// The rounding rules of every figure are in ./format (one per quantity).
+export { dbText, radS2Text, rpmText };
 export function gearText(g: number | null): string {
   return g === null ? "no gear given" : g === -1 ? "reverse" : g === 0 ? "neutral" : `gear ${g}`;
 }
-/** A margin with its sign: "+2.3 dB", "−12 rad/s²". */
+/** A margin with its sign: "+2.3 dB", "−12.4 rad/s²". */
 export function marginText(v: Pick<TargetVerdict, "margin" | "unit">): string {
   if (v.margin === null) return "";
-  const sign = v.margin > 0 ? "+" : v.margin < 0 ? "−" : "±";
-  const size =
-    v.unit === "dB" ? Math.abs(v.margin).toFixed(1) : String(Math.round(Math.abs(v.margin)));
-  return `${sign}${size} ${v.unit}`;
+  if (v.unit === "dB") return dbChangeText(v.margin);
+  const size = radS2Text(Math.abs(v.margin));
+  return `${v.margin > 0 ? "+" : v.margin < 0 ? "−" : "±"}${size}`;
 }
 
 /** "at least 10.0 dB over 1000–3000 rpm" / "at most 400 rad/s² at idle". */
 export function limitText(t: Target | TargetInput): string {
   if (t.kind === "isolation")
-    return `at least ${dbText(t.minDb!)} at the firing order over ${Math.round(t.rpmFrom!)}–${Math.round(t.rpmTo!)} rpm`;
+    return `at least ${dbText(t.minDb!)} at the firing order over ${rpmRangeText(t.rpmFrom, t.rpmTo)}`;
   return `gearbox-input angular acceleration at idle at most ${radS2Text(t.maxRadS2!)}`;
 }
 
@@ -405,7 +397,7 @@ function isolationVerdict(t: Target, result: TargetEvidence): TargetVerdict {
       value: worst.dB,
       margin,
       atRpm: worst.rpm,
-      detail: `Least isolation ${dbText(worst.dB)} at ${rpmText(worst.rpm)}, ${Math.abs(margin).toFixed(1)} dB short of the target.${count}${coverNote}`,
+      detail: `Least isolation ${dbText(worst.dB)} at ${rpmText(worst.rpm)}, ${dbText(Math.abs(margin))} short of the target.${count}${coverNote}`,
     };
   }
   // Each bin stands for ±bin/2 around its centre; the share of the range those spans cover.
@@ -446,7 +438,7 @@ function isolationVerdict(t: Target, result: TargetEvidence): TargetVerdict {
     value: worst.dB,
     margin,
     atRpm: worst.rpm,
-    detail: `Least isolation ${dbText(worst.dB)} at ${rpmText(worst.rpm)}${bound}, ${margin.toFixed(1)} dB above the target.${coverNote}`,
+    detail: `Least isolation ${dbText(worst.dB)} at ${rpmText(worst.rpm)}${bound}, ${dbText(margin)} above the target.${coverNote}`,
   };
 }
 

@@ -318,6 +318,10 @@ export default function DriveLogPage() {
           analysisVersion={shown?.version}
           markers={markers}
           targets={bands}
+          exportContext={{
+            vehicle: `${vehicle.name} (${vehicle.identifier})`,
+            driveLog: log.fileName,
+          }}
         />
       ) : null}
       {summary ? <AnalysisDetails s={summary} /> : null}

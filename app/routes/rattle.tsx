@@ -7,6 +7,7 @@ import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
 import { Card, EmptyState, tableClass, tdClass, thClass } from "~/components/page";
 import { conditionLabels, RATTLE_LIMIT_SOURCE } from "~/lib/drive-log-terms";
+import { radS2Number, radS2Text, rpmText, secondsNumber, secondsText } from "~/lib/format";
 import { idParam } from "~/lib/params";
 import { requireTeamRole } from "~/lib/permissions.server";
 import { rattleReading } from "~/lib/rattle-reading";
@@ -108,16 +109,16 @@ export default function RattlePage() {
             <dl className="mt-4 grid gap-4 text-sm sm:grid-cols-4">
               <Figure
                 term="Firing-order angular acceleration"
-                value={`${idle.gearboxAngAccelRadS2.toFixed(0)} rad/s²`}
+                value={radS2Text(idle.gearboxAngAccelRadS2)}
               />
               <Figure
                 term="Highest momentary value"
-                value={`${idle.gearboxAngAccelPeakRadS2.toFixed(0)} rad/s²`}
+                value={radS2Text(idle.gearboxAngAccelPeakRadS2)}
               />
-              <Figure term="Limit" value={`${idle.limitRadS2.toFixed(0)} rad/s²`} />
+              <Figure term="Limit" value={radS2Text(idle.limitRadS2)} />
               <Figure
                 term="Idle examined"
-                value={`${idle.idleDurationS.toFixed(1)} s at ${idle.meanRpm.toFixed(0)} rpm`}
+                value={`${secondsText(idle.idleDurationS)} at ${rpmText(idle.meanRpm)}`}
               />
             </dl>
             <p className="mt-3 text-xs text-neutral-500">
@@ -133,7 +134,14 @@ export default function RattlePage() {
             </Card>
           ) : null}
           <VerdictCaution />
-          <RattleCharts chartsUrl={`${logHref}/charts.json`} analysisVersion={analysis.version} />
+          <RattleCharts
+            chartsUrl={`${logHref}/charts.json`}
+            analysisVersion={analysis.version}
+            exportContext={{
+              vehicle: `${vehicle.name} (${vehicle.identifier})`,
+              driveLog: log.fileName,
+            }}
+          />
           <Card title="Spans above the limit" id="spans">
             {idle.spans.length === 0 ? (
               <EmptyState>The angular acceleration never rises above the limit.</EmptyState>
@@ -161,10 +169,10 @@ export default function RattlePage() {
                 <tbody>
                   {idle.spans.map((s) => (
                     <tr key={s.startS}>
-                      <td className={`${tdClass} tabular-nums`}>{s.startS.toFixed(2)}</td>
-                      <td className={`${tdClass} tabular-nums`}>{s.endS.toFixed(2)}</td>
-                      <td className={`${tdClass} tabular-nums`}>{s.durationS.toFixed(2)}</td>
-                      <td className={`${tdClass} tabular-nums`}>{s.peakRadS2.toFixed(0)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{secondsNumber(s.startS)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{secondsNumber(s.endS)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{secondsNumber(s.durationS)}</td>
+                      <td className={`${tdClass} tabular-nums`}>{radS2Number(s.peakRadS2)}</td>
                     </tr>
                   ))}
                 </tbody>

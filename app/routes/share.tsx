@@ -133,7 +133,15 @@ export default function SharedPage() {
           {log.summary ? (
             <>
               <AnalysisSummaryView s={log.summary} />
-              {page.kind === "log" ? <DriveLogCharts chartsUrl={`${base}/charts.json`} /> : null}
+              {page.kind === "log" ? (
+                <DriveLogCharts
+                  chartsUrl={`${base}/charts.json`}
+                  exportContext={{
+                    vehicle: `${page.vehicle.name} (${page.vehicle.identifier})`,
+                    driveLog: log.fileName,
+                  }}
+                />
+              ) : null}
               <AnalysisDetails s={log.summary} />
             </>
           ) : (

@@ -392,7 +392,11 @@ export default function VehiclePage() {
               finished.
             </EmptyState>
           ) : (
-            <CurveOverlay curvesUrl={`/vehicles/${vehicle.id}/curves.json`} kind="isolation" />
+            <CurveOverlay
+              curvesUrl={`/vehicles/${vehicle.id}/curves.json`}
+              kind="isolation"
+              exportContext={{ vehicle: `${vehicle.name} (${vehicle.identifier})` }}
+            />
           )}
         </section>
       </div>

@@ -6,7 +6,14 @@ import {
   convertAmplitude,
   type AmplitudeUnit,
 } from "~/lib/chart-units";
-import { formatValue } from "./chart-math";
+import {
+  amplitudeNumber,
+  amplitudeText,
+  dbRangeText,
+  dbText,
+  rpmRangeText,
+  rpmText,
+} from "~/lib/format";
 import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
 import { buildCsv } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
@@ -15,7 +22,7 @@ import { COLOURS, OVERLAY_STYLES } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
 import { cursor, drawYLine, fromZero, rangeWith, xAxis, xRangeAround, yAxis } from "./plot-kit";
 import { useCurvesQuery } from "./queries";
-import type { CurveSet } from "./types";
+import type { CurveSet, ExportContext } from "./types";
 
 export const OVERLAY_HEIGHT = 340;
 type Side = "crank" | "gearbox";
@@ -33,11 +40,14 @@ export function CurveOverlay({
   curvesUrl,
   kind,
   highlight,
+  exportContext,
 }: {
   curvesUrl: string;
   kind: "isolation" | "order";
   /** A drive-log id drawn heavier than the others. */
   highlight?: number;
+  /** The vehicle named in the PNG export's caption (the drive logs are the curves' labels). */
+  exportContext?: ExportContext;
 }) {
   const query = useCurvesQuery(curvesUrl);
   // The gearbox input first: that is where damper variants differ (the crank side is the engine's
@@ -100,13 +110,11 @@ export function CurveOverlay({
           (u) => {
             const i = u.cursor.idx;
             if (i == null) return;
-            const u2 = kind === "isolation" ? "dB" : unit;
+            const text = (v: number | null | undefined) =>
+              v == null ? "—" : kind === "isolation" ? dbText(v) : amplitudeText(v, unit);
             setReadout(
-              `${formatValue(u.data[0][i])} rpm · ${curves
-                .map(
-                  (c, k) =>
-                    `${c.label}: ${u.data[k + 1]![i] == null ? "—" : `${formatValue(u.data[k + 1]![i])} ${u2}`}`,
-                )
+              `${rpmText(u.data[0][i])} · ${curves
+                .map((c, k) => `${c.label}: ${text(u.data[k + 1]![i])}`)
                 .join(" · ")}`,
             );
           },
@@ -219,7 +227,13 @@ export function CurveOverlay({
       readout={readout || "Point at the chart to read each drive log's value."}
       summary={summary}
       onCsv={csv}
-      onPng={() => plot.current && void downloadPng(title, plot.current.ctx.canvas, legend)}
+      onPng={() =>
+        plot.current &&
+        void downloadPng(title, plot.current.ctx.canvas, legend, undefined, {
+          driveLog: curves?.map((c) => c.label).join(", "),
+          ...exportContext,
+        })
+      }
     >
       {(summaryId) =>
         options ? (
@@ -249,11 +263,11 @@ function summarise(curves: CurveSet[], kind: "isolation" | "order", side: Side):
       if (kind === "isolation") {
         const d = c.isolation.dB;
         if (!d.length) return `${c.label} (${style}): no isolation points.`;
-        return `${c.label} (${style}): ${formatValue(Math.min(...d))} to ${formatValue(Math.max(...d))} dB from ${formatValue(c.isolation.rpm[0])} to ${formatValue(c.isolation.rpm[c.isolation.rpm.length - 1])} rpm.`;
+        return `${c.label} (${style}): ${dbRangeText(Math.min(...d), Math.max(...d))} over ${rpmRangeText(c.isolation.rpm[0], c.isolation.rpm[c.isolation.rpm.length - 1])}.`;
       }
       const a = side === "crank" ? c.firingOrder.crankRpm : c.firingOrder.gearboxRpm;
       if (!a.length) return `${c.label} (${style}): no firing-order points.`;
-      return `${c.label} (${style}): firing-order amplitude ${formatValue(Math.min(...a))} to ${formatValue(Math.max(...a))} rpm.`;
+      return `${c.label} (${style}): firing-order amplitude ${amplitudeNumber(Math.min(...a))} to ${amplitudeText(Math.max(...a), "rpm")}.`;
     })
     .join(" ");
 }

@@ -1,11 +1,13 @@
+import { useMemo } from "react";
 import { ChartsError } from "./chart-frame";
+import { ChartExportContext } from "./export-context";
 import { IsolationCurve } from "./isolation-curve";
 import { OrderCurves } from "./order-curves";
 import { OrderMaps } from "./order-map";
 import { OrderSpectrum } from "./order-spectrum";
 import { useChartsQuery } from "./queries";
 import { SpeedTrace } from "./speed-trace";
-import type { ChartMarker, TargetBand } from "./types";
+import type { ChartMarker, ExportContext, TargetBand } from "./types";
 import { useChartCursor } from "./use-chart-cursor";
 
 /**
@@ -18,6 +20,7 @@ export function DriveLogCharts({
   targets,
   caption,
   analysisVersion,
+  exportContext,
 }: {
   chartsUrl: string;
   /** The latest analysis version the page knows of: a new one refetches (see useChartsQuery). */
@@ -25,11 +28,18 @@ export function DriveLogCharts({
   markers?: ChartMarker[];
   targets?: TargetBand[];
   caption?: React.ReactNode;
+  /** The vehicle and drive log named in the PNG exports' caption (the analysis is added here). */
+  exportContext?: Pick<ExportContext, "vehicle" | "driveLog">;
 }) {
   const query = useChartsQuery(chartsUrl, analysisVersion);
   const cursor = useChartCursor();
   const charts = query.data?.charts ?? null;
   const suffix = query.data ? `log-${query.data.logId}-v${query.data.analysis.version}` : undefined;
+  const analysis = query.data?.analysis;
+  const exportValue = useMemo(
+    () => ({ ...exportContext, analysis }),
+    [exportContext?.vehicle, exportContext?.driveLog, analysis], // eslint-disable-line react-hooks/exhaustive-deps
+  );
 
   if (query.isError)
     return (
@@ -45,27 +55,29 @@ export function DriveLogCharts({
       data-status={charts ? "ready" : "loading"}
       className="space-y-6"
     >
-      {caption ? <div className="text-sm text-neutral-600">{caption}</div> : null}
-      <SpeedTrace charts={charts} markers={markers} fileSuffix={suffix} />
-      <div className="grid gap-6 lg:grid-cols-2">
-        <OrderCurves
-          charts={charts}
-          syncKey={cursor.syncKey}
-          onCursorRpm={cursor.setRpm}
-          markers={markers}
-          fileSuffix={suffix}
-        />
-        <IsolationCurve
-          charts={charts}
-          syncKey={cursor.syncKey}
-          onCursorRpm={cursor.setRpm}
-          markers={markers}
-          targets={targets}
-          fileSuffix={suffix}
-        />
-      </div>
-      <OrderMaps charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
-      <OrderSpectrum charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
+      <ChartExportContext.Provider value={exportValue}>
+        {caption ? <div className="text-sm text-neutral-600">{caption}</div> : null}
+        <SpeedTrace charts={charts} markers={markers} fileSuffix={suffix} />
+        <div className="grid gap-6 lg:grid-cols-2">
+          <OrderCurves
+            charts={charts}
+            syncKey={cursor.syncKey}
+            onCursorRpm={cursor.setRpm}
+            markers={markers}
+            fileSuffix={suffix}
+          />
+          <IsolationCurve
+            charts={charts}
+            syncKey={cursor.syncKey}
+            onCursorRpm={cursor.setRpm}
+            markers={markers}
+            targets={targets}
+            fileSuffix={suffix}
+          />
+        </div>
+        <OrderMaps charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
+        <OrderSpectrum charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
+      </ChartExportContext.Provider>
     </section>
   );
 }

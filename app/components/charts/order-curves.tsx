@@ -1,5 +1,6 @@
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
+import { amplitudeText, orderNumber, rpmRangeText, rpmText } from "~/lib/format";
 import type { ChartData } from "~/lib/chart-data";
 import {
   AMPLITUDE_UNITS,
@@ -7,10 +8,10 @@ import {
   convertAmplitude,
   type AmplitudeUnit,
 } from "~/lib/chart-units";
-import { formatValue } from "./chart-math";
 import { ChartFrame, Segmented, SelectControl } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -39,6 +40,7 @@ export const OrderCurves = memo(function OrderCurves({
   markers?: ChartMarker[];
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const [chosen, setChosen] = useState<number | null>(null);
   const [unit, setUnit] = useState<AmplitudeUnit>("rpm");
   const [readout, setReadout] = useState("");
@@ -86,7 +88,7 @@ export const OrderCurves = memo(function OrderCurves({
             const c = u.data[1]![i];
             const g = u.data[2]![i];
             setReadout(
-              `${formatValue(rpm)} rpm · order ${formatValue(order)} · crank ${formatValue(c)} ${unit} · gearbox input ${formatValue(g)} ${unit}`,
+              `${rpmText(rpm)} · order ${orderNumber(order)} · crank ${amplitudeText(c, unit)} · gearbox input ${amplitudeText(g, unit)}`,
             );
           },
         ],
@@ -165,7 +167,13 @@ export const OrderCurves = memo(function OrderCurves({
       onCsv={csv}
       onPng={() =>
         plot.current &&
-        void downloadPng(`${TITLE}, order ${order}`, plot.current.ctx.canvas, legend, fileSuffix)
+        void downloadPng(
+          `${TITLE}, order ${order}`,
+          plot.current.ctx.canvas,
+          legend,
+          fileSuffix,
+          exportContext,
+        )
       }
     >
       {(summaryId) =>
@@ -199,5 +207,5 @@ function summarise(
   };
   const c = peak(data[1]!);
   const g = peak(data[2]!);
-  return `Order ${order} from ${formatValue(curve.rpm[0])} to ${formatValue(curve.rpm[curve.rpm.length - 1])} rpm, ${curve.rpm.length} points. Largest crank amplitude ${formatValue(data[1]![c])} ${unit} at ${formatValue(curve.rpm[c])} rpm; largest gearbox-input amplitude ${formatValue(data[2]![g])} ${unit} at ${formatValue(curve.rpm[g])} rpm.`;
+  return `Order ${orderNumber(order)} over ${rpmRangeText(curve.rpm[0], curve.rpm[curve.rpm.length - 1])}, ${curve.rpm.length} points. Largest crank amplitude ${amplitudeText(data[1]![c], unit)} at ${rpmText(curve.rpm[c])}; largest gearbox-input amplitude ${amplitudeText(data[2]![g], unit)} at ${rpmText(curve.rpm[g])}.`;
 }

@@ -6,6 +6,21 @@ import { memo, useEffect, useId, useMemo, useRef, useState } from "react";
 import type { ChartData } from "~/lib/chart-data";
 import { amplitudeDb } from "~/lib/chart-units";
 import { formatValue, nearestIndex, niceTicks } from "./chart-math";
+import {
+  amplitudeNumber,
+  amplitudeText,
+  dbNumber,
+  dbText,
+  orderNumber,
+  rpmText,
+  secondsText,
+} from "~/lib/format";
+
+/** "0 to 42.3 rpm" or "−20.0 to 32.5 dB re 1 rpm": each end by the rule of its quantity. */
+function scaleText(scale: { min: number; max: number; unit: string }): string {
+  const n = scale.unit.startsWith("dB") ? dbNumber : amplitudeNumber;
+  return `${n(scale.min)} to ${n(scale.max)} ${scale.unit}`;
+}
 import { ChartFrame, Segmented } from "./chart-frame";
 import {
   levelScale,
@@ -17,6 +32,7 @@ import {
 } from "./colour-scale";
 import { buildCsv } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import { COLOURS, FONT_FAMILY } from "./palette";
 
 export const ORDER_MAP_HEIGHT = 300;
@@ -154,6 +170,7 @@ function HeatMap({
   cursorRpm: number | null;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const status =
     !charts || !grid
       ? "loading"
@@ -252,14 +269,15 @@ function HeatMap({
   const cell = hover && grid ? grid.cells[hover.row]?.[hover.k] : undefined;
   const readout =
     hover && grid && cell !== undefined
-      ? `${side} · ${grid.byTime ? `${formatValue(grid.rows[hover.row])} s (${formatValue(grid.rowRpm[hover.row])} rpm)` : `${formatValue(grid.rows[hover.row])} rpm`} · order ${formatValue(hover.k * step)}: ${formatValue(cell)} rpm (${cell > 0 ? `${formatValue(amplitudeDb(cell))} dB re 1 rpm` : "no level"})`
+      ? `${side} · ${grid.byTime ? `${secondsText(grid.rows[hover.row])} (${rpmText(grid.rowRpm[hover.row])})` : rpmText(grid.rows[hover.row])} · order ${orderNumber(hover.k * step)}: ${amplitudeText(cell, "rpm")} (${cell > 0 ? `${dbText(amplitudeDb(cell))} re 1 rpm` : "no level"})`
       : "Point at a cell, or focus the map and use the arrow keys, to read its amplitude.";
 
   let summary: string | undefined;
   if (status === "ready" && grid && charts) {
     let best = { row: 0, k: 0, v: -1 };
     grid.cells.forEach((r, i) => r.forEach((v, k) => v > best.v && (best = { row: i, k, v })));
-    summary = `${title}: ${grid.rows.length} ${grid.byTime ? "time" : "engine-speed"} rows from ${formatValue(grid.rows[0])} to ${formatValue(grid.rows[grid.rows.length - 1])} ${grid.byTime ? "s" : "rpm"}, orders 0 to ${formatValue((count - 1) * step)}. Largest amplitude ${formatValue(best.v)} rpm at order ${formatValue(best.k * step)}, ${formatValue(grid.rows[best.row])} ${grid.byTime ? "s" : "rpm"}. Colour scale ${formatValue(scale.min)} to ${formatValue(scale.max)} ${scale.unit}.`;
+    const at = (v: number | undefined) => (grid.byTime ? secondsText(v) : rpmText(v));
+    summary = `${title}: ${grid.rows.length} ${grid.byTime ? "time" : "engine-speed"} rows from ${at(grid.rows[0])} to ${at(grid.rows[grid.rows.length - 1])}, orders 0 to ${orderNumber((count - 1) * step)}. Largest amplitude ${amplitudeText(best.v, "rpm")} at order ${orderNumber(best.k * step)}, ${at(grid.rows[best.row])}. Colour scale ${scaleText(scale)}.`;
   }
 
   function csv() {
@@ -322,6 +340,7 @@ function HeatMap({
           canvas.current,
           [{ kind: "area", label: legendLine, colour: rgbCss(viridis(0.6)) }],
           fileSuffix,
+          exportContext,
         )
       }
     >
@@ -331,7 +350,7 @@ function HeatMap({
             ref={canvas}
             role="img"
             tabIndex={0}
-            aria-label={`${title}: amplitude by ${grid?.byTime ? "time" : "engine speed"} and order, colour scale ${formatValue(scale.min)} to ${formatValue(scale.max)} ${scale.unit}. Arrow keys move between cells.`}
+            aria-label={`${title}: amplitude by ${grid?.byTime ? "time" : "engine speed"} and order, colour scale ${scaleText(scale)}. Arrow keys move between cells.`}
             aria-describedby={`${summaryId} ${hintId}`}
             onMouseMove={(e) => setHover(cellAt(e.clientX, e.clientY))}
             onKeyDown={onKey}

@@ -1,10 +1,12 @@
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
+import { amplitudeText, orderNumber, rpmText } from "~/lib/format";
 import type { ChartData } from "~/lib/chart-data";
-import { formatValue, nearestIndex } from "./chart-math";
+import { nearestIndex } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import type { LegendEntry } from "./legend";
 import { COLOURS, FONT_FAMILY } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -38,13 +40,14 @@ export const OrderSpectrum = memo(function OrderSpectrum({
   cursorRpm: number | null;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const [readout, setReadout] = useState("");
   const plot = useRef<uPlot | null>(null);
   const map = charts?.orderMap ?? null;
   const want = cursorRpm ?? (charts ? defaultSpectrumRpm(charts) : null);
   const row = map && want !== null ? nearestIndex(map.rpm, want) : -1;
   const rowRpm = map && row >= 0 ? map.rpm[row]! : null;
-  const title = rowRpm !== null ? `Order spectrum at ${formatValue(rowRpm)} rpm` : "Order spectrum";
+  const title = rowRpm !== null ? `Order spectrum at ${rpmText(rowRpm)}` : "Order spectrum";
 
   const orders = useMemo(
     () => (map ? Array.from({ length: map.orderCount }, (_, k) => k * map.orderStep) : []),
@@ -76,7 +79,7 @@ export const OrderSpectrum = memo(function OrderSpectrum({
             const i = u.cursor.idx;
             if (i == null) return;
             setReadout(
-              `${formatValue(rowRef.current.rowRpm)} rpm · order ${formatValue(u.data[0][i])} · crank ${formatValue(u.data[1]![i])} rpm · gearbox input ${formatValue(u.data[2]![i])} rpm`,
+              `${rpmText(rowRef.current.rowRpm)} · order ${orderNumber(u.data[0][i])} · crank ${amplitudeText(u.data[1]![i], "rpm")} · gearbox input ${amplitudeText(u.data[2]![i], "rpm")}`,
             );
           },
         ],
@@ -97,7 +100,7 @@ export const OrderSpectrum = memo(function OrderSpectrum({
   let summary: string | undefined;
   if (status === "ready" && map && charts) {
     const k = Math.round(charts.firingOrder / map.orderStep);
-    summary = `Order spectrum of the order-map row at ${formatValue(rowRpm)} rpm (${formatValue(map.rowRpm)} rpm wide), orders 0 to ${formatValue(orders[orders.length - 1])}. At the firing order ${charts.firingOrder}: crank ${formatValue(map.crankRpm[row]![k])} rpm, gearbox input ${formatValue(map.gearboxRpm[row]![k])} rpm.`;
+    summary = `Order spectrum of the order-map row at ${rpmText(rowRpm)} (${rpmText(map.rowRpm)} wide), orders 0 to ${orderNumber(orders[orders.length - 1])}. At the firing order ${orderNumber(charts.firingOrder)}: crank ${amplitudeText(map.crankRpm[row]![k], "rpm")}, gearbox input ${amplitudeText(map.gearboxRpm[row]![k], "rpm")}.`;
   }
 
   return (
@@ -111,7 +114,10 @@ export const OrderSpectrum = memo(function OrderSpectrum({
       note="Follows the engine-speed cursor of the order curves and the isolation curve (the nearest order-map row)."
       emptyMessage="No order-map rows to take a spectrum from: the drive log may be too short or too slow."
       legend={legend}
-      readout={readout || "Point at the chart to read the amplitudes by order."}
+      readout={
+        readout ||
+        "Point at the chart, or focus it and use the arrow keys, to read the amplitudes by order."
+      }
       summary={summary}
       onCsv={() =>
         map &&
@@ -130,7 +136,8 @@ export const OrderSpectrum = memo(function OrderSpectrum({
         )
       }
       onPng={() =>
-        plot.current && void downloadPng(title, plot.current.ctx.canvas, legend, fileSuffix)
+        plot.current &&
+        void downloadPng(title, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
       }
     >
       {(summaryId) =>
@@ -139,7 +146,8 @@ export const OrderSpectrum = memo(function OrderSpectrum({
             height={ORDER_SPECTRUM_HEIGHT}
             options={options}
             data={data}
-            label={`${title}: amplitude in rpm against order, crank and gearbox input`}
+            keyboard
+            label={`${title}: amplitude in rpm against order, crank and gearbox input. Use the left and right arrow keys to move the order cursor.`}
             describedBy={summaryId}
             onPlot={(u) => (plot.current = u)}
           />
@@ -165,6 +173,6 @@ function drawFiringOrder(u: uPlot, order: number) {
   ctx.font = `${11 * s}px ${FONT_FAMILY}`;
   ctx.textAlign = "left";
   ctx.textBaseline = "top";
-  ctx.fillText(`firing order ${formatValue(order)}`, x + 4 * s, bbox.top + 4 * s);
+  ctx.fillText(`firing order ${orderNumber(order)}`, x + 4 * s, bbox.top + 4 * s);
   ctx.restore();
 }

@@ -24,7 +24,10 @@ export function Plot({
   /** The figure's accessible name (role="img"). */
   label: string;
   describedBy?: string;
-  /** Left/Right/Home/End move the cursor one data point (an engine-speed bin) when focused. */
+  /**
+   * When focused, Left/Right move the cursor one data point (an engine-speed bin, a trace sample,
+   * an order), Page Up/Page Down a twentieth of the points (long traces), Home/End to the ends.
+   */
   keyboard?: boolean;
   onPlot?: (plot: uPlot | null) => void;
 }) {
@@ -70,16 +73,21 @@ export function Plot({
     const n = xs.length;
     if (!n) return;
     const now = u.cursor.idx ?? Math.floor(n / 2);
+    const page = u.cursor.idx == null ? 0 : Math.max(1, Math.round(n / 20));
     const next =
-      e.key === "ArrowRight"
-        ? Math.min(n - 1, now + (u.cursor.idx == null ? 0 : 1))
-        : e.key === "ArrowLeft"
-          ? Math.max(0, now - (u.cursor.idx == null ? 0 : 1))
-          : e.key === "Home"
-            ? 0
-            : e.key === "End"
-              ? n - 1
-              : null;
+      e.key === "PageDown"
+        ? Math.min(n - 1, now + page)
+        : e.key === "PageUp"
+          ? Math.max(0, now - page)
+          : e.key === "ArrowRight"
+            ? Math.min(n - 1, now + (u.cursor.idx == null ? 0 : 1))
+            : e.key === "ArrowLeft"
+              ? Math.max(0, now - (u.cursor.idx == null ? 0 : 1))
+              : e.key === "Home"
+                ? 0
+                : e.key === "End"
+                  ? n - 1
+                  : null;
     if (next === null) return;
     e.preventDefault();
     const left = u.valToPos(xs[next]!, "x");

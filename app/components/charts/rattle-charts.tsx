@@ -1,11 +1,21 @@
 import { memo, useEffect, useId, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
+import {
+  amplitudeNumber,
+  amplitudeText,
+  orderNumber,
+  radS2Text,
+  rpmText,
+  secondsNumber,
+  secondsText,
+} from "~/lib/format";
 import type { ChartData } from "~/lib/chart-data";
 import { convertSpeed, SPEED_UNITS, type SpeedUnit } from "~/lib/chart-units";
-import { extent, formatValue, withGaps } from "./chart-math";
+import { extent, withGaps } from "./chart-math";
 import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { ChartExportContext, useExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -21,7 +31,7 @@ import {
   yAxis,
 } from "./plot-kit";
 import { useChartsQuery } from "./queries";
-import type { ChartMarker } from "./types";
+import type { ChartMarker, ExportContext } from "./types";
 import { useTimeMarkers } from "./use-stable";
 
 export const RATTLE_CHART_HEIGHT = 260;
@@ -32,16 +42,20 @@ export function RattleCharts({
   chartsUrl,
   markers,
   analysisVersion,
+  exportContext,
 }: {
   chartsUrl: string;
   markers?: ChartMarker[];
   /** As for DriveLogCharts: the latest analysis version the page knows of. */
   analysisVersion?: number;
+  /** As for DriveLogCharts: the vehicle and drive log named in the PNG exports' caption. */
+  exportContext?: Pick<ExportContext, "vehicle" | "driveLog">;
 }) {
   const query = useChartsQuery(chartsUrl, analysisVersion);
   const syncKey = `twistlog-time-${useId()}`;
   const charts = query.data?.charts ?? null;
   const suffix = query.data ? `log-${query.data.logId}-v${query.data.analysis.version}` : undefined;
+  const exportValue = { ...exportContext, analysis: query.data?.analysis };
   if (query.isError)
     return (
       <section aria-label="Rattle check charts" data-charts="rattle" data-status="error">
@@ -55,8 +69,10 @@ export function RattleCharts({
       data-status={charts ? "ready" : "loading"}
       className="space-y-6"
     >
-      <AccelChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
-      <FluctuationChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+      <ChartExportContext.Provider value={exportValue}>
+        <AccelChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+        <FluctuationChart charts={charts} markers={markers} syncKey={syncKey} fileSuffix={suffix} />
+      </ChartExportContext.Provider>
     </section>
   );
 }
@@ -74,6 +90,7 @@ const AccelChart = memo(function AccelChart({
   syncKey: string;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const idle = charts?.idle ?? null;
   const trace = idle?.accelTrace ?? null;
   const [readout, setReadout] = useState("");
@@ -109,7 +126,7 @@ const AccelChart = memo(function AccelChart({
             drawYLine(u, idle.limitRadS2, COLOURS.fail, {
               dash: [6, 3],
               width: 1.5,
-              label: `limit ${formatValue(idle.limitRadS2)} rad/s²`,
+              label: `limit ${radS2Text(idle.limitRadS2)}`,
             }),
           (u) => drawXMarkers(u, timeMarkers),
         ],
@@ -120,8 +137,8 @@ const AccelChart = memo(function AccelChart({
             const v = trace.radS2[i];
             setReadout(
               v == null
-                ? `${formatValue(trace.timeS[i])} s · between idle segments`
-                : `${formatValue(trace.timeS[i])} s · |α| ${formatValue(v)} rad/s² · limit ${formatValue(idle.limitRadS2)} rad/s²${v > idle.limitRadS2 ? " · above the limit" : ""}`,
+                ? `${secondsText(trace.timeS[i])} · between idle segments`
+                : `${secondsText(trace.timeS[i])} · |α| ${radS2Text(v)} · limit ${radS2Text(idle.limitRadS2)}${v > idle.limitRadS2 ? " · above the limit" : ""}`,
             );
           },
         ],
@@ -148,7 +165,7 @@ const AccelChart = memo(function AccelChart({
   ];
   const status = !charts ? "loading" : trace && trace.timeS.length ? "ready" : "empty";
   const summary = idle
-    ? `In ${formatValue(idle.idleDurationS)} s of idle at ${formatValue(idle.meanRpm)} rpm the gearbox-input angular acceleration at the firing order is ${formatValue(idle.gearboxAngAccelRadS2)} rad/s², its peak ${formatValue(idle.gearboxAngAccelPeakRadS2)} rad/s², against a limit of ${formatValue(idle.limitRadS2)} rad/s² (${idle.verdict === "ok" ? "within the limit" : "over the limit"}). ${idle.spans.length} span${idle.spans.length === 1 ? "" : "s"} above the limit${idle.spans.length ? `: ${idle.spans.map((s) => `${formatValue(s.startS)}–${formatValue(s.endS)} s, peak ${formatValue(s.peakRadS2)} rad/s²`).join("; ")}` : ""}.`
+    ? `In ${secondsText(idle.idleDurationS)} of idle at ${rpmText(idle.meanRpm)} the gearbox-input angular acceleration at the firing order is ${radS2Text(idle.gearboxAngAccelRadS2)}, its peak ${radS2Text(idle.gearboxAngAccelPeakRadS2)}, against a limit of ${radS2Text(idle.limitRadS2)} (${idle.verdict === "ok" ? "within the limit" : "over the limit"}). ${idle.spans.length} span${idle.spans.length === 1 ? "" : "s"} above the limit${idle.spans.length ? `: ${idle.spans.map((s) => `${secondsNumber(s.startS)}–${secondsText(s.endS)}, peak ${radS2Text(s.peakRadS2)}`).join("; ")}` : ""}.`
     : undefined;
 
   return (
@@ -178,7 +195,8 @@ const AccelChart = memo(function AccelChart({
         )
       }
       onPng={() =>
-        plot.current && void downloadPng(ACCEL_TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+        plot.current &&
+        void downloadPng(ACCEL_TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
       }
     >
       {(summaryId) =>
@@ -211,6 +229,7 @@ const FluctuationChart = memo(function FluctuationChart({
   syncKey: string;
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const idle = charts?.idle ?? null;
   const trace = idle?.firingOrderTrace ?? null;
   const [unit, setUnit] = useState<SpeedUnit>("rpm");
@@ -250,7 +269,7 @@ const FluctuationChart = memo(function FluctuationChart({
             const i = u.cursor.idx;
             if (i == null || u.data[1]![i] == null) return;
             setReadout(
-              `${formatValue(u.data[0][i])} s · crank ${formatValue(u.data[1]![i])} ${unit} · gearbox input ${formatValue(u.data[2]![i])} ${unit} (0-peak, order ${charts.firingOrder})`,
+              `${secondsText(u.data[0][i])} · crank ${amplitudeText(u.data[1]![i], unit)} · gearbox input ${amplitudeText(u.data[2]![i], unit)} (0-peak, order ${orderNumber(charts.firingOrder)})`,
             );
           },
         ],
@@ -270,7 +289,7 @@ const FluctuationChart = memo(function FluctuationChart({
   const g = trace ? extent(trace.gearboxRpm) : null;
   const summary =
     trace && charts && trace.timeS.length
-      ? `Firing-order (${charts.firingOrder}) amplitude, 0-peak, in the idle segments: crank ${formatValue(c?.[0])} to ${formatValue(c?.[1])} rpm, gearbox input ${formatValue(g?.[0])} to ${formatValue(g?.[1])} rpm.`
+      ? `Firing-order (${charts.firingOrder}) amplitude, 0-peak, in the idle segments: crank ${amplitudeNumber(c?.[0])} to ${amplitudeText(c?.[1], "rpm")}, gearbox input ${amplitudeNumber(g?.[0])} to ${amplitudeText(g?.[1], "rpm")}.`
       : undefined;
 
   function csv() {
@@ -319,7 +338,13 @@ const FluctuationChart = memo(function FluctuationChart({
       onCsv={csv}
       onPng={() =>
         plot.current &&
-        void downloadPng(FLUCTUATION_TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+        void downloadPng(
+          FLUCTUATION_TITLE,
+          plot.current.ctx.canvas,
+          legend,
+          fileSuffix,
+          exportContext,
+        )
       }
     >
       {(summaryId) =>

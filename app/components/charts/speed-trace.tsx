@@ -1,10 +1,12 @@
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
+import { rpmRangeText, rpmText, secondsNumber, secondsText } from "~/lib/format";
 import type { ChartData } from "~/lib/chart-data";
-import { extent, formatValue } from "./chart-math";
+import { extent } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
+import { useExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
@@ -41,6 +43,7 @@ export const SpeedTrace = memo(function SpeedTrace({
   markers?: ChartMarker[];
   fileSuffix?: string;
 }) {
+  const exportContext = useExportContext();
   const trace = charts?.speedTrace ?? null;
   const plot = useRef<uPlot | null>(null);
   const [readout, setReadout] = useState("");
@@ -57,7 +60,7 @@ export const SpeedTrace = memo(function SpeedTrace({
       from: s.startS,
       to: s.endS,
       fill: i % 2 ? COLOURS.bandB : COLOURS.bandA,
-      label: `${SEGMENT_NAMES[s.kind]} · ${formatValue(s.meanRpm, 4)} rpm`,
+      label: `${SEGMENT_NAMES[s.kind]} · ${rpmText(s.meanRpm)}`,
     }));
     return {
       scales: { x: { time: false }, y: { range: fromZeroWithHeadroom } },
@@ -80,7 +83,7 @@ export const SpeedTrace = memo(function SpeedTrace({
               (s) => trace.timeS[i]! >= s.startS && trace.timeS[i]! < s.endS,
             );
             setReadout(
-              `${formatValue(trace.timeS[i])} s · crank ${formatValue(trace.crankRpm[i])} rpm · gearbox input ${formatValue(trace.gearboxRpm[i])} rpm${seg ? ` · ${SEGMENT_NAMES[seg.kind]}` : ""}`,
+              `${secondsText(trace.timeS[i])} · crank ${rpmText(trace.crankRpm[i])} · gearbox input ${rpmText(trace.gearboxRpm[i])}${seg ? ` · ${SEGMENT_NAMES[seg.kind]}` : ""}`,
             );
           },
         ],
@@ -102,10 +105,10 @@ export const SpeedTrace = memo(function SpeedTrace({
   const range = trace ? extent(trace.crankRpm) : null;
   const summary =
     charts && trace
-      ? `Speed over ${formatValue(charts.durationS)} s: crank from ${formatValue(range?.[0])} to ${formatValue(range?.[1])} rpm. Segments: ${charts.segments
+      ? `Speed over ${secondsText(charts.durationS)}: crank ${rpmRangeText(range?.[0], range?.[1])}. Segments: ${charts.segments
           .map(
             (s) =>
-              `${SEGMENT_NAMES[s.kind]} ${formatValue(s.startS)}–${formatValue(s.endS)} s at ${formatValue(s.meanRpm)} rpm`,
+              `${SEGMENT_NAMES[s.kind]} ${secondsNumber(s.startS)}–${secondsText(s.endS)} at ${rpmText(s.meanRpm)}`,
           )
           .join("; ")}.`
       : undefined;
@@ -118,7 +121,9 @@ export const SpeedTrace = memo(function SpeedTrace({
       status={status}
       emptyMessage="This analysis was made before speed traces were stored: re-analyse the drive log to draw the speed trace."
       legend={legend}
-      readout={readout || "Point at the chart to read the speeds."}
+      readout={
+        readout || "Point at the chart, or focus it and use the arrow keys, to read the speeds."
+      }
       summary={summary}
       onCsv={() =>
         trace &&
@@ -132,7 +137,8 @@ export const SpeedTrace = memo(function SpeedTrace({
         )
       }
       onPng={() =>
-        plot.current && void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix)
+        plot.current &&
+        void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
       }
     >
       {(summaryId) =>
@@ -141,7 +147,8 @@ export const SpeedTrace = memo(function SpeedTrace({
             height={SPEED_TRACE_HEIGHT}
             options={options}
             data={data}
-            label={`${TITLE}: crank and gearbox-input speed in rpm against time in s`}
+            keyboard
+            label={`${TITLE}: crank and gearbox-input speed in rpm against time in s. Use the left and right arrow keys to move the time cursor.`}
             describedBy={summaryId}
             onPlot={(u) => (plot.current = u)}
           />

@@ -13,6 +13,18 @@ export interface ChartsResponse {
   charts: ChartData;
 }
 
+/**
+ * Where a chart's figures come from, written into its PNG export's caption (export-image.ts).
+ * Pages give the names; the chart sets add the analysis from their charts.json.
+ */
+export interface ExportContext {
+  /** The vehicle, e.g. "Kestrel D4 (KST-D4)". */
+  vehicle?: string;
+  /** The drive log's file name, or the drive logs of a comparison. */
+  driveLog?: string;
+  analysis?: { id: number; version: number; createdAt: string };
+}
+
 /** A remark pinned to a time (s) or an engine speed (rpm), drawn as a marker on the charts. */
 export interface ChartMarker {
   id: number | string;
