@@ -1,3 +1,4 @@
+import { countText } from "~/lib/plural";
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
 import type { ChartData } from "~/lib/chart-data";
@@ -166,7 +167,7 @@ export const IsolationCurve = memo(function IsolationCurve({
   if (charts && iso && iso.rpm.length) {
     const range = isolationRangeText(iso.dB, iso.aboveNoise);
     const lower = iso.aboveNoise.filter((a) => !a).length;
-    summary = `Isolation at order ${charts.firingOrder} over ${rpmRangeText(iso.rpm[0], iso.rpm[iso.rpm.length - 1])}: ${range ?? "—"}${lower < iso.rpm.length ? " above the noise floor" : ""}; ${lower} of ${iso.rpm.length} points are lower bounds. ${resonance ? `Damper resonance at ${rpmText(resonance.rpm)}, ${dbText(resonance.isolationDb)}.` : "No damper resonance in this drive log."}${bands.length ? ` Targets: ${bands.map((b) => `${b.name} at least ${dbText(b.minDb)} over ${rpmRangeText(b.rpmFrom, b.rpmTo)}`).join("; ")}.` : ""}`;
+    summary = `Isolation at order ${charts.firingOrder} over ${rpmRangeText(iso.rpm[0], iso.rpm[iso.rpm.length - 1])}: ${range ?? "—"}${lower < iso.rpm.length ? " above the noise floor" : ""}; ${lower} of ${countText(iso.rpm.length, "point")} ${lower === 1 ? "is a lower bound" : "are lower bounds"}. ${resonance ? `Damper resonance at ${rpmText(resonance.rpm)}, ${dbText(resonance.isolationDb)}.` : "No damper resonance in this drive log."}${bands.length ? ` Targets: ${bands.map((b) => `${b.name} at least ${dbText(b.minDb)} over ${rpmRangeText(b.rpmFrom, b.rpmTo)}`).join("; ")}.` : ""}`;
   }
 
   return (

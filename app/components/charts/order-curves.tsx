@@ -1,3 +1,4 @@
+import { countText } from "~/lib/plural";
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
 import { amplitudeText, orderNumber, rpmRangeText, rpmText } from "~/lib/format";
@@ -207,5 +208,5 @@ function summarise(
   };
   const c = peak(data[1]!);
   const g = peak(data[2]!);
-  return `Order ${orderNumber(order)} over ${rpmRangeText(curve.rpm[0], curve.rpm[curve.rpm.length - 1])}, ${curve.rpm.length} points. Largest crank amplitude ${amplitudeText(data[1]![c], unit)} at ${rpmText(curve.rpm[c])}; largest gearbox-input amplitude ${amplitudeText(data[2]![g], unit)} at ${rpmText(curve.rpm[g])}.`;
+  return `Order ${orderNumber(order)} over ${rpmRangeText(curve.rpm[0], curve.rpm[curve.rpm.length - 1])}, ${countText(curve.rpm.length, "point")}. Largest crank amplitude ${amplitudeText(data[1]![c], unit)} at ${rpmText(curve.rpm[c])}; largest gearbox-input amplitude ${amplitudeText(data[2]![g], unit)} at ${rpmText(curve.rpm[g])}.`;
 }
