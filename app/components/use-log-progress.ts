@@ -48,12 +48,19 @@ export function useLogProgress(
   }, [fromLoader, query.data]);
 
   const [announcement, setAnnouncement] = useState("");
-  const seen = useRef(new Map<number, LogProgress["status"]>());
+  // Drive logs on the page when it opened are only recorded; a log seen to finish later is
+  // announced, and so is one that appeared later already finished (a small file can be analysed
+  // before the page first hears of it).
+  const seen = useRef<Map<number, LogProgress["status"]> | null>(null);
   useEffect(() => {
+    if (!seen.current) {
+      seen.current = new Map([...statuses].map(([id, log]) => [id, log.status]));
+      return;
+    }
     const finished: string[] = [];
     for (const [id, log] of statuses) {
       const before = seen.current.get(id);
-      if (before && isActive(before) && !isActive(log.status)) {
+      if ((before === undefined || isActive(before)) && !isActive(log.status)) {
         const name = names.get(id) ?? `drive log ${id}`;
         finished.push(
           log.status === "done" ? `Analysis of ${name} finished.` : `Analysis of ${name} failed.`,
