@@ -1,3 +1,4 @@
+import type { ReactNode } from "react";
 import { data, Form, Link, useLoaderData } from "react-router";
 import { z } from "zod";
 import { inputClass, linkClass } from "~/components/form-fields";
@@ -187,16 +188,39 @@ function AuditFilters({
   errors: FilterErrors;
   filtered: boolean;
 }) {
-  const label = "block text-xs font-medium text-neutral-700";
-  const control = `mt-1 ${inputClass} py-1.5`;
-  const described = (name: keyof FilterErrors) =>
-    errors[name] ? { "aria-invalid": true, "aria-describedby": `audit-${name}-error` } : undefined;
-  const error = (name: keyof FilterErrors) =>
-    errors[name] ? (
-      <p id={`audit-${name}-error`} className="mt-1 text-sm text-red-700">
-        {errors[name]}
-      </p>
-    ) : null;
+  // One labelled control per filter, its error tied to it for screen readers.
+  const field = (
+    name: keyof FilterErrors,
+    title: string,
+    control: (props: {
+      id: string;
+      name: string;
+      defaultValue: string;
+      className: string;
+      "aria-invalid"?: true;
+      "aria-describedby"?: string;
+    }) => ReactNode,
+  ) => (
+    <div>
+      <label htmlFor={`audit-${name}`} className="block text-xs font-medium text-neutral-700">
+        {title}
+      </label>
+      {control({
+        id: `audit-${name}`,
+        name,
+        defaultValue: shown[name],
+        className: `mt-1 ${inputClass} py-1.5`,
+        ...(errors[name]
+          ? { "aria-invalid": true, "aria-describedby": `audit-${name}-error` }
+          : {}),
+      })}
+      {errors[name] ? (
+        <p id={`audit-${name}-error`} className="mt-1 text-sm text-red-700">
+          {errors[name]}
+        </p>
+      ) : null}
+    </div>
+  );
   return (
     <Form
       // A new key per loaded filter set: "Clear filters" and back/forward reset the fields.
@@ -206,17 +230,8 @@ function AuditFilters({
       aria-label="Filter the audit log"
       className="mb-6 grid gap-3 sm:grid-cols-2 lg:grid-cols-[2fr_2fr_1fr_1fr_auto]"
     >
-      <div>
-        <label htmlFor="audit-action" className={label}>
-          Action
-        </label>
-        <select
-          id="audit-action"
-          name="action"
-          defaultValue={shown.action}
-          className={control}
-          {...described("action")}
-        >
+      {field("action", "Action", (props) => (
+        <select {...props}>
           <option value="">Any action</option>
           {actions.map((a) => (
             <option key={a} value={a}>
@@ -224,19 +239,9 @@ function AuditFilters({
             </option>
           ))}
         </select>
-        {error("action")}
-      </div>
-      <div>
-        <label htmlFor="audit-person" className={label}>
-          Person
-        </label>
-        <select
-          id="audit-person"
-          name="person"
-          defaultValue={shown.person}
-          className={control}
-          {...described("person")}
-        >
+      ))}
+      {field("person", "Person", (props) => (
+        <select {...props}>
           <option value="">Anyone</option>
           {people.map((p) => (
             <option key={p} value={p}>
@@ -244,36 +249,13 @@ function AuditFilters({
             </option>
           ))}
         </select>
-        {error("person")}
-      </div>
-      <div>
-        <label htmlFor="audit-from" className={label}>
-          From date (UTC)
-        </label>
-        <input
-          id="audit-from"
-          type="date"
-          name="from"
-          defaultValue={shown.from}
-          className={control}
-          {...described("from")}
-        />
-        {error("from")}
-      </div>
-      <div>
-        <label htmlFor="audit-to" className={label}>
-          To date (UTC)
-        </label>
-        <input
-          id="audit-to"
-          type="date"
-          name="to"
-          defaultValue={shown.to}
-          className={control}
-          {...described("to")}
-        />
-        {error("to")}
-      </div>
+      ))}
+      {field("from", "From date (UTC)", (props) => (
+        <input type="date" {...props} />
+      ))}
+      {field("to", "To date (UTC)", (props) => (
+        <input type="date" {...props} />
+      ))}
       <div className="flex flex-wrap items-end gap-3">
         <button
           type="submit"
