@@ -149,25 +149,9 @@ describe("the audit log's filters", () => {
   });
 });
 
-/** Posts a multipart upload like a browser without JavaScript (csrf first, then the file). */
-async function upload(client: HttpClient, vehicleId: number, name: string, content: string) {
-  const body = new FormData();
-  body.set("csrf", client.csrf);
-  body.set("intent", "upload");
-  body.set("condition", "idle-neutral");
-  body.append("file", new Blob([content], { type: "text/csv" }), name);
-  const r = await fetch(`${server.url}/vehicles/${vehicleId}`, {
-    method: "POST",
-    redirect: "manual",
-    headers: {
-      Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
-      "X-Forwarded-For": client.ip,
-      Origin: server.url,
-    },
-    body,
-  });
-  expect(r.status).toBe(302);
-  return Number(new URL(r.headers.get("location")!, server.url).searchParams.get("uploaded"));
+/** The vehicle page's plain upload (HttpClient.uploadDriveLog); resolves with the new log's id. */
+function upload(client: HttpClient, vehicleId: number, name: string, content: string) {
+  return client.uploadDriveLog(vehicleId, name, content);
 }
 
 async function waitUntilDone(client: HttpClient, vehicleId: number, logId: number) {

@@ -56,26 +56,10 @@ afterAll(async () => {
   await testbed.close();
 });
 
-/** The vehicle page's plain multipart upload (csrf field first); resolves with the new log's id. */
+/** The vehicle page's plain upload (csrf from a fresh page load); resolves with the new log's id. */
 async function upload(name: string, content: string): Promise<number> {
   await technician.get(`/vehicles/${vehicleId}`);
-  const body = new FormData();
-  body.set("csrf", technician.csrf);
-  body.set("intent", "upload");
-  body.set("condition", "idle-neutral");
-  body.append("file", new Blob([content], { type: "text/csv" }), name);
-  const r = await fetch(`${server.url}/vehicles/${vehicleId}`, {
-    method: "POST",
-    redirect: "manual",
-    headers: {
-      Cookie: [...technician.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
-      "X-Forwarded-For": technician.ip,
-      Origin: server.url,
-    },
-    body,
-  });
-  expect(r.status).toBe(302);
-  return Number(new URL(r.headers.get("location")!, server.url).searchParams.get("uploaded"));
+  return technician.uploadDriveLog(vehicleId, name, content);
 }
 
 async function finished(id: number): Promise<"done" | "failed"> {

@@ -63,27 +63,9 @@ async function as(t: TestTeam, role: "engineer" | "technician" | "viewer") {
   return client;
 }
 
-/** The multipart upload a browser without JavaScript sends (csrf field first). */
-async function upload(client: HttpClient, name: string, csv: string) {
-  const body = new FormData();
-  body.set("csrf", client.csrf);
-  body.set("intent", "upload");
-  body.set("condition", "idle-neutral");
-  body.append("file", new Blob([csv], { type: "text/csv" }), name);
-  const response = await fetch(server.url + path, {
-    method: "POST",
-    redirect: "manual",
-    headers: {
-      Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
-      "X-Forwarded-For": client.ip,
-      Origin: server.url,
-    },
-    body,
-  });
-  expect(response.status).toBe(302);
-  return Number(
-    new URL(response.headers.get("location")!, server.url).searchParams.get("uploaded"),
-  );
+/** The vehicle page's plain upload (HttpClient.uploadDriveLog); resolves with the new log's id. */
+function upload(client: HttpClient, name: string, csv: string) {
+  return client.uploadDriveLog(vehicleId, name, csv);
 }
 
 async function waitForLog(client: HttpClient, id: number) {

@@ -74,6 +74,30 @@ export class HttpClient {
     return Object.assign(response, { html: (await response.text()).replaceAll("<!-- -->", "") });
   }
 
+  /**
+   * The vehicle page's upload as a browser without JavaScript sends it (multipart, csrf field
+   * first): one drive log file, test condition idle-neutral unless given. Expects the redirect
+   * and resolves with the new drive log's id.
+   */
+  async uploadDriveLog(vehicleId: number, name: string, csv: string, condition = "idle-neutral") {
+    const body = new FormData();
+    body.set("csrf", this.csrf);
+    body.set("intent", "upload");
+    body.set("condition", condition);
+    body.append("file", new Blob([csv], { type: "text/csv" }), name);
+    const response = await fetch(`${this.base}/vehicles/${vehicleId}`, {
+      method: "POST",
+      redirect: "manual",
+      headers: this.headers({ Origin: this.base }),
+      body,
+    });
+    this.keep(response);
+    const location = response.headers.get("location");
+    if (response.status !== 302 || !location)
+      throw new Error(`upload of ${name} answered ${response.status}: ${await response.text()}`);
+    return Number(new URL(location, this.base).searchParams.get("uploaded"));
+  }
+
   /** GET /sign-in for the cookie and token, then posts the credentials. */
   async signIn(email: string, password: string) {
     await this.get("/sign-in");
