@@ -121,3 +121,16 @@ function shutdown(signal: string) {
 }
 process.on("SIGINT", () => shutdown("SIGINT"));
 process.on("SIGTERM", () => shutdown("SIGTERM"));
+
+// Last resort: an error that escapes one request (a stream error without a listener, a promise
+// nobody awaits) must not end the process for everyone else. Continuing is acceptable here
+// because requests share no in-memory state that such an error could leave half-changed, and
+// analysis jobs live in the database (a job whose worker died is claimed again). One line, the
+// error's name and message only: no request data, no settings. Shutdown stays with the signals.
+function keepServing(kind: string, error: unknown) {
+  const e = error instanceof Error ? error : new Error(String(error));
+  const code = (e as NodeJS.ErrnoException).code;
+  console.error(`${kind} (kept serving): ${e.name}${code ? ` ${code}` : ""}: ${e.message}`);
+}
+process.on("uncaughtException", (error) => keepServing("Uncaught exception", error));
+process.on("unhandledRejection", (reason) => keepServing("Unhandled rejection", reason));

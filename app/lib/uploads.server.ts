@@ -5,6 +5,7 @@
  */
 import busboy from "busboy";
 import { Readable, Transform } from "node:stream";
+import { pipeline } from "node:stream/promises";
 import type { ReadableStream as NodeReadableStream } from "node:stream/web";
 import { BlobTooLargeError, formatBytes, type BlobStore, type StoredBlob } from "./storage.server";
 
@@ -64,7 +65,9 @@ export async function receiveUpload(
     limits: { fileSize: options.maxBytes + 1, files: maxFiles, fields: 100, fieldSize: 64 * 1024 },
   });
   const fields: Record<string, string> = {};
-  const puts: Promise<ReceivedFile | UploadError>[] = [];
+  // Every put settles to a value, never a rejection: a failure that arrives while the request
+  // is still streaming would otherwise be an unhandled rejection (Promise.all comes later).
+  const puts: Promise<ReceivedFile | UploadError | { failed: unknown }>[] = [];
   let tooManyFiles = false;
 
   parser.on("field", (name, value) => {
@@ -79,6 +82,8 @@ export async function receiveUpload(
       return;
     }
     const checked = file.pipe(textCheck(fileName));
+    // A cut-off request destroys the part (busboy) → the check → the store's write, which
+    // removes its partial file.
     file.on("error", (e) => checked.destroy(e));
     puts.push(
       options.store.put(checked, { maxBytes: options.maxBytes }).then(
@@ -101,23 +106,41 @@ export async function receiveUpload(
             );
           }
           if (error instanceof UploadError) return error;
-          throw error;
+          const code = (error as NodeJS.ErrnoException | undefined)?.code;
+          if (code === "ENOSPC" || code === "EDQUOT") {
+            return new UploadError(
+              507,
+              "storage_full",
+              `The server's storage is full: ${fileName} was not saved. Ask an admin to free space, then upload it again.`,
+            );
+          }
+          return { failed: error };
         },
       ),
     );
   });
 
-  const finished = new Promise<void>((resolve, reject) => {
-    parser.on("close", resolve);
-    parser.on("error", (e: Error) =>
-      reject(new UploadError(400, "bad_upload", `The upload could not be read (${e.message}).`)),
-    );
-  });
-  Readable.fromWeb(request.body as unknown as NodeReadableStream).pipe(parser);
-  await finished;
+  // pipeline, not pipe: an error on the request body (the client went away mid-upload) reaches
+  // the parser instead of being an unhandled 'error' event that ends the process.
+  const body = Readable.fromWeb(request.body as unknown as NodeReadableStream);
+  let cutOff = false;
+  body.once("error", () => (cutOff = true));
+  let parseError: Error | undefined;
+  await pipeline(body, parser).catch((e: Error) => (parseError = e));
+  // Wait for every store write to settle (partial files removed) before answering.
   const results = await Promise.all(puts);
+  if (cutOff)
+    throw new UploadError(400, "upload_cut_off", "The upload was cut off: send it again.");
+  if (parseError)
+    throw new UploadError(
+      400,
+      "bad_upload",
+      `The upload could not be read (${parseError.message}).`,
+    );
   const refused = results.find((r): r is UploadError => r instanceof UploadError);
   if (refused) throw refused;
+  const failed = results.find((r): r is { failed: unknown } => "failed" in r);
+  if (failed) throw failed.failed;
   if (tooManyFiles)
     throw new UploadError(413, "too_many_files", `At most ${maxFiles} files at once.`);
   return { fields, files: results as ReceivedFile[] };
