@@ -5,7 +5,7 @@ import { users } from "~/db/schema";
 import { audit } from "./audit.server";
 import { db } from "./db.server";
 import { verifyPassword } from "./password.server";
-import { clearFailures, isThrottled, recordFailure } from "./throttle.server";
+import { clearFailures, reserveAttempt } from "./throttle.server";
 import { emailField, passwordField } from "./validation";
 
 export interface SignedInUser {
@@ -35,7 +35,8 @@ function passwordAuthenticator(ip: string) {
     new FormStrategy(async ({ form }) => {
       const email = emailField.parse(form.get("email"));
       const password = passwordField.parse(form.get("password"));
-      if (await isThrottled(email, ip)) {
+      // The attempt is recorded before the password is checked (throttle.server.ts).
+      if (!(await reserveAttempt(email, ip))) {
         await audit({ teamId: null, actor: { id: null, email }, action: "sign-in-throttled", ip });
         throw new SignInRefused("throttled");
       }
@@ -45,7 +46,6 @@ function passwordAuthenticator(ip: string) {
         .where(eq(users.email, email));
       // verifyPassword(null, …) spends the same time, so timing does not tell either.
       if (!(await verifyPassword(user?.passwordHash ?? null, password)) || !user) {
-        await recordFailure(email, ip);
         await audit({
           teamId: null,
           actor: { id: user?.id ?? null, email },

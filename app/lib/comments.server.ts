@@ -219,6 +219,8 @@ export function commentData(teamId: number) {
       });
       for (const m of mentioned) {
         await sendMail({
+          kind: "mention",
+          teamId,
           to: m.email,
           subject: `${input.author.name} mentioned you in a comment on Twistlog`,
           text: [

@@ -44,6 +44,9 @@ export interface StoredMail {
   subject: string;
   date: Date | null;
   text: string;
+  /** From the app's own headers (mail.server.ts); null on a message without them. */
+  kind: string | null;
+  teamId: number | null;
 }
 
 /** The newest `limit` stored messages, newest first; an absent folder is an empty outbox. */
@@ -67,7 +70,13 @@ export async function readStoredMail(dir: string, limit = 50): Promise<StoredMai
         subject: parsed.subject ?? "(no subject)",
         date: parsed.date ?? null,
         text: parsed.text ?? "",
+        kind: headerText(parsed.headers.get("x-twistlog-kind")),
+        teamId: Number(headerText(parsed.headers.get("x-twistlog-team"))) || null,
       };
     }),
   );
+}
+
+function headerText(value: unknown): string | null {
+  return typeof value === "string" ? value : null;
 }

@@ -52,6 +52,8 @@ export async function inviteToTeam(input: {
   });
   const link = `${input.origin}/invitations/${token}`;
   await sendMail({
+    kind: "invitation",
+    teamId: input.teamId,
     to: input.email,
     subject: `You are invited to ${input.teamName} on Twistlog`,
     text: [

@@ -20,15 +20,29 @@ function createTransport() {
 
 let transport: ReturnType<typeof createTransport> | undefined;
 
+/** What a message is, for the outbox: a reset link belongs to its addressee alone. */
+export type MailKind = "invitation" | "share" | "mention" | "reset";
+
 export interface Mail {
   to: string;
   subject: string;
   text: string;
+  kind: MailKind;
+  /** The team that sent it (null for a password reset, which belongs to no team). */
+  teamId: number | null;
 }
 
-export async function sendMail(mail: Mail): Promise<void> {
+/** Headers the fake SMTP server keeps, so the outbox shows each team only its own mail. */
+export const MAIL_KIND_HEADER = "x-twistlog-kind";
+export const MAIL_TEAM_HEADER = "x-twistlog-team";
+
+export async function sendMail({ kind, teamId, ...mail }: Mail): Promise<void> {
   transport ??= createTransport();
-  await transport.sendMail({ from: getEnv().MAIL_FROM, ...mail });
+  // Only the local fake gets the labels: a real provider's recipients need no internal ids.
+  const headers = usingFakeMail()
+    ? { [MAIL_KIND_HEADER]: kind, [MAIL_TEAM_HEADER]: teamId === null ? "none" : String(teamId) }
+    : undefined;
+  await transport.sendMail({ from: getEnv().MAIL_FROM, ...mail, headers });
 }
 
 /** True when mail goes to the local fake, so the outbox page may show it. */

@@ -22,6 +22,8 @@ export async function requestPasswordReset(email: string, origin: string): Promi
     expiresAt: new Date(Date.now() + RESET_MINUTES * 60_000),
   });
   await sendMail({
+    kind: "reset",
+    teamId: null,
     to: email,
     subject: "Reset your Twistlog password",
     text: [

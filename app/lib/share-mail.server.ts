@@ -64,6 +64,8 @@ export async function emailShare(input: {
 
   for (const to of toMembers) {
     await sendMail({
+      kind: "share",
+      teamId: input.teamId,
       to,
       subject: subjectLine,
       text: [
@@ -76,6 +78,8 @@ export async function emailShare(input: {
   }
   for (const to of toGuests) {
     await sendMail({
+      kind: "share",
+      teamId: input.teamId,
       to,
       subject: subjectLine,
       text: [

@@ -13,23 +13,32 @@ export const THROTTLE = { perAccount: 5, perAddress: 20, windowMinutes: 15 } as 
 
 const windowStart = () => new Date(Date.now() - THROTTLE.windowMinutes * 60_000);
 
-/** True when this e-mail or this address has used up its failures in the window. */
-export async function isThrottled(email: string, ip: string): Promise<boolean> {
+/**
+ * Records this attempt as a failure first, then counts it with every other in the window, and
+ * returns false (removing its row again) when that is over a limit. Counting after the insert
+ * makes parallel attempts safe: whichever of them counts last sees all the others' rows, so at
+ * most `perAccount` attempts per address get their password checked. A right password then
+ * clears the rows (clearFailures); a wrong one leaves its row as the recorded failure.
+ */
+export async function reserveAttempt(email: string, ip: string): Promise<boolean> {
+  const [row] = await db
+    .insert(signInFailures)
+    .values({ email: email.slice(0, 254), ip })
+    .$returningId();
   const since = windowStart();
   const [byAccount] = await db
     .select({ n: count() })
     .from(signInFailures)
-    .where(and(eq(signInFailures.email, email), gt(signInFailures.createdAt, since)));
-  if ((byAccount?.n ?? 0) >= THROTTLE.perAccount) return true;
+    .where(and(eq(signInFailures.email, email.slice(0, 254)), gt(signInFailures.createdAt, since)));
   const [byAddress] = await db
     .select({ n: count() })
     .from(signInFailures)
     .where(and(eq(signInFailures.ip, ip), gt(signInFailures.createdAt, since)));
-  return (byAddress?.n ?? 0) >= THROTTLE.perAddress;
-}
-
-export async function recordFailure(email: string, ip: string): Promise<void> {
-  await db.insert(signInFailures).values({ email: email.slice(0, 254), ip });
+  const allowed =
+    (byAccount?.n ?? 0) <= THROTTLE.perAccount && (byAddress?.n ?? 0) <= THROTTLE.perAddress;
+  // A refused attempt is not a checked guess: it does not lengthen the lock.
+  if (!allowed && row) await db.delete(signInFailures).where(eq(signInFailures.id, row.id));
+  return allowed;
 }
 
 /** After a successful sign-in or a password reset the account's count starts again. */

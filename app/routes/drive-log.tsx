@@ -137,6 +137,13 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (intent === "map") {
     // Fixing the columns of an upload is the technician's own job (docs/architecture.md §2).
     const { vehicles, vehicle, log } = await load(request, params, "technician");
+    // Only the page's offer may be taken: a log that failed over its columns. Otherwise a post
+    // would overwrite the vehicle's remembered columns from a log that read fine.
+    invariantResponse(
+      log.status === "failed" && log.error && canChooseColumns(log.error),
+      "The columns can be chosen only for a drive log that could not be read because of its columns; this one is not in that state, so nothing was changed.",
+      { status: 409 },
+    );
     const submission = parseWithZod(form, { schema: mappingSchema });
     if (submission.status !== "success") return data({ map: submission.reply() }, { status: 400 });
     const { intent: _, ...mapping } = submission.value;

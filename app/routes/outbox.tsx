@@ -1,9 +1,10 @@
 import { useLoaderData } from "react-router";
 import { EmptyState, PageHeader, When } from "~/components/page";
 import { getEnv } from "~/lib/env.server";
-import { readStoredMail } from "~/lib/fake-smtp.server";
+import { readStoredMail, type StoredMail } from "~/lib/fake-smtp.server";
 import { usingFakeMail } from "~/lib/mail.server";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
+import { teamData } from "~/lib/team-data.server";
 import type { Route } from "./+types/outbox";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 
@@ -14,13 +15,33 @@ export const meta = () => [{ title: "Outbox · Twistlog" }];
  * on a laptop nobody receives real e-mail, so invitation and reset links are read here.
  */
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireTeamRole(request, "admin");
+  const { team } = await requireTeamRole(request, "admin");
   invariantResponse(
     usingFakeMail(),
     "Mail goes to a real provider here, so there is no local outbox.",
     { status: 404 },
   );
-  return { messages: await readStoredMail(getEnv().MAIL_DIR) };
+  const members = new Set((await teamData(team.id).members()).map((m) => m.email.toLowerCase()));
+  return { messages: visibleMail(await readStoredMail(getEnv().MAIL_DIR, 500), team.id, members) };
+}
+
+const PER_PAGE = 50;
+
+/**
+ * What an admin of `teamId` may read: the mail this team sent (its invitations, shares and
+ * mentions, whoever they went to), and nothing of another team's. A password-reset link belongs
+ * to its addressee alone — showing it would let an admin take over the account — so a reset
+ * appears only when it went to a member of this team, and then without its text.
+ */
+function visibleMail(all: StoredMail[], teamId: number, members: Set<string>) {
+  return all
+    .flatMap((m) => {
+      if (m.kind === "reset") {
+        return members.has(m.to.toLowerCase()) ? [{ ...m, text: "", redacted: true }] : [];
+      }
+      return m.teamId === teamId ? [{ ...m, redacted: false }] : [];
+    })
+    .slice(0, PER_PAGE);
 }
 
 export default function Outbox() {
@@ -29,7 +50,7 @@ export default function Outbox() {
     <div className="max-w-4xl">
       <PageHeader
         title="Outbox"
-        lead="No real e-mail leaves this installation: the local mail server keeps every message here instead. Newest first."
+        lead="No real e-mail leaves this installation: the local mail server keeps the messages here instead. You see the mail this team sent; password-reset links only their addressees see. Newest first."
       />
       {messages.length === 0 ? (
         <EmptyState>
@@ -50,9 +71,16 @@ export default function Outbox() {
                 <p className="mt-1 text-xs text-neutral-500">
                   To {m.to} · <When date={m.date} />
                 </p>
-                <div className="mt-3 whitespace-pre-wrap break-words text-sm text-neutral-800">
-                  <Linkified text={m.text} />
-                </div>
+                {m.redacted ? (
+                  <p className="mt-3 text-sm text-neutral-600">
+                    A password-reset link was sent to {m.to}. Only its addressee can use it, so it
+                    is not shown here.
+                  </p>
+                ) : (
+                  <div className="mt-3 whitespace-pre-wrap break-words text-sm text-neutral-800">
+                    <Linkified text={m.text} />
+                  </div>
+                )}
               </article>
             </li>
           ))}

@@ -126,6 +126,29 @@ describe("a remembered column choice", () => {
     expect(againPage.html).toContain("used this vehicle&#x27;s remembered column choice");
   });
 
+  it("a drive log that was read fine offers no column choice: a posted one is refused and changes nothing", async () => {
+    const done = await upload("standard-2.csv", standard);
+    expect(await finished(done)).toBe("done");
+    const before = (await vehicleData(team.id).vehicle(vehicleId)).columnMapping;
+    const versions = (await vehicleData(team.id).versions(done)).length;
+    const path = `/vehicles/${vehicleId}/logs/${done}`;
+    expect((await technician.get(path)).html).not.toContain("Choose the columns");
+    // Columns that exist in the file (so only the log's state can refuse it), swapped around.
+    const posted = await technician.post(path, {
+      intent: "map",
+      timeColumn: "time [s]",
+      crankColumn: "gearbox input speed [rpm]",
+      gearboxColumn: "crank speed [rpm]",
+      crankUnit: "rpm",
+      gearboxUnit: "rpm",
+    });
+    expect(posted.status).toBe(409);
+    expect(posted.html).toContain("nothing was changed");
+    expect((await vehicleData(team.id).vehicle(vehicleId)).columnMapping).toEqual(before);
+    expect(await vehicleData(team.id).log(done)).toMatchObject({ status: "done" });
+    expect((await vehicleData(team.id).versions(done)).length).toBe(versions);
+  });
+
   it("a failed log's form starts from the columns that run really used, and says where they came from", async () => {
     // Row 5 has text in the crank column; the remembered choice (from the test above) applies.
     const bad = await upload("logger-bad.csv", oddCsv(analyticIdleCsv(idle), 5));

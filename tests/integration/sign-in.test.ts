@@ -103,6 +103,37 @@ describe("sign-in and sign-out", () => {
     expect(rows).toHaveLength(THROTTLE.perAccount);
   });
 
+  it(`lets at most ${THROTTLE.perAccount} of 40 parallel wrong passwords for one account be checked`, async () => {
+    const victim = (await createTestTeam("Race")).accounts.engineer;
+    const client = new HttpClient(server.url);
+    await client.get("/sign-in");
+    const answers = await Promise.all(
+      Array.from({ length: 40 }, (_, i) =>
+        client.post("/sign-in", { email: victim.email, password: `parallel guess ${i}` }),
+      ),
+    );
+    const checked = answers.filter((a) => a.status === 400);
+    const refused = answers.filter((a) => a.status === 429);
+    expect(checked.length + refused.length).toBe(40);
+    expect(checked.length).toBeLessThanOrEqual(THROTTLE.perAccount);
+    for (const a of checked)
+      expect(a.html).toContain("The e-mail address or the password is not right.");
+    for (const a of refused) expect(a.html).toContain("Too many failed sign-ins");
+    // The audit log and the throttle's own rows agree: each checked guess is one failure.
+    const failed = await db
+      .select({ id: auditEvents.id })
+      .from(auditEvents)
+      .where(
+        and(eq(auditEvents.action, "sign-in-failed"), eq(auditEvents.actorEmail, victim.email)),
+      );
+    expect(failed).toHaveLength(checked.length);
+    const rows = await db
+      .select()
+      .from(signInFailures)
+      .where(eq(signInFailures.email, victim.email));
+    expect(rows).toHaveLength(checked.length);
+  });
+
   it(`throttles an address after ${THROTTLE.perAddress} failures, whichever accounts it tries`, async () => {
     const client = new HttpClient(server.url);
     for (let i = 0; i < THROTTLE.perAddress; i++) {
