@@ -33,8 +33,31 @@ export async function issueCsrfToken(
   };
 }
 
-/** Throws 403 unless the form's token matches the cookie's. First thing in every action. */
+/**
+ * Throws 403 when the browser says the request came from another site's page. React Router
+ * checks the Origin of page actions itself, but not of resource routes; this makes one check
+ * for every action. No Origin header (scripts, which still need the token) passes; the app's
+ * own origin is the request's, or APP_URL's behind a proxy that rewrites the host.
+ */
+function assertSameOrigin(request: Request): void {
+  const origin = request.headers.get("Origin");
+  if (origin === null) return;
+  const appUrl = getEnv().APP_URL;
+  const own = [new URL(request.url).origin, appUrl ? new URL(appUrl).origin : null];
+  if (!own.includes(origin)) {
+    throw new Response(
+      "This form was sent from a page of another site, so nothing was changed. Open Twistlog itself and try again.",
+      { status: 403, headers: { "Content-Type": "text/plain" } },
+    );
+  }
+}
+
+/**
+ * Throws 403 unless the request comes from our own pages (Origin) and the form's token matches
+ * the cookie's. First thing in every action.
+ */
 export async function assertCsrf(request: Request, form: FormData): Promise<void> {
+  assertSameOrigin(request);
   const cookieToken: unknown = await csrfCookie.parse(request.headers.get("Cookie"));
   const formToken = form.get(CSRF_FIELD);
   if (

@@ -400,6 +400,37 @@ describe("share links: who may do what", () => {
     expect((await apiCreate(logs.a, {}, otherToken)).status).toBe(404);
   });
 
+  it("the page action refuses a post from another site's page, even with a valid token", async () => {
+    // Issue 12 §9: the resource route's action skipped the Origin check that page actions get
+    // from React Router, so a foreign Origin with a valid form token made a link (201).
+    const engineer = await as("engineer");
+    const path = `/vehicles/${vehicleId}/logs/${logs.a}/share`;
+    const before = await db.select({ id: shares.id }).from(shares);
+    const sent = engineer.post(path, { intent: "create" });
+    const foreign = new Request(sent, {
+      headers: { ...Object.fromEntries(sent.headers), Origin: "http://evil.example" },
+    });
+    const refused = await run(() =>
+      logShare.action({
+        request: foreign,
+        params: { vehicleId: String(vehicleId), logId: String(logs.a) },
+        context,
+      } as never),
+    );
+    expect(refused.status).toBe(403);
+    expect(await refused.text()).toMatch(/another site/);
+    expect(await db.select({ id: shares.id }).from(shares)).toHaveLength(before.length);
+    // The same post from the app's own page still works.
+    const own = await run(() =>
+      logShare.action({
+        request: engineer.post(path, { intent: "create" }),
+        params: { vehicleId: String(vehicleId), logId: String(logs.a) },
+        context,
+      } as never),
+    );
+    expect(own.status).toBe(201);
+  });
+
   it("engineers see the team's links but manage their own; admins manage all; all of it is audited without tokens", async () => {
     const mine = await createdToken(logs.b, { note: "engineer's" });
     const list = await run(() =>
