@@ -3,6 +3,7 @@ import { fileURLToPath } from "node:url";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { baseUrl, launchBrowser } from "./browser";
+import { apiJson, demoVehicleId, waitForDemoLogs, type DemoLog } from "./demo-logs";
 import { signIn, snap } from "./sign-in";
 
 // Details of the drive-log page's charts in Chromium against the seeded demo (the Kestrel
@@ -14,32 +15,21 @@ let browser: Browser;
 let page: Page;
 let log: { vehicleId: number; id: number; fileName: string };
 
-async function api<T>(path: string): Promise<T> {
-  const r = await page.request.get(`${baseUrl}${path}`);
-  expect(r.status(), path).toBe(200);
-  return (await r.json()) as T;
-}
-
 beforeAll(async () => {
   browser = await launchBrowser();
   page = await signIn(browser, "engineer@twistlog.test");
   await page.setViewportSize({ width: 1440, height: 900 });
-  const { vehicles } = await api<{ vehicles: { id: number; identifier: string }[] }>(
-    "/api/v1/vehicles",
+  const vehicleId = await demoVehicleId(page, "KST-D4");
+  log = await waitForDemoLogs(
+    page,
+    vehicleId,
+    (logs) => {
+      const l = logs.find((x) => x.fileName.includes("runup-3rd-full-load-damper-a"));
+      if (l?.status === "failed") throw new Error(`${l.fileName} failed to analyse`);
+      return l?.status === "done" ? { vehicleId, id: l.id, fileName: l.fileName } : undefined;
+    },
+    "the demo run-up",
   );
-  const vehicle = vehicles.find((v) => v.identifier === "KST-D4");
-  expect(vehicle, "the demo vehicle KST-D4 is seeded").toBeTruthy();
-  // The server analyses the demo drive logs after it starts: wait for the damper-A run-up.
-  for (let i = 0; i < 240 && !log; i++) {
-    const { logs } = await api<{ logs: { id: number; fileName: string; status: string }[] }>(
-      `/api/v1/vehicles/${vehicle!.id}/logs`,
-    );
-    const l = logs.find((x) => x.fileName.includes("runup-3rd-full-load-damper-a"));
-    if (l?.status === "failed") throw new Error(`${l.fileName} failed to analyse`);
-    if (l?.status === "done") log = { vehicleId: vehicle!.id, id: l.id, fileName: l.fileName };
-    else await page.waitForTimeout(1000);
-  }
-  expect(log, "the demo run-up is analysed within 4 minutes").toBeTruthy();
   await page.goto(`${baseUrl}/vehicles/${log.vehicleId}/logs/${log.id}`);
 }, 300_000);
 afterAll(async () => {
@@ -83,9 +73,9 @@ describe("keyboard use of the speed trace and the order spectrum", () => {
 
 describe("one rounding rule for the isolation range", () => {
   it("the isolation curve's text alternative, the isolation table and the drive-log table agree", async () => {
-    const result = await api<{ isolation: { rpm: number; dB: number; aboveNoise: boolean }[] }>(
-      `/api/v1/logs/${log.id}/result`,
-    );
+    const result = await apiJson<{
+      isolation: { rpm: number; dB: number; aboveNoise: boolean }[];
+    }>(page, `/api/v1/logs/${log.id}/result`);
     // Expected from the API's numbers: bins above the noise floor, 1 decimal, rounded by
     // ECMA-402 Intl.NumberFormat (half away from zero), a true minus sign (U+2212).
     const trusted = result.isolation.filter((p) => p.aboveNoise).map((p) => p.dB);
@@ -198,9 +188,7 @@ describe("target labels on the isolation curve", () => {
       .getByText(`Analysis of ${name} finished.`)
       .waitFor({ state: "attached", timeout: 90_000 });
     const vehicleId = Number(vehiclePath.split("/").pop());
-    const { logs } = await api<{ logs: { id: number; fileName: string }[] }>(
-      `/api/v1/vehicles/${vehicleId}/logs`,
-    );
+    const { logs } = await apiJson<{ logs: DemoLog[] }>(page, `/api/v1/vehicles/${vehicleId}/logs`);
     await page.goto(`${baseUrl}${vehiclePath}/logs/${logs.find((l) => l.fileName === name)!.id}`);
     await ready("isolation-curve");
     const figure = page.locator('[data-chart="isolation-curve"]');

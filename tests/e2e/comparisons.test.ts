@@ -1,6 +1,7 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { baseUrl, launchBrowser } from "./browser";
+import { demoVehicleId, waitForDemoLogs, type DemoLog } from "./demo-logs";
 import { signIn, snap } from "./sign-in";
 
 // Issue 11 §3.2 in Chromium against the seeded demo (the Kestrel programme, scripts/seed.ts):
@@ -11,41 +12,25 @@ import { signIn, snap } from "./sign-in";
 let browser: Browser;
 let page: Page;
 
-interface ApiLog {
-  id: number;
-  fileName: string;
-  status: string;
-}
 let vehicleId: number;
-let runupA: ApiLog;
-let runupB: ApiLog;
-
-async function api<T>(path: string): Promise<T> {
-  const r = await page.request.get(`${baseUrl}${path}`);
-  expect(r.status(), path).toBe(200);
-  return (await r.json()) as T;
-}
+let runupA: DemoLog;
+let runupB: DemoLog;
 
 beforeAll(async () => {
   browser = await launchBrowser();
   page = await signIn(browser, "engineer@twistlog.test");
   await page.setViewportSize({ width: 1440, height: 900 });
-  const { vehicles } = await api<{ vehicles: { id: number; identifier: string }[] }>(
-    "/api/v1/vehicles",
+  vehicleId = await demoVehicleId(page, "KST-D4");
+  [runupA, runupB] = await waitForDemoLogs(
+    page,
+    vehicleId,
+    (logs) => {
+      const a = logs.find((l) => l.fileName.includes("runup-3rd-full-load-damper-a"));
+      const b = logs.find((l) => l.fileName.includes("runup-3rd-full-load-damper-b"));
+      return a?.status === "done" && b?.status === "done" ? ([a, b] as const) : undefined;
+    },
+    "the demo run-ups",
   );
-  vehicleId = vehicles.find((v) => v.identifier === "KST-D4")!.id;
-  // The server analyses the demo drive logs after it starts: wait for the two run-ups.
-  for (let i = 0; i < 240; i++) {
-    const { logs } = await api<{ logs: ApiLog[] }>(`/api/v1/vehicles/${vehicleId}/logs`);
-    const a = logs.find((l) => l.fileName.includes("runup-3rd-full-load-damper-a"));
-    const b = logs.find((l) => l.fileName.includes("runup-3rd-full-load-damper-b"));
-    if (a?.status === "done" && b?.status === "done") {
-      [runupA, runupB] = [a, b];
-      return;
-    }
-    await page.waitForTimeout(1000);
-  }
-  throw new Error("the demo run-ups were not analysed within 4 minutes");
 });
 afterAll(async () => {
   await browser?.close();
@@ -66,7 +51,7 @@ async function reading() {
   };
 }
 
-async function compareWith(from: ApiLog, other: ApiLog) {
+async function compareWith(from: DemoLog, other: DemoLog) {
   await page.goto(`${baseUrl}/vehicles/${vehicleId}/logs/${from.id}`);
   await page.getByLabel("Compare with").selectOption(String(other.id));
   await page.getByRole("button", { name: "Compare", exact: true }).click();

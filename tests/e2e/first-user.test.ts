@@ -1,6 +1,7 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { baseUrl, launchBrowser } from "./browser";
+import { apiJson, type DemoLog } from "./demo-logs";
 import { DEMO_PASSWORD, signIn, snap } from "./sign-in";
 
 // Issue 11 in Chromium against the production server with the Kestrel demo data: forms report
@@ -11,13 +12,6 @@ import { DEMO_PASSWORD, signIn, snap } from "./sign-in";
 const tag = Date.now().toString(36).toUpperCase();
 let browser: Browser;
 let vehiclePath = "";
-interface DemoLog {
-  id: number;
-  vehicleId: number;
-  fileName: string;
-  status: string;
-  damperVariant: string;
-}
 let demoLogs: DemoLog[] = [];
 
 /** "1 engine speeds", "1 drive logs", …: a count of one with a plural noun (the nouns the app counts). */
@@ -37,17 +31,16 @@ beforeAll(async () => {
   expect(made.status()).toBe(201);
   vehiclePath = `/vehicles/${((await made.json()) as { vehicle: { id: number } }).vehicle.id}`;
   // The demo logs of both Kestrel vehicles are analysed in the background after seeding.
-  const { vehicles } = (await (await page.request.get(`${baseUrl}/api/v1/vehicles`)).json()) as {
-    vehicles: { id: number; identifier: string }[];
-  };
+  const { vehicles } = await apiJson<{ vehicles: { id: number; identifier: string }[] }>(
+    page,
+    "/api/v1/vehicles",
+  );
   const demo = vehicles.filter((v) => v.identifier.startsWith("KST-"));
   expect(demo.length).toBeGreaterThan(0);
   for (let i = 0; i < 300; i++) {
     demoLogs = [];
     for (const v of demo) {
-      const { logs } = (await (
-        await page.request.get(`${baseUrl}/api/v1/vehicles/${v.id}/logs`)
-      ).json()) as { logs: DemoLog[] };
+      const { logs } = await apiJson<{ logs: DemoLog[] }>(page, `/api/v1/vehicles/${v.id}/logs`);
       demoLogs.push(...logs.filter((l) => l.fileName.startsWith("kestrel-")));
     }
     if (demoLogs.length && demoLogs.every((l) => l.status === "done" || l.status === "failed"))
