@@ -307,12 +307,15 @@ export async function resolveShare(token: string | undefined): Promise<ResolvedS
 
 /** One opening of a share link: a row with the time only, and the link's counter. */
 export async function countShareView(shareId: number): Promise<void> {
+  // The share's row first: its exclusive lock queues concurrent views of one link. Inserting the
+  // view first took a shared lock on the share (the foreign key check), and two views that both
+  // held it and then wanted to update the count deadlocked (MariaDB error 1213: a 500).
   await db.transaction(async (tx) => {
-    await tx.insert(shareViews).values({ shareId });
     await tx
       .update(shares)
       .set({ viewCount: sql`${shares.viewCount} + 1`, lastViewedAt: new Date() })
       .where(eq(shares.id, shareId));
+    await tx.insert(shareViews).values({ shareId });
   });
 }
 

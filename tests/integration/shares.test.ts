@@ -337,6 +337,20 @@ describe("share links: tokens and the shared page", () => {
     )) as unknown as [{ name: string }[]];
     expect(columns.map((c) => c.name).sort()).toEqual(["id", "share_id", "viewed_at"]);
   });
+
+  it("one link opened by eight browsers at once counts eight views, none refused", async () => {
+    // Found by the authorization matrix: concurrent views of one link deadlocked (InnoDB takes
+    // a shared lock for the foreign key check, then each wanted the exclusive one).
+    const made = await createdToken();
+    const settled = await Promise.allSettled(
+      Array.from({ length: 8 }, () => shareLib.countShareView(made.id)),
+    );
+    expect(settled.filter((s) => s.status === "rejected")).toEqual([]);
+    const [row] = await db.select().from(shares).where(eq(shares.id, made.id));
+    expect(row!.viewCount).toBe(8);
+    const views = await db.select().from(shareViews).where(eq(shareViews.shareId, made.id));
+    expect(views).toHaveLength(8);
+  });
 });
 
 describe("share links: who may do what", () => {
