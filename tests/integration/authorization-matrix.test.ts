@@ -520,7 +520,10 @@ function walk(routes: { file: string; children?: unknown[] }[]): string[] {
   return routes.flatMap((r) => [r.file, ...walk((r.children ?? []) as typeof routes)]);
 }
 
-/** The form intents a route's source knows: `intent === "x"`, z.literal("x"), enum lists. */
+/**
+ * The form intents a route's source knows: `intent === "x"`, `form.get("intent") === "x"`,
+ * z.literal("x") and enum lists in its schemas, `name="intent" value="x"` in its forms.
+ */
 function intentsIn(file: string): string[] {
   const sources = [file];
   if (/(drive-log|comparison)\.share\.ts$/.test(file)) sources.push("lib/share-panel.server.ts");
@@ -528,6 +531,8 @@ function intentsIn(file: string): string[] {
   for (const s of sources) {
     const text = readFileSync(join(repoRoot, "app", s), "utf8");
     for (const m of text.matchAll(/(?<!typeof )intent\s*[!=]==\s*"([a-z-]+)"/g)) found.add(m[1]!);
+    for (const m of text.matchAll(/get\("intent"\)\s*[!=]==\s*"([a-z-]+)"/g)) found.add(m[1]!);
+    for (const m of text.matchAll(/name="intent"\s+value="([a-z-]+)"/g)) found.add(m[1]!);
     for (const m of text.matchAll(/intent: z\.literal\("([a-z-]+)"\)/g)) found.add(m[1]!);
     for (const m of text.matchAll(/intent: z\.enum\(\[([^\]]+)\]\)/g))
       for (const q of m[1]!.matchAll(/"([a-z-]+)"/g)) found.add(q[1]!);
