@@ -5,7 +5,8 @@
  * and checks the status and that no other team's data is in the answer.
  *
  * To add a route: add its file here with its requests (every method and every form intent).
- * A page's `page` and `form` requests get their React Router `.data` twin automatically.
+ * A page's `page` and `form` requests and a resource route's `json` GETs get their React Router
+ * `.data` twin automatically.
  */
 
 export const CALLERS = [
@@ -61,6 +62,7 @@ export type Way =
   | "form"
   | "form.data"
   | "json"
+  | "json.data"
   | "api-bearer"
   | "api-cookie"
   | "upload"
@@ -839,9 +841,10 @@ export function dataUrl(path: string): string {
 }
 
 /** How a caller without a session is turned away, by the way the request came. */
-function signInRefusal(way: Way, method: string): number | "redirect" | "data-redirect" {
+function signInRefusal(way: Way, method: string): Expected {
   if (way === "page" && method === "GET") return "redirect";
   if (way === "page.data") return "data-redirect";
+  if (way === "json.data") return "json-refusal";
   return 401;
 }
 
@@ -850,7 +853,8 @@ export type Expected = number | "redirect" | "data-redirect" | "json-refusal";
 /**
  * The expected answer of one cell. "redirect": 302/303 with a Location to /sign-in;
  * "data-redirect": single fetch's 202 naming /sign-in; "json-refusal": 401, or a redirect to
- * /sign-in with its Location (a resource route the browser may also open as a link).
+ * /sign-in with its Location (a resource route the browser may also open as a link), or for a
+ * `.data` request single fetch's 202 naming /sign-in.
  */
 export function expected(probe: Probe, caller: Caller): Expected {
   const own = probe.except?.[caller];
@@ -866,9 +870,13 @@ export function expected(probe: Probe, caller: Caller): Expected {
   return RANK[caller] >= RANK[a.min] ? probe.ok : 403;
 }
 
-/** The `.data` twin of a page's probe: redirects become single fetch's 202. */
+/**
+ * The `.data` twin of a page's probe or a resource route's GET (single fetch runs the same
+ * loader for `/path.data`): redirects become single fetch's 202.
+ */
 export function dataTwin(probe: Probe): Probe {
-  const way: Way = probe.way === "page" ? "page.data" : "form.data";
+  const way: Way =
+    probe.way === "page" ? "page.data" : probe.way === "json" ? "json.data" : "form.data";
   const map = (n: number) => (n === 302 ? 202 : n);
   const except =
     probe.dataExcept ??
