@@ -54,15 +54,16 @@ export async function recordUpload<T>(
   },
 ): Promise<T> {
   const received = await receiveUpload(request, options);
+  const files = received.files.filter((f) => f.field === "file");
   let kept = false;
   try {
     await options.afterReceive?.(received.fields);
-    const files = received.files.filter((f) => f.field === "file");
     if (files.length === 0)
       throw new UploadError(
         400,
         "missing_file",
         "Send the drive log in the multipart field 'file'.",
+        "Choose at least one drive log file.",
       );
     const metadata = logMetadataSchema.safeParse(received.fields);
     if (!metadata.success) {
@@ -82,8 +83,13 @@ export async function recordUpload<T>(
     kept = true;
     return result;
   } finally {
-    if (kept) keepReceived(received);
-    else await discardReceived(options.store, received);
+    // Files sent in other fields are never recorded. Discarded while the recorded ones are
+    // still held, so a copy of a recorded file's bytes cannot take that file with it.
+    const recorded = kept ? files : [];
+    await discardReceived(options.store, {
+      files: received.files.filter((f) => !recorded.includes(f)),
+    });
+    keepReceived({ files: recorded });
   }
 }
 
