@@ -352,6 +352,7 @@ describe("the storage sweep", { timeout: 60_000 }, () => {
   let oldReferenced = "";
   let oldOrphan = "";
   let freshOrphan = "";
+  let reUploaded = "";
 
   const pathOf = (key: string) => join(root, key.slice(0, 2), key.slice(2, 4), `${key}.gz`);
   const age = (path: string, ms: number) => {
@@ -375,6 +376,11 @@ describe("the storage sweep", { timeout: 60_000 }, () => {
     oldReferenced = referenced.key;
     oldOrphan = (await store.put(Readable.from([csv("sweep-orphan-old")]))).key;
     freshOrphan = (await store.put(Readable.from([csv("sweep-orphan-fresh")]))).key;
+    // Old and unreferenced, but an upload in flight has just sent the same bytes again: its
+    // put marks the file fresh, so the sweep must leave it for the drive log about to come.
+    reUploaded = (await store.put(Readable.from([csv("sweep-re-uploaded")]))).key;
+    await age(pathOf(reUploaded), 2 * hour);
+    expect((await store.put(Readable.from([csv("sweep-re-uploaded")]))).created).toBe(false);
     await age(pathOf(oldReferenced), 2 * hour);
     await age(pathOf(oldOrphan), 2 * hour);
     await mkdir(join(root, "tmp"), { recursive: true });
@@ -384,7 +390,7 @@ describe("the storage sweep", { timeout: 60_000 }, () => {
   });
   afterAll(() => rm(root, { recursive: true, force: true }));
 
-  it("removes an old unreferenced file and an old part; keeps a referenced file and fresh ones", async () => {
+  it("removes an old unreferenced file and an old part; keeps a referenced file, fresh ones and one an upload just sent again", async () => {
     const orphanBytes = (await stat(pathOf(oldOrphan))).size;
     const partBytes = (await stat(join(root, "tmp", "a1b2c3"))).size;
     const report = await sweepStorage({ store, db, graceMs: hour });
@@ -392,7 +398,9 @@ describe("the storage sweep", { timeout: 60_000 }, () => {
     expect(report).toEqual({ files: 1, fileBytes: orphanBytes, parts: 1, partBytes });
     const left = await storeContents(root);
     expect(left.files.sort()).toEqual(
-      [oldReferenced, freshOrphan].map((k) => `${k.slice(0, 2)}/${k.slice(2, 4)}/${k}.gz`).sort(),
+      [oldReferenced, freshOrphan, reUploaded]
+        .map((k) => `${k.slice(0, 2)}/${k.slice(2, 4)}/${k}.gz`)
+        .sort(),
     );
     expect(left.parts).toEqual(["d4e5f6"]);
   });
