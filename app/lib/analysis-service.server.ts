@@ -2,7 +2,8 @@ import { startJobRunner, type BeforeCommit } from "./analysis-jobs.server";
 import { describeDbError } from "./db-errors.server";
 import { db } from "./db.server";
 import { getEnv } from "./env.server";
-import { blobRoot } from "./upload-settings.server";
+import { startStorageSweep } from "./storage-sweep.server";
+import { blobRoot, blobStore, sweepGraceMs } from "./upload-settings.server";
 import { createAnalysisPool } from "./worker-pool.server";
 
 /**
@@ -27,9 +28,11 @@ export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = 
       lastAt = Date.now();
     },
   });
+  // The storage sweep runs beside the queue (app/lib/storage-sweep.server.ts).
+  const sweep = startStorageSweep({ store: blobStore(), db, graceMs: sweepGraceMs() });
   return {
     async stop() {
-      await runner.stop();
+      await Promise.all([runner.stop(), sweep.stop()]);
       await pool.destroy();
     },
   };

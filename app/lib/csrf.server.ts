@@ -39,7 +39,7 @@ export async function issueCsrfToken(
  * for every action. No Origin header (scripts, which still need the token) passes; the app's
  * own origin is the request's, or APP_URL's behind a proxy that rewrites the host.
  */
-function assertSameOrigin(request: Request): void {
+export function assertSameOrigin(request: Request): void {
   const origin = request.headers.get("Origin");
   if (origin === null) return;
   const appUrl = getEnv().APP_URL;

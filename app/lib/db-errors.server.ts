@@ -27,3 +27,33 @@ export function describeDbError(error: unknown, env: Env): string {
       return `Database error at ${where}: ${(e?.sqlMessage ?? e?.message ?? String(error)).split("\n")[0]}`;
   }
 }
+
+// Codes of a database that is down, restarting or out of reach, as opposed to a refused query.
+const unavailableCodes = new Set([
+  "ECONNREFUSED",
+  "ECONNRESET",
+  "ETIMEDOUT",
+  "EHOSTUNREACH",
+  "ENOTFOUND",
+  "EPIPE",
+  "PROTOCOL_CONNECTION_LOST",
+  "PROTOCOL_SEQUENCE_TIMEOUT",
+  "ER_SERVER_SHUTDOWN",
+  "ER_CON_COUNT_ERROR",
+  "ER_CONNECTION_KILLED",
+]);
+
+/**
+ * True when `error` (or what it wraps: Drizzle puts the driver's error in `cause`) says the
+ * database cannot be reached right now: the caller answers 503 and the request may be retried.
+ */
+export function isDbUnavailable(error: unknown): boolean {
+  let e = error as { code?: unknown; fatal?: unknown; cause?: unknown } | undefined;
+  for (let depth = 0; e && depth < 5; depth++) {
+    if (typeof e.code === "string" && unavailableCodes.has(e.code)) return true;
+    // mysql2 marks errors that end the connection itself as fatal.
+    if (e.fatal === true) return true;
+    e = e.cause as typeof e;
+  }
+  return false;
+}

@@ -41,6 +41,9 @@ const envSchema = z.object({
     .int()
     .positive()
     .default(1024 ** 3),
+  // The storage sweep removes stored files no drive log references and abandoned upload parts
+  // once untouched this long (default 1 h: far longer than recording an upload takes); 0 = off.
+  STORAGE_SWEEP_GRACE_SECONDS: z.coerce.number().int().min(0).default(3600),
 });
 
 const checkedEnv = envSchema

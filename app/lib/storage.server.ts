@@ -1,6 +1,6 @@
 import { createHash, randomBytes } from "node:crypto";
 import { createReadStream, createWriteStream, mkdirSync } from "node:fs";
-import { mkdir, rename, rm, stat } from "node:fs/promises";
+import { link, mkdir, readdir, rm, stat, utimes } from "node:fs/promises";
 import { dirname, join } from "node:path";
 import { Readable, Transform } from "node:stream";
 import { pipeline } from "node:stream/promises";
@@ -13,12 +13,35 @@ import { createGunzip, createGzip } from "node:zlib";
  * (docs/architecture.md §5, scale-out path).
  */
 export interface BlobStore {
-  /** Streams `source` into the store, compressed. Never holds the whole file in memory. */
+  /**
+   * Streams `source` into the store, compressed. Never holds the whole file in memory. A file
+   * already there is kept and marked modified now, so a sweep's grace period starts again.
+   */
   put(source: Readable, options?: { maxBytes?: number }): Promise<StoredBlob>;
   /** The raw (decompressed) bytes of a stored file. */
   read(key: string): Readable;
   has(key: string): Promise<boolean>;
-  remove(key: string): Promise<void>;
+  /**
+   * Deletes a stored file; with `ifNotModifiedAfter`, only when nothing wrote or re-put it
+   * after that moment (checked just before deleting). True when a file was removed; a missing
+   * file is no error.
+   */
+  remove(key: string, options?: { ifNotModifiedAfter?: Date }): Promise<boolean>;
+  /**
+   * Stored files (`blobs`, name = key) or parts of writes in progress or abandoned (`parts`),
+   * for the sweep. On S3 these are a listing by prefix and the open multipart uploads, both
+   * with their last-modified time.
+   */
+  list(area: "blobs" | "parts"): AsyncIterable<StoreEntry>;
+  /** Deletes a part when it was not written to after `ifNotModifiedAfter`. */
+  removePart(name: string, options: { ifNotModifiedAfter: Date }): Promise<boolean>;
+}
+
+export interface StoreEntry {
+  name: string;
+  /** Bytes on disk. */
+  bytes: number;
+  modifiedAt: Date;
 }
 
 export interface StoredBlob {
@@ -28,6 +51,10 @@ export interface StoredBlob {
   sizeBytes: number;
   /** Size on disk (gzip) in bytes. */
   storedBytes: number;
+  /** True when this put wrote the file; false when the same content was there already. */
+  created: boolean;
+  /** The stored file's last-modified time just after this put. */
+  modifiedAt: Date;
 }
 
 export class BlobTooLargeError extends Error {
@@ -74,13 +101,23 @@ export function localBlobStore(root: string): BlobStore {
         const key = hash.digest("hex");
         const target = pathOf(key);
         await mkdir(dirname(target), { recursive: true });
-        // Same content already stored: keep the existing file (rename would also be safe).
-        await rename(tmp, target);
-        const { size } = await stat(target);
-        return { key, sizeBytes, storedBytes: size };
-      } catch (error) {
+        // link, not rename: it fails when the file exists, so `created` says for sure whether
+        // this put made it (a refused upload removes only a file it made).
+        let created = true;
+        try {
+          await link(tmp, target);
+        } catch (error) {
+          if ((error as NodeJS.ErrnoException).code !== "EEXIST") throw error;
+          created = false;
+          // Same content already stored: keep it, and mark it fresh so no sweep takes it
+          // while this upload records its drive log.
+          const now = new Date();
+          await utimes(target, now, now);
+        }
+        const { size, mtime } = await stat(target);
+        return { key, sizeBytes, storedBytes: size, created, modifiedAt: mtime };
+      } finally {
         await rm(tmp, { force: true });
-        throw error;
       }
     },
 
@@ -100,10 +137,53 @@ export function localBlobStore(root: string): BlobStore {
       }
     },
 
-    async remove(key) {
-      await rm(pathOf(key), { force: true });
+    async remove(key, options = {}) {
+      return removeIfOld(pathOf(key), options.ifNotModifiedAfter);
+    },
+
+    async *list(area) {
+      if (area === "parts") {
+        for (const name of await readdir(tmpDir)) {
+          const entry = await entryOf(join(tmpDir, name), name);
+          if (entry) yield entry;
+        }
+        return;
+      }
+      for (const a of await readdir(root)) {
+        if (!/^[0-9a-f]{2}$/.test(a)) continue; // tmp/ and anything not ours
+        for (const b of await readdir(join(root, a)).catch(() => [])) {
+          for (const file of await readdir(join(root, a, b)).catch(() => [])) {
+            const key = file.replace(/\.gz$/, "");
+            if (!keyPattern.test(key) || pathOf(key) !== join(root, a, b, file)) continue;
+            const entry = await entryOf(join(root, a, b, file), key);
+            if (entry) yield entry;
+          }
+        }
+      }
+    },
+
+    async removePart(name, options) {
+      if (!/^[0-9a-f]+$/.test(name)) throw new Error(`not a part name: ${name}`);
+      return removeIfOld(join(tmpDir, name), options.ifNotModifiedAfter);
     },
   };
+}
+
+async function entryOf(path: string, name: string): Promise<StoreEntry | null> {
+  try {
+    const { size, mtime } = await stat(path);
+    return { name, bytes: size, modifiedAt: mtime };
+  } catch {
+    return null; // removed meanwhile
+  }
+}
+
+/** rm, or with `limit` only when the file was last modified at or before it. */
+async function removeIfOld(path: string, limit: Date | undefined): Promise<boolean> {
+  const found = await stat(path).catch(() => null);
+  if (!found || (limit && found.mtime.getTime() > limit.getTime())) return false;
+  await rm(path, { force: true });
+  return true;
 }
 
 export function formatBytes(bytes: number): string {

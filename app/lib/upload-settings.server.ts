@@ -16,3 +16,8 @@ export function blobStore(): BlobStore {
 export function uploadMaxBytes(): number {
   return getEnv().UPLOAD_MAX_BYTES;
 }
+
+/** How long an unreferenced stored file or upload part is left alone (0: never swept). */
+export function sweepGraceMs(): number {
+  return getEnv().STORAGE_SWEEP_GRACE_SECONDS * 1000;
+}

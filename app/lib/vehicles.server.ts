@@ -138,6 +138,60 @@ export function vehicleData(teamId: number) {
     };
   }
 
+  /**
+   * addLog for several files with the same test details, all in one transaction: a failure
+   * (the database went away) records none of them, so the upload can simply be sent again.
+   */
+  async function addLogs(args: {
+    vehicle: Vehicle;
+    files: { fileName: string; stored: StoredBlob }[];
+    metadata: LogMetadata;
+    uploadedBy: number | null;
+  }): Promise<{ id: number; duplicateOf: number | null }[]> {
+    const { vehicle: v, metadata } = args;
+    return db.transaction(async (tx) => {
+      const added = [];
+      for (const { fileName, stored } of args.files) {
+        const [earlier] = await tx
+          .select({ id: driveLogs.id })
+          .from(driveLogs)
+          .where(
+            and(
+              eq(driveLogs.vehicleId, v.id),
+              eq(driveLogs.teamId, teamId),
+              eq(driveLogs.blobKey, stored.key),
+            ),
+          )
+          .orderBy(asc(driveLogs.id))
+          .limit(1);
+        const [row] = await tx
+          .insert(driveLogs)
+          .values({
+            teamId,
+            vehicleId: v.id,
+            fileName: fileName.slice(0, 255),
+            blobKey: stored.key,
+            sizeBytes: stored.sizeBytes,
+            condition: metadata.condition,
+            gear: metadata.gear ?? null,
+            damperVariant: metadata.damperVariant ?? v.damperVariant,
+            testDate: metadata.testDate ?? null,
+            notes: metadata.notes,
+            uploadedBy: args.uploadedBy,
+          })
+          .$returningId();
+        const id = row!.id;
+        await enqueueAnalysis(tx, {
+          teamId,
+          driveLogId: id,
+          settings: jobSettingsFor(v, null),
+        });
+        added.push({ id, duplicateOf: earlier?.id ?? null });
+      }
+      return added;
+    });
+  }
+
   return {
     teamId,
     vehicle,
@@ -260,45 +314,12 @@ export function vehicleData(teamId: number) {
       metadata: LogMetadata;
       uploadedBy: number | null;
     }): Promise<{ id: number; duplicateOf: number | null }> {
-      const { vehicle: v, stored, metadata } = args;
-      return db.transaction(async (tx) => {
-        const [earlier] = await tx
-          .select({ id: driveLogs.id })
-          .from(driveLogs)
-          .where(
-            and(
-              eq(driveLogs.vehicleId, v.id),
-              eq(driveLogs.teamId, teamId),
-              eq(driveLogs.blobKey, stored.key),
-            ),
-          )
-          .orderBy(asc(driveLogs.id))
-          .limit(1);
-        const [row] = await tx
-          .insert(driveLogs)
-          .values({
-            teamId,
-            vehicleId: v.id,
-            fileName: args.fileName.slice(0, 255),
-            blobKey: stored.key,
-            sizeBytes: stored.sizeBytes,
-            condition: metadata.condition,
-            gear: metadata.gear ?? null,
-            damperVariant: metadata.damperVariant ?? v.damperVariant,
-            testDate: metadata.testDate ?? null,
-            notes: metadata.notes,
-            uploadedBy: args.uploadedBy,
-          })
-          .$returningId();
-        const id = row!.id;
-        await enqueueAnalysis(tx, {
-          teamId,
-          driveLogId: id,
-          settings: jobSettingsFor(v, null),
-        });
-        return { id, duplicateOf: earlier?.id ?? null };
-      });
+      const { fileName, stored, ...rest } = args;
+      const [added] = await addLogs({ ...rest, files: [{ fileName, stored }] });
+      return added!;
     },
+
+    addLogs,
 
     /**
      * Queues a new analysis version of a drive log (the older ones are kept). Without a new

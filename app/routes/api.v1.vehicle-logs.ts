@@ -3,8 +3,7 @@ import { logJson } from "~/lib/api-json.server";
 import { apiError } from "~/lib/api.server";
 import { idParam } from "~/lib/params";
 import { blobStore, uploadMaxBytes } from "~/lib/upload-settings.server";
-import { discardBody, receiveUpload, UploadError } from "~/lib/uploads.server";
-import { logMetadataSchema } from "~/lib/vehicle-schema";
+import { discardBody, recordUpload, UploadError } from "~/lib/uploads.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import type { Route } from "./+types/api.v1.vehicle-logs";
 
@@ -43,39 +42,21 @@ export const action = apiRoute(async ({ request, params }: Route.ActionArgs) => 
     );
   }
 
-  let upload;
+  let added;
   try {
-    upload = await receiveUpload(request, {
+    [added] = await recordUpload(request, {
       store: blobStore(),
       maxBytes: uploadMaxBytes(),
       maxFiles: 1,
+      record: (files, metadata) => data.addLogs({ vehicle, files, metadata, uploadedBy: userId }),
     });
   } catch (error) {
     if (error instanceof UploadError) return apiError(error.status, error.code, error.message);
     throw error;
   }
-  const file = upload.files.find((f) => f.field === "file");
-  if (!file)
-    return apiError(400, "missing_file", "Send the drive log in the multipart field 'file'.");
-  const metadata = logMetadataSchema.safeParse(upload.fields);
-  if (!metadata.success) {
-    const issue = metadata.error.issues[0];
-    return apiError(
-      400,
-      "invalid_metadata",
-      `${issue?.path.join(".") ?? "field"}: ${issue?.message ?? "invalid"}`,
-    );
-  }
-  const added = await data.addLog({
-    vehicle,
-    fileName: file.fileName,
-    stored: file.stored,
-    metadata: metadata.data,
-    uploadedBy: userId,
-  });
-  const log = await data.log(added.id);
+  const log = await data.log(added!.id);
   return Response.json(
-    { log: { ...logJson(log), duplicateOf: added.duplicateOf } },
+    { log: { ...logJson(log), duplicateOf: added!.duplicateOf } },
     { status: 202, headers: { ...noStore, Location: `/api/v1/logs/${log.id}` } },
   );
 });

@@ -1,19 +1,21 @@
 import { data, redirect } from "react-router";
-import { assertCsrf } from "~/lib/csrf.server";
+import { assertCsrf, assertSameOrigin, CSRF_FIELD } from "~/lib/csrf.server";
 import { idParam } from "~/lib/params";
 import { requireTeamRole } from "~/lib/permissions.server";
 import { blobStore, uploadMaxBytes } from "~/lib/upload-settings.server";
-import { discardBody, receiveUpload, UploadError } from "~/lib/uploads.server";
-import { logMetadataSchema } from "~/lib/vehicle-schema";
+import { discardBody, recordUpload, UploadError } from "~/lib/uploads.server";
 import { vehicleData } from "~/lib/vehicles.server";
 
 /**
- * The form upload without JavaScript: streams every file to storage (receiveUpload), then
- * checks the CSRF token that came with it, then records one drive log per file.
+ * The form upload without JavaScript: streams every file to storage and records one drive log
+ * per file (recordUpload, shared with the API). The form's CSRF token comes before its file
+ * input, so a wrong token is refused before anything is stored; a token sent after the files
+ * is checked once they are in, and a refusal removes them.
  */
 export async function uploadFromForm(request: Request, vehicleIdParam: string | undefined) {
   let teamId: number, userId: number, vehicle;
   try {
+    assertSameOrigin(request); // another site's page: refused before the body is read
     const current = await requireTeamRole(request, "technician");
     teamId = current.team.id;
     userId = current.user.id;
@@ -29,42 +31,32 @@ export async function uploadFromForm(request: Request, vehicleIdParam: string | 
       { status: 409 },
     );
   }
-  let received;
+  const checkToken = (fields: Record<string, string>) => {
+    const form = new FormData();
+    for (const [k, v] of Object.entries(fields)) form.set(k, v);
+    return assertCsrf(request, form);
+  };
+  let added;
   try {
-    received = await receiveUpload(request, {
+    added = await recordUpload(request, {
       store: blobStore(),
       maxBytes: uploadMaxBytes(),
       maxFiles: 20,
+      beforeFirstFile: async (fields) => {
+        if (fields[CSRF_FIELD] !== undefined) await checkToken(fields);
+      },
+      afterReceive: checkToken,
+      record: (files, metadata) =>
+        vehicleData(teamId).addLogs({ vehicle, files, metadata, uploadedBy: userId }),
     });
   } catch (error) {
+    // With the database away the page around the message cannot be drawn: the error page
+    // says so instead (a 503, not a bare 500).
+    if (error instanceof UploadError && error.code === "database_unavailable")
+      throw data(error.forPage, { status: 503 });
     if (error instanceof UploadError)
-      return data({ uploadError: error.message }, { status: error.status });
+      return data({ uploadError: error.forPage }, { status: error.status });
     throw error;
-  }
-  const fields = new FormData();
-  for (const [k, v] of Object.entries(received.fields)) fields.set(k, v);
-  await assertCsrf(request, fields);
-  const files = received.files.filter((f) => f.field === "file");
-  if (files.length === 0)
-    return data({ uploadError: "Choose at least one drive log file." }, { status: 400 });
-  const metadata = logMetadataSchema.safeParse(received.fields);
-  if (!metadata.success) {
-    return data(
-      { uploadError: metadata.error.issues.map((i) => i.message).join(" ") },
-      { status: 400 },
-    );
-  }
-  const vehicles = vehicleData(teamId);
-  const added = [];
-  for (const file of files) {
-    const log = await vehicles.addLog({
-      vehicle,
-      fileName: file.fileName,
-      stored: file.stored,
-      metadata: metadata.data,
-      uploadedBy: userId,
-    });
-    added.push(log);
   }
   const dup = added.filter((a) => a.duplicateOf).map((a) => `${a.id}-${a.duplicateOf}`);
   const query = new URLSearchParams({ uploaded: added.map((a) => a.id).join(",") });
