@@ -4,10 +4,10 @@
  * server, uploads the Kestrel KST-D4 run-up (damper A) and waits for its analysis, signs in
  * through the sign-in form, then lets autocannon keep 100 and then 200 connections busy for
  * LOAD_SECONDS (default 20) on the drive log's chart JSON (gzip accepted) and on its page,
- * while 10 technicians upload few-MB drive logs by API token in a loop. Prints requests/s,
- * latency percentiles, non-2xx answers, errors and timeouts (autocannon's 10 s), the server's
- * peak memory, and whether it still runs and how soon it answers /healthz again. Any error,
- * timeout, non-2xx answer, refused upload, a server that died or did not answer /healthz within
+ * while 10 technicians (LOAD_UPLOADS) upload few-MB drive logs by API token in a loop. Prints
+ * requests/s, latency percentiles, non-2xx answers, errors and timeouts (autocannon's 10 s),
+ * the server's peak memory, and whether it still runs and how soon it answers /healthz again.
+ * Any error, timeout, non-2xx answer, refused upload, a server that died or did not answer /healthz within
  * 2 minutes is a FAIL, and the bench then exits non-zero.
  */
 import { openAsBlob } from "node:fs";
@@ -24,12 +24,14 @@ import {
 } from "./bench-server.ts";
 
 const SECONDS = Number(process.env.LOAD_SECONDS ?? "20");
-const UPLOADERS = 10;
+/** LOAD_UPLOADS=0 shows what the uploads and their analyses cost the readers. */
+const UPLOADERS = Number(process.env.LOAD_UPLOADS ?? "10");
 const CONNECTIONS = [100, 200];
 /** How long the server may take to answer /healthz again once the load stops. */
 const HEALTH_WAIT_MS = 120_000;
 const DEMO_LOG = join(root, "samples/kestrel-kst-d4-runup-3rd-full-load-damper-a.csv");
 if (!(SECONDS > 0)) throw new Error("LOAD_SECONDS must be a positive number of seconds");
+if (!(UPLOADERS >= 0)) throw new Error("LOAD_UPLOADS must be 0 or more");
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
