@@ -47,7 +47,7 @@ export function benchSetup(
   return { dir, env, run };
 }
 
-/** Starts the bench's MariaDB, migrates it (and seeds the demo data when asked), builds if needed. */
+/** Starts the bench's MariaDB, migrates it (seeds the demo data when asked), builds if needed. */
 export function prepareDatabaseAndBuild({ run }: BenchSetup, { seed = false } = {}) {
   run("bash", ["scripts/mariadb.sh", "start"]);
   run(process.execPath, ["--import", "tsx", "scripts/migrate.ts"]);
@@ -63,7 +63,10 @@ export interface BenchServer {
   exited: () => string | undefined;
 }
 
-/** Starts the production server on free ports and resolves once it is serving. `nodeArgs`: e.g. --cpu-prof. */
+/**
+ * Starts the production server on free ports and resolves once it is serving. `nodeArgs` go
+ * before the script (e.g. --cpu-prof to see where a bench's time goes).
+ */
 export async function startBenchServer(
   { env }: BenchSetup,
   nodeArgs: string[] = [],

@@ -7,8 +7,8 @@
  * while 10 technicians (LOAD_UPLOADS) upload few-MB drive logs by API token in a loop. Prints
  * requests/s, latency percentiles, non-2xx answers, errors and timeouts (autocannon's 10 s),
  * the server's peak memory, and whether it still runs and how soon it answers /healthz again.
- * Any error, timeout, non-2xx answer, refused upload, a server that died or did not answer /healthz within
- * 2 minutes is a FAIL, and the bench then exits non-zero.
+ * Any error, timeout, non-2xx answer, refused upload, a server that died or did not answer
+ * /healthz within 2 minutes is a FAIL, and the bench then exits non-zero.
  */
 import { openAsBlob } from "node:fs";
 import { join } from "node:path";
