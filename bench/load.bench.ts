@@ -11,6 +11,7 @@
  * /healthz within 2 minutes is a FAIL, and the bench then exits non-zero.
  */
 import { openAsBlob } from "node:fs";
+import { availableParallelism, loadavg } from "node:os";
 import { join } from "node:path";
 import autocannon, { type Result } from "autocannon";
 import {
@@ -136,6 +137,7 @@ try {
     }
   });
 
+  const loadBefore = loadavg()[0]!.toFixed(1);
   const rows: {
     label: string;
     connections: number;
@@ -183,6 +185,10 @@ try {
   const num = (n: number, w: number, digits = 0) => n.toFixed(digits).padStart(w);
   console.log(
     `\nload: ${SECONDS} s per row on loopback, ${UPLOADERS} uploads (API, 3–5 MB CSV) running meanwhile`,
+  );
+  // Other programs on the machine take their share: the figures mean little without it.
+  console.log(
+    `  machine: ${availableParallelism()} cores, load average ${loadBefore} before the readers, ${loadavg()[0]!.toFixed(1)} after (1 min)`,
   );
   console.log(
     "  route            conns   req/s   p50 ms  p97.5 ms   p99 ms  non-2xx  errors  timeouts  peak RSS MB",
