@@ -24,10 +24,11 @@ export interface StoredAnalysis {
 
 /**
  * Parsed analysis results by analysis id. Decoding one (gunzip, JSON, schema check of the
- * order map) cost more CPU than everything else of a drive-log page request under load
- * (bench/load.bench.ts); an analysis never changes, so the parsed result is kept, frozen so no
- * request can change what the next one reads. The promise is kept, so requests that arrive
- * together decode once. At most about 1 MB each (the order map has at most 400 rows).
+ * order map; 10 ms or more for a demo run-up) with its garbage was about a third of a drive-log
+ * page request's CPU under load (bench/load.bench.ts, profiled); an analysis never changes, so
+ * the parsed result is kept, frozen so no request can change what the next one reads. The
+ * promise is kept, so requests that arrive together decode once. At most about 1 MB each (the
+ * order map has at most 400 rows).
  */
 const decoded = new Lru<number, Promise<AnalysisResult | null>>(16);
 
