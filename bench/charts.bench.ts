@@ -6,49 +6,23 @@
  * the server's answer time, median and slowest (goal: the loader under 50 ms), plus the
  * comparison page of the two damper variants.
  */
-import { execFileSync, spawn } from "node:child_process";
-import { existsSync, mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
-import { fileURLToPath } from "node:url";
-import { freePort } from "../tests/support/processes.ts";
+import {
+  benchSetup,
+  cleanUp,
+  prepareDatabaseAndBuild,
+  startBenchServer,
+  type BenchServer,
+} from "./bench-server.ts";
 
-const root = fileURLToPath(new URL("..", import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), "twistlog-charts-bench-"));
-const env = {
-  ...process.env,
-  TWISTLOG_DB_DIR: join(dir, "mariadb"),
-  DATABASE_PORT: String(Number(process.env.BENCH_DATABASE_PORT ?? "3468") + 1),
-  DATABASE_NAME: "twistlog_bench",
-  TWISTLOG_STORAGE_DIR: join(dir, "blobs"),
-  MAIL_DIR: join(dir, "mail"),
-  NODE_ENV: "production",
-  TRUST_PROXY: "loopback",
-};
-Object.assign(process.env, env);
-const run = (cmd: string, args: string[]) =>
-  execFileSync(cmd, args, { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+const setup = benchSetup("charts", 1, { TRUST_PROXY: "loopback" });
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
-let server: ReturnType<typeof spawn> | undefined;
+let server: BenchServer | undefined;
 try {
-  run("bash", ["scripts/mariadb.sh", "start"]);
-  run(process.execPath, ["--import", "tsx", "scripts/migrate.ts"]);
-  run(process.execPath, ["--import", "tsx", "scripts/seed.ts"]);
-  if (!existsSync(join(root, "build/server/index.js"))) run("npm", ["run", "-s", "build"]);
-  const port = await freePort();
-  const smtp = await freePort();
-  server = spawn(process.execPath, ["--import", "tsx", "server/index.ts"], {
-    cwd: root,
-    env: { ...env, PORT: String(port), FAKE_SMTP_PORT: String(smtp) },
-    stdio: ["ignore", "pipe", "inherit"],
-  });
-  await new Promise<void>((resolve, reject) => {
-    server!.stdout!.on("data", (d: Buffer) => d.toString().includes("is serving on") && resolve());
-    server!.on("exit", (code) => reject(new Error(`server exited with ${code}`)));
-  });
-  const base = `http://127.0.0.1:${port}`;
+  prepareDatabaseAndBuild(setup, { seed: true });
+  server = await startBenchServer(setup);
+  const { base } = server;
   const { HttpClient } = await import("../tests/support/http-client.ts");
   const { DEMO_PASSWORD } = await import("../app/db/demo-seed.server.ts");
   const client = new HttpClient(base);
@@ -121,12 +95,5 @@ try {
     "  (times are the whole HTTP request on loopback: session check, query, gunzip, JSON)",
   );
 } finally {
-  server?.kill("SIGTERM");
-  await new Promise((r) => setTimeout(r, 500));
-  try {
-    run("bash", ["scripts/mariadb.sh", "stop"]);
-  } catch {
-    // already stopped
-  }
-  rmSync(dir, { recursive: true, force: true });
+  await cleanUp(setup, server);
 }

@@ -6,43 +6,27 @@
  * It starts a MariaDB of its own in a temporary folder (port BENCH_DATABASE_PORT, default 3468)
  * and builds the app first when build/ is missing.
  */
-import { execFileSync, spawn } from "node:child_process";
-import { existsSync, mkdtempSync, openAsBlob, readFileSync, rmSync, statSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { openAsBlob, statSync } from "node:fs";
 import { join } from "node:path";
-import { fileURLToPath } from "node:url";
-import { freePort } from "../tests/support/processes.ts";
+import {
+  benchSetup,
+  cleanUp,
+  memoryOf,
+  prepareDatabaseAndBuild,
+  root,
+  startBenchServer,
+  type BenchServer,
+} from "./bench-server.ts";
 
-const root = fileURLToPath(new URL("..", import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), "twistlog-upload-bench-"));
-const env = {
-  ...process.env,
-  TWISTLOG_DB_DIR: join(dir, "mariadb"),
-  DATABASE_PORT: process.env.BENCH_DATABASE_PORT ?? "3468",
-  DATABASE_NAME: "twistlog_bench",
-  TWISTLOG_STORAGE_DIR: join(dir, "blobs"),
-  MAIL_DIR: join(dir, "mail"),
-  NODE_ENV: "production",
-};
-Object.assign(process.env, env);
-const run = (cmd: string, args: string[]) =>
-  execFileSync(cmd, args, { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+const setup = benchSetup("upload", 0);
+const { dir, run } = setup;
 
-/** Resident and peak resident memory of a process in MB (Linux /proc, VmRSS and VmHWM). */
-function memoryOf(pid: number): { rssMB: number; peakMB: number } {
-  const status = readFileSync(`/proc/${pid}/status`, "utf8");
-  const kB = (key: string) => Number(new RegExp(`${key}:\\s+(\\d+)`).exec(status)?.[1] ?? NaN);
-  return { rssMB: kB("VmRSS") / 1024, peakMB: kB("VmHWM") / 1024 };
-}
-
-let server: ReturnType<typeof spawn> | undefined;
+let server: BenchServer | undefined;
 try {
   const file = join(dir, "upload-bench.csv");
   run(process.execPath, ["--import", "tsx", join(root, "bench/drive-log.ts"), file, "670", "5000"]);
   const bytes = statSync(file).size;
-  run("bash", ["scripts/mariadb.sh", "start"]);
-  run(process.execPath, ["--import", "tsx", "scripts/migrate.ts"]);
-  if (!existsSync(join(root, "build/server/index.js"))) run("npm", ["run", "-s", "build"]);
+  prepareDatabaseAndBuild(setup);
 
   // Settings are in process.env now, so the app modules connect to the bench database.
   const { createTestTeam } = await import("../tests/support/accounts.ts");
@@ -62,20 +46,8 @@ try {
   );
   await pool.end();
 
-  const port = await freePort();
-  const smtp = await freePort();
-  // node --import tsx (not the tsx wrapper), so the pid measured is the server itself.
-  server = spawn(process.execPath, ["--import", "tsx", "server/index.ts"], {
-    cwd: root,
-    env: { ...env, PORT: String(port), FAKE_SMTP_PORT: String(smtp) },
-    stdio: ["ignore", "pipe", "inherit"],
-  });
-  await new Promise<void>((resolve, reject) => {
-    server!.stdout!.on("data", (d: Buffer) => d.toString().includes("is serving on") && resolve());
-    server!.on("exit", (code) => reject(new Error(`server exited with ${code}`)));
-  });
-  const pid = server.pid!;
-  const base = `http://127.0.0.1:${port}`;
+  server = await startBenchServer(setup);
+  const { pid, base } = server;
   const idle = memoryOf(pid);
 
   let peakDuring = idle.rssMB;
@@ -125,12 +97,5 @@ try {
   );
   console.log(`  slowest status request during analysis   ${maxRequestMs.toFixed(0)} ms`);
 } finally {
-  server?.kill("SIGTERM");
-  await new Promise((r) => setTimeout(r, 500));
-  try {
-    run("bash", ["scripts/mariadb.sh", "stop"]);
-  } catch {
-    // already stopped
-  }
-  rmSync(dir, { recursive: true, force: true });
+  await cleanUp(setup, server);
 }

@@ -6,6 +6,7 @@ import { analysisResultSchema, type AnalysisOptions, type AnalysisResult } from 
 import { enqueueAnalysis, type JobSettings } from "./analysis-jobs.server";
 import { db } from "./db.server";
 import type { AppliedMapping, IngestMapping } from "./drive-log-terms";
+import { deepFreeze, Lru } from "./lru";
 import { invariantResponse } from "./permissions.server";
 import type { StoredBlob } from "./storage.server";
 import type { LogMetadata, VehicleInput } from "./vehicle-schema";
@@ -19,6 +20,37 @@ export interface StoredAnalysis {
   version: number;
   createdAt: Date;
   result: AnalysisResult;
+}
+
+/**
+ * Parsed analysis results by analysis id. Decoding one (gunzip, JSON, schema check of the
+ * order map; 10 ms or more for a demo run-up) with its garbage was about a third of a drive-log
+ * page request's CPU under load (bench/load.bench.ts, profiled); an analysis never changes, so
+ * the parsed result is kept, frozen so no request can change what the next one reads. The
+ * promise is kept, so requests that arrive together decode once. At most about 1 MB each (the
+ * order map has at most 400 rows).
+ */
+const decoded = new Lru<number, Promise<AnalysisResult | null>>(16);
+
+function decodedResult(analysisId: number): Promise<AnalysisResult | null> {
+  const hit = decoded.get(analysisId);
+  if (hit) return hit;
+  const made = (async () => {
+    const [row] = await db
+      .select({ resultGz: analyses.resultGz, orderMapGz: analyses.orderMapGz })
+      .from(analyses)
+      .where(eq(analyses.id, analysisId));
+    if (!row) return null;
+    const parsed = analysisResultSchema.safeParse({
+      ...(JSON.parse(gunzipSync(row.resultGz).toString("utf8")) as object),
+      orderMap: JSON.parse(gunzipSync(row.orderMapGz).toString("utf8")) as unknown,
+    });
+    return parsed.success ? deepFreeze(parsed.data) : null;
+  })();
+  decoded.set(analysisId, made);
+  // A database error is not kept: the next request tries again.
+  made.catch(() => decoded.delete(analysisId));
+  return made;
 }
 
 /** The two settings of analyses.settings the version list names (besides the firing order). */
@@ -108,14 +140,10 @@ export function vehicleData(teamId: number) {
 
   /** An analysis row of this team and drive log with its result parsed; null if none or unreadable. */
   async function readAnalysis(logId: number, analysisId: number): Promise<StoredAnalysis | null> {
+    // The team and drive-log check stays a query of its own on every call; only the result,
+    // the same for everyone allowed to see it, comes from the cache.
     const [stored] = await db
-      .select({
-        id: analyses.id,
-        version: analyses.version,
-        createdAt: analyses.createdAt,
-        resultGz: analyses.resultGz,
-        orderMapGz: analyses.orderMapGz,
-      })
+      .select({ id: analyses.id, version: analyses.version, createdAt: analyses.createdAt })
       .from(analyses)
       .where(
         and(
@@ -125,17 +153,8 @@ export function vehicleData(teamId: number) {
         ),
       );
     if (!stored) return null;
-    const parsed = analysisResultSchema.safeParse({
-      ...(JSON.parse(gunzipSync(stored.resultGz).toString("utf8")) as object),
-      orderMap: JSON.parse(gunzipSync(stored.orderMapGz).toString("utf8")) as unknown,
-    });
-    if (!parsed.success) return null;
-    return {
-      id: stored.id,
-      version: stored.version,
-      createdAt: stored.createdAt,
-      result: parsed.data,
-    };
+    const result = await decodedResult(stored.id);
+    return result ? { ...stored, result } : null;
   }
 
   /**
