@@ -103,7 +103,7 @@ async function post(
   return fetch(`${server.url}/api/v1/vehicles/${vehicleId}/logs`, {
     method: "POST",
     headers,
-    body,
+    body: Buffer.from(body),
   });
 }
 
