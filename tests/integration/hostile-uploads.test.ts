@@ -16,7 +16,8 @@ import { useJobTestbed } from "../support/scratch-db";
 const testbed = await useJobTestbed("hostile");
 const { createApiToken } = await import("~/lib/api-tokens.server");
 const { pool } = await import("~/lib/db.server");
-const { createTestTeam } = await import("../support/accounts");
+const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
+const { HttpClient } = await import("../support/http-client");
 
 // Small enough that an over-size upload is quick to send, large enough for a 10 MB line.
 const UPLOAD_LIMIT = 12 * 1024 * 1024;
@@ -26,11 +27,12 @@ const seed = process.env.FAST_CHECK_SEED ? Number(process.env.FAST_CHECK_SEED) :
 const runs = (numRuns: number) => ({ numRuns, seed, endOnFailure: true });
 
 let server: Awaited<ReturnType<typeof startServer>>;
+let team: Awaited<ReturnType<typeof createTestTeam>>;
 let token = "";
 let vehicleId = 0;
 
 beforeAll(async () => {
-  const team = await createTestTeam("Hostile");
+  team = await createTestTeam("Hostile");
   server = await startServer({ ...testbed.serverEnv, UPLOAD_MAX_BYTES: String(UPLOAD_LIMIT) });
   const engineer = await createApiToken({
     userId: team.accounts.engineer.id,
@@ -197,9 +199,10 @@ async function settle(
     expect(body.error.code).toMatch(/^[a-z_]+$/);
     expect(body.error.message.trim()).not.toBe("");
     outcome = { kind: "refused", status: response.status, code: body.error.code };
-    // No orphan: nothing new in the store (blobs or tmp/), no drive-log row.
+    // No orphan: nothing new in the store (blobs or tmp/), no drive-log row. receiveUpload
+    // settles every write before it answers; the wait only covers a slow disk.
     await vi.waitFor(async () => expect(await storedFiles()).toEqual(before.files), {
-      timeout: 5_000,
+      timeout: 2_000,
       interval: 50,
     });
     expect(await logRows()).toBe(before.logs);
@@ -260,7 +263,7 @@ describe("hostile uploads through the API", { timeout: 120_000 }, () => {
         const outcome = await uploadFile(bytes);
         expect(outcome.kind).not.toBe("done");
       }),
-      runs(30),
+      runs(25),
     );
   });
 
@@ -274,7 +277,7 @@ describe("hostile uploads through the API", { timeout: 120_000 }, () => {
           expect(outcome.kind).not.toBe("done");
         },
       ),
-      runs(30),
+      runs(25),
     );
   });
 
@@ -294,7 +297,26 @@ describe("hostile uploads through the API", { timeout: 120_000 }, () => {
           expect(outcome).toEqual({ kind: "failed", code: "not_numeric" });
         },
       ),
-      runs(25),
+      runs(20),
+    );
+  });
+
+  it("a few rows spread over a long time: the analysis ends (failed), it does not run away", async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.array(fc.double({ min: 1e-3, max: 1e9, noNaN: true }), { minLength: 1, maxLength: 4 }),
+        fc.integer({ min: 100, max: 12000 }),
+        async (steps, rpm) => {
+          let t = 0;
+          const lines = ["0,800,800"];
+          for (const dt of steps) lines.push(`${(t += dt)},${rpm},${rpm}`);
+          const outcome = await uploadFile(`${HEADER}\n${lines.join("\n")}\n`);
+          // Five rows at most cannot fill one block of 8 revolutions at more than one sample
+          // per revolution, and at one or fewer there is no order to read (analyse.ts).
+          expect(outcome.kind).toBe("failed");
+        },
+      ),
+      runs(15),
     );
   });
 
@@ -324,7 +346,7 @@ describe("hostile uploads through the API", { timeout: 120_000 }, () => {
           expect(outcome.kind).not.toBe("done");
         },
       ),
-      runs(40),
+      runs(30),
     );
   });
 });
@@ -382,6 +404,12 @@ describe("named hostile uploads through the API", { timeout: 120_000 }, () => {
       name: "UTF-16 text",
       file: () => Buffer.from(`\ufeff${HEADER}\n${rows(60).join("\n")}\n`, "utf16le"),
       expected: { kind: "refused", status: 422, code: "not_text" },
+    },
+    {
+      // Sampling theorem: one sample per crank revolution or fewer resolves no order (analyse.ts).
+      name: "two rows 10^7 s apart",
+      file: () => `${HEADER}\n0,800,800\n10000000,800,800\n`,
+      expected: { kind: "failed", code: "sample_rate_too_low" },
     },
     {
       name: "CR-only line endings",
@@ -511,5 +539,108 @@ describe("named hostile uploads through the API", { timeout: 120_000 }, () => {
     await vi.waitFor(async () => expect(await storedFiles()).toEqual(before.files));
     expect(await logRows()).toBe(before.logs);
     expect((await fetch(`${server.url}/healthz`)).status).toBe(200);
+  });
+});
+
+describe("hostile uploads through the form on the vehicle page", { timeout: 120_000 }, () => {
+  let client: InstanceType<typeof HttpClient>;
+  beforeAll(async () => {
+    client = new HttpClient(server.url);
+    expect((await client.signIn(team.accounts.technician.email, TEST_PASSWORD)).status).toBe(302);
+    expect((await client.get(`/vehicles/${vehicleId}`)).status).toBe(200);
+    expect(client.csrf).not.toBe("");
+  });
+
+  async function postForm(body: Uint8Array, contentType: string): Promise<Response> {
+    return fetch(`${server.url}/vehicles/${vehicleId}`, {
+      method: "POST",
+      redirect: "manual",
+      headers: {
+        Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+        Origin: server.url,
+        "X-Forwarded-For": client.ip,
+        "Content-Type": contentType,
+      },
+      body: Buffer.from(body),
+    });
+  }
+
+  /** A redirect names the drive logs it added (?uploaded=ID,…): each must end; a 4xx leaves nothing. */
+  async function settleForm(response: Response, before: Snapshot): Promise<"refused" | "added"> {
+    await response.arrayBuffer();
+    expect(response.status).toBeLessThan(500);
+    if (response.status === 302 || response.status === 303) {
+      const ids = new URL(response.headers.get("location")!, server.url).searchParams
+        .get("uploaded")!
+        .split(",")
+        .map(Number);
+      for (const id of ids)
+        await vi.waitFor(
+          async () => {
+            const r = await fetch(`${server.url}/api/v1/logs/${id}`, {
+              headers: { Authorization: `Bearer ${token}` },
+            });
+            const { log } = (await r.json()) as { log: ApiLog };
+            expect(["done", "failed"]).toContain(log.status);
+          },
+          { timeout: 30_000, interval: 50 },
+        );
+      expect(await logRows()).toBe(before.logs + ids.length);
+      expect((await fetch(`${server.url}/healthz`)).status).toBe(200);
+      return "added";
+    }
+    expect(response.status).toBeGreaterThanOrEqual(400);
+    await vi.waitFor(async () => expect(await storedFiles()).toEqual(before.files), {
+      timeout: 2_000,
+      interval: 50,
+    });
+    expect(await logRows()).toBe(before.logs);
+    expect((await fetch(`${server.url}/healthz`)).status).toBe(200);
+    return "refused";
+  }
+
+  const formBody = (file: string | Uint8Array, csrf = client.csrf) =>
+    multipart([
+      { name: "csrf", value: csrf },
+      { name: "intent", value: "upload" },
+      { name: "condition", value: "idle-neutral" },
+      { name: "file", value: file, filename: "form.csv" },
+    ]);
+
+  it("random bytes and bodies cut anywhere: a 4xx or drive logs that end, never a 5xx", async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.uint8Array({ minLength: 1, maxLength: 2048 }),
+        fc.constantFrom(
+          `multipart/form-data; boundary=${BOUNDARY}`,
+          "multipart/form-data; boundary=not-the-one",
+        ),
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        async (bytes, contentType, cutAt) => {
+          const body = formBody(bytes);
+          const before = await snapshot();
+          const cut = cutAt > 0.8 ? body.length : Math.floor(cutAt * body.length);
+          await settleForm(await postForm(body.subarray(0, cut), contentType), before);
+        },
+      ),
+      runs(20),
+    );
+  });
+
+  it("a wrong CSRF token with a file: 403, and the file is not kept", async () => {
+    const before = await snapshot();
+    const response = await postForm(
+      formBody(fresh(), "not-the-token"),
+      `multipart/form-data; boundary=${BOUNDARY}`,
+    );
+    expect(response.status).toBe(403);
+    expect(await settleForm(response, before)).toBe("refused");
+  });
+
+  it("a multipart body without a boundary: a 4xx, not a 500", async () => {
+    const before = await snapshot();
+    expect(await settleForm(await postForm(formBody(fresh()), "multipart/form-data"), before)).toBe(
+      "refused",
+    );
   });
 });
