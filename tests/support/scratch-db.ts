@@ -19,7 +19,9 @@ export async function useScratchDatabase(label: string) {
   const name = `${env.DATABASE_NAME}_${label}_${randomBytes(3).toString("hex")}`;
   const base = connectionOptions(env);
   const admin = await mysql.createConnection({ ...base, database: undefined });
-  await admin.query(`CREATE DATABASE \`${name}\``);
+  // The character set scripts/mariadb.sh gives the real database: the server's own default
+  // (latin1 under --no-defaults) cannot store text such as U+FFFD from a file that is not UTF-8.
+  await admin.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
   await admin.end();
   await applyMigrations({ ...base, database: name });
   const previous = process.env.DATABASE_NAME;

@@ -286,6 +286,32 @@ describe("options and bad input come back as error values", () => {
     const b = analyseDriveLog(bad);
     expect(!b.ok && b.error.code).toBe("non_finite_value");
   });
+  // Sampling theorem (Shannon): order q at shaft rate f needs fs > 2·q·f; at or below one sample
+  // per crank revolution not even order 0.5 can be read.
+  const steady = (fs: number, n: number, rpm: number): DriveLog => {
+    const timeS = Float64Array.from({ length: n }, (_, i) => i / fs);
+    const speed = new Float64Array(n).fill(rpm * RAD_PER_RPM);
+    return {
+      timeS,
+      crankRadS: speed,
+      gearboxRadS: speed.slice(),
+      extra: {},
+      sampleRateHz: fs,
+      source: {} as DriveLog["source"],
+    };
+  };
+  const codeOf = (log: DriveLog) => {
+    const out = analyseDriveLog(log);
+    return out.ok ? "ok" : out.error.code;
+  };
+  it("refuses at most one sample per crank revolution, before any block is tracked", () => {
+    // 800 rpm is 13.3 rev/s: 13 Hz is below one sample per revolution, 14 Hz just above.
+    expect(codeOf(steady(13, 1300, 800))).toBe("sample_rate_too_low");
+    expect(codeOf(steady(14, 1400, 800))).not.toBe("sample_rate_too_low");
+    // Two rows 10^7 s apart at 800 rpm: 1.3·10^8 revolutions for the blocks to cover (this
+    // took minutes and gigabytes before the check).
+    expect(codeOf(steady(1e-7, 2, 800))).toBe("sample_rate_too_low");
+  });
   it("reports progress through the three stages in order", () => {
     const stages: string[] = [];
     analyseDriveLog(ok, {}, (s) => {

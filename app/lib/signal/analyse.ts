@@ -164,6 +164,15 @@ export function analyseDriveLog(
       "engine_not_running",
       "the crank speed never rises above zero; there is nothing to order-track",
     );
+  // Sampling theorem: order q at shaft rate f needs fs > 2·q·f, so at one sample per crank
+  // revolution or fewer not even order 0.5 can be read. Checked before tracking: the blocks
+  // cover every revolution however few the samples (two rows 10^7 s apart took minutes and GBs).
+  const maxRevPerS = maxRadS / (2 * Math.PI);
+  if (!(fs > maxRevPerS))
+    return fail(
+      "sample_rate_too_low",
+      `the sampling rate ${fs.toPrecision(3)} Hz is not above one sample per crank revolution (${maxRevPerS.toPrecision(3)} rev/s at ${(maxRadS * RPM_PER_RAD_S).toFixed(0)} rpm), so no engine order can be read; check the time column and its unit`,
+    );
   const grid = chooseAngleGrid({
     sampleRateHz: fs,
     maxRadS,
