@@ -134,11 +134,26 @@ export async function receiveUpload(
   if (!request.body)
     throw new UploadError(400, "empty_upload", "The upload has no body: choose a file.");
 
-  const parser = busboy({
-    headers: { "content-type": type },
-    // One byte over the limit lets the store see the overflow and say so.
-    limits: { fileSize: options.maxBytes + 1, files: maxFiles, fields: 100, fieldSize: 64 * 1024 },
-  });
+  let parser: busboy.Busboy;
+  try {
+    parser = busboy({
+      headers: { "content-type": type },
+      // One byte over the limit lets the store see the overflow and say so.
+      limits: {
+        fileSize: options.maxBytes + 1,
+        files: maxFiles,
+        fields: 100,
+        fieldSize: 64 * 1024,
+      },
+    });
+  } catch (error) {
+    // busboy throws at once on a multipart type without a boundary (RFC 2046 §5.1.1 requires one).
+    throw new UploadError(
+      400,
+      "bad_upload",
+      `The upload could not be read (${(error as Error).message}): send it as multipart/form-data with a boundary, as browsers and curl -F do.`,
+    );
+  }
   const fields: Record<string, string> = {};
   // Every file part settles to a value, never a rejection: a failure that arrives while the
   // request is still streaming would otherwise be an unhandled rejection (Promise.all comes later).
