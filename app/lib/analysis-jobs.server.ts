@@ -261,16 +261,28 @@ export function startJobRunner(options: RunnerOptions) {
   let stopped = false;
   const active = new Set<Promise<void>>();
   const stopping = new AbortController();
+  // A worker that dies before it is ready (e.g. a heap limit too small to load the pipeline)
+  // is reported by piscina as a pool 'error', not on the task, which would wait forever: the
+  // jobs waiting for a worker fail with that error instead.
+  const waiting = new Set<(error: unknown) => void>();
+  const onPoolError = (error: unknown) => waiting.forEach((fail) => fail(error));
+  options.pool.on?.("error", onPoolError);
 
   async function tick() {
     while (!stopped && running < concurrency) {
+      // The slot is taken before the claim: ticks overlap (poll, poke), and each must see the
+      // others' claims in flight, or more jobs than workers are claimed and wait in piscina's
+      // own queue, where a worker's death would strand them.
+      running++;
       const job = await claimJob(options.db, instanceId).catch((error) => {
         options.onError?.(error);
         return null;
       });
-      if (!job) return;
-      running++;
-      const work = runClaimedJob(options, instanceId, job, stopping.signal)
+      if (!job) {
+        running--;
+        return;
+      }
+      const work = runClaimedJob(options, instanceId, job, stopping.signal, waiting)
         .catch((error) => options.onError?.(error))
         .finally(() => {
           running--;
@@ -291,6 +303,7 @@ export function startJobRunner(options: RunnerOptions) {
       clearInterval(timer);
       stopping.abort();
       await Promise.allSettled([...active]);
+      options.pool.off?.("error", onPoolError);
     },
   };
 }
@@ -300,6 +313,7 @@ async function runClaimedJob(
   instanceId: string,
   claimed: ClaimedJob,
   signal: AbortSignal,
+  waiting: Set<(error: unknown) => void>,
 ) {
   const { db } = options;
   const [log] = await db
@@ -337,6 +351,9 @@ async function runClaimedJob(
   const heartbeat = setInterval(() => void beat().catch(() => {}), HEARTBEAT_MS);
 
   let outcome: AnalysisTaskOutcome;
+  const poolFailed = new AbortController();
+  const fail = (error: unknown) => poolFailed.abort(error);
+  waiting.add(fail);
   try {
     const task: AnalysisTask = {
       blobRoot: options.blobRoot,
@@ -346,22 +363,20 @@ async function runClaimedJob(
       analysis: job.settings.analysis,
       progress: channel.port1,
     };
-    outcome = await options.pool.run(task, { transferList: [channel.port1], signal });
+    outcome = await options.pool.run(task, {
+      transferList: [channel.port1],
+      signal: AbortSignal.any([signal, poolFailed.signal]),
+    });
   } catch (error) {
     if (signal.aborted) {
       // This instance is stopping: give the job back now rather than after the stale timeout.
       await releaseJob(db, job);
       return;
     }
-    outcome = {
-      ok: false,
-      error: {
-        code: "analysis_crashed",
-        message: `the analysis stopped unexpectedly (${String(error)}); please report this drive log`,
-      },
-      warnings: [],
-    };
+    const cause = poolFailed.signal.aborted ? poolFailed.signal.reason : error;
+    outcome = { ok: false, error: workerFailure(cause, options.pool), warnings: [] };
   } finally {
+    waiting.delete(fail);
     clearInterval(progressTimer);
     clearInterval(heartbeat);
     channel.port2.close();
@@ -377,4 +392,23 @@ async function runClaimedJob(
     const reason = error instanceof Error ? error.message.split("\n")[0]! : String(error);
     await retryJob(db, job, reason);
   }
+}
+
+/**
+ * What the drive log says when its worker died or threw instead of answering. Only this job
+ * fails: piscina replaces a dead worker and the runner goes on with the next job.
+ */
+export function workerFailure(error: unknown, pool: Pick<Piscina, "options">): LogError {
+  if ((error as NodeJS.ErrnoException | null)?.code === "ERR_WORKER_OUT_OF_MEMORY") {
+    const limit = pool.options.resourceLimits?.maxOldGenerationSizeMb;
+    return {
+      code: "analysis_out_of_memory",
+      message: `the analysis ran out of memory${limit ? ` (limit ${limit} MB per analysis)` : ""} and was stopped; split the file into shorter drive logs, or ask an admin to raise ANALYSIS_WORKER_MEMORY_MB`,
+    };
+  }
+  const e = error instanceof Error ? error : new Error(String(error));
+  return {
+    code: "analysis_crashed",
+    message: `the analysis stopped unexpectedly (${e.name}: ${e.message.split("\n")[0]}); please report this drive log`,
+  };
 }

@@ -12,6 +12,10 @@ import { createAnalysisPool } from "./worker-pool.server";
  */
 export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = {}) {
   const pool = createAnalysisPool();
+  // Only a worker that died before it was ready gets here (a task's own failure goes to its job).
+  pool.on("error", (error: Error) =>
+    console.error(`analysis worker could not start: ${error.name}: ${error.message}`),
+  );
   let lastMessage = "";
   let lastAt = 0;
   const runner = startJobRunner({

@@ -41,6 +41,10 @@ const envSchema = z.object({
     .int()
     .positive()
     .default(1024 ** 3),
+  // JS heap limit of each analysis worker, in MB: a drive log that needs more ends that worker
+  // (the drive log fails with a message), never the server. The pipeline needs about 16 MB of
+  // heap for any file measured (its samples live in typed arrays outside that heap).
+  ANALYSIS_WORKER_MEMORY_MB: z.coerce.number().int().min(8).max(16384).default(512),
 });
 
 const checkedEnv = envSchema
