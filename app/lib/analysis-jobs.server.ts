@@ -65,12 +65,17 @@ export interface ClaimedJob {
   driveLogId: number;
   settings: JobSettings;
   attempts: number;
+  /** This claim's own mark in `claimed_by`: a later claim of the same job replaces it. */
+  claimedBy: string;
 }
 
-/** Claims the oldest queued (or orphaned) job for `instanceId`, or returns null. */
+/**
+ * Claims the oldest queued (or orphaned) job, marking it with `claimedBy` (unique per claim), or
+ * returns null.
+ */
 export async function claimJob(
   db: Db,
-  instanceId: string,
+  claimedBy: string,
   now = new Date(),
 ): Promise<ClaimedJob | null> {
   const staleBefore = new Date(now.getTime() - STALE_AFTER_MS);
@@ -99,27 +104,44 @@ export async function claimJob(
     if (!job) return null;
     await tx
       .update(analysisJobs)
-      .set({ status: "running", claimedBy: instanceId, heartbeatAt: now })
+      .set({ status: "running", claimedBy, heartbeatAt: now })
       .where(eq(analysisJobs.id, job.id));
     await tx
       .update(driveLogs)
       .set({ status: "analysing", progress: 0, stage: "parse" })
       .where(eq(driveLogs.id, job.driveLogId));
-    return { ...job, settings: job.settings as unknown as JobSettings };
+    return { ...job, claimedBy, settings: job.settings as unknown as JobSettings };
   });
 }
 
 /** Test hook: called inside the save transaction after the rows are written, before commit. */
 export type BeforeCommit = (tx: Tx) => Promise<void>;
 
-/** Saves a finished analysis in one transaction: all rows or none (docs/architecture.md §5). */
+/**
+ * The job row, locked, if it is still this claim's: a job whose heartbeat went stale (e.g. the
+ * database was away) may have been claimed again meanwhile, and only the latest claim may write.
+ */
+async function stillOurs(tx: Tx, job: ClaimedJob): Promise<boolean> {
+  const [row] = await tx
+    .select({ status: analysisJobs.status, claimedBy: analysisJobs.claimedBy })
+    .from(analysisJobs)
+    .where(eq(analysisJobs.id, job.id))
+    .for("update");
+  return row?.status === "running" && row.claimedBy === job.claimedBy;
+}
+
+/**
+ * Saves a finished analysis in one transaction: all rows or none (docs/architecture.md §5).
+ * Returns null, writing nothing, when the job was claimed again meanwhile (one version per run).
+ */
 export async function saveAnalysis(
   db: Db,
   job: ClaimedJob,
   result: AnalysisResult,
   beforeCommit?: BeforeCommit,
-): Promise<number> {
+): Promise<number | null> {
   return db.transaction(async (tx) => {
+    if (!(await stillOurs(tx, job))) return null;
     const [{ latest }] = (await tx
       .select({ latest: sql<number>`COALESCE(MAX(${analyses.version}), 0)`.mapWith(Number) })
       .from(analyses)
@@ -184,6 +206,7 @@ export async function saveAnalysis(
 /** The drive log could not be analysed (bad file): it says why; no analysis rows are written. */
 export async function failJob(db: Db, job: ClaimedJob, error: LogError): Promise<void> {
   await db.transaction(async (tx) => {
+    if (!(await stillOurs(tx, job))) return;
     await tx
       .update(driveLogs)
       .set({ status: "failed", stage: null, error })
@@ -204,10 +227,10 @@ export async function retryJob(
   db: Db,
   job: ClaimedJob,
   reason: string,
-): Promise<"queued" | "failed"> {
+): Promise<"queued" | "failed" | "superseded"> {
   const attempts = job.attempts + 1;
   if (attempts >= MAX_ATTEMPTS) {
-    await db.update(analysisJobs).set({ attempts }).where(eq(analysisJobs.id, job.id));
+    await db.update(analysisJobs).set({ attempts }).where(ours(job));
     await failJob(
       db,
       { ...job, attempts },
@@ -218,10 +241,12 @@ export async function retryJob(
     );
     return "failed";
   }
-  await db
+  const [requeued] = await db
     .update(analysisJobs)
     .set({ status: "queued", attempts, claimedBy: null, heartbeatAt: null, lastError: reason })
-    .where(eq(analysisJobs.id, job.id));
+    .where(ours(job));
+  // The save may have committed although its answer was lost, or another claim owns the job.
+  if (requeued.affectedRows === 0) return "superseded";
   await db
     .update(driveLogs)
     .set({ status: "queued", progress: 0, stage: null })
@@ -231,15 +256,24 @@ export async function retryJob(
 
 /** Hands a claimed job back to the queue unchanged (its instance is stopping). */
 export async function releaseJob(db: Db, job: ClaimedJob): Promise<void> {
-  await db
+  const [released] = await db
     .update(analysisJobs)
     .set({ status: "queued", claimedBy: null, heartbeatAt: null })
-    .where(eq(analysisJobs.id, job.id));
+    .where(ours(job));
+  if (released.affectedRows === 0) return;
   await db
     .update(driveLogs)
     .set({ status: "queued", progress: 0, stage: null })
     .where(eq(driveLogs.id, job.driveLogId));
 }
+
+/** The job row while this claim holds it (running, with this claim's mark). */
+const ours = (job: ClaimedJob) =>
+  and(
+    eq(analysisJobs.id, job.id),
+    eq(analysisJobs.status, "running"),
+    eq(analysisJobs.claimedBy, job.claimedBy),
+  );
 
 export interface RunnerOptions {
   db: Db;
@@ -258,6 +292,7 @@ export function startJobRunner(options: RunnerOptions) {
   const concurrency = options.concurrency ?? options.pool.options.maxThreads;
   const pollMs = options.pollMs ?? 500;
   let running = 0;
+  let claims = 0;
   let stopped = false;
   const active = new Set<Promise<void>>();
   const stopping = new AbortController();
@@ -274,7 +309,7 @@ export function startJobRunner(options: RunnerOptions) {
       // others' claims in flight, or more jobs than workers are claimed and wait in piscina's
       // own queue, where a worker's death would strand them.
       running++;
-      const job = await claimJob(options.db, instanceId).catch((error) => {
+      const job = await claimJob(options.db, `${instanceId}#${++claims}`).catch((error) => {
         options.onError?.(error);
         return null;
       });
@@ -282,7 +317,7 @@ export function startJobRunner(options: RunnerOptions) {
         running--;
         return;
       }
-      const work = runClaimedJob(options, instanceId, job, stopping.signal, waiting)
+      const work = runClaimedJob(options, job, stopping.signal, waiting)
         .catch((error) => options.onError?.(error))
         .finally(() => {
           running--;
@@ -310,7 +345,6 @@ export function startJobRunner(options: RunnerOptions) {
 
 async function runClaimedJob(
   options: RunnerOptions,
-  instanceId: string,
   claimed: ClaimedJob,
   signal: AbortSignal,
   waiting: Set<(error: unknown) => void>,
@@ -336,12 +370,12 @@ async function runClaimedJob(
   let pending: { stage: string; progress: number } | null = null;
   channel.port2.on("message", (m: { stage: string; progress: number }) => (pending = m));
   const beat = async () => {
-    const now = new Date();
-    await db
+    const [beaten] = await db
       .update(analysisJobs)
-      .set({ heartbeatAt: now })
-      .where(and(eq(analysisJobs.id, job.id), eq(analysisJobs.claimedBy, instanceId)));
-    if (pending) {
+      .set({ heartbeatAt: new Date() })
+      .where(ours(job));
+    // A claim that lost the job (claimed again after its heartbeat went stale) stays quiet.
+    if (pending && beaten.affectedRows > 0) {
       const { stage, progress } = pending;
       pending = null;
       await db.update(driveLogs).set({ stage, progress }).where(eq(driveLogs.id, job.driveLogId));

@@ -3,6 +3,7 @@ import { Readable } from "node:stream";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyses, analysisJobs, driveLogs } from "~/db/schema-drive-logs";
+import { analyseSource } from "~/lib/signal";
 import { localBlobStore } from "~/lib/storage.server";
 import { vehicleSchema } from "~/lib/vehicle-schema";
 import { createAnalysisPool } from "~/lib/worker-pool.server";
@@ -12,7 +13,8 @@ import { useJobTestbed } from "../support/scratch-db";
 
 // A database and storage of its own: no other server's runner may take these jobs.
 const testbed = await useJobTestbed("workerfaults");
-const { startJobRunner } = await import("~/lib/analysis-jobs.server");
+const { claimJob, failJob, retryJob, saveAnalysis, STALE_AFTER_MS, startJobRunner } =
+  await import("~/lib/analysis-jobs.server");
 const { db, pool } = await import("~/lib/db.server");
 const { vehicleData } = await import("~/lib/vehicles.server");
 const { createApiToken } = await import("~/lib/api-tokens.server");
@@ -165,6 +167,41 @@ describe("analysis worker faults", () => {
       } finally {
         await server.stop();
       }
+    },
+  );
+
+  it(
+    "a claim that lost its job (claimed again after its heartbeat went stale) writes nothing",
+    { timeout: 120_000 },
+    async () => {
+      const logId = await addLog(csv + "\n\n\n");
+      // An instance claims it, then loses the database for longer than STALE_AFTER_MS.
+      const lost = await claimJob(db, "cut-off#1", new Date(Date.now() - 2 * STALE_AFTER_MS));
+      expect(lost?.driveLogId).toBe(logId);
+      const workers = createAnalysisPool({ maxThreads: 1 });
+      const runner = startJobRunner({ db, pool: workers, blobRoot: testbed.storage, pollMs: 50 });
+      try {
+        await settled([logId], logRow);
+      } finally {
+        await runner.stop();
+        await workers.destroy();
+      }
+      expect(await logRow(logId)).toMatchObject({ status: "done" });
+      // The cut-off instance comes back with its own finished result, or with its save's error.
+      const direct = await analyseSource({
+        source: Readable.from([csv]),
+        ingest: {},
+        analysis: {},
+      });
+      expect(direct.ok).toBe(true);
+      if (!direct.ok) return;
+      expect(await saveAnalysis(db, lost!, direct.value.result)).toBeNull();
+      expect(await retryJob(db, lost!, "connection lost")).toBe("superseded");
+      await failJob(db, lost!, { code: "save_failed", message: "connection lost" });
+      expect(await versionsOf(logId)).toBe(1);
+      expect(await logRow(logId)).toMatchObject({ status: "done", error: null });
+      const [job] = await db.select().from(analysisJobs).where(eq(analysisJobs.driveLogId, logId));
+      expect(job).toMatchObject({ status: "done", attempts: 0 });
     },
   );
 });
