@@ -298,7 +298,7 @@ export function startJobRunner(options: RunnerOptions) {
   const stopping = new AbortController();
   // A worker that dies before it is ready (e.g. a heap limit too small to load the pipeline)
   // is reported by piscina as a pool 'error', not on the task, which would wait forever: the
-  // jobs waiting for a worker fail with that error instead.
+  // jobs still waiting for a worker (none has reported progress yet) fail with that error.
   const waiting = new Set<(error: unknown) => void>();
   const onPoolError = (error: unknown) => waiting.forEach((fail) => fail(error));
   options.pool.on?.("error", onPoolError);
@@ -364,11 +364,19 @@ async function runClaimedJob(
   await db
     .update(analysisJobs)
     .set({ settings: { ...job.settings } })
-    .where(eq(analysisJobs.id, job.id));
+    .where(ours(job));
 
+  // Until its worker reports progress the task may still wait for a worker: a pool 'error'
+  // (a worker that died before it was ready) then fails it (startJobRunner).
+  const poolFailed = new AbortController();
+  const fail = (error: unknown) => poolFailed.abort(error);
+  waiting.add(fail);
   const channel = new MessageChannel();
   let pending: { stage: string; progress: number } | null = null;
-  channel.port2.on("message", (m: { stage: string; progress: number }) => (pending = m));
+  channel.port2.on("message", (m: { stage: string; progress: number }) => {
+    waiting.delete(fail);
+    pending = m;
+  });
   const beat = async () => {
     const [beaten] = await db
       .update(analysisJobs)
@@ -385,9 +393,6 @@ async function runClaimedJob(
   const heartbeat = setInterval(() => void beat().catch(() => {}), HEARTBEAT_MS);
 
   let outcome: AnalysisTaskOutcome;
-  const poolFailed = new AbortController();
-  const fail = (error: unknown) => poolFailed.abort(error);
-  waiting.add(fail);
   try {
     const task: AnalysisTask = {
       blobRoot: options.blobRoot,
