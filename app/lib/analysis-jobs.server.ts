@@ -65,12 +65,17 @@ export interface ClaimedJob {
   driveLogId: number;
   settings: JobSettings;
   attempts: number;
+  /** This claim's own mark in `claimed_by`: a later claim of the same job replaces it. */
+  claimedBy: string;
 }
 
-/** Claims the oldest queued (or orphaned) job for `instanceId`, or returns null. */
+/**
+ * Claims the oldest queued (or orphaned) job, marking it with `claimedBy` (unique per claim), or
+ * returns null.
+ */
 export async function claimJob(
   db: Db,
-  instanceId: string,
+  claimedBy: string,
   now = new Date(),
 ): Promise<ClaimedJob | null> {
   const staleBefore = new Date(now.getTime() - STALE_AFTER_MS);
@@ -99,27 +104,44 @@ export async function claimJob(
     if (!job) return null;
     await tx
       .update(analysisJobs)
-      .set({ status: "running", claimedBy: instanceId, heartbeatAt: now })
+      .set({ status: "running", claimedBy, heartbeatAt: now })
       .where(eq(analysisJobs.id, job.id));
     await tx
       .update(driveLogs)
       .set({ status: "analysing", progress: 0, stage: "parse" })
       .where(eq(driveLogs.id, job.driveLogId));
-    return { ...job, settings: job.settings as unknown as JobSettings };
+    return { ...job, claimedBy, settings: job.settings as unknown as JobSettings };
   });
 }
 
 /** Test hook: called inside the save transaction after the rows are written, before commit. */
 export type BeforeCommit = (tx: Tx) => Promise<void>;
 
-/** Saves a finished analysis in one transaction: all rows or none (docs/architecture.md §5). */
+/**
+ * The job row, locked, if it is still this claim's: a job whose heartbeat went stale (e.g. the
+ * database was away) may have been claimed again meanwhile, and only the latest claim may write.
+ */
+async function stillOurs(tx: Tx, job: ClaimedJob): Promise<boolean> {
+  const [row] = await tx
+    .select({ status: analysisJobs.status, claimedBy: analysisJobs.claimedBy })
+    .from(analysisJobs)
+    .where(eq(analysisJobs.id, job.id))
+    .for("update");
+  return row?.status === "running" && row.claimedBy === job.claimedBy;
+}
+
+/**
+ * Saves a finished analysis in one transaction: all rows or none (docs/architecture.md §5).
+ * Returns null, writing nothing, when the job was claimed again meanwhile (one version per run).
+ */
 export async function saveAnalysis(
   db: Db,
   job: ClaimedJob,
   result: AnalysisResult,
   beforeCommit?: BeforeCommit,
-): Promise<number> {
+): Promise<number | null> {
   return db.transaction(async (tx) => {
+    if (!(await stillOurs(tx, job))) return null;
     const [{ latest }] = (await tx
       .select({ latest: sql<number>`COALESCE(MAX(${analyses.version}), 0)`.mapWith(Number) })
       .from(analyses)
@@ -184,6 +206,7 @@ export async function saveAnalysis(
 /** The drive log could not be analysed (bad file): it says why; no analysis rows are written. */
 export async function failJob(db: Db, job: ClaimedJob, error: LogError): Promise<void> {
   await db.transaction(async (tx) => {
+    if (!(await stillOurs(tx, job))) return;
     await tx
       .update(driveLogs)
       .set({ status: "failed", stage: null, error })
@@ -204,10 +227,10 @@ export async function retryJob(
   db: Db,
   job: ClaimedJob,
   reason: string,
-): Promise<"queued" | "failed"> {
+): Promise<"queued" | "failed" | "superseded"> {
   const attempts = job.attempts + 1;
   if (attempts >= MAX_ATTEMPTS) {
-    await db.update(analysisJobs).set({ attempts }).where(eq(analysisJobs.id, job.id));
+    await db.update(analysisJobs).set({ attempts }).where(ours(job));
     await failJob(
       db,
       { ...job, attempts },
@@ -218,10 +241,12 @@ export async function retryJob(
     );
     return "failed";
   }
-  await db
+  const [requeued] = await db
     .update(analysisJobs)
     .set({ status: "queued", attempts, claimedBy: null, heartbeatAt: null, lastError: reason })
-    .where(eq(analysisJobs.id, job.id));
+    .where(ours(job));
+  // The save may have committed although its answer was lost, or another claim owns the job.
+  if (requeued.affectedRows === 0) return "superseded";
   await db
     .update(driveLogs)
     .set({ status: "queued", progress: 0, stage: null })
@@ -231,15 +256,24 @@ export async function retryJob(
 
 /** Hands a claimed job back to the queue unchanged (its instance is stopping). */
 export async function releaseJob(db: Db, job: ClaimedJob): Promise<void> {
-  await db
+  const [released] = await db
     .update(analysisJobs)
     .set({ status: "queued", claimedBy: null, heartbeatAt: null })
-    .where(eq(analysisJobs.id, job.id));
+    .where(ours(job));
+  if (released.affectedRows === 0) return;
   await db
     .update(driveLogs)
     .set({ status: "queued", progress: 0, stage: null })
     .where(eq(driveLogs.id, job.driveLogId));
 }
+
+/** The job row while this claim holds it (running, with this claim's mark). */
+const ours = (job: ClaimedJob) =>
+  and(
+    eq(analysisJobs.id, job.id),
+    eq(analysisJobs.status, "running"),
+    eq(analysisJobs.claimedBy, job.claimedBy),
+  );
 
 export interface RunnerOptions {
   db: Db;
@@ -258,19 +292,32 @@ export function startJobRunner(options: RunnerOptions) {
   const concurrency = options.concurrency ?? options.pool.options.maxThreads;
   const pollMs = options.pollMs ?? 500;
   let running = 0;
+  let claims = 0;
   let stopped = false;
   const active = new Set<Promise<void>>();
   const stopping = new AbortController();
+  // A worker that dies before it is ready (e.g. a heap limit too small to load the pipeline)
+  // is reported by piscina as a pool 'error', not on the task, which would wait forever: the
+  // jobs still waiting for a worker (none has reported progress yet) fail with that error.
+  const waiting = new Set<(error: unknown) => void>();
+  const onPoolError = (error: unknown) => waiting.forEach((fail) => fail(error));
+  options.pool.on?.("error", onPoolError);
 
   async function tick() {
     while (!stopped && running < concurrency) {
-      const job = await claimJob(options.db, instanceId).catch((error) => {
+      // The slot is taken before the claim: ticks overlap (poll, poke), and each must see the
+      // others' claims in flight, or more jobs than workers are claimed and wait in piscina's
+      // own queue, where a worker's death would strand them.
+      running++;
+      const job = await claimJob(options.db, `${instanceId}#${++claims}`).catch((error) => {
         options.onError?.(error);
         return null;
       });
-      if (!job) return;
-      running++;
-      const work = runClaimedJob(options, instanceId, job, stopping.signal)
+      if (!job) {
+        running--;
+        return;
+      }
+      const work = runClaimedJob(options, job, stopping.signal, waiting)
         .catch((error) => options.onError?.(error))
         .finally(() => {
           running--;
@@ -291,15 +338,16 @@ export function startJobRunner(options: RunnerOptions) {
       clearInterval(timer);
       stopping.abort();
       await Promise.allSettled([...active]);
+      options.pool.off?.("error", onPoolError);
     },
   };
 }
 
 async function runClaimedJob(
   options: RunnerOptions,
-  instanceId: string,
   claimed: ClaimedJob,
   signal: AbortSignal,
+  waiting: Set<(error: unknown) => void>,
 ) {
   const { db } = options;
   const [log] = await db
@@ -316,18 +364,26 @@ async function runClaimedJob(
   await db
     .update(analysisJobs)
     .set({ settings: { ...job.settings } })
-    .where(eq(analysisJobs.id, job.id));
+    .where(ours(job));
 
+  // Until its worker reports progress the task may still wait for a worker: a pool 'error'
+  // (a worker that died before it was ready) then fails it (startJobRunner).
+  const poolFailed = new AbortController();
+  const fail = (error: unknown) => poolFailed.abort(error);
+  waiting.add(fail);
   const channel = new MessageChannel();
   let pending: { stage: string; progress: number } | null = null;
-  channel.port2.on("message", (m: { stage: string; progress: number }) => (pending = m));
+  channel.port2.on("message", (m: { stage: string; progress: number }) => {
+    waiting.delete(fail);
+    pending = m;
+  });
   const beat = async () => {
-    const now = new Date();
-    await db
+    const [beaten] = await db
       .update(analysisJobs)
-      .set({ heartbeatAt: now })
-      .where(and(eq(analysisJobs.id, job.id), eq(analysisJobs.claimedBy, instanceId)));
-    if (pending) {
+      .set({ heartbeatAt: new Date() })
+      .where(ours(job));
+    // A claim that lost the job (claimed again after its heartbeat went stale) stays quiet.
+    if (pending && beaten.affectedRows > 0) {
       const { stage, progress } = pending;
       pending = null;
       await db.update(driveLogs).set({ stage, progress }).where(eq(driveLogs.id, job.driveLogId));
@@ -346,22 +402,20 @@ async function runClaimedJob(
       analysis: job.settings.analysis,
       progress: channel.port1,
     };
-    outcome = await options.pool.run(task, { transferList: [channel.port1], signal });
+    outcome = await options.pool.run(task, {
+      transferList: [channel.port1],
+      signal: AbortSignal.any([signal, poolFailed.signal]),
+    });
   } catch (error) {
     if (signal.aborted) {
       // This instance is stopping: give the job back now rather than after the stale timeout.
       await releaseJob(db, job);
       return;
     }
-    outcome = {
-      ok: false,
-      error: {
-        code: "analysis_crashed",
-        message: `the analysis stopped unexpectedly (${String(error)}); please report this drive log`,
-      },
-      warnings: [],
-    };
+    const cause = poolFailed.signal.aborted ? poolFailed.signal.reason : error;
+    outcome = { ok: false, error: workerFailure(cause, options.pool), warnings: [] };
   } finally {
+    waiting.delete(fail);
     clearInterval(progressTimer);
     clearInterval(heartbeat);
     channel.port2.close();
@@ -377,4 +431,23 @@ async function runClaimedJob(
     const reason = error instanceof Error ? error.message.split("\n")[0]! : String(error);
     await retryJob(db, job, reason);
   }
+}
+
+/**
+ * What the drive log says when its worker died or threw instead of answering. Only this job
+ * fails: piscina replaces a dead worker and the runner goes on with the next job.
+ */
+export function workerFailure(error: unknown, pool: Pick<Piscina, "options">): LogError {
+  if ((error as NodeJS.ErrnoException | null)?.code === "ERR_WORKER_OUT_OF_MEMORY") {
+    const limit = pool.options.resourceLimits?.maxOldGenerationSizeMb;
+    return {
+      code: "analysis_out_of_memory",
+      message: `the analysis ran out of memory${limit ? ` (limit ${limit} MB per analysis)` : ""} and was stopped; split the file into shorter drive logs, or ask an admin to raise ANALYSIS_WORKER_MEMORY_MB`,
+    };
+  }
+  const e = error instanceof Error ? error : new Error(String(error));
+  return {
+    code: "analysis_crashed",
+    message: `the analysis stopped unexpectedly (${e.name}: ${e.message.split("\n")[0]}); please report this drive log`,
+  };
 }

@@ -13,6 +13,10 @@ import { createAnalysisPool } from "./worker-pool.server";
  */
 export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = {}) {
   const pool = createAnalysisPool();
+  // Only a worker that died before it was ready gets here (a task's own failure goes to its job).
+  pool.on("error", (error: Error) =>
+    console.error(`analysis worker could not start: ${error.name}: ${error.message}`),
+  );
   let lastMessage = "";
   let lastAt = 0;
   const runner = startJobRunner({
@@ -22,7 +26,9 @@ export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = 
     beforeCommit: options.beforeCommit,
     onError(error) {
       // One line, and the same line at most once a minute (a stopped database must not flood the log).
-      const message = `analysis queue: ${describeDbError(error, getEnv())}`;
+      // Drizzle wraps the driver's error (with the SQL): the cause says what happened.
+      const cause = (error as { cause?: { code?: string } } | null)?.cause;
+      const message = `analysis queue: ${describeDbError(cause?.code ? cause : error, getEnv())}`;
       if (message !== lastMessage || Date.now() - lastAt > 60_000) console.error(message);
       lastMessage = message;
       lastAt = Date.now();

@@ -44,6 +44,10 @@ const envSchema = z.object({
   // The storage sweep removes stored files no drive log references and abandoned upload parts
   // once untouched this long (default 1 h: far longer than recording an upload takes); 0 = off.
   STORAGE_SWEEP_GRACE_SECONDS: z.coerce.number().int().min(0).default(3600),
+  // JS heap limit of each analysis worker, in MB: a drive log that needs more ends that worker
+  // (the drive log fails with a message), never the server. The pipeline needs about 16 MB of
+  // heap for any file measured (its samples live in typed arrays outside that heap).
+  ANALYSIS_WORKER_MEMORY_MB: z.coerce.number().int().min(8).max(16384).default(512),
 });
 
 const checkedEnv = envSchema

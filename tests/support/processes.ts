@@ -69,13 +69,17 @@ export async function ownMail(): Promise<{ FAKE_SMTP_PORT: string; MAIL_DIR: str
   };
 }
 
-/** Starts the production server (build/ must exist) and resolves once it prints that it is serving. */
+/**
+ * Starts the production server (build/ must exist) and resolves once it prints that it is serving.
+ * `nodeArgs` go before the entry (e.g. another `--import`); `output()` is all it printed so far.
+ */
 export async function startServer(
   env: Record<string, string>,
-): Promise<{ url: string; mailDir: string; stop: () => Promise<void> }> {
+  options: { nodeArgs?: string[] } = {},
+): Promise<{ url: string; mailDir: string; output: () => string; stop: () => Promise<void> }> {
   const port = await freePort();
   const mail = await ownMail();
-  const child = spawn(node, [...tsxArgs, "server/index.ts"], {
+  const child = spawn(node, [...tsxArgs, ...(options.nodeArgs ?? []), "server/index.ts"], {
     cwd: repoRoot,
     env: {
       ...process.env,
@@ -105,6 +109,7 @@ export async function startServer(
   return {
     url: `http://127.0.0.1:${port}`,
     mailDir: env.MAIL_DIR ?? mail.MAIL_DIR,
+    output: () => output,
     stop: () =>
       new Promise((resolve) => {
         child.once("exit", () => resolve());

@@ -1,0 +1,25 @@
+/**
+ * A stand-in analysis worker for the fault tests (never used by the app): a drive log whose
+ * first line is "# runaway" keeps allocating JS heap until the pool's real memory limit ends the
+ * worker; "# throw" throws; any other file goes to the real worker (app/workers/analysis.worker.ts).
+ */
+import analyseStoredLog, { type AnalysisTask } from "../../app/workers/analysis.worker.ts";
+import { localBlobStore } from "../../app/lib/storage.server";
+
+async function firstLine(task: AnalysisTask): Promise<string> {
+  for await (const chunk of localBlobStore(task.blobRoot).read(task.blobKey)) {
+    return String(chunk).split("\n", 1)[0]!;
+  }
+  return "";
+}
+
+export default async function faultyAnalysis(task: AnalysisTask) {
+  const line = await firstLine(task);
+  if (line === "# throw") throw new RangeError("injected: the pipeline threw on this file");
+  if (line === "# runaway") {
+    // Plain JS arrays live on the heap that maxOldGenerationSizeMb limits.
+    const hoard: number[][] = [];
+    for (;;) hoard.push(Array.from({ length: 100_000 }, (_, i) => i + hoard.length));
+  }
+  return analyseStoredLog(task);
+}
