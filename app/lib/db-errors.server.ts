@@ -27,3 +27,37 @@ export function describeDbError(error: unknown, env: Env): string {
       return `Database error at ${where}: ${(e?.sqlMessage ?? e?.message ?? String(error)).split("\n")[0]}`;
   }
 }
+
+// Codes of a database that cannot be reached right now (as opposed to a wrong query).
+const UNAVAILABLE = new Set([
+  "ECONNREFUSED",
+  "ECONNRESET",
+  "ETIMEDOUT",
+  "EHOSTUNREACH",
+  "ENOTFOUND",
+  "EPIPE",
+  "PROTOCOL_CONNECTION_LOST",
+  "PROTOCOL_SEQUENCE_TIMEOUT",
+  "ER_SERVER_SHUTDOWN",
+  "ER_CON_COUNT_ERROR",
+]);
+
+/**
+ * The connection error behind `error`, when the database is down or unreachable: drizzle
+ * wraps mysql2's errors (DrizzleQueryError, the original in `cause`), so the chain is walked.
+ */
+export function databaseUnavailable(error: unknown): { code?: string; message?: string } | null {
+  let e = error as { code?: unknown; message?: unknown; cause?: unknown } | undefined;
+  for (let depth = 0; e && typeof e === "object" && depth < 5; depth++) {
+    if (typeof e.code === "string" && UNAVAILABLE.has(e.code)) return e as { code: string };
+    // mysql2 on a connection the server already closed: no code, only this message.
+    if (typeof e.message === "string" && /connection is in closed state/i.test(e.message))
+      return { code: "PROTOCOL_CONNECTION_LOST", message: e.message };
+    e = e.cause as typeof e;
+  }
+  return null;
+}
+
+/** What a user or API caller reads while the database is unavailable (no host or port). */
+export const DATABASE_UNAVAILABLE_MESSAGE =
+  "The database is not available right now, so nothing was read or changed. Try again in a minute; if it stays, tell whoever runs Twistlog.";
