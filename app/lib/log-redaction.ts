@@ -11,7 +11,8 @@ export const REDACTED = "[redacted]";
 
 // A path separator, raw or percent-encoded (a redirectTo=%2Fs%2F… query carries it encoded).
 const SLASH = String.raw`(?:/|%2F)`;
-const SEGMENT = String.raw`[^/?#&\s"'<>\\]+`;
+// A token is base64url (app/lib/secrets.server.ts); stop at anything that is not part of one.
+const SEGMENT = String.raw`(?:(?!%2F)[A-Za-z0-9_.~%+=-])+`;
 
 const rules: Array<[RegExp, string]> = [
   // Link paths whose next segment is a secret.

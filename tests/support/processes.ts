@@ -72,7 +72,15 @@ export async function ownMail(): Promise<{ FAKE_SMTP_PORT: string; MAIL_DIR: str
 /** Starts the production server (build/ must exist) and resolves once it prints that it is serving. */
 export async function startServer(
   env: Record<string, string>,
-): Promise<{ url: string; mailDir: string; stop: () => Promise<void> }> {
+): Promise<{
+  url: string;
+  mailDir: string;
+  /** The server process's id (e.g. to read its memory from /proc). */
+  pid: number;
+  /** Everything it wrote to stdout and stderr so far. */
+  output: () => string;
+  stop: () => Promise<void>;
+}> {
   const port = await freePort();
   const mail = await ownMail();
   const child = spawn(node, [...tsxArgs, "server/index.ts"], {
@@ -105,6 +113,8 @@ export async function startServer(
   return {
     url: `http://127.0.0.1:${port}`,
     mailDir: env.MAIL_DIR ?? mail.MAIL_DIR,
+    pid: child.pid!,
+    output: () => output,
     stop: () =>
       new Promise((resolve) => {
         child.once("exit", () => resolve());
