@@ -98,7 +98,11 @@ export async function startServer(
   });
   let output = "";
   await new Promise<void>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`server did not start: ${output}`)), 20_000);
+    // A server that never said it serves is stopped, not left behind for the rest of the run.
+    const timer = setTimeout(() => {
+      child.kill("SIGKILL");
+      reject(new Error(`server did not start: ${output}`));
+    }, 20_000);
     const onData = (d: Buffer) => {
       output += d;
       if (output.includes("is serving on")) {
