@@ -70,9 +70,7 @@ export async function ownMail(): Promise<{ FAKE_SMTP_PORT: string; MAIL_DIR: str
 }
 
 /** Starts the production server (build/ must exist) and resolves once it prints that it is serving. */
-export async function startServer(
-  env: Record<string, string>,
-): Promise<{
+export async function startServer(env: Record<string, string>): Promise<{
   url: string;
   mailDir: string;
   /** The server process's id (e.g. to read its memory from /proc). */
