@@ -163,7 +163,7 @@ const LINGER_MS = 2_000;
 function closeAfterAnswer(res: express.Response) {
   const req = res.req;
   res.once("finish", () => {
-    if (req.readableEnded) return;
+    if (req.complete) return; // the whole request has arrived: the connection stays as it is
     const close = () => req.socket?.destroy();
     const timer = setTimeout(close, LINGER_MS).unref();
     let extra = 0;
