@@ -13,7 +13,7 @@ import {
   describeDbError,
 } from "./lib/db-errors.server";
 import { getEnv } from "./lib/env.server";
-import { requestLabel } from "./lib/log-redaction";
+import { redactSecrets, requestLabel } from "./lib/log-redaction";
 import { isBodyTooLarge } from "./lib/request-limits";
 
 // React Router's default server entry, plus the CSP nonce (server/index.ts makes one per
@@ -52,7 +52,10 @@ export const handleError: HandleErrorFunction = (error, { request }) => {
     return;
   }
   const e = error instanceof Error ? error : new Error(String(error));
-  console.error(`500 ${requestLabel(request)}: ${e.stack ?? `${e.name}: ${e.message}`}`);
+  // The message may quote a URL or a value: redacted here too, not only by server/index.ts.
+  console.error(
+    redactSecrets(`500 ${requestLabel(request)}: ${e.stack ?? `${e.name}: ${e.message}`}`),
+  );
 };
 
 export default function handleRequest(
