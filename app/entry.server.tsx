@@ -11,6 +11,8 @@ import {
   DATABASE_UNAVAILABLE_MESSAGE,
   databaseUnavailable,
   describeDbError,
+  failedOnDatabase,
+  markDatabaseDown,
 } from "./lib/db-errors.server";
 import { getEnv } from "./lib/env.server";
 import { redactSecrets, requestLabel } from "./lib/log-redaction";
@@ -21,10 +23,9 @@ import { isBodyTooLarge } from "./lib/request-limits";
 
 export const streamTimeout = 5_000;
 
-// Requests whose loader or action failed because the database is down (see handleError).
-const databaseDown = new WeakSet<Request>();
-// The 503 answers made from those (logged already).
+// The 503 answers made for pages whose data failed on a database outage (logged already).
 const outageAnswers = new WeakSet<Response>();
+const outageRendered = new WeakSet<Request>();
 
 /**
  * Every error React Router reports goes to the log as one redacted line (server/index.ts also
@@ -43,7 +44,7 @@ export const handleError: HandleErrorFunction = (error, { request }) => {
   if (status < 500 || (error instanceof Response && outageAnswers.has(error))) return;
   const down = databaseUnavailable(error);
   if (down) {
-    databaseDown.add(request);
+    markDatabaseDown(request);
     console.error(`503 ${requestLabel(request)}: ${describeDbError(down, getEnv())}`);
     return;
   }
@@ -68,8 +69,8 @@ export default function handleRequest(
   const nonce = loadContext.cspNonce ?? "";
   // A page whose data could not be read because the database is down: React Router renders
   // again with this thrown Response, so the error boundary says so, with status 503.
-  if (databaseDown.has(request)) {
-    databaseDown.delete(request);
+  if (failedOnDatabase(request) && !outageRendered.has(request)) {
+    outageRendered.add(request); // the second render shows the 503 below
     const answer = new Response(DATABASE_UNAVAILABLE_MESSAGE, {
       status: 503,
       headers: { "Content-Type": "text/plain" },

@@ -19,6 +19,7 @@ import {
   type RouteObject,
   type ServerBuild,
 } from "react-router";
+import { DATABASE_UNAVAILABLE_MESSAGE, failedOnDatabase } from "../app/lib/db-errors.server";
 import {
   BODY_TOO_LARGE_MESSAGE,
   BodyTooLargeError,
@@ -65,7 +66,25 @@ export function createRequestHandler(options: {
         if (/100-continue/i.test(req.headers.expect ?? "")) res.writeContinue();
       }
       const request = toRequest(req, res, body);
-      const response = await handle(request, options.getLoadContext(req, res));
+      let response = await handle(request, options.getLoadContext(req, res));
+      // A resource route (JSON, CSV, a file) that failed on a database outage: 503, as pages
+      // (app/entry.server.tsx) and the API (apiRoute) answer; React Router would say 500.
+      if (response.status === 500 && !req.path.endsWith(".data") && failedOnDatabase(request)) {
+        await response.body?.cancel();
+        response = api
+          ? Response.json(
+              { error: { code: "database_unavailable", message: DATABASE_UNAVAILABLE_MESSAGE } },
+              { status: 503, headers: { "Retry-After": "30", "Cache-Control": "no-store" } },
+            )
+          : new Response(DATABASE_UNAVAILABLE_MESSAGE, {
+              status: 503,
+              headers: {
+                "Content-Type": "text/plain",
+                "Retry-After": "30",
+                "Cache-Control": "no-store",
+              },
+            });
+      }
       await send(res, response);
     } catch (error) {
       next(error);

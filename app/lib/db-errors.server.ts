@@ -61,3 +61,18 @@ export function databaseUnavailable(error: unknown): { code?: string; message?: 
 /** What a user or API caller reads while the database is unavailable (no host or port). */
 export const DATABASE_UNAVAILABLE_MESSAGE =
   "The database is not available right now, so nothing was read or changed. Try again in a minute; if it stays, tell whoever runs Twistlog.";
+
+// Requests that failed because the database was down. On globalThis: server/request-handler.ts
+// and the React Router build each load their own copy of this module.
+const downKey = Symbol.for("twistlog.database-down-requests");
+const downRequests: WeakSet<Request> = ((globalThis as Record<symbol, unknown>)[downKey] ??=
+  new WeakSet<Request>()) as WeakSet<Request>;
+
+/** Notes that `request` failed on an unavailable database (app/entry.server.tsx handleError). */
+export function markDatabaseDown(request: Request): void {
+  downRequests.add(request);
+}
+
+export function failedOnDatabase(request: Request): boolean {
+  return downRequests.has(request);
+}

@@ -102,8 +102,14 @@ describe("while the database is away (issue 12 §7)", () => {
     expect(page.status).toBe(503);
     expect(page.html).toContain("Temporarily unavailable");
 
+    // A resource route (JSON) of the app's pages, signed in.
+    const status = await signedIn.get("/vehicles/1/status");
+    expect(status.status).toBe(503);
+    expect(status.html).toContain("database is not available");
+
     for (const path of [
       `/s/${shareToken}`,
+      `/s/${shareToken}/charts.json`,
       `/reset-password/${resetToken}`,
       `/invitations/${inviteToken}`,
     ]) {
