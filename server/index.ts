@@ -1,13 +1,23 @@
 // The HTTP server: serves the React Router build (or Vite in development) with Express.
 // A custom server rather than react-router-serve so that the background services (analysis
 // worker pool and job runner, fake mail server) start and stop with the app (docs/decisions/003-custom-server.md).
-import { createRequestHandler } from "@react-router/express";
 import compression from "compression";
 import express from "express";
+import { format } from "node:util";
 import type { ServerBuild } from "react-router";
 import { getEnvOrExit } from "../app/lib/env.server";
 import { startFakeSmtp } from "../app/lib/fake-smtp.server";
+import { redactSecrets } from "../app/lib/log-redaction";
 import { newNonce, securityHeaders } from "../app/lib/security-headers.server";
+import { createRequestHandler } from "./request-handler";
+
+// Every line this process writes goes through one redaction (app/lib/log-redaction.ts): share,
+// reset and invitation tokens, API tokens and cookies never reach the log, whoever prints them
+// (our code, React Router, Express's last-resort handler).
+for (const level of ["log", "info", "warn", "error", "debug"] as const) {
+  const write = console[level].bind(console);
+  console[level] = (...args: unknown[]) => write(redactSecrets(format(...args)));
+}
 
 const env = getEnvOrExit();
 const { HOST, PORT, NODE_ENV } = env;
@@ -95,6 +105,10 @@ const server = app.listen(PORT, HOST, () => {
   const shown = HOST === "127.0.0.1" ? "localhost" : HOST;
   console.log(`Twistlog is serving on http://${shown}:${PORT}`);
 });
+
+// A client that asks before sending a body (Expect: 100-continue) gets its answer from the
+// request handler, which refuses an over-size body before a byte of it is sent.
+server.on("checkContinue", app);
 
 server.on("error", (error: NodeJS.ErrnoException) => {
   if (error.code === "EADDRINUSE") {

@@ -1,5 +1,12 @@
 import type { Role } from "~/db/schema";
 import { apiError, requireApiRole } from "./api.server";
+import {
+  DATABASE_UNAVAILABLE_MESSAGE,
+  databaseUnavailable,
+  describeDbError,
+} from "./db-errors.server";
+import { getEnv } from "./env.server";
+import { requestLabel } from "./log-redaction";
 import { getCurrentUser } from "./permissions.server";
 import { atLeast, roleLabels } from "./roles";
 
@@ -68,9 +75,11 @@ export async function requireApiAccess(request: Request, needed: Role): Promise<
 /**
  * Wraps an API loader or action so that every refusal leaves in the API's JSON error shape:
  * the data helpers throw plain-text 404s (shared with the pages), turned here into
- * { "error": { "code", "message" } } with the same status.
+ * { "error": { "code", "message" } } with the same status. A database that cannot be reached
+ * is 503 `database_unavailable` (one line in the log, without a stack); anything else is a bug
+ * and goes on to React Router's handleError (app/entry.server.tsx).
  */
-export function apiRoute<A>(
+export function apiRoute<A extends { request: Request }>(
   handler: (args: A) => Promise<Response>,
 ): (args: A) => Promise<Response> {
   return async (args) => {
@@ -86,13 +95,22 @@ export function apiRoute<A>(
           401: "unauthorized",
           403: "forbidden",
           404: "not_found",
+          405: "method_not_allowed",
           413: "too_large",
+          503: "database_unavailable",
         };
         return apiError(
           error.status,
           codes[error.status] ?? "error",
           (await error.text()) || "Request refused.",
         );
+      }
+      const down = databaseUnavailable(error);
+      if (down) {
+        console.error(`503 ${requestLabel(args.request)}: ${describeDbError(down, getEnv())}`);
+        const response = apiError(503, "database_unavailable", DATABASE_UNAVAILABLE_MESSAGE);
+        response.headers.set("Retry-After", "30");
+        return response;
       }
       throw error;
     }

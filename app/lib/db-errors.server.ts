@@ -28,8 +28,8 @@ export function describeDbError(error: unknown, env: Env): string {
   }
 }
 
-// Codes of a database that is down, restarting or out of reach, as opposed to a refused query.
-const unavailableCodes = new Set([
+// Codes of a database that cannot be reached right now (as opposed to a wrong query).
+const UNAVAILABLE = new Set([
   "ECONNREFUSED",
   "ECONNRESET",
   "ETIMEDOUT",
@@ -44,16 +44,39 @@ const unavailableCodes = new Set([
 ]);
 
 /**
- * True when `error` (or what it wraps: Drizzle puts the driver's error in `cause`) says the
- * database cannot be reached right now: the caller answers 503 and the request may be retried.
+ * The connection error behind `error`, when the database is down or unreachable: drizzle
+ * wraps mysql2's errors (DrizzleQueryError, the original in `cause`), so the chain is walked.
  */
-export function isDbUnavailable(error: unknown): boolean {
-  let e = error as { code?: unknown; fatal?: unknown; cause?: unknown } | undefined;
-  for (let depth = 0; e && depth < 5; depth++) {
-    if (typeof e.code === "string" && unavailableCodes.has(e.code)) return true;
+export function databaseUnavailable(error: unknown): { code?: string; message?: string } | null {
+  let e = error as { code?: unknown; message?: unknown; cause?: unknown } | undefined;
+  for (let depth = 0; e && typeof e === "object" && depth < 5; depth++) {
+    if (typeof e.code === "string" && UNAVAILABLE.has(e.code)) return e as { code: string };
     // mysql2 marks errors that end the connection itself as fatal.
-    if (e.fatal === true) return true;
+    if ((e as { fatal?: unknown }).fatal === true)
+      return { code: typeof e.code === "string" ? e.code : "PROTOCOL_CONNECTION_LOST" };
+    // mysql2 on a connection the server already closed: no code, only this message.
+    if (typeof e.message === "string" && /connection is in closed state/i.test(e.message))
+      return { code: "PROTOCOL_CONNECTION_LOST", message: e.message };
     e = e.cause as typeof e;
   }
-  return false;
+  return null;
+}
+
+/** What a user or API caller reads while the database is unavailable (no host or port). */
+export const DATABASE_UNAVAILABLE_MESSAGE =
+  "The database is not available right now, so nothing was read or changed. Try again in a minute; if it stays, tell whoever runs Twistlog.";
+
+// Requests that failed because the database was down. On globalThis: server/request-handler.ts
+// and the React Router build each load their own copy of this module.
+const downKey = Symbol.for("twistlog.database-down-requests");
+const downRequests: WeakSet<Request> = ((globalThis as Record<symbol, unknown>)[downKey] ??=
+  new WeakSet<Request>()) as WeakSet<Request>;
+
+/** Notes that `request` failed on an unavailable database (app/entry.server.tsx handleError). */
+export function markDatabaseDown(request: Request): void {
+  downRequests.add(request);
+}
+
+export function failedOnDatabase(request: Request): boolean {
+  return downRequests.has(request);
 }

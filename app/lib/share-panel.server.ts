@@ -3,6 +3,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { AppLoadContext } from "react-router";
 import { audit } from "./audit.server";
 import { assertCsrf } from "./csrf.server";
+import { readForm } from "./forms.server";
 import { requireTeamRole, type CurrentUser, type TeamRole } from "./permissions.server";
 import { appOrigin, clientIp } from "./request.server";
 import { countText } from "./plural";
@@ -29,6 +30,9 @@ export type SubjectResolver = (current: Signed, form?: FormData) => Promise<Shar
 const noStore = { "Cache-Control": "no-store" };
 
 async function refusal(error: unknown): Promise<Response> {
+  // A GET without a session is redirected to sign-in like every other GET (requireUser);
+  // such a redirect passes as it is, with its Location.
+  if (error instanceof Response && error.status >= 300 && error.status < 400) throw error;
   if (error instanceof Response && !(error.headers.get("Content-Type") ?? "").includes("json")) {
     const message = (await error.text()) || "Request refused.";
     return Response.json(
@@ -89,7 +93,7 @@ export async function sharePanelAction(
   resolve: SubjectResolver,
 ): Promise<Response> {
   try {
-    const form = await request.formData();
+    const form = await readForm(request);
     await assertCsrf(request, form);
     const current = await requireTeamRole(request, "engineer");
     const subject = await resolve(current, form);

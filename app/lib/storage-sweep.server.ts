@@ -1,6 +1,6 @@
 import { inArray } from "drizzle-orm";
 import { driveLogs } from "~/db/schema-drive-logs";
-import { describeDbError, isDbUnavailable } from "./db-errors.server";
+import { describeDbError, databaseUnavailable } from "./db-errors.server";
 import type { Db } from "./db.server";
 import { getEnv } from "./env.server";
 import { formatBytes, type BlobStore } from "./storage.server";
@@ -106,7 +106,7 @@ export function startStorageSweep(options: { store: BlobStore; db: Db; graceMs: 
       if (report.files + report.parts > 0) console.log(sweepLine(report, graceMs));
     } catch (error) {
       // Nothing is removed without asking the database; the next round tries again.
-      const why = isDbUnavailable(error)
+      const why = databaseUnavailable(error)
         ? describeDbError(error, getEnv())
         : (error as Error).message?.split("\n")[0];
       console.error(`storage sweep stopped early: ${why}`);

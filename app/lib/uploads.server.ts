@@ -8,7 +8,7 @@ import { Readable, Transform } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import type { ReadableStream as NodeReadableStream } from "node:stream/web";
 import { logMetadataSchema, type LogMetadata } from "./vehicle-schema";
-import { isDbUnavailable } from "./db-errors.server";
+import { databaseUnavailable } from "./db-errors.server";
 import { BlobTooLargeError, formatBytes, type BlobStore, type StoredBlob } from "./storage.server";
 
 export interface ReceivedFile {
@@ -76,7 +76,7 @@ export async function recordUpload<T>(
       );
     }
     const result = await options.record(files, metadata.data).catch((error: unknown) => {
-      if (isDbUnavailable(error))
+      if (databaseUnavailable(error))
         throw new UploadError(503, "database_unavailable", DB_UNAVAILABLE_MESSAGE);
       throw error;
     });

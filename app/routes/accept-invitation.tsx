@@ -5,6 +5,7 @@ import { CsrfInput } from "~/components/csrf-input";
 import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { acceptInvitation, findInvitation, InvitationProblem } from "~/lib/invitations.server";
 import { verifyPassword } from "~/lib/password.server";
 import { invariantResponse } from "~/lib/permissions.server";
@@ -28,7 +29,7 @@ export async function loader({ params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const invitation = await findInvitation(params.token);
   invariantResponse(invitation, "This invitation was already used, withdrawn or has expired.", {

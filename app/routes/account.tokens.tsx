@@ -21,6 +21,7 @@ import {
 } from "~/lib/api-tokens.server";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { invariantResponse, requireTeamRole, requireUser } from "~/lib/permissions.server";
 import { clientIp } from "~/lib/request.server";
 import { atLeast } from "~/lib/roles";
@@ -61,7 +62,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const ip = clientIp(context);
   if (form.get("intent") === "create") {

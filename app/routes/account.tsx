@@ -6,6 +6,7 @@ import { Card, Notice, PageHeader, tableClass, tdClass, thClass, When } from "~/
 import { ScrollArea } from "~/components/scroll-area";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { invariantResponse, requireUser } from "~/lib/permissions.server";
 import { clientIp } from "~/lib/request.server";
 import { roleLabels } from "~/lib/roles";
@@ -27,7 +28,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const { user, sessionId } = await requireUser(request);
   const ip = clientIp(context);

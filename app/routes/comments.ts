@@ -1,5 +1,6 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { conditionLabels } from "~/lib/drive-log-terms";
 import {
   deleteCommentSchema,
@@ -34,6 +35,9 @@ function subjectFrom(value: FormDataEntryValue | string | null): CommentSubject 
 }
 
 async function refusal(error: unknown): Promise<Response> {
+  // A GET without a session is redirected to sign-in like every other GET (requireUser);
+  // such a redirect passes as it is, with its Location.
+  if (error instanceof Response && error.status >= 300 && error.status < 400) throw error;
   if (error instanceof Response && !(error.headers.get("Content-Type") ?? "").includes("json")) {
     const message = (await error.text()) || "Request refused.";
     return Response.json(
@@ -60,7 +64,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   try {
-    const form = await request.formData();
+    const form = await readForm(request);
     await assertCsrf(request, form);
     const intent = form.get("intent");
     const vehicleId = idParam(params.vehicleId);

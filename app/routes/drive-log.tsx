@@ -21,6 +21,7 @@ import { SharePanel } from "~/components/share-panel";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
 import { analysisParam } from "~/lib/analysis-param";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { logLabel } from "~/lib/curves.server";
 import { conditionLabels, gearLabel, type IngestMapping } from "~/lib/drive-log-terms";
 import { idParam } from "~/lib/params";
@@ -131,7 +132,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const intent = form.get("intent");
   if (intent === "map") {

@@ -5,6 +5,7 @@ import { CsrfInput } from "~/components/csrf-input";
 import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { RESET_MINUTES } from "~/lib/link-lifetimes";
 import { requestPasswordReset } from "~/lib/password-reset.server";
 import { appOrigin, clientIp } from "~/lib/request.server";
@@ -16,7 +17,7 @@ const schema = z.object({ email: emailField });
 export const meta = () => [{ title: "Reset your password · Twistlog" }];
 
 export async function action({ request, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const submission = parseWithZod(form, { schema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });

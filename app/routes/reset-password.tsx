@@ -5,6 +5,7 @@ import { CsrfInput } from "~/components/csrf-input";
 import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { completePasswordReset, findPasswordReset } from "~/lib/password-reset.server";
 import { invariantResponse } from "~/lib/permissions.server";
 import { clientIp } from "~/lib/request.server";
@@ -26,7 +27,7 @@ export async function loader({ params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const reset = await findPasswordReset(params.token);
   invariantResponse(reset, "This link was already used or has expired.", { status: 410 });

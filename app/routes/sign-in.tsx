@@ -5,6 +5,7 @@ import { CsrfInput } from "~/components/csrf-input";
 import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
 import { authenticateWithPassword, SignInRefused } from "~/lib/auth.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { getCurrentUser } from "~/lib/permissions.server";
 import { clientIp, safeRedirect } from "~/lib/request.server";
 import { startSession } from "~/lib/session.server";
@@ -28,7 +29,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request, context }: Route.ActionArgs) {
   // remix-auth's FormStrategy reads the body itself: read a clone here (docs/stack-notes.md).
-  const form = await request.clone().formData();
+  const form = await readForm(request.clone());
   await assertCsrf(request, form);
   const submission = parseWithZod(form, { schema });
   if (submission.status !== "success") {

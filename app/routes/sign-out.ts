@@ -1,6 +1,7 @@
 import { redirect } from "react-router";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { getCurrentUser } from "~/lib/permissions.server";
 import { clientIp } from "~/lib/request.server";
 import { endSession } from "~/lib/session.server";
@@ -8,7 +9,7 @@ import type { Route } from "./+types/sign-out";
 
 // Signing out changes state, so it is a POST with the CSRF token (a link could be forged).
 export async function action({ request, context }: Route.ActionArgs) {
-  await assertCsrf(request, await request.clone().formData());
+  await assertCsrf(request, await readForm(request.clone()));
   const current = await getCurrentUser(request);
   if (current) {
     await audit({

@@ -1,6 +1,7 @@
 import { redirect } from "react-router";
 import { z } from "zod";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { invariantResponse, requireRole } from "~/lib/permissions.server";
 import { setSessionTeam } from "~/lib/session.server";
 import type { Route } from "./+types/team-switch";
@@ -9,7 +10,7 @@ const schema = z.object({ teamId: z.coerce.number().int().positive() });
 
 /** POST /team/switch: choose the team this session works in (404 for a team one is not in). */
 export async function action({ request }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const parsed = schema.safeParse(Object.fromEntries(form));
   invariantResponse(parsed.success, "Choose a team from the list.", { status: 400 });

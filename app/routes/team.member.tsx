@@ -5,6 +5,7 @@ import { FormError, SubmitButton } from "~/components/form";
 import { Card, PageHeader, When } from "~/components/page";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { clientIp } from "~/lib/request.server";
 import { roleHints, roleLabels, ROLES } from "~/lib/roles";
@@ -28,7 +29,7 @@ export async function loader({ request, params: raw }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params: raw, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const { team, user } = await requireTeamRole(request, "admin");
   const scoped = teamData(team.id);

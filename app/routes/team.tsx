@@ -15,6 +15,7 @@ import {
 } from "~/components/page";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { inviteToTeam, InvitationProblem } from "~/lib/invitations.server";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { appOrigin, clientIp } from "~/lib/request.server";
@@ -47,7 +48,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const intent = form.get("intent");
   const ip = clientIp(context);

@@ -4,6 +4,7 @@ import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { PageHeader } from "~/components/page";
 import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/vehicle-form";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { idParam } from "~/lib/params";
 import { requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
@@ -22,7 +23,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const { team, user } = await requireTeamRole(request, "engineer");
   const vehicles = vehicleData(team.id);

@@ -27,6 +27,7 @@ import { useLogProgress } from "~/components/use-log-progress";
 import { VehicleCard } from "~/components/vehicle-card";
 import { audit } from "~/lib/audit.server";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { idParam } from "~/lib/params";
 import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
 import { countText, plural } from "~/lib/plural";
@@ -185,7 +186,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   const type = request.headers.get("content-type") ?? "";
   if (type.toLowerCase().startsWith("multipart/form-data"))
     return uploadFromForm(request, params.vehicleId);
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const intent = form.get("intent");
   // Vehicles and their targets are the engineer's (docs/architecture.md §2): 403 for technicians and viewers.

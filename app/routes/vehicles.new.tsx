@@ -4,6 +4,7 @@ import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { PageHeader } from "~/components/page";
 import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/vehicle-form";
 import { assertCsrf } from "~/lib/csrf.server";
+import { readForm } from "~/lib/forms.server";
 import { requireTeamRole } from "~/lib/permissions.server";
 import { vehicleData } from "~/lib/vehicles.server";
 import { audit } from "~/lib/audit.server";
@@ -18,7 +19,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   await assertCsrf(request, form);
   const { team, user } = await requireTeamRole(request, "engineer");
   const submission = parseWithZod(form, { schema: vehicleFormSchema });

@@ -71,12 +71,20 @@ export async function ownMail(): Promise<{ FAKE_SMTP_PORT: string; MAIL_DIR: str
 
 /**
  * Starts the production server (build/ must exist) and resolves once it prints that it is serving.
- * `nodeArgs` go before the entry (e.g. another `--import`); `output()` is all it printed so far.
+ * `nodeArgs` go before the entry (e.g. another `--import`).
  */
 export async function startServer(
   env: Record<string, string>,
   options: { nodeArgs?: string[] } = {},
-): Promise<{ url: string; mailDir: string; output: () => string; stop: () => Promise<void> }> {
+): Promise<{
+  url: string;
+  mailDir: string;
+  /** The server process's id (e.g. to read its memory from /proc). */
+  pid: number;
+  /** Everything it wrote to stdout and stderr so far. */
+  output: () => string;
+  stop: () => Promise<void>;
+}> {
   const port = await freePort();
   const mail = await ownMail();
   const child = spawn(node, [...tsxArgs, ...(options.nodeArgs ?? []), "server/index.ts"], {
@@ -94,7 +102,11 @@ export async function startServer(
   });
   let output = "";
   await new Promise<void>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`server did not start: ${output}`)), 20_000);
+    // A server that never said it serves is stopped, not left behind for the rest of the run.
+    const timer = setTimeout(() => {
+      child.kill("SIGKILL");
+      reject(new Error(`server did not start: ${output}`));
+    }, 20_000);
     const onData = (d: Buffer) => {
       output += d;
       if (output.includes("is serving on")) {
@@ -109,6 +121,7 @@ export async function startServer(
   return {
     url: `http://127.0.0.1:${port}`,
     mailDir: env.MAIL_DIR ?? mail.MAIL_DIR,
+    pid: child.pid!,
     output: () => output,
     stop: () =>
       new Promise((resolve) => {
