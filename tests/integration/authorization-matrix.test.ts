@@ -39,80 +39,6 @@ const { startSession } = await import("~/lib/session.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 
-/**
- * knownUntil§7 — the cells that fail today only because of issue 12 §7, each asserting the
- * intended answer and marked `it.fails` until the fix is merged; then delete this set (an entry
- * is a cell's name; everyCaller() names the seven cells of one request). What they answer today:
- * - the comments' and share panels' refusal of a caller without a session: a JSON 302 with no
- *   Location, also through `.data` (intended: 401, or a redirect to /sign-in with its Location);
- * - a POST with no body to a page action, /sign-out, /team/switch and the JSON form routes: 500
- *   (intended: 400);
- * - DELETE /reset-password/x: 410 (intended: 405, no form sends it);
- * - a multipart upload without its boundary, once the role is checked: 500 (intended: 400).
- */
-const everyCaller = (request: string) => CALLERS.map((c) => `${request} · ${c}`);
-const uploaders = (request: string) =>
-  (["technician", "engineer", "admin"] as const).map((c) => `${request} · ${c}`);
-const knownUntilSection7 = new Set<string>([
-  ...(["anonymous", "shareGuest"] as const).flatMap((c) => [
-    `routes/comments.ts · json GET /vehicles/:v/comments?subject=log::l1 · ${c}`,
-    `routes/drive-log.share.ts · json GET /vehicles/:v/logs/:l1/share · ${c}`,
-    `routes/comparison.share.ts · json GET /vehicles/:v/compare/share?logs=:l1,:l2 · ${c}`,
-    `routes/comments.ts · json.data GET /vehicles/:v/comments.data?subject=log::l1 · ${c}`,
-    `routes/drive-log.share.ts · json.data GET /vehicles/:v/logs/:l1/share.data · ${c}`,
-    `routes/comparison.share.ts · json.data GET /vehicles/:v/compare/share.data?logs=:l1,:l2 · ${c}`,
-  ]),
-  ...everyCaller(
-    "routes/accept-invitation.tsx · form POST (no body) /invitations/not-a-real-token",
-  ),
-  ...everyCaller(
-    "routes/accept-invitation.tsx · form.data POST (no body) /invitations/not-a-real-token.data",
-  ),
-  ...everyCaller("routes/account.tokens.tsx · form POST (no body) /account/tokens"),
-  ...everyCaller("routes/account.tokens.tsx · form.data POST (no body) /account/tokens.data"),
-  ...everyCaller("routes/account.tsx · form POST (no body) /account"),
-  ...everyCaller("routes/account.tsx · form.data POST (no body) /account.data"),
-  ...everyCaller("routes/comments.ts · form POST (no body) /vehicles/:v/comments"),
-  ...everyCaller(
-    "routes/comparison.share.ts · form POST (no body) /vehicles/:v/compare/share?logs=:l1,:l2",
-  ),
-  ...everyCaller("routes/drive-log.share.ts · form POST (no body) /vehicles/:v/logs/:l1/share"),
-  ...everyCaller("routes/drive-log.tsx · form POST (no body) /vehicles/:v/logs/:l1"),
-  ...everyCaller("routes/drive-log.tsx · form.data POST (no body) /vehicles/:v/logs/:l1.data"),
-  ...everyCaller("routes/forgot-password.tsx · form POST (no body) /forgot-password"),
-  ...everyCaller("routes/forgot-password.tsx · form.data POST (no body) /forgot-password.data"),
-  ...everyCaller("routes/reset-password.tsx · form DELETE /reset-password/not-a-real-token"),
-  ...everyCaller(
-    "routes/reset-password.tsx · form POST (no body) /reset-password/not-a-real-token",
-  ),
-  ...everyCaller(
-    "routes/reset-password.tsx · form.data DELETE /reset-password/not-a-real-token.data",
-  ),
-  ...everyCaller(
-    "routes/reset-password.tsx · form.data POST (no body) /reset-password/not-a-real-token.data",
-  ),
-  ...everyCaller("routes/sign-in.tsx · form POST (no body) /sign-in"),
-  ...everyCaller("routes/sign-in.tsx · form.data POST (no body) /sign-in.data"),
-  ...everyCaller("routes/sign-out.ts · form POST (no body) /sign-out"),
-  ...everyCaller("routes/team-switch.ts · form POST (no body) /team/switch"),
-  ...everyCaller("routes/team.member.tsx · form POST (no body) /team/members/:adminMember"),
-  ...everyCaller(
-    "routes/team.member.tsx · form.data POST (no body) /team/members/:adminMember.data",
-  ),
-  ...everyCaller("routes/team.tsx · form POST (no body) /team"),
-  ...everyCaller("routes/team.tsx · form.data POST (no body) /team.data"),
-  ...everyCaller("routes/vehicle.edit.tsx · form POST (no body) /vehicles/:v/edit"),
-  ...everyCaller("routes/vehicle.edit.tsx · form.data POST (no body) /vehicles/:v/edit.data"),
-  ...everyCaller("routes/vehicle.tsx · form POST (no body) /vehicles/:v"),
-  ...everyCaller("routes/vehicle.tsx · form.data POST (no body) /vehicles/:v.data"),
-  ...everyCaller("routes/vehicles.new.tsx · form POST (no body) /vehicles/new"),
-  ...everyCaller("routes/vehicles.new.tsx · form.data POST (no body) /vehicles/new.data"),
-  ...uploaders("routes/vehicle.tsx · upload POST (no boundary) /vehicles/:v"),
-  ...uploaders(
-    "routes/api.v1.vehicle-logs.ts · upload-bearer POST (no boundary) /api/v1/vehicles/:v/logs",
-  ),
-]);
-
 // ---------------------------------------------------------------------------------------------
 // The cells, known before any fixture exists (their names use placeholder ids).
 
@@ -600,11 +526,6 @@ function check(cell: Cell) {
 
 describe("authorization matrix", () => {
   for (const cell of cells) {
-    const known = knownUntilSection7.has(cell.name);
-    (known ? it.fails : it)(cell.name, () => check(cell));
+    it(cell.name, () => check(cell));
   }
-  it("the known §7 list names only cells of the matrix", () => {
-    const names = new Set(cells.map((c) => c.name));
-    for (const name of knownUntilSection7) expect(names.has(name), name).toBe(true);
-  });
 });
