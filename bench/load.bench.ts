@@ -13,6 +13,7 @@
 import { openAsBlob } from "node:fs";
 import { availableParallelism, loadavg } from "node:os";
 import { join } from "node:path";
+import { gzipSync } from "node:zlib";
 import autocannon, { type Result } from "autocannon";
 import {
   benchSetup,
@@ -76,7 +77,7 @@ try {
   );
   await pool.end();
 
-  server = await startBenchServer(setup);
+  server = await startBenchServer(setup, process.env.BENCH_NODE_ARGS?.split(" ").filter(Boolean));
   const { base, pid } = server;
   const auth = { Authorization: `Bearer ${token}` };
   const upload = async (vehicleId: number, file: string, condition: string) => {
@@ -117,7 +118,11 @@ try {
     // Signed in and allowed: anything but 200 here would make every loaded request a non-2xx.
     const r = await fetch(base + t.path, { headers, redirect: "manual" });
     if (r.status !== 200) throw new Error(`${t.path} answered ${r.status}`);
-    await r.arrayBuffer();
+    // fetch inflates: the size as read, and the whole body's gzip size to compare with.
+    const body = Buffer.from(await r.arrayBuffer());
+    console.log(
+      `  ${t.label}: ${(body.length / 1024).toFixed(0)} kB (${(gzipSync(body).length / 1024).toFixed(0)} kB gzipped)`,
+    );
   }
 
   // The background: each technician uploads again as soon as the last upload was answered.

@@ -38,10 +38,12 @@ export function createRequestHandler(options: {
   return async (req, res, next) => {
     try {
       const build = typeof options.build === "function" ? await options.build() : options.build;
-      const route = leafRoute(build, req.path);
-      const api = route ? route.id.startsWith("routes/api.") : req.path.startsWith("/api/");
       const method = req.method;
       const reading = method !== "GET" && method !== "HEAD";
+      // Matching costs as much as a small page's loader (React Router flattens and ranks the
+      // route table on every call), so only requests with a body are matched here.
+      const route = reading ? leafRoute(build, req.path) : undefined;
+      const api = route ? route.id.startsWith("routes/api.") : /^\/api\//i.test(req.path);
       if (reading && route) {
         if (!route.hasAction)
           return refuse(res, api, 405, "This address only answers GET.", "GET, HEAD");
