@@ -14,7 +14,7 @@ import { useJobTestbed } from "../support/scratch-db";
 // refused upload leaves no file in the blob store and no drive-log row. A database and storage
 // folder of this file's own, so every file and row counted here comes from these uploads.
 const testbed = await useJobTestbed("hostile");
-const { createApiToken } = await import("~/lib/api-tokens.server");
+const { startUploadBed } = await import("../support/upload-bed");
 const { pool } = await import("~/lib/db.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 const { HttpClient } = await import("../support/http-client");
@@ -32,29 +32,16 @@ let token = "";
 let vehicleId = 0;
 
 beforeAll(async () => {
-  team = await createTestTeam("Hostile");
-  server = await startServer({ ...testbed.serverEnv, UPLOAD_MAX_BYTES: String(UPLOAD_LIMIT) });
-  const engineer = await createApiToken({
-    userId: team.accounts.engineer.id,
-    teamId: team.id,
-    name: "hostile engineer",
-    expiresAt: null,
-  });
-  token = (
-    await createApiToken({
-      userId: team.accounts.technician.id,
-      teamId: team.id,
-      name: "hostile technician",
-      expiresAt: null,
-    })
-  ).token;
-  const r = await fetch(`${server.url}/api/v1/vehicles`, {
-    method: "POST",
-    headers: { Authorization: `Bearer ${engineer.token}`, "Content-Type": "application/json" },
-    body: JSON.stringify({ name: "Hostile car", identifier: "K-HOST-1", cylinders: 4, stroke: 4 }),
-  });
-  expect(r.status).toBe(201);
-  vehicleId = ((await r.json()) as { vehicle: { id: number } }).vehicle.id;
+  ({
+    server,
+    team,
+    technicianToken: token,
+    vehicleId,
+  } = await startUploadBed(
+    "Hostile",
+    { ...testbed.serverEnv, UPLOAD_MAX_BYTES: String(UPLOAD_LIMIT) },
+    { name: "Hostile car", identifier: "K-HOST-1" },
+  ));
 });
 afterAll(async () => {
   await server?.stop();

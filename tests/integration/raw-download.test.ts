@@ -9,7 +9,7 @@ import { useJobTestbed } from "../support/scratch-db";
 // uploader called the file. The header grammar checked here is RFC 6266 §4.1 with RFC 8187
 // §3.2.1 for `filename*`, and RFC 9110 §5.6.4 for quoted-string.
 const testbed = await useJobTestbed("rawdl");
-const { createApiToken } = await import("~/lib/api-tokens.server");
+const { startUploadBed } = await import("../support/upload-bed");
 const { pool } = await import("~/lib/db.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 const { HttpClient } = await import("../support/http-client");
@@ -20,22 +20,10 @@ let engineerToken = "";
 let vehicleId = 0;
 
 beforeAll(async () => {
-  [server, team] = await Promise.all([startServer(testbed.serverEnv), createTestTeam("RawFile")]);
-  engineerToken = (
-    await createApiToken({
-      userId: team.accounts.engineer.id,
-      teamId: team.id,
-      name: "raw engineer",
-      expiresAt: null,
-    })
-  ).token;
-  const r = await fetch(`${server.url}/api/v1/vehicles`, {
-    method: "POST",
-    headers: { Authorization: `Bearer ${engineerToken}`, "Content-Type": "application/json" },
-    body: JSON.stringify({ name: "Raw car", identifier: "K-RAW-1", cylinders: 4, stroke: 4 }),
-  });
-  expect(r.status).toBe(201);
-  vehicleId = ((await r.json()) as { vehicle: { id: number } }).vehicle.id;
+  ({ server, team, engineerToken, vehicleId } = await startUploadBed("RawFile", testbed.serverEnv, {
+    name: "Raw car",
+    identifier: "K-RAW-1",
+  }));
 });
 afterAll(async () => {
   await server?.stop();

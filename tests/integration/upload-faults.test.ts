@@ -9,7 +9,7 @@ import { HttpClient } from "../support/http-client";
 // A database and storage folder of its own, so the blob store's tmp/ and the drive-log rows
 // seen here belong to this file alone.
 const testbed = await useJobTestbed("faults");
-const { createApiToken } = await import("~/lib/api-tokens.server");
+const { startUploadBed } = await import("../support/upload-bed");
 const { pool } = await import("~/lib/db.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 
@@ -22,28 +22,11 @@ let technicianToken = "";
 let vehicleId = 0;
 
 beforeAll(async () => {
-  [server, team] = await Promise.all([startServer(testbed.serverEnv), createTestTeam("Faults")]);
-  const engineer = await createApiToken({
-    userId: team.accounts.engineer.id,
-    teamId: team.id,
-    name: "faults engineer",
-    expiresAt: null,
-  });
-  technicianToken = (
-    await createApiToken({
-      userId: team.accounts.technician.id,
-      teamId: team.id,
-      name: "faults technician",
-      expiresAt: null,
-    })
-  ).token;
-  const r = await fetch(`${server.url}/api/v1/vehicles`, {
-    method: "POST",
-    headers: { Authorization: `Bearer ${engineer.token}`, "Content-Type": "application/json" },
-    body: JSON.stringify({ name: "Cut-off car", identifier: "K-CUT-1", cylinders: 4, stroke: 4 }),
-  });
-  expect(r.status).toBe(201);
-  vehicleId = ((await r.json()) as { vehicle: { id: number } }).vehicle.id;
+  ({ server, team, technicianToken, vehicleId } = await startUploadBed(
+    "Faults",
+    testbed.serverEnv,
+    { name: "Cut-off car", identifier: "K-CUT-1" },
+  ));
 });
 afterAll(async () => {
   await server?.stop();

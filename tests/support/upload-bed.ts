@@ -1,0 +1,35 @@
+import { createApiToken } from "~/lib/api-tokens.server";
+import { createTestTeam } from "./accounts";
+import { startServer } from "./processes";
+
+/**
+ * What the end-to-end upload tests start from: the production server with `serverEnv`, a team
+ * of its own, API tokens of its engineer and technician, and one vehicle. Import this module
+ * after useJobTestbed() (it opens the database client).
+ */
+export async function startUploadBed(
+  label: string,
+  serverEnv: Record<string, string>,
+  vehicle: { name: string; identifier: string },
+) {
+  const [server, team] = await Promise.all([startServer(serverEnv), createTestTeam(label)]);
+  const tokenOf = async (role: "engineer" | "technician") =>
+    (
+      await createApiToken({
+        userId: team.accounts[role].id,
+        teamId: team.id,
+        name: `${label} ${role}`,
+        expiresAt: null,
+      })
+    ).token;
+  const engineerToken = await tokenOf("engineer");
+  const technicianToken = await tokenOf("technician");
+  const r = await fetch(`${server.url}/api/v1/vehicles`, {
+    method: "POST",
+    headers: { Authorization: `Bearer ${engineerToken}`, "Content-Type": "application/json" },
+    body: JSON.stringify({ ...vehicle, cylinders: 4, stroke: 4 }),
+  });
+  if (r.status !== 201) throw new Error(`creating the test vehicle answered ${r.status}`);
+  const vehicleId = ((await r.json()) as { vehicle: { id: number } }).vehicle.id;
+  return { server, team, engineerToken, technicianToken, vehicleId };
+}
