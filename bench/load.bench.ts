@@ -107,7 +107,7 @@ try {
   const signedIn = await client.signIn(team.accounts.engineer.email, TEST_PASSWORD);
   if (signedIn.status !== 302) throw new Error(`sign-in answered ${signedIn.status}`);
   const headers = {
-    Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+    Cookie: client.cookieHeader(),
     "Accept-Encoding": "gzip",
   };
   const targets = [

@@ -346,7 +346,7 @@ describe("a comparison's share link in the browser", () => {
     // A drive log of the vehicle outside the comparison: refused.
     const { logs } = (await (
       await fetch(`${baseUrl}/api/v1/vehicles/${vehicleId}/logs`, {
-        headers: { Cookie: [...engineer.cookies].map(([k, v]) => `${k}=${v}`).join("; ") },
+        headers: { Cookie: engineer.cookieHeader() },
       })
     ).json()) as { logs: { id: number }[] };
     // KST-D4 has more demo drive logs than the two compared (app/db/demo-drive-logs.server.ts).

@@ -233,7 +233,7 @@ async function send(cell: Cell): Promise<Answer> {
   if (bearer) {
     if (tokens[caller]) headers.Authorization = `Bearer ${tokens[caller]}`;
   } else {
-    headers.Cookie = [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; ");
+    headers.Cookie = client.cookieHeader();
   }
   let body: BodyInit | undefined;
   if (probe.method !== "GET") {

@@ -69,7 +69,7 @@ async function postMultipart(
     method: "POST",
     redirect: "manual",
     headers: {
-      Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+      Cookie: client.cookieHeader(),
       "X-Forwarded-For": client.ip,
       Origin: server.url,
     },

@@ -543,7 +543,7 @@ describe("hostile uploads through the form on the vehicle page", { timeout: 120_
       method: "POST",
       redirect: "manual",
       headers: {
-        Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+        Cookie: client.cookieHeader(),
         Origin: server.url,
         "X-Forwarded-For": client.ip,
         "Content-Type": contentType,

@@ -167,7 +167,7 @@ describe("the raw file download", { timeout: 60_000 }, () => {
       // The team's page: a viewer downloads it with the session cookie.
       const viewer = new HttpClient(server.url);
       expect((await viewer.signIn(team.accounts.viewer.email, TEST_PASSWORD)).status).toBe(302);
-      const cookie = [...viewer.cookies].map(([k, v]) => `${k}=${v}`).join("; ");
+      const cookie = viewer.cookieHeader();
       const page = await rawGet(`${server.url}/vehicles/${vehicleId}/logs/${logId}/file`, {
         Cookie: cookie,
         "X-Forwarded-For": viewer.ip,

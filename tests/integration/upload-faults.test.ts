@@ -120,7 +120,7 @@ describe("an upload cut off mid-body", { timeout: 60_000 }, () => {
       await cutOffUpload(
         `/vehicles/${vehicleId}`,
         {
-          Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+          Cookie: client.cookieHeader(),
           Origin: server.url,
           "X-Forwarded-For": client.ip,
           "x-csrf": client.csrf,

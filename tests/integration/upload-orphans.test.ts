@@ -144,7 +144,7 @@ function formUpload(client: HttpClient, form: FormData) {
     method: "POST",
     redirect: "manual",
     headers: {
-      Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+      Cookie: client.cookieHeader(),
       Origin: server.url,
       "X-Forwarded-For": client.ip,
     },
@@ -185,7 +185,7 @@ describe("a refused upload leaves no stored file and no drive log", { timeout: 6
       method: "POST",
       redirect: "manual",
       headers: {
-        Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+        Cookie: client.cookieHeader(),
         Origin: "http://evil.example",
         "X-Forwarded-For": client.ip,
       },
@@ -327,7 +327,7 @@ describe("the database goes away during an upload", { timeout: 90_000 }, () => {
     const r = await uploadAcrossOutage(
       `/vehicles/${vehicleId}`,
       {
-        Cookie: [...client.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+        Cookie: client.cookieHeader(),
         Origin: server.url,
         "X-Forwarded-For": client.ip,
       },

@@ -17,9 +17,14 @@ export class HttpClient {
     readonly ip = `10.${randomInt(256)}.${randomInt(256)}.${randomInt(1, 255)}`,
   ) {}
 
+  /** The Cookie header this client sends (for requests made with fetch directly). */
+  cookieHeader(): string {
+    return [...this.cookies].map(([k, v]) => `${k}=${v}`).join("; ");
+  }
+
   private headers(extra: Record<string, string>): Record<string, string> {
     return {
-      Cookie: [...this.cookies].map(([k, v]) => `${k}=${v}`).join("; "),
+      Cookie: this.cookieHeader(),
       "X-Forwarded-For": this.ip,
       ...extra,
     };
