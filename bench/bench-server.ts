@@ -110,3 +110,20 @@ export function memoryOf(pid: number): { rssMB: number; peakMB: number } {
   const kB = (key: string) => Number(new RegExp(`${key}:\\s+(\\d+)`).exec(status)?.[1] ?? NaN);
   return { rssMB: kB("VmRSS") / 1024, peakMB: kB("VmHWM") / 1024 };
 }
+
+/**
+ * A team and an API token of its technician in the bench database. Call after
+ * prepareDatabaseAndBuild: the app modules read the bench settings when first imported.
+ */
+export async function benchTeam(label: string) {
+  const { createTestTeam } = await import("../tests/support/accounts.ts");
+  const { createApiToken } = await import("../app/lib/api-tokens.server.ts");
+  const team = await createTestTeam(label);
+  const { token } = await createApiToken({
+    userId: team.accounts.technician.id,
+    teamId: team.id,
+    name: `${label.toLowerCase()} bench`,
+    expiresAt: null,
+  });
+  return { team, token };
+}

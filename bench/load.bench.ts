@@ -17,6 +17,7 @@ import { gzipSync } from "node:zlib";
 import autocannon, { type Result } from "autocannon";
 import {
   benchSetup,
+  benchTeam,
   cleanUp,
   memoryOf,
   prepareDatabaseAndBuild,
@@ -55,18 +56,11 @@ try {
   );
   prepareDatabaseAndBuild(setup);
 
-  const { createTestTeam, TEST_PASSWORD } = await import("../tests/support/accounts.ts");
-  const { createApiToken } = await import("../app/lib/api-tokens.server.ts");
+  const { TEST_PASSWORD } = await import("../tests/support/accounts.ts");
   const { vehicleData } = await import("../app/lib/vehicles.server.ts");
   const { vehicleSchema } = await import("../app/lib/vehicle-schema.ts");
   const { pool } = await import("../app/lib/db.server.ts");
-  const team = await createTestTeam("Load");
-  const { token } = await createApiToken({
-    userId: team.accounts.technician.id,
-    teamId: team.id,
-    name: "load bench",
-    expiresAt: null,
-  });
+  const { team, token } = await benchTeam("Load");
   // The uploads go to a vehicle of their own: their columns differ from the demo log's.
   const vehicles = vehicleData(team.id);
   const readVehicle = await vehicles.create(

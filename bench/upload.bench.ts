@@ -10,6 +10,7 @@ import { openAsBlob, statSync } from "node:fs";
 import { join } from "node:path";
 import {
   benchSetup,
+  benchTeam,
   cleanUp,
   memoryOf,
   prepareDatabaseAndBuild,
@@ -29,18 +30,10 @@ try {
   prepareDatabaseAndBuild(setup);
 
   // Settings are in process.env now, so the app modules connect to the bench database.
-  const { createTestTeam } = await import("../tests/support/accounts.ts");
-  const { createApiToken } = await import("../app/lib/api-tokens.server.ts");
   const { vehicleData } = await import("../app/lib/vehicles.server.ts");
   const { vehicleSchema } = await import("../app/lib/vehicle-schema.ts");
   const { pool } = await import("../app/lib/db.server.ts");
-  const team = await createTestTeam("Bench");
-  const { token } = await createApiToken({
-    userId: team.accounts.technician.id,
-    teamId: team.id,
-    name: "bench",
-    expiresAt: null,
-  });
+  const { team, token } = await benchTeam("Bench");
   const vehicleId = await vehicleData(team.id).create(
     vehicleSchema.parse({ name: "Bench car", identifier: "B-1", cylinders: 4, stroke: 4 }),
   );

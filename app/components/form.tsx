@@ -7,7 +7,9 @@ import {
 } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { useEffect, useRef } from "react";
+import { Form } from "react-router";
 import type { z } from "zod";
+import { CsrfInput } from "./csrf-input";
 
 /**
  * One zod schema per form, used here for the browser's hints and in the action for the real
@@ -165,4 +167,32 @@ const tones = {
 /** The look of SubmitButton, for plain buttons (type="button") beside it. */
 export function buttonClass(tone: keyof typeof tones = "primary") {
   return `inline-flex items-center justify-center rounded-md px-4 py-2 text-sm font-medium focus-visible:outline-2 focus-visible:outline-offset-2 focus-visible:outline-indigo-600 ${tones[tone]}`;
+}
+
+/**
+ * A form of one button (a table row's "End", "Revoke", "Withdraw"): posts `intent` with the
+ * CSRF token and the hidden `fields` that name the row.
+ */
+export function IntentButton({
+  intent,
+  fields,
+  tone,
+  children,
+}: {
+  intent: string;
+  fields: Record<string, string | number>;
+  tone?: "primary" | "secondary" | "danger";
+  children: React.ReactNode;
+}) {
+  return (
+    <Form method="post">
+      <CsrfInput />
+      {Object.entries(fields).map(([name, value]) => (
+        <input key={name} type="hidden" name={name} value={value} />
+      ))}
+      <SubmitButton name="intent" value={intent} tone={tone}>
+        {children}
+      </SubmitButton>
+    </Form>
+  );
 }

@@ -15,7 +15,7 @@ import {
 } from "~/lib/targets";
 import { countText } from "~/lib/plural";
 import { CsrfInput } from "./csrf-input";
-import { buttonClass, Field, FormError, SubmitButton, useSchemaForm } from "./form";
+import { buttonClass, Field, FormError, IntentButton, SubmitButton, useSchemaForm } from "./form";
 import { ChoiceField, fieldsetClass, InputField, legendClass } from "./form-fields";
 import { Card, EmptyState } from "./page";
 
@@ -244,13 +244,9 @@ function DeleteTarget({
           Delete target <span className="sr-only">{target.name}</span>
         </button>
       ) : (
-        <Form method="post">
-          <CsrfInput />
-          <input type="hidden" name="targetId" value={target.id} />
-          <SubmitButton name="intent" value="delete-target" tone="danger">
-            Delete target <span className="sr-only">{target.name}</span>
-          </SubmitButton>
-        </Form>
+        <IntentButton intent="delete-target" fields={{ targetId: target.id }} tone="danger">
+          Delete target <span className="sr-only">{target.name}</span>
+        </IntentButton>
       )}
       {asking ? (
         <div

@@ -2,7 +2,14 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SelectField, SubmitButton, useSchemaForm } from "~/components/form";
+import {
+  Field,
+  FormError,
+  IntentButton,
+  SelectField,
+  SubmitButton,
+  useSchemaForm,
+} from "~/components/form";
 import {
   Card,
   EmptyState,
@@ -243,13 +250,9 @@ function TokenTable({
               <td className={tdClass}>{t.expiresAt ? <When date={t.expiresAt} /> : "never"}</td>
               <td className={tdClass}>{t.lastUsedAt ? <When date={t.lastUsedAt} /> : "not yet"}</td>
               <td className={`${tdClass} text-right`}>
-                <Form method="post">
-                  <CsrfInput />
-                  <input type="hidden" name="tokenId" value={t.id} />
-                  <SubmitButton name="intent" value={intent} tone="danger">
-                    Revoke<span className="sr-only"> {t.name}</span>
-                  </SubmitButton>
-                </Form>
+                <IntentButton intent={intent} fields={{ tokenId: t.id }} tone="danger">
+                  Revoke<span className="sr-only"> {t.name}</span>
+                </IntentButton>
               </td>
             </tr>
           ))}

@@ -1,7 +1,7 @@
 import { Form, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
-import { SubmitButton } from "~/components/form";
+import { IntentButton, SubmitButton } from "~/components/form";
 import { Card, Notice, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
 import { ScrollArea } from "~/components/scroll-area";
 import { audit } from "~/lib/audit.server";
@@ -105,13 +105,9 @@ export default function Account() {
                     <When date={s.createdAt} />
                   </td>
                   <td className={`${tdClass} text-right`}>
-                    <Form method="post">
-                      <CsrfInput />
-                      <input type="hidden" name="sessionId" value={s.id} />
-                      <SubmitButton name="intent" value="revoke" tone="secondary">
-                        {s.current ? "Sign out here" : "End"}
-                      </SubmitButton>
-                    </Form>
+                    <IntentButton intent="revoke" fields={{ sessionId: s.id }} tone="secondary">
+                      {s.current ? "Sign out here" : "End"}
+                    </IntentButton>
                   </td>
                 </tr>
               ))}

@@ -2,7 +2,14 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SelectField, SubmitButton, useSchemaForm } from "~/components/form";
+import {
+  Field,
+  FormError,
+  IntentButton,
+  SelectField,
+  SubmitButton,
+  useSchemaForm,
+} from "~/components/form";
 import {
   Card,
   EmptyState,
@@ -229,13 +236,13 @@ function Invitations({
                     <When date={i.expiresAt} />
                   </td>
                   <td className={`${tdClass} text-right`}>
-                    <Form method="post">
-                      <CsrfInput />
-                      <input type="hidden" name="invitationId" value={i.id} />
-                      <SubmitButton name="intent" value="revoke-invitation" tone="danger">
-                        Withdraw<span className="sr-only"> the invitation for {i.email}</span>
-                      </SubmitButton>
-                    </Form>
+                    <IntentButton
+                      intent="revoke-invitation"
+                      fields={{ invitationId: i.id }}
+                      tone="danger"
+                    >
+                      Withdraw<span className="sr-only"> the invitation for {i.email}</span>
+                    </IntentButton>
                   </td>
                 </tr>
               ))}

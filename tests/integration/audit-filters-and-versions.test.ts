@@ -34,9 +34,7 @@ afterAll(async () => {
 });
 
 async function as(t: TestTeam, role: "admin" | "engineer" | "technician") {
-  const client = new HttpClient(server.url);
-  expect((await client.signIn(t.accounts[role].email, TEST_PASSWORD)).status).toBe(302);
-  return client;
+  return HttpClient.signedIn(server.url, t.accounts[role].email, TEST_PASSWORD);
 }
 
 /** The action codes of the rows the audit page lists, in order. */

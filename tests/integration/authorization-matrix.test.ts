@@ -124,9 +124,7 @@ interface Answer {
 const answers = new Map<string, Answer>();
 
 async function signedIn(email: string) {
-  const client = new HttpClient(server.url);
-  const r = await client.signIn(email, TEST_PASSWORD);
-  if (r.status !== 302) throw new Error(`sign-in of ${email} answered ${r.status}`);
+  const client = await HttpClient.signedIn(server.url, email, TEST_PASSWORD);
   await client.get("/account"); // a page with forms: the CSRF token
   return client;
 }

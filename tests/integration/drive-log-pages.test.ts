@@ -36,10 +36,7 @@ afterAll(async () => {
 });
 
 async function as(t: TestTeam, role: "engineer" | "technician" | "viewer") {
-  const client = new HttpClient(server.url);
-  const r = await client.signIn(t.accounts[role].email, TEST_PASSWORD);
-  expect(r.status).toBe(302);
-  return client;
+  return HttpClient.signedIn(server.url, t.accounts[role].email, TEST_PASSWORD);
 }
 
 async function makeVehicle(t = team, identifier = `V-${Math.random().toString(36).slice(2, 8)}`) {

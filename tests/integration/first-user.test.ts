@@ -19,10 +19,8 @@ afterAll(async () => {
   await pool.end();
 });
 
-async function signedIn(email: string) {
-  const client = new HttpClient(server.url);
-  expect((await client.signIn(email, TEST_PASSWORD)).status).toBe(302);
-  return client;
+function signedIn(email: string) {
+  return HttpClient.signedIn(server.url, email, TEST_PASSWORD);
 }
 
 describe("GET /api/v1/me", () => {

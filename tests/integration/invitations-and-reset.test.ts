@@ -18,10 +18,8 @@ afterAll(async () => {
   await pool.end();
 });
 
-async function signedIn(email: string, password = TEST_PASSWORD) {
-  const client = new HttpClient(server.url);
-  expect((await client.signIn(email, password)).status).toBe(302);
-  return client;
+function signedIn(email: string, password = TEST_PASSWORD) {
+  return HttpClient.signedIn(server.url, email, password);
 }
 
 describe("invitations", () => {

@@ -23,8 +23,7 @@ afterAll(async () => {
 });
 
 async function signedIn(email: string) {
-  const client = new HttpClient(server.url);
-  expect((await client.signIn(email, TEST_PASSWORD)).status).toBe(302);
+  const client = await HttpClient.signedIn(server.url, email, TEST_PASSWORD);
   await client.get("/team");
   return client;
 }

@@ -58,9 +58,7 @@ afterAll(async () => {
 });
 
 async function as(t: TestTeam, role: "engineer" | "technician" | "viewer") {
-  const client = new HttpClient(server.url);
-  expect((await client.signIn(t.accounts[role].email, TEST_PASSWORD)).status).toBe(302);
-  return client;
+  return HttpClient.signedIn(server.url, t.accounts[role].email, TEST_PASSWORD);
 }
 
 /** The vehicle page's plain upload (HttpClient.uploadDriveLog); resolves with the new log's id. */

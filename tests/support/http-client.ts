@@ -108,6 +108,14 @@ export class HttpClient {
     await this.get("/sign-in");
     return this.post("/sign-in", { email, password });
   }
+
+  /** A new client at `base`, signed in (the sign-in must answer 302, or this throws). */
+  static async signedIn(base: string, email: string, password: string): Promise<HttpClient> {
+    const client = new HttpClient(base);
+    const r = await client.signIn(email, password);
+    if (r.status !== 302) throw new Error(`sign-in of ${email} answered ${r.status}, not 302`);
+    return client;
+  }
 }
 
 /**
