@@ -4,6 +4,10 @@ import { defineConfig } from "drizzle-kit";
 // (docs/decisions/002-local-mariadb.md explains why not push/migrate).
 export default defineConfig({
   dialect: "mysql",
-  schema: ["./app/db/schema.ts", "./app/db/schema-drive-logs.ts", "./app/db/schema-results.ts"],
+  schema: [
+    "./app/lib/infra/db/schema.ts",
+    "./app/lib/infra/db/schema-drive-logs.ts",
+    "./app/lib/infra/db/schema-results.ts",
+  ],
   out: "./drizzle",
 });

@@ -13,10 +13,10 @@ import {
   describeDbError,
   failedOnDatabase,
   markDatabaseDown,
-} from "./lib/db-errors.server";
-import { getEnv } from "./lib/env.server";
-import { redactSecrets, requestLabel } from "./lib/log-redaction";
-import { isBodyTooLarge } from "./lib/request-limits";
+} from "./lib/infra/db-errors.server";
+import { getEnv } from "./lib/infra/env.server";
+import { redactSecrets, requestLabel } from "./lib/base/log-redaction";
+import { isBodyTooLarge } from "./lib/http/request-limits";
 
 // React Router's default server entry, plus the CSP nonce (server/index.ts makes one per
 // request) on every script React and React Router write into the page.

@@ -11,7 +11,7 @@ import type { Route } from "./+types/root";
 import { GeneralErrorBoundary } from "./components/error-boundary";
 import { useNonce } from "./components/nonce";
 import { mainProps, SkipLink } from "./components/skip-link";
-import { issueCsrfToken } from "./lib/csrf.server";
+import { issueCsrfToken } from "./lib/http/csrf.server";
 
 /** Every page gets this browser's CSRF token for its forms (docs/decisions/005-csrf.md). */
 export async function loader({ request }: Route.LoaderArgs) {

@@ -117,7 +117,7 @@ export function memoryOf(pid: number): { rssMB: number; peakMB: number } {
  */
 export async function benchTeam(label: string) {
   const { createTestTeam } = await import("../tests/support/accounts.ts");
-  const { createApiToken } = await import("../app/lib/api-tokens.server.ts");
+  const { createApiToken } = await import("../app/lib/data/api-tokens.server.ts");
   const team = await createTestTeam(label);
   const { token } = await createApiToken({
     userId: team.accounts.technician.id,

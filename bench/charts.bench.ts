@@ -24,13 +24,13 @@ try {
   server = await startBenchServer(setup);
   const { base } = server;
   const { HttpClient } = await import("../tests/support/http-client.ts");
-  const { DEMO_PASSWORD } = await import("../app/db/demo-seed.server.ts");
+  const { DEMO_PASSWORD } = await import("../app/demo/demo-seed.server.ts");
   const client = new HttpClient(base);
   const signedIn = await client.signIn("engineer@twistlog.test", DEMO_PASSWORD);
   if (signedIn.status !== 302) throw new Error(`sign-in answered ${signedIn.status}`);
 
-  const { db, pool } = await import("../app/lib/db.server.ts");
-  const { driveLogs } = await import("../app/db/schema-drive-logs.ts");
+  const { db, pool } = await import("../app/lib/infra/db.server.ts");
+  const { driveLogs } = await import("../app/lib/infra/db/schema-drive-logs.ts");
   let logs: { id: number; vehicleId: number; fileName: string; status: string }[] = [];
   const t0 = performance.now();
   for (;;) {

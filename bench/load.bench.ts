@@ -57,9 +57,9 @@ try {
   prepareDatabaseAndBuild(setup);
 
   const { TEST_PASSWORD } = await import("../tests/support/accounts.ts");
-  const { vehicleData } = await import("../app/lib/vehicles.server.ts");
-  const { vehicleSchema } = await import("../app/lib/vehicle-schema.ts");
-  const { pool } = await import("../app/lib/db.server.ts");
+  const { vehicleData } = await import("../app/lib/data/vehicles.server.ts");
+  const { vehicleSchema } = await import("../app/lib/domain/vehicle-schema.ts");
+  const { pool } = await import("../app/lib/infra/db.server.ts");
   const { team, token } = await benchTeam("Load");
   // The uploads go to a vehicle of their own: their columns differ from the demo log's.
   const vehicles = vehicleData(team.id);

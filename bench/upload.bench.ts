@@ -30,9 +30,9 @@ try {
   prepareDatabaseAndBuild(setup);
 
   // Settings are in process.env now, so the app modules connect to the bench database.
-  const { vehicleData } = await import("../app/lib/vehicles.server.ts");
-  const { vehicleSchema } = await import("../app/lib/vehicle-schema.ts");
-  const { pool } = await import("../app/lib/db.server.ts");
+  const { vehicleData } = await import("../app/lib/data/vehicles.server.ts");
+  const { vehicleSchema } = await import("../app/lib/domain/vehicle-schema.ts");
+  const { pool } = await import("../app/lib/infra/db.server.ts");
   const { team, token } = await benchTeam("Bench");
   const vehicleId = await vehicleData(team.id).create(
     vehicleSchema.parse({ name: "Bench car", identifier: "B-1", cylinders: 4, stroke: 4 }),

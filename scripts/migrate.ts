@@ -1,9 +1,9 @@
 // Applies every committed migration in drizzle/ to the configured database.
 // On failure: one line on stderr (the SQL error or what to change) and exit code 1.
-import { applyMigrations, MigrationError } from "../app/db/migrate.server";
-import { describeDbError } from "../app/lib/db-errors.server";
-import { connectionOptions } from "../app/lib/db-options.server";
-import { getEnvOrExit } from "../app/lib/env.server";
+import { applyMigrations, MigrationError } from "../app/lib/infra/db/migrate.server";
+import { describeDbError } from "../app/lib/infra/db-errors.server";
+import { connectionOptions } from "../app/lib/infra/db-options.server";
+import { getEnvOrExit } from "../app/lib/infra/env.server";
 
 const env = getEnvOrExit();
 try {

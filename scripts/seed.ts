@@ -1,15 +1,15 @@
-// npm run db:seed: the demo team and accounts (app/db/demo-seed.server.ts). Safe to run again:
+// npm run db:seed: the demo team and accounts (app/demo/demo-seed.server.ts). Safe to run again:
 // a second run adds nothing. Refuses when SMTP_URL is set, i.e. on a real installation.
 // --if-empty (npm start): seed only a database without any user; print the sign-ins if the
 // demo accounts are there.
 import { count, eq } from "drizzle-orm";
 import { drizzle } from "drizzle-orm/mysql2";
 import mysql from "mysql2/promise";
-import { DEMO_PASSWORD, DEMO_TEAMS, seedDemo } from "../app/db/demo-seed.server";
-import { users } from "../app/db/schema";
-import { describeDbError } from "../app/lib/db-errors.server";
-import { connectionOptions } from "../app/lib/db-options.server";
-import { getEnvOrExit } from "../app/lib/env.server";
+import { DEMO_PASSWORD, DEMO_TEAMS, seedDemo } from "../app/demo/demo-seed.server";
+import { users } from "../app/lib/infra/db/schema";
+import { describeDbError } from "../app/lib/infra/db-errors.server";
+import { connectionOptions } from "../app/lib/infra/db-options.server";
+import { getEnvOrExit } from "../app/lib/infra/env.server";
 
 const env = getEnvOrExit();
 if (env.SMTP_URL) {
@@ -33,7 +33,7 @@ try {
     if (demo.length === 0) process.exit(0);
   } else {
     // Drive logs go through the app's own storage and queue (the server analyses them).
-    const { seedDemoDriveLogs } = await import("../app/db/demo-drive-logs.server");
+    const { seedDemoDriveLogs } = await import("../app/demo/demo-drive-logs.server");
     const added = (await seedDemo(db)) + (await seedDemoDriveLogs(DEMO_TEAMS[0].slug));
     console.log(
       added > 0 ? `demo data: ${added} rows added` : "demo data: already there, nothing changed",
@@ -46,6 +46,6 @@ try {
   }
 } finally {
   await connection.end();
-  const { pool } = await import("../app/lib/db.server");
+  const { pool } = await import("../app/lib/infra/db.server");
   await pool.end();
 }

@@ -5,13 +5,13 @@ import compression from "compression";
 import express from "express";
 import { format } from "node:util";
 import type { ServerBuild } from "react-router";
-import { getEnvOrExit } from "../app/lib/env.server";
-import { startFakeSmtp } from "../app/lib/fake-smtp.server";
-import { redactSecrets } from "../app/lib/log-redaction";
-import { newNonce, securityHeaders } from "../app/lib/security-headers.server";
+import { getEnvOrExit } from "../app/lib/infra/env.server";
+import { startFakeSmtp } from "../app/lib/infra/fake-smtp.server";
+import { redactSecrets } from "../app/lib/base/log-redaction";
+import { newNonce, securityHeaders } from "../app/lib/http/security-headers.server";
 import { createRequestHandler } from "./request-handler";
 
-// Every line this process writes goes through one redaction (app/lib/log-redaction.ts): share,
+// Every line this process writes goes through one redaction (app/lib/base/log-redaction.ts): share,
 // reset and invitation tokens, API tokens and cookies never reach the log, whoever prints them
 // (our code, React Router, Express's last-resort handler).
 for (const level of ["log", "info", "warn", "error", "debug"] as const) {
@@ -45,7 +45,7 @@ app.use((req, res, next) => {
   );
   next();
 });
-// What loaders and actions get as `context` (app/lib/request.server.ts).
+// What loaders and actions get as `context` (app/lib/http/request.server.ts).
 // Development's CSP allows inline scripts without a nonce (Vite), so pages carry none there.
 const getLoadContext = (req: express.Request, res: express.Response) => ({
   cspNonce: NODE_ENV === "development" ? undefined : (res.locals.cspNonce as string),
@@ -98,7 +98,7 @@ if (NODE_ENV === "development") {
 
 // Analyses run in a worker pool; jobs are claimed from the database (any instance may take them).
 // Imported only now: the database client it opens reads settings already checked above.
-const { startAnalysisService } = await import("../app/lib/analysis-service.server");
+const { startAnalysisService } = await import("../app/lib/analyses/analysis-service.server");
 const analysis = startAnalysisService();
 
 const server = app.listen(PORT, HOST, () => {
@@ -129,7 +129,7 @@ function shutdown(signal: string) {
     () => void Promise.allSettled([analysis.stop(), fakeSmtp?.close()]).then(() => process.exit(0)),
   );
   // Open keep-alive connections or a long analysis must not hold the shutdown forever; an
-  // interrupted job is claimed again by the next start (app/lib/analysis-jobs.server.ts).
+  // interrupted job is claimed again by the next start (app/lib/analyses/analysis-jobs.server.ts).
   setTimeout(() => process.exit(0), 5_000).unref();
   server.closeAllConnections?.();
 }

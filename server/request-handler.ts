@@ -4,7 +4,7 @@
 //   - methods: a page or form route takes GET, HEAD and POST; a route without an action only
 //     GET and HEAD (405 with Allow, never a 500 from an action that expected a form);
 //   - body size: anything but an upload is limited to FORM_BODY_MAX_BYTES while reading
-//     (app/lib/request-limits.ts): 413 at once for a larger Content-Length, and a chunked body
+//     (app/lib/http/request-limits.ts): 413 at once for a larger Content-Length, and a chunked body
 //     is cut off with 413 when it passes the limit. Uploads stream with their own limit.
 import {
   createReadableStreamFromReadable,
@@ -19,12 +19,12 @@ import {
   type RouteObject,
   type ServerBuild,
 } from "react-router";
-import { DATABASE_UNAVAILABLE_MESSAGE, failedOnDatabase } from "../app/lib/db-errors.server";
+import { DATABASE_UNAVAILABLE_MESSAGE, failedOnDatabase } from "../app/lib/infra/db-errors.server";
 import {
   BODY_TOO_LARGE_MESSAGE,
   BodyTooLargeError,
   FORM_BODY_MAX_BYTES,
-} from "../app/lib/request-limits";
+} from "../app/lib/http/request-limits";
 
 type GetLoadContext = (req: express.Request, res: express.Response) => AppLoadContext;
 type RouteInfo = { id: string; hasAction: boolean };

@@ -1,5 +1,5 @@
 import { Form, Link, NavLink } from "react-router";
-import { atLeast, roleLabels, type Role } from "~/lib/roles";
+import { atLeast, roleLabels, type Role } from "~/lib/domain/roles";
 import { CsrfInput } from "./csrf-input";
 import { LogoMark } from "./logo-mark";
 

@@ -1,34 +1,17 @@
 import type { SubmissionResult } from "@conform-to/react";
-import type { AppliedMapping, IngestMapping } from "~/lib/drive-log-terms";
+import type { AppliedMapping, IngestMapping } from "~/lib/domain/drive-log-terms";
 import { Form } from "react-router";
-import { z } from "zod";
+import { mappingSchema, speedUnits, type Preview } from "~/lib/domain/column-mapping-schema";
 import { CsrfInput } from "./csrf-input";
 import { FormError, SubmitButton, useSchemaForm } from "./form";
 import { ChoiceField } from "./form-fields";
 import { tableClass, tdClass, thClass } from "./page";
 
+export { mappingSchema, type Preview } from "~/lib/domain/column-mapping-schema";
+
 // The column-mapping step of a drive log whose columns could not be read: a preview of the
 // file's first rows and a choice of columns and units, remembered for the vehicle's next uploads
-// (where they fit the file: app/lib/column-choice.server.ts).
-
-const speedUnits = ["rpm", "rad/s", "deg/s", "rev/s"] as const;
-const blank = (v: unknown) => (v === "" ? undefined : v);
-const column = z.preprocess(blank, z.string().max(200).optional());
-
-export const mappingSchema = z.object({
-  intent: z.literal("map"),
-  timeColumn: column,
-  crankColumn: column,
-  gearboxColumn: column,
-  timeUnit: z.preprocess(blank, z.enum(["s", "ms"]).optional()),
-  crankUnit: z.preprocess(blank, z.enum(speedUnits).optional()),
-  gearboxUnit: z.preprocess(blank, z.enum(speedUnits).optional()),
-});
-
-export interface Preview {
-  header: string[];
-  rows: string[][];
-}
+// (where they fit the file: app/lib/analyses/column-choice.server.ts).
 
 export function ColumnMapping({
   preview,

@@ -8,7 +8,7 @@ import {
   postCommentSchema,
   type CommentsResponse,
   type CommentView,
-} from "~/lib/comment-schema";
+} from "~/lib/domain/comment-schema";
 import type { ChartMarker } from "./charts/types";
 import { CsrfInput } from "./csrf-input";
 import { FormError, SubmitButton, useSchemaForm } from "./form";

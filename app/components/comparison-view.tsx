@@ -1,9 +1,9 @@
 import { Link } from "react-router";
-import type { Comparison } from "~/lib/comparison";
-import { REFERENCE_RULE } from "~/lib/comparison-order";
-import type { ComparedLog } from "~/lib/comparison.server";
-import { conditionLabels } from "~/lib/drive-log-terms";
-import { dbChangeNumber, dbNumber } from "~/lib/format";
+import type { Comparison } from "~/lib/domain/comparison";
+import { REFERENCE_RULE } from "~/lib/domain/comparison-order";
+import type { ComparedLog } from "~/lib/data/comparison.server";
+import { conditionLabels } from "~/lib/domain/drive-log-terms";
+import { dbChangeNumber, dbNumber } from "~/lib/domain/format";
 import { CurveOverlay, overlayStyle } from "./charts";
 import { VerdictCaution } from "./caution-note";
 import { linkClass } from "./form-fields";

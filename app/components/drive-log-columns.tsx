@@ -1,9 +1,9 @@
 import { createColumnHelper, type Column, type Table } from "@tanstack/react-table";
 import { useEffect, useRef } from "react";
 import { Link } from "react-router";
-import { conditionLabels, type LogState } from "~/lib/drive-log-terms";
-import { dbRangeText, radS2Text, rpmRangeText } from "~/lib/format";
-import { gearLabel } from "~/lib/drive-log-terms";
+import { conditionLabels, type LogState } from "~/lib/domain/drive-log-terms";
+import { dbRangeText, radS2Text, rpmRangeText } from "~/lib/domain/format";
+import { gearLabel } from "~/lib/domain/drive-log-terms";
 import { isIdle, type DriveLogTableRow } from "./drive-log-table-state";
 import { linkClass } from "./form-fields";
 import { LogStatus, type LogProgress } from "./log-status";

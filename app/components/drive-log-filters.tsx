@@ -1,6 +1,6 @@
 import { useMemo } from "react";
 import { Form } from "react-router";
-import { conditionLabels, gearLabel, LOG_CONDITIONS } from "~/lib/drive-log-terms";
+import { conditionLabels, gearLabel, LOG_CONDITIONS } from "~/lib/domain/drive-log-terms";
 import { FORM_ID } from "./drive-log-columns";
 import {
   gearKey,

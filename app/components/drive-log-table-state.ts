@@ -1,5 +1,5 @@
 import type { SortingState } from "@tanstack/react-table";
-import type { LogCondition, LogState } from "~/lib/drive-log-terms";
+import type { LogCondition, LogState } from "~/lib/domain/drive-log-terms";
 
 // The drive-log table's rows and its state (filters, sort, page) as URL parameters: pure, so the
 // same rules hold on the server render, in the browser and in the unit tests.

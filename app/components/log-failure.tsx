@@ -1,4 +1,4 @@
-import type { LogError } from "~/lib/drive-log-terms";
+import type { LogError } from "~/lib/domain/drive-log-terms";
 
 /** Error codes about the header, for which the drive-log page offers the column-mapping step. */
 export const MAPPING_CODES = new Set(["missing_channel", "ambiguous_columns", "unknown_column"]);

@@ -1,4 +1,4 @@
-import type { LogState } from "~/lib/drive-log-terms";
+import type { LogState } from "~/lib/domain/drive-log-terms";
 
 /** A drive log's state as the pages poll it (GET /vehicles/:id/status or /api/v1/logs/:id). */
 export interface LogProgress {

@@ -10,7 +10,7 @@ import {
   SHARE_MAX_RECIPIENTS,
   shareStateLabels,
   type ShareSummary,
-} from "~/lib/share-schema";
+} from "~/lib/domain/share-schema";
 import { CsrfInput } from "./csrf-input";
 import { FormError, SubmitButton, useSchemaForm } from "./form";
 import { inputClass, InputField, TextAreaField } from "./form-fields";

@@ -2,7 +2,7 @@ import { getCollectionProps, type SubmissionResult } from "@conform-to/react";
 import { useEffect, useRef, useState } from "react";
 import { Form, Link } from "react-router";
 import type { z } from "zod";
-import { conditionLabels, LOG_CONDITIONS } from "~/lib/drive-log-terms";
+import { conditionLabels, LOG_CONDITIONS } from "~/lib/domain/drive-log-terms";
 import {
   limitText,
   marginText,
@@ -12,8 +12,8 @@ import {
   type Target,
   type TargetInput,
   type TargetVerdict,
-} from "~/lib/targets";
-import { countText } from "~/lib/plural";
+} from "~/lib/domain/targets";
+import { countText } from "~/lib/base/plural";
 import { CsrfInput } from "./csrf-input";
 import { buttonClass, Field, FormError, IntentButton, SubmitButton, useSchemaForm } from "./form";
 import { ChoiceField, fieldsetClass, InputField, legendClass } from "./form-fields";

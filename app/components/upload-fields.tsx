@@ -1,4 +1,4 @@
-import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "~/lib/drive-log-terms";
+import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "~/lib/domain/drive-log-terms";
 import { CsrfInput } from "./csrf-input";
 import { inputClass } from "./form-fields";
 

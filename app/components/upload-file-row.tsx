@@ -1,6 +1,6 @@
 import { useQuery } from "@tanstack/react-query";
 import { Link } from "react-router";
-import type { LogError } from "~/lib/drive-log-terms";
+import type { LogError } from "~/lib/domain/drive-log-terms";
 import { linkClass } from "./form-fields";
 import { canChooseColumns, errorText } from "./log-failure";
 import { LogStatus, type LogProgress } from "./log-status";

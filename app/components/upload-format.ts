@@ -6,7 +6,7 @@ export function formatSize(bytes: number): string {
   return `${bytes} B`;
 }
 
-/** Bytes the server's content check looks at (app/lib/uploads.server.ts): the same rule here. */
+/** Bytes the server's content check looks at (app/lib/http/uploads.server.ts): the same rule here. */
 const SNIFF_BYTES = 64 * 1024;
 
 /**

@@ -6,7 +6,7 @@ import {
   type Fuel,
   type IngestMapping,
   type TransmissionType,
-} from "~/lib/drive-log-terms";
+} from "~/lib/domain/drive-log-terms";
 import { Card } from "./page";
 import { fuelLabels } from "./vehicle-form";
 

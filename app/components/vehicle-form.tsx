@@ -8,9 +8,9 @@ import {
   RATTLE_LIMIT_SOURCE,
   TRANSMISSION_TYPES,
   transmissionLabels,
-} from "~/lib/drive-log-terms";
+} from "~/lib/domain/drive-log-terms";
 import { z } from "zod";
-import { vehicleSchema } from "~/lib/vehicle-schema";
+import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { CsrfInput } from "./csrf-input";
 import { FormError, SubmitButton, useSchemaForm } from "./form";
 import {

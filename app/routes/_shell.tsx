@@ -1,8 +1,8 @@
 import { Outlet, useLoaderData } from "react-router";
 import { AppHeader } from "~/components/app-header";
 import { mainProps, SkipLink } from "~/components/skip-link";
-import { usingFakeMail } from "~/lib/mail.server";
-import { getCurrentUser } from "~/lib/permissions.server";
+import { usingFakeMail } from "~/lib/infra/mail.server";
+import { getCurrentUser } from "~/lib/http/permissions.server";
 import type { Route } from "./+types/_shell";
 
 /** The header needs to know who is signed in; pages check permissions themselves. */

@@ -3,16 +3,16 @@ import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
 import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
-import { audit } from "~/lib/audit.server";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { acceptInvitation, findInvitation, InvitationProblem } from "~/lib/invitations.server";
-import { verifyPassword } from "~/lib/password.server";
-import { invariantResponse } from "~/lib/permissions.server";
-import { clientIp } from "~/lib/request.server";
-import { roleLabels } from "~/lib/roles";
-import { startSession } from "~/lib/session.server";
-import { nameField, newPasswordField, passwordField } from "~/lib/validation";
+import { audit } from "~/lib/data/audit.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { acceptInvitation, findInvitation, InvitationProblem } from "~/lib/data/invitations.server";
+import { verifyPassword } from "~/lib/infra/password.server";
+import { invariantResponse } from "~/lib/http/permissions.server";
+import { clientIp } from "~/lib/http/request.server";
+import { roleLabels } from "~/lib/domain/roles";
+import { startSession } from "~/lib/http/session.server";
+import { nameField, newPasswordField, passwordField } from "~/lib/domain/validation";
 import type { Route } from "./+types/accept-invitation";
 
 // A new colleague chooses a name and password; someone with an account already confirms theirs.

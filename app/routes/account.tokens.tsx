@@ -25,13 +25,13 @@ import {
   listApiTokens,
   listTeamApiTokens,
   revokeApiToken,
-} from "~/lib/api-tokens.server";
-import { audit } from "~/lib/audit.server";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { invariantResponse, requireTeamRole, requireUser } from "~/lib/permissions.server";
-import { clientIp } from "~/lib/request.server";
-import { atLeast } from "~/lib/roles";
+} from "~/lib/data/api-tokens.server";
+import { audit } from "~/lib/data/audit.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { invariantResponse, requireTeamRole, requireUser } from "~/lib/http/permissions.server";
+import { clientIp } from "~/lib/http/request.server";
+import { atLeast } from "~/lib/domain/roles";
 import type { Route } from "./+types/account.tokens";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { ScrollArea } from "~/components/scroll-area";

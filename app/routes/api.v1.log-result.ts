@@ -1,7 +1,7 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
-import { apiError } from "~/lib/api.server";
-import { idParam } from "~/lib/params";
-import { vehicleData } from "~/lib/vehicles.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
+import { apiError } from "~/lib/http/api.server";
+import { idParam } from "~/lib/http/params";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.log-result";
 
 /** GET /api/v1/logs/:logId/result → the stored result JSON of the latest analysis (404 until done). */

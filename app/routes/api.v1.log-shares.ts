@@ -1,11 +1,11 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
-import { apiError } from "~/lib/api.server";
-import { audit } from "~/lib/audit.server";
-import { idParam } from "~/lib/params";
-import { appOrigin, clientIp } from "~/lib/request.server";
-import { apiCreateShareSchema } from "~/lib/share-schema";
-import { auditActor, createShare, listShares, shareUrl } from "~/lib/shares.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
+import { apiError } from "~/lib/http/api.server";
+import { audit } from "~/lib/data/audit.server";
+import { idParam } from "~/lib/http/params";
+import { appOrigin, clientIp } from "~/lib/http/request.server";
+import { apiCreateShareSchema } from "~/lib/domain/share-schema";
+import { auditActor, createShare, listShares, shareUrl } from "~/lib/data/shares.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.log-shares";
 
 const noStore = { "Cache-Control": "no-store" };

@@ -1,7 +1,7 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
-import { logJson } from "~/lib/api-json.server";
-import { idParam } from "~/lib/params";
-import { vehicleData } from "~/lib/vehicles.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
+import { logJson } from "~/lib/http/api-json.server";
+import { idParam } from "~/lib/http/params";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.log";
 
 /** GET /api/v1/logs/:logId → { log: { id, vehicleId, status, progress, error, … } }. */

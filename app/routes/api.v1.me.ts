@@ -1,4 +1,4 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
 import type { Route } from "./+types/api.v1.me";
 
 /**

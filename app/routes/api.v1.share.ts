@@ -1,10 +1,10 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
-import { apiError } from "~/lib/api.server";
-import { audit } from "~/lib/audit.server";
-import { idParam } from "~/lib/params";
-import { clientIp } from "~/lib/request.server";
-import { SHARE_MAX_DAYS } from "~/lib/share-schema";
-import { auditActor, extendShare, getShare, revokeShare } from "~/lib/shares.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
+import { apiError } from "~/lib/http/api.server";
+import { audit } from "~/lib/data/audit.server";
+import { idParam } from "~/lib/http/params";
+import { clientIp } from "~/lib/http/request.server";
+import { SHARE_MAX_DAYS } from "~/lib/domain/share-schema";
+import { auditActor, extendShare, getShare, revokeShare } from "~/lib/data/shares.server";
 import type { Route } from "./+types/api.v1.share";
 
 const noStore = { "Cache-Control": "no-store" };

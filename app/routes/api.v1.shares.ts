@@ -1,6 +1,6 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
-import { apiError } from "~/lib/api.server";
-import { listShares } from "~/lib/shares.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
+import { apiError } from "~/lib/http/api.server";
+import { listShares } from "~/lib/data/shares.server";
 import type { Route } from "./+types/api.v1.shares";
 
 /**

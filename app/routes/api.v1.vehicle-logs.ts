@@ -1,10 +1,10 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
-import { logJson } from "~/lib/api-json.server";
-import { apiError } from "~/lib/api.server";
-import { idParam } from "~/lib/params";
-import { blobStore, uploadMaxBytes } from "~/lib/upload-settings.server";
-import { discardBody, recordUpload, UploadError } from "~/lib/uploads.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
+import { logJson } from "~/lib/http/api-json.server";
+import { apiError } from "~/lib/http/api.server";
+import { idParam } from "~/lib/http/params";
+import { blobStore, uploadMaxBytes } from "~/lib/infra/storage-settings.server";
+import { discardBody, recordUpload, UploadError } from "~/lib/http/uploads.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.vehicle-logs";
 
 const noStore = { "Cache-Control": "no-store" };

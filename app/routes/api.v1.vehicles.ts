@@ -1,8 +1,8 @@
-import { apiRoute, requireApiAccess } from "~/lib/api-access.server";
-import { vehicleJson } from "~/lib/api-json.server";
-import { apiError } from "~/lib/api.server";
-import { vehicleSchema } from "~/lib/vehicle-schema";
-import { vehicleData } from "~/lib/vehicles.server";
+import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
+import { vehicleJson } from "~/lib/http/api-json.server";
+import { apiError } from "~/lib/http/api.server";
+import { vehicleSchema } from "~/lib/domain/vehicle-schema";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.vehicles";
 
 const noStore = { "Cache-Control": "no-store" };

@@ -1,18 +1,18 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { conditionLabels } from "~/lib/drive-log-terms";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { conditionLabels } from "~/lib/domain/drive-log-terms";
 import {
   deleteCommentSchema,
   parseCommentSubject,
   postCommentSchema,
   type CommentSubject,
-} from "~/lib/comment-schema";
-import { commentData } from "~/lib/comments.server";
-import { idParam } from "~/lib/params";
-import { requireTeamRole } from "~/lib/permissions.server";
-import { plural } from "~/lib/plural";
-import { appOrigin } from "~/lib/request.server";
+} from "~/lib/domain/comment-schema";
+import { commentData } from "~/lib/data/comments.server";
+import { idParam } from "~/lib/http/params";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import { plural } from "~/lib/base/plural";
+import { appOrigin } from "~/lib/http/request.server";
 import type { Route } from "./+types/comments";
 
 /**

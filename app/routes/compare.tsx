@@ -4,13 +4,13 @@ import { ComparisonView } from "~/components/comparison-view";
 import { SharePanel } from "~/components/share-panel";
 import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
-import { compareIsolation } from "~/lib/comparison";
-import { comparisonLogs } from "~/lib/comparison.server";
-import { curvesForLogs, parseLogIds } from "~/lib/curves.server";
-import { idParam } from "~/lib/params";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
-import { atLeast } from "~/lib/roles";
-import { vehicleData } from "~/lib/vehicles.server";
+import { compareIsolation } from "~/lib/domain/comparison";
+import { comparisonLogs } from "~/lib/data/comparison.server";
+import { curvesForLogs, parseLogIds } from "~/lib/data/curves.server";
+import { idParam } from "~/lib/http/params";
+import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
+import { atLeast } from "~/lib/domain/roles";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/compare";
 
 export const meta = ({ data }: Route.MetaArgs) => [
@@ -19,7 +19,7 @@ export const meta = ({ data }: Route.MetaArgs) => [
 
 /**
  * /vehicles/:vehicleId/compare?logs=ID,ID[,ID…]: two to eight drive logs of one vehicle. The
- * reference follows one rule (app/lib/comparison-order.ts), not the order of `logs`, so every way
+ * reference follows one rule (app/lib/domain/comparison-order.ts), not the order of `logs`, so every way
  * into a comparison reads the same. The URL is the comparison: it can be bookmarked and shared.
  */
 export async function loader({ request, params }: Route.LoaderArgs) {

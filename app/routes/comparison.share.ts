@@ -1,8 +1,12 @@
-import { parseLogIds } from "~/lib/curves.server";
-import { idParam } from "~/lib/params";
-import { invariantResponse } from "~/lib/permissions.server";
-import { sharePanelAction, sharePanelLoader, type SubjectResolver } from "~/lib/share-panel.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { parseLogIds } from "~/lib/data/curves.server";
+import { idParam } from "~/lib/http/params";
+import { invariantResponse } from "~/lib/http/permissions.server";
+import {
+  sharePanelAction,
+  sharePanelLoader,
+  type SubjectResolver,
+} from "~/lib/http/share-actions.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/comparison.share";
 
 /**

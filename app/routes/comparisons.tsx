@@ -2,10 +2,10 @@ import { Link, useLoaderData } from "react-router";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
 import { Card, EmptyState, PageHeader } from "~/components/page";
-import { suggestedPairs } from "~/lib/comparison-order";
-import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "~/lib/drive-log-terms";
-import { requireTeamRole } from "~/lib/permissions.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { suggestedPairs } from "~/lib/domain/comparison-order";
+import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "~/lib/domain/drive-log-terms";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/comparisons";
 
 export const meta = () => [{ title: "Comparisons · Twistlog" }];
@@ -21,7 +21,7 @@ interface Suggestion {
 /**
  * /comparisons: ready-made before/after pairs: for each vehicle, condition and gear, every pair
  * of damper variants with analysed drive logs, reference first (suggestedPairs in
- * app/lib/comparison-order.ts: stable, a file uploaded again is no new candidate). Any other set
+ * app/lib/domain/comparison-order.ts: stable, a file uploaded again is no new candidate). Any other set
  * is picked on the vehicle page.
  */
 export async function loader({ request }: Route.LoaderArgs) {

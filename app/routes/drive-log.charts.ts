@@ -1,13 +1,13 @@
-import { chartsBody } from "~/lib/chart-data.server";
-import { analysisParam } from "~/lib/analysis-param";
-import { idParam } from "~/lib/params";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { chartsBody } from "~/lib/analyses/chart-bodies.server";
+import { analysisParam } from "~/lib/http/analysis-param";
+import { idParam } from "~/lib/http/params";
+import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/drive-log.charts";
 
 /**
  * GET /vehicles/:vehicleId/logs/:logId/charts.json: the chart data of the latest analysis
- * (app/lib/chart-data.ts), for the drive-log and rattle-check pages (viewer and up);
+ * (app/lib/domain/chart-data.ts), for the drive-log and rattle-check pages (viewer and up);
  * `?analysis=<id>` gives an earlier version of this drive log (404 for any other id).
  * 404 with { error } until an analysis has finished.
  */

@@ -1,7 +1,7 @@
-import { idParam } from "~/lib/params";
-import { requireTeamRole } from "~/lib/permissions.server";
-import { rawFileResponse } from "~/lib/raw-file.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { idParam } from "~/lib/http/params";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import { rawFileResponse } from "~/lib/http/raw-file.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/drive-log.file";
 
 /** GET /vehicles/:vehicleId/logs/:logId/file: the raw drive log as uploaded, streamed (viewer and up). */

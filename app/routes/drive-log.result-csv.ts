@@ -1,7 +1,7 @@
-import { idParam } from "~/lib/params";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
-import { resultCsv } from "~/lib/result-csv";
-import { vehicleData } from "~/lib/vehicles.server";
+import { idParam } from "~/lib/http/params";
+import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
+import { resultCsv } from "~/lib/domain/result-csv";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/drive-log.result-csv";
 
 /** GET /vehicles/:vehicleId/logs/:logId/result.csv: the latest analysis' curves as CSV (viewer and up). */

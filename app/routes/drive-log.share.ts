@@ -1,12 +1,16 @@
-import { idParam } from "~/lib/params";
-import { sharePanelAction, sharePanelLoader, type SubjectResolver } from "~/lib/share-panel.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { idParam } from "~/lib/http/params";
+import {
+  sharePanelAction,
+  sharePanelLoader,
+  type SubjectResolver,
+} from "~/lib/http/share-actions.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/drive-log.share";
 
 /**
  * /vehicles/:vehicleId/logs/:logId/share — the share panel's resource route (engineer and up).
  * GET: the drive log's share links as JSON { shares }. POST (form, CSRF token): intent create,
- * extend, revoke or email (app/lib/share-panel.server.ts).
+ * extend, revoke or email (app/lib/http/share-actions.server.ts).
  */
 function subjectOf(params: Route.LoaderArgs["params"]): SubjectResolver {
   return async (current) => {

@@ -1,6 +1,6 @@
-import { describeDbError } from "~/lib/db-errors.server";
-import { pingDatabase } from "~/lib/db.server";
-import { getEnv } from "~/lib/env.server";
+import { describeDbError } from "~/lib/infra/db-errors.server";
+import { pingDatabase } from "~/lib/infra/db.server";
+import { getEnv } from "~/lib/infra/env.server";
 
 const headers = { "Cache-Control": "no-store" };
 

@@ -1,6 +1,6 @@
 import { data, Link, useLoaderData } from "react-router";
 import { buttonLinkClass, linkClass } from "~/components/form-fields";
-import { getCurrentUser } from "~/lib/permissions.server";
+import { getCurrentUser } from "~/lib/http/permissions.server";
 import type { Route } from "./+types/not-found";
 
 /**

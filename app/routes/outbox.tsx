@@ -1,10 +1,10 @@
 import { useLoaderData } from "react-router";
 import { EmptyState, PageHeader, When } from "~/components/page";
-import { getEnv } from "~/lib/env.server";
-import { readStoredMail, type StoredMail } from "~/lib/fake-smtp.server";
-import { usingFakeMail } from "~/lib/mail.server";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
-import { teamData } from "~/lib/team-data.server";
+import { getEnv } from "~/lib/infra/env.server";
+import { readStoredMail, type StoredMail } from "~/lib/infra/fake-smtp.server";
+import { usingFakeMail } from "~/lib/infra/mail.server";
+import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
+import { teamData } from "~/lib/data/team-data.server";
 import type { Route } from "./+types/outbox";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 

@@ -6,13 +6,13 @@ import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { linkClass } from "~/components/form-fields";
 import { Card, EmptyState, tableClass, tdClass, thClass } from "~/components/page";
-import { conditionLabels, RATTLE_LIMIT_SOURCE } from "~/lib/drive-log-terms";
-import { radS2Number, radS2Text, rpmText, secondsNumber, secondsText } from "~/lib/format";
-import { idParam } from "~/lib/params";
-import { requireTeamRole } from "~/lib/permissions.server";
-import { rattleReading } from "~/lib/rattle-reading";
-import { targetData } from "~/lib/targets.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { conditionLabels, RATTLE_LIMIT_SOURCE } from "~/lib/domain/drive-log-terms";
+import { radS2Number, radS2Text, rpmText, secondsNumber, secondsText } from "~/lib/domain/format";
+import { idParam } from "~/lib/http/params";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import { rattleReading } from "~/lib/domain/rattle-reading";
+import { targetData } from "~/lib/data/targets.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/rattle";
 
 export const meta = ({ data }: Route.MetaArgs) => [

@@ -3,13 +3,13 @@ import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
 import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
-import { audit } from "~/lib/audit.server";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { completePasswordReset, findPasswordReset } from "~/lib/password-reset.server";
-import { invariantResponse } from "~/lib/permissions.server";
-import { clientIp } from "~/lib/request.server";
-import { newPasswordField } from "~/lib/validation";
+import { audit } from "~/lib/data/audit.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { completePasswordReset, findPasswordReset } from "~/lib/data/password-reset.server";
+import { invariantResponse } from "~/lib/http/permissions.server";
+import { clientIp } from "~/lib/http/request.server";
+import { newPasswordField } from "~/lib/domain/validation";
 import type { Route } from "./+types/reset-password";
 
 const schema = z

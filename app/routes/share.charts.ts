@@ -1,6 +1,11 @@
-import { chartsBody } from "~/lib/chart-data.server";
-import { shareForJson, shareHeaders, shareJsonError, sharedLogFor } from "~/lib/share-page.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { chartsBody } from "~/lib/analyses/chart-bodies.server";
+import {
+  shareForJson,
+  shareHeaders,
+  shareJsonError,
+  sharedLogFor,
+} from "~/lib/http/share-link.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/share.charts";
 
 /**

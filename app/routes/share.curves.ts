@@ -1,6 +1,6 @@
-import { curvesForLogs, parseLogIds } from "~/lib/curves.server";
-import { shareForJson, shareHeaders, shareJsonError } from "~/lib/share-page.server";
-import { sharedLogIds } from "~/lib/shares.server";
+import { curvesForLogs, parseLogIds } from "~/lib/data/curves.server";
+import { shareForJson, shareHeaders, shareJsonError } from "~/lib/http/share-link.server";
+import { sharedLogIds } from "~/lib/data/shares.server";
 import type { Route } from "./+types/share.curves";
 
 /**

@@ -1,5 +1,10 @@
-import { rawFileResponse } from "~/lib/raw-file.server";
-import { shareForJson, shareHeaders, shareJsonError, sharedLogFor } from "~/lib/share-page.server";
+import { rawFileResponse } from "~/lib/http/raw-file.server";
+import {
+  shareForJson,
+  shareHeaders,
+  shareJsonError,
+  sharedLogFor,
+} from "~/lib/http/share-link.server";
 import type { Route } from "./+types/share.file";
 
 /**

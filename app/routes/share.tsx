@@ -5,10 +5,10 @@ import { ComparisonView } from "~/components/comparison-view";
 import { LogoMark } from "~/components/logo-mark";
 import { mainProps, SkipLink } from "~/components/skip-link";
 import { Card, When } from "~/components/page";
-import { conditionLabels, gearLabel } from "~/lib/drive-log-terms";
-import { countShareView } from "~/lib/shares.server";
-import { requireShareForPage, shareHeaders, sharedPageData } from "~/lib/share-page.server";
-import { NOT_FOUND_MESSAGE, UNAVAILABLE_MESSAGE } from "~/lib/share-schema";
+import { conditionLabels, gearLabel } from "~/lib/domain/drive-log-terms";
+import { countShareView } from "~/lib/data/shares.server";
+import { requireShareForPage, shareHeaders, sharedPageData } from "~/lib/http/share-link.server";
+import { NOT_FOUND_MESSAGE, UNAVAILABLE_MESSAGE } from "~/lib/domain/share-schema";
 import type { Route } from "./+types/share";
 
 /**

@@ -3,13 +3,13 @@ import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
 import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
-import { authenticateWithPassword, SignInRefused } from "~/lib/auth.server";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { getCurrentUser } from "~/lib/permissions.server";
-import { clientIp, safeRedirect } from "~/lib/request.server";
-import { startSession } from "~/lib/session.server";
-import { emailField, passwordField } from "~/lib/validation";
+import { authenticateWithPassword, SignInRefused } from "~/lib/http/auth.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { getCurrentUser } from "~/lib/http/permissions.server";
+import { clientIp, safeRedirect } from "~/lib/http/request.server";
+import { startSession } from "~/lib/http/session.server";
+import { emailField, passwordField } from "~/lib/domain/validation";
 import type { Route } from "./+types/sign-in";
 
 const schema = z.object({

@@ -1,10 +1,10 @@
 import { redirect } from "react-router";
-import { audit } from "~/lib/audit.server";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { getCurrentUser } from "~/lib/permissions.server";
-import { clientIp } from "~/lib/request.server";
-import { endSession } from "~/lib/session.server";
+import { audit } from "~/lib/data/audit.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { getCurrentUser } from "~/lib/http/permissions.server";
+import { clientIp } from "~/lib/http/request.server";
+import { endSession } from "~/lib/http/session.server";
 import type { Route } from "./+types/sign-out";
 
 // Signing out changes state, so it is a POST with the CSRF token (a link could be forged).

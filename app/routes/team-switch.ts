@@ -1,9 +1,9 @@
 import { redirect } from "react-router";
 import { z } from "zod";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { invariantResponse, requireRole } from "~/lib/permissions.server";
-import { setSessionTeam } from "~/lib/session.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { invariantResponse, requireRole } from "~/lib/http/permissions.server";
+import { setSessionTeam } from "~/lib/http/session.server";
 import type { Route } from "./+types/team-switch";
 
 const schema = z.object({ teamId: z.coerce.number().int().positive() });

@@ -4,9 +4,9 @@ import { z } from "zod";
 import { inputClass, linkClass } from "~/components/form-fields";
 import { EmptyState, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
 import { ScrollArea } from "~/components/scroll-area";
-import { requireTeamRole } from "~/lib/permissions.server";
-import type { AuditAction } from "~/lib/audit.server";
-import { teamData } from "~/lib/team-data.server";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import type { AuditAction } from "~/lib/data/audit.server";
+import { teamData } from "~/lib/data/team-data.server";
 import type { Route } from "./+types/team.audit";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 

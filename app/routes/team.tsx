@@ -20,15 +20,15 @@ import {
   thClass,
   When,
 } from "~/components/page";
-import { audit } from "~/lib/audit.server";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { inviteToTeam, InvitationProblem } from "~/lib/invitations.server";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
-import { appOrigin, clientIp } from "~/lib/request.server";
-import { atLeast, roleHints, roleLabels, ROLES } from "~/lib/roles";
-import { teamData } from "~/lib/team-data.server";
-import { emailField, roleField } from "~/lib/validation";
+import { audit } from "~/lib/data/audit.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { inviteToTeam, InvitationProblem } from "~/lib/data/invitations.server";
+import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
+import { appOrigin, clientIp } from "~/lib/http/request.server";
+import { atLeast, roleHints, roleLabels, ROLES } from "~/lib/domain/roles";
+import { teamData } from "~/lib/data/team-data.server";
+import { emailField, roleField } from "~/lib/domain/validation";
 import type { Route } from "./+types/team";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { ScrollArea } from "~/components/scroll-area";

@@ -1,7 +1,7 @@
-import { curvesForLogs, parseLogIds } from "~/lib/curves.server";
-import { idParam } from "~/lib/params";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { curvesForLogs, parseLogIds } from "~/lib/data/curves.server";
+import { idParam } from "~/lib/http/params";
+import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicle.curves";
 
 /**

@@ -1,6 +1,6 @@
-import { idParam } from "~/lib/params";
-import { requireTeamRole } from "~/lib/permissions.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import { idParam } from "~/lib/http/params";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicle.status";
 
 /**

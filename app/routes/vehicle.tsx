@@ -25,20 +25,26 @@ import { TargetsCard, type TargetFormReply, type TargetSummary } from "~/compone
 import { UploadPanel } from "~/components/upload-panel";
 import { useLogProgress } from "~/components/use-log-progress";
 import { VehicleCard } from "~/components/vehicle-card";
-import { audit } from "~/lib/audit.server";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { idParam } from "~/lib/params";
-import { invariantResponse, requireTeamRole } from "~/lib/permissions.server";
-import { countText, plural } from "~/lib/plural";
-import { clientIp } from "~/lib/request.server";
-import { atLeast } from "~/lib/roles";
+import { audit } from "~/lib/data/audit.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { idParam } from "~/lib/http/params";
+import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
+import { countText, plural } from "~/lib/base/plural";
+import { clientIp } from "~/lib/http/request.server";
+import { atLeast } from "~/lib/domain/roles";
 import { firingOrder } from "~/lib/signal/firing-order";
-import { limitText, marginText, scopeText, targetSchema, type TargetVerdict } from "~/lib/targets";
-import { targetData, toTarget } from "~/lib/targets.server";
-import { vehicleData } from "~/lib/vehicles.server";
+import {
+  limitText,
+  marginText,
+  scopeText,
+  targetSchema,
+  type TargetVerdict,
+} from "~/lib/domain/targets";
+import { targetData, toTarget } from "~/lib/data/targets.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicle";
-import { uploadFromForm } from "./vehicle.upload.server";
+import { uploadFromForm } from "../lib/http/form-upload.server";
 
 export const meta = ({ data }: Route.MetaArgs) => [
   { title: `${data?.vehicle.identifier ?? "Vehicle"} · Twistlog` },

@@ -3,12 +3,12 @@ import { data, redirect, useActionData } from "react-router";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { PageHeader } from "~/components/page";
 import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/vehicle-form";
-import { assertCsrf } from "~/lib/csrf.server";
-import { readForm } from "~/lib/forms.server";
-import { requireTeamRole } from "~/lib/permissions.server";
-import { vehicleData } from "~/lib/vehicles.server";
-import { audit } from "~/lib/audit.server";
-import { clientIp } from "~/lib/request.server";
+import { assertCsrf } from "~/lib/http/csrf.server";
+import { readForm } from "~/lib/http/forms.server";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
+import { audit } from "~/lib/data/audit.server";
+import { clientIp } from "~/lib/http/request.server";
 import type { Route } from "./+types/vehicles.new";
 
 export const meta = () => [{ title: "Add a vehicle · Twistlog" }];

@@ -3,11 +3,11 @@ import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { buttonLinkClass, linkClass } from "~/components/form-fields";
 import { Card, EmptyState, PageHeader, tableClass, tdClass, thClass } from "~/components/page";
 import { fuelLabels } from "~/components/vehicle-form";
-import { damperLabels } from "~/lib/drive-log-terms";
-import { requireTeamRole } from "~/lib/permissions.server";
-import { atLeast } from "~/lib/roles";
+import { damperLabels } from "~/lib/domain/drive-log-terms";
+import { requireTeamRole } from "~/lib/http/permissions.server";
+import { atLeast } from "~/lib/domain/roles";
 import { firingOrder } from "~/lib/signal/firing-order";
-import { vehicleData } from "~/lib/vehicles.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicles";
 import { ScrollArea } from "~/components/scroll-area";
 

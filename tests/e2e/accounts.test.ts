@@ -1,9 +1,9 @@
 import { eq } from "drizzle-orm";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { memberships, users } from "~/db/schema";
-import { db, pool } from "~/lib/db.server";
-import { THROTTLE } from "~/lib/throttle.server";
+import { memberships, users } from "~/lib/infra/db/schema";
+import { db, pool } from "~/lib/infra/db.server";
+import { THROTTLE } from "~/lib/infra/throttle.server";
 import { createTestTeam, TEST_PASSWORD } from "../support/accounts";
 import { linkIn, newestMailTo } from "../support/http-client";
 import { baseUrl, launchBrowser } from "./browser";

@@ -7,7 +7,7 @@ import { signIn, snap } from "./sign-in";
 // Issue 11 §3.2 in Chromium against the seeded demo (the Kestrel programme, scripts/seed.ts):
 // every way into the comparison of KST-D4's two run-ups (damper A, the vehicle's fitted variant,
 // tested 4 Nov; damper B, tested 18 Nov) reads the same way round: the same reference, the same
-// verdict sentence. The rule is in app/lib/comparison-order.ts and README "Comparison".
+// verdict sentence. The rule is in app/lib/domain/comparison-order.ts and README "Comparison".
 
 let browser: Browser;
 let page: Page;

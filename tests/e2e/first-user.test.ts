@@ -188,7 +188,7 @@ describe("plain words for readers", () => {
     const vehicle = (await (
       await page.request.get(`${baseUrl}/api/v1/vehicles/${log!.vehicleId}`)
     ).json()) as { vehicle: { damperVariant: string } };
-    // The seeded vehicle is fitted with variant A (app/db/demo-drive-logs.server.ts).
+    // The seeded vehicle is fitted with variant A (app/demo/demo-drive-logs.server.ts).
     expect(vehicle.vehicle.damperVariant).not.toBe("B");
     const codes = await warningCodes(page, log!.id);
     const made = await page.request.post(`${baseUrl}/api/v1/logs/${log!.id}/shares`, {

@@ -1,9 +1,9 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { pool } from "~/lib/db.server";
-import { createApiToken } from "~/lib/api-tokens.server";
-import { vehicleData } from "~/lib/vehicles.server";
-import { vehicleSchema } from "~/lib/vehicle-schema";
+import { pool } from "~/lib/infra/db.server";
+import { createApiToken } from "~/lib/data/api-tokens.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
+import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
 import { baseUrl, launchBrowser } from "./browser";

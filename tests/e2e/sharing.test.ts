@@ -1,10 +1,10 @@
 import { eq } from "drizzle-orm";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { memberships, users } from "~/db/schema";
-import { shares } from "~/db/schema-results";
-import { createApiToken } from "~/lib/api-tokens.server";
-import { db, pool } from "~/lib/db.server";
+import { memberships, users } from "~/lib/infra/db/schema";
+import { shares } from "~/lib/infra/db/schema-results";
+import { createApiToken } from "~/lib/data/api-tokens.server";
+import { db, pool } from "~/lib/infra/db.server";
 import { HttpClient, linkIn, newestMailTo } from "../support/http-client";
 import { baseUrl, launchBrowser } from "./browser";
 import { DEMO_PASSWORD, signIn, snap } from "./sign-in";
@@ -349,7 +349,7 @@ describe("a comparison's share link in the browser", () => {
         headers: { Cookie: engineer.cookieHeader() },
       })
     ).json()) as { logs: { id: number }[] };
-    // KST-D4 has more demo drive logs than the two compared (app/db/demo-drive-logs.server.ts).
+    // KST-D4 has more demo drive logs than the two compared (app/demo/demo-drive-logs.server.ts).
     const outside = logs.find((l) => l.id !== logId && l.id !== otherLogId);
     expect(outside).toBeDefined();
     expect(

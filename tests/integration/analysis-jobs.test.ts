@@ -11,19 +11,19 @@ import {
   driveLogs,
   isolationPoints,
   orderCurvePoints,
-} from "~/db/schema-drive-logs";
-import { localBlobStore } from "~/lib/storage.server";
-import { vehicleSchema } from "~/lib/vehicle-schema";
-import { createAnalysisPool } from "~/lib/worker-pool.server";
+} from "~/lib/infra/db/schema-drive-logs";
+import { localBlobStore } from "~/lib/infra/storage.server";
+import { vehicleSchema } from "~/lib/domain/vehicle-schema";
+import { createAnalysisPool } from "~/lib/infra/worker-pool.server";
 import { analyticIdleCsv } from "../support/analytic-log";
 import { useScratchDatabase } from "../support/scratch-db";
 
 // A database of its own: runners of other test files' servers must not take these jobs.
 const scratch = await useScratchDatabase("jobs");
 const { claimJob, MAX_ATTEMPTS, STALE_AFTER_MS, startJobRunner } =
-  await import("~/lib/analysis-jobs.server");
-const { db, pool } = await import("~/lib/db.server");
-const { vehicleData } = await import("~/lib/vehicles.server");
+  await import("~/lib/analyses/analysis-jobs.server");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
 const { createTestTeam } = await import("../support/accounts");
 
 // The job queue against the real MariaDB with a real worker pool: saving is all or nothing, a

@@ -2,11 +2,11 @@ import { eq } from "drizzle-orm";
 import { Readable } from "node:stream";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { analyses, analysisJobs, driveLogs } from "~/db/schema-drive-logs";
+import { analyses, analysisJobs, driveLogs } from "~/lib/infra/db/schema-drive-logs";
 import { analyseSource } from "~/lib/signal";
-import { localBlobStore } from "~/lib/storage.server";
-import { vehicleSchema } from "~/lib/vehicle-schema";
-import { createAnalysisPool } from "~/lib/worker-pool.server";
+import { localBlobStore } from "~/lib/infra/storage.server";
+import { vehicleSchema } from "~/lib/domain/vehicle-schema";
+import { createAnalysisPool } from "~/lib/infra/worker-pool.server";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
 import { startServer } from "../support/processes";
 import { useJobTestbed } from "../support/scratch-db";
@@ -14,10 +14,10 @@ import { useJobTestbed } from "../support/scratch-db";
 // A database and storage of its own: no other server's runner may take these jobs.
 const testbed = await useJobTestbed("workerfaults");
 const { claimJob, failJob, retryJob, saveAnalysis, STALE_AFTER_MS, startJobRunner } =
-  await import("~/lib/analysis-jobs.server");
-const { db, pool } = await import("~/lib/db.server");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { createApiToken } = await import("~/lib/api-tokens.server");
+  await import("~/lib/analyses/analysis-jobs.server");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { createApiToken } = await import("~/lib/data/api-tokens.server");
 const { createTestTeam } = await import("../support/accounts");
 
 // A worker that throws or runs out of memory on one file fails that job with a message, and

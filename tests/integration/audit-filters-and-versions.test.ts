@@ -8,11 +8,11 @@ import { useJobTestbed } from "../support/scratch-db";
 // drive log opened read-only at ?analysis=<id>. A database of its own, because the test
 // re-analyses a drive log and other files' job runners must not take the job.
 const testbed = await useJobTestbed("audit_versions");
-const { db, pool } = await import("~/lib/db.server");
-const { auditEvents } = await import("~/db/schema");
-const { audit } = await import("~/lib/audit.server");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { auditEvents } = await import("~/lib/infra/db/schema");
+const { audit } = await import("~/lib/data/audit.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 

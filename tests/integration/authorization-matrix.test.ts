@@ -26,16 +26,16 @@ import {
 // nothing of a team the caller may not see, and, for a write that is refused, that nothing changed.
 
 const testbed = await useJobTestbed("matrix");
-const { db, pool } = await import("~/lib/db.server");
-const { users, memberships } = await import("~/db/schema");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
-const { createApiToken } = await import("~/lib/api-tokens.server");
-const { createShare, revokeShare } = await import("~/lib/shares.server");
-const { commentData } = await import("~/lib/comments.server");
-const { parseCommentSubject } = await import("~/lib/comment-schema");
-const { targetData } = await import("~/lib/targets.server");
-const { startSession } = await import("~/lib/session.server");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { users, memberships } = await import("~/lib/infra/db/schema");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
+const { createApiToken } = await import("~/lib/data/api-tokens.server");
+const { createShare, revokeShare } = await import("~/lib/data/shares.server");
+const { commentData } = await import("~/lib/data/comments.server");
+const { parseCommentSubject } = await import("~/lib/domain/comment-schema");
+const { targetData } = await import("~/lib/data/targets.server");
+const { startSession } = await import("~/lib/http/session.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 

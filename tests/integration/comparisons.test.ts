@@ -7,13 +7,13 @@ import { useScratchDatabase } from "../support/scratch-db";
 // analyses are seeded as rows (no job runner), with flat isolation curves whose band means and
 // difference are known by construction. A database of this file's own (tests/support/scratch-db.ts).
 const scratch = await useScratchDatabase("compare");
-const { db, pool } = await import("~/lib/db.server");
-const { analyses, driveLogs, isolationPoints } = await import("~/db/schema-drive-logs");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { analyses, driveLogs, isolationPoints } = await import("~/lib/infra/db/schema-drive-logs");
 const { eq } = await import("drizzle-orm");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
-const { createShare } = await import("~/lib/shares.server");
-const sharePage = await import("~/lib/share-page.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
+const { createShare } = await import("~/lib/data/shares.server");
+const sharePage = await import("~/lib/http/share-link.server");
 const { createTestTeam } = await import("../support/accounts");
 const { directClient, run } = await import("../support/direct-requests");
 const compareRoute = await import("~/routes/compare");
@@ -124,7 +124,7 @@ describe("the reference of a comparison (issue 11 §3.2)", () => {
   let vehicleId: number;
   const ids = { a: 0, b: 0 };
   // Flat curves: variant A isolates 10 dB, variant B 14 dB from 1000 to 3000 rpm, so B is 4.0 dB
-  // better in every 250 rpm band (mean of equal values; rule in app/lib/comparison.ts).
+  // better in every 250 rpm band (mean of equal values; rule in app/lib/domain/comparison.ts).
   const expectedVerdict =
     "Variant B isolates 4.0 dB more between 1000 and 3000 rpm than variant A.";
 

@@ -4,10 +4,10 @@ import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { applyMigrations } from "~/db/migrate.server";
-import { connectionOptions } from "~/lib/db-options.server";
-import { getEnv } from "~/lib/env.server";
-import { vehicleSchema } from "~/lib/vehicle-schema";
+import { applyMigrations } from "~/lib/infra/db/migrate.server";
+import { connectionOptions } from "~/lib/infra/db-options.server";
+import { getEnv } from "~/lib/infra/env.server";
+import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
 import { freePort, repoRoot, startServer } from "../support/processes";
 
@@ -51,10 +51,10 @@ Object.assign(process.env, {
   DATABASE_NAME: dbEnv.DATABASE_NAME,
 });
 await applyMigrations(connectionOptions(getEnv({ ...process.env })));
-const { db, pool } = await import("~/lib/db.server");
+const { db, pool } = await import("~/lib/infra/db.server");
 const { sql } = await import("drizzle-orm");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { createApiToken } = await import("~/lib/api-tokens.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { createApiToken } = await import("~/lib/data/api-tokens.server");
 const { createTestTeam } = await import("../support/accounts");
 
 let server: Awaited<ReturnType<typeof startServer>>;

@@ -9,10 +9,10 @@ import { useJobTestbed } from "../support/scratch-db";
 // posted to the page actions, the upload as a plain multipart form. A database of its own,
 // because the job runners of other test files' servers must not take these jobs.
 const testbed = await useJobTestbed("pages");
-const { pool } = await import("~/lib/db.server");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { teamData } = await import("~/lib/team-data.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
+const { pool } = await import("~/lib/infra/db.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { teamData } = await import("~/lib/data/team-data.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 

@@ -8,8 +8,8 @@ import { useJobTestbed } from "../support/scratch-db";
 
 // A database of its own: the job runners of other test files' servers must not take these jobs.
 const testbed = await useJobTestbed("logs");
-const { createApiToken } = await import("~/lib/api-tokens.server");
-const { pool } = await import("~/lib/db.server");
+const { createApiToken } = await import("~/lib/data/api-tokens.server");
+const { pool } = await import("~/lib/infra/db.server");
 const { createTestTeam } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 

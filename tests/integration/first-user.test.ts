@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { pool } from "~/lib/db.server";
-import { vehicleData } from "~/lib/vehicles.server";
-import { vehicleSchema } from "~/lib/vehicle-schema";
+import { pool } from "~/lib/infra/db.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
+import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
 import { HttpClient } from "../support/http-client";
 import { startServer } from "../support/processes";

@@ -1,7 +1,7 @@
 import { createServer, type Server } from "node:net";
 import { afterAll, describe, expect, it } from "vitest";
 import { loader } from "~/routes/healthz";
-import { pool } from "~/lib/db.server";
+import { pool } from "~/lib/infra/db.server";
 import { freePort, ownMail, runTs, startServer } from "../support/processes";
 
 // /healthz and start-up errors, against the real MariaDB and the production build

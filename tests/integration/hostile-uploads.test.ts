@@ -15,7 +15,7 @@ import { useJobTestbed } from "../support/scratch-db";
 // folder of this file's own, so every file and row counted here comes from these uploads.
 const testbed = await useJobTestbed("hostile");
 const { startUploadBed } = await import("../support/upload-bed");
-const { pool } = await import("~/lib/db.server");
+const { pool } = await import("~/lib/infra/db.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 const { HttpClient } = await import("../support/http-client");
 

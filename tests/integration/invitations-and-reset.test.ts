@@ -1,7 +1,7 @@
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { invitations, memberships, sessions, users } from "~/db/schema";
-import { db, pool } from "~/lib/db.server";
+import { invitations, memberships, sessions, users } from "~/lib/infra/db/schema";
+import { db, pool } from "~/lib/infra/db.server";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
 import { HttpClient, linkIn, newestMailTo } from "../support/http-client";
 import { startServer } from "../support/processes";

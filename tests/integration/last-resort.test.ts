@@ -9,7 +9,7 @@ import { useJobTestbed } from "../support/scratch-db";
 // (tests/support/escape-after-listen.ts, loaded with --import by this test only) lets three
 // escape right after the server listens; the handlers themselves are the real ones.
 const testbed = await useJobTestbed("lastresort");
-const { pool } = await import("~/lib/db.server");
+const { pool } = await import("~/lib/infra/db.server");
 
 let server: Awaited<ReturnType<typeof startServer>>;
 

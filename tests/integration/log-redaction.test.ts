@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { createApiToken } from "~/lib/api-tokens.server";
-import { pool } from "~/lib/db.server";
-import { getEnv } from "~/lib/env.server";
-import { newSecret } from "~/lib/secrets.server";
+import { createApiToken } from "~/lib/data/api-tokens.server";
+import { pool } from "~/lib/infra/db.server";
+import { getEnv } from "~/lib/infra/env.server";
+import { newSecret } from "~/lib/infra/secrets.server";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
 import { startDbProxy } from "../support/db-proxy";
 import { HttpClient } from "../support/http-client";
@@ -16,7 +16,7 @@ let server: Awaited<ReturnType<typeof startServer>>;
 let proxy: Awaited<ReturnType<typeof startDbProxy>>;
 let team: TestTeam;
 let apiToken: string;
-// Secrets in the shapes the app makes them (app/lib/secrets.server.ts: 32 random bytes, base64url).
+// Secrets in the shapes the app makes them (app/lib/infra/secrets.server.ts: 32 random bytes, base64url).
 const shareToken = newSecret();
 const resetToken = newSecret();
 const inviteToken = newSecret();

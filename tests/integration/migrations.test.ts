@@ -1,9 +1,9 @@
 import mysql from "mysql2/promise";
 import { randomBytes } from "node:crypto";
 import { afterAll, describe, expect, it } from "vitest";
-import { applyMigrations, MigrationError } from "~/db/migrate.server";
-import { connectionOptions } from "~/lib/db-options.server";
-import { getEnv } from "~/lib/env.server";
+import { applyMigrations, MigrationError } from "~/lib/infra/db/migrate.server";
+import { connectionOptions } from "~/lib/infra/db-options.server";
+import { getEnv } from "~/lib/infra/env.server";
 
 // Against the real MariaDB that scripts/test.sh starts. Each test makes its own scratch
 // database (the app user may create databases named after DATABASE_NAME).

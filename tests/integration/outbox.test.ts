@@ -12,12 +12,12 @@ import { freePort, startServer } from "../support/processes";
 // that writes into the same folder, so the page reads both.
 process.env.FAKE_SMTP_PORT = String(await freePort());
 process.env.TWISTLOG_STORAGE_DIR = await mkdtemp(join(tmpdir(), "twistlog-outbox-"));
-const { pool } = await import("~/lib/db.server");
-const { startFakeSmtp } = await import("~/lib/fake-smtp.server");
-const { emailShare } = await import("~/lib/share-mail.server");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
-const { blobStore } = await import("~/lib/upload-settings.server");
+const { pool } = await import("~/lib/infra/db.server");
+const { startFakeSmtp } = await import("~/lib/infra/fake-smtp.server");
+const { emailShare } = await import("~/lib/data/share-mail.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
+const { blobStore } = await import("~/lib/infra/storage-settings.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 const { HttpClient, linkIn, newestMailTo } = await import("../support/http-client");
 

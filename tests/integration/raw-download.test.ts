@@ -10,7 +10,7 @@ import { useJobTestbed } from "../support/scratch-db";
 // §3.2.1 for `filename*`, and RFC 9110 §5.6.4 for quoted-string.
 const testbed = await useJobTestbed("rawdl");
 const { startUploadBed } = await import("../support/upload-bed");
-const { pool } = await import("~/lib/db.server");
+const { pool } = await import("~/lib/infra/db.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 const { HttpClient } = await import("../support/http-client");
 

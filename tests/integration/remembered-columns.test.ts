@@ -10,9 +10,9 @@ import { useJobTestbed } from "../support/scratch-db";
 // choice made by hand for one odd file is remembered for the vehicle, but the next upload with an
 // ordinary header must still be recognised from its header. A database of its own (job runners).
 const testbed = await useJobTestbed("columns");
-const { pool } = await import("~/lib/db.server");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
+const { pool } = await import("~/lib/infra/db.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 
 let server: Awaited<ReturnType<typeof startServer>>;

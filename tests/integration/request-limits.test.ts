@@ -1,12 +1,12 @@
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { pool } from "~/lib/db.server";
-import { FORM_BODY_MAX_BYTES } from "~/lib/request-limits";
+import { pool } from "~/lib/infra/db.server";
+import { FORM_BODY_MAX_BYTES } from "~/lib/http/request-limits";
 import { HttpClient } from "../support/http-client";
 import { repoRoot, startServer } from "../support/processes";
 import { sendBody } from "../support/raw-http";
 
-// Request plumbing against the production server (server/request-handler.ts, app/lib/forms.server.ts):
+// Request plumbing against the production server (server/request-handler.ts, app/lib/http/forms.server.ts):
 // bodies that are not uploads are limited to 1 MiB while reading (issue 12 §4), and the
 // requests that used to end in a 500 with a stack trace get their 4xx (issue 12 §7).
 

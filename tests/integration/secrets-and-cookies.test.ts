@@ -1,9 +1,9 @@
 import { readdirSync, readFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { pool } from "~/lib/db.server";
-import { getEnv } from "~/lib/env.server";
-import { newSecret } from "~/lib/secrets.server";
+import { pool } from "~/lib/infra/db.server";
+import { getEnv } from "~/lib/infra/env.server";
+import { newSecret } from "~/lib/infra/secrets.server";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
 import { HttpClient } from "../support/http-client";
 import { repoRoot, startServer } from "../support/processes";

@@ -18,19 +18,19 @@ process.env.FAKE_SMTP_PORT = String(await freePort());
 const testbed = await useJobTestbed("shares");
 process.env.TWISTLOG_STORAGE_DIR = testbed.storage;
 
-const { db, pool } = await import("~/lib/db.server");
-const { auditEvents } = await import("~/db/schema");
-const { shares, shareViews, comments } = await import("~/db/schema-results");
-const { driveLogs } = await import("~/db/schema-drive-logs");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
-const { blobStore } = await import("~/lib/upload-settings.server");
-const { startAnalysisService } = await import("~/lib/analysis-service.server");
-const { startFakeSmtp, readStoredMail } = await import("~/lib/fake-smtp.server");
-const { createApiToken } = await import("~/lib/api-tokens.server");
-const { sha256Hex } = await import("~/lib/secrets.server");
-const shareLib = await import("~/lib/shares.server");
-const sharePage = await import("~/lib/share-page.server");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { auditEvents } = await import("~/lib/infra/db/schema");
+const { shares, shareViews, comments } = await import("~/lib/infra/db/schema-results");
+const { driveLogs } = await import("~/lib/infra/db/schema-drive-logs");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
+const { blobStore } = await import("~/lib/infra/storage-settings.server");
+const { startAnalysisService } = await import("~/lib/analyses/analysis-service.server");
+const { startFakeSmtp, readStoredMail } = await import("~/lib/infra/fake-smtp.server");
+const { createApiToken } = await import("~/lib/data/api-tokens.server");
+const { sha256Hex } = await import("~/lib/infra/secrets.server");
+const shareLib = await import("~/lib/data/shares.server");
+const sharePage = await import("~/lib/http/share-link.server");
 const { createTestTeam } = await import("../support/accounts");
 const { apiRequest, context, directClient, run } = await import("../support/direct-requests");
 const shareCharts = await import("~/routes/share.charts");
@@ -100,7 +100,7 @@ beforeAll(async () => {
   service = startAnalysisService();
   await waitForDone([logs.a, logs.b, logs.unshared]);
   // A second engineer of the same team, to check that engineers manage only their own links.
-  const { users, memberships } = await import("~/db/schema");
+  const { users, memberships } = await import("~/lib/infra/db/schema");
   const [u] = await db
     .insert(users)
     .values({ email: `second-${team.id}@example.test`, name: "Second Engineer", passwordHash: "x" })

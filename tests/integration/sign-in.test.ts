@@ -1,8 +1,8 @@
 import { and, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { auditEvents, sessions, signInFailures } from "~/db/schema";
-import { db, pool } from "~/lib/db.server";
-import { THROTTLE } from "~/lib/throttle.server";
+import { auditEvents, sessions, signInFailures } from "~/lib/infra/db/schema";
+import { db, pool } from "~/lib/infra/db.server";
+import { THROTTLE } from "~/lib/infra/throttle.server";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
 import { HttpClient } from "../support/http-client";
 import { startServer } from "../support/processes";

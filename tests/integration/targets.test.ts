@@ -9,11 +9,11 @@ import { useJobTestbed } from "../support/scratch-db";
 // to the page's action with an intent), against the real MariaDB and the production server. A
 // database of its own: other test files' job runners must not take this file's analyses.
 const testbed = await useJobTestbed("targets");
-const { db, pool } = await import("~/lib/db.server");
-const { auditEvents } = await import("~/db/schema");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { targetData } = await import("~/lib/targets.server");
-const { vehicleSchema } = await import("~/lib/vehicle-schema");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { auditEvents } = await import("~/lib/infra/db/schema");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { targetData } = await import("~/lib/data/targets.server");
+const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
 

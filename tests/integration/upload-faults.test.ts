@@ -10,7 +10,7 @@ import { HttpClient } from "../support/http-client";
 // seen here belong to this file alone.
 const testbed = await useJobTestbed("faults");
 const { startUploadBed } = await import("../support/upload-bed");
-const { pool } = await import("~/lib/db.server");
+const { pool } = await import("~/lib/infra/db.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 
 // Uploads whose connection closes mid-body (a closed tab, a dropped link) against the

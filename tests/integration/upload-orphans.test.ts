@@ -13,13 +13,13 @@ import { HttpClient } from "../support/http-client";
 // nothing kept, and the storage sweep removes what nothing references (issue 12 §6, §7).
 // A database and storage folder of this file's own, so every file and row seen is ours.
 const testbed = await useJobTestbed("orphans");
-const { createApiToken } = await import("~/lib/api-tokens.server");
-const { db, pool } = await import("~/lib/db.server");
-const { getEnv } = await import("~/lib/env.server");
-const { localBlobStore } = await import("~/lib/storage.server");
-const { vehicleData } = await import("~/lib/vehicles.server");
-const { logMetadataSchema } = await import("~/lib/vehicle-schema");
-const { startStorageSweep, sweepStorage } = await import("~/lib/storage-sweep.server");
+const { createApiToken } = await import("~/lib/data/api-tokens.server");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { getEnv } = await import("~/lib/infra/env.server");
+const { localBlobStore } = await import("~/lib/infra/storage.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { logMetadataSchema } = await import("~/lib/domain/vehicle-schema");
+const { startStorageSweep, sweepStorage } = await import("~/lib/infra/storage-sweep.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 
 /**

@@ -1,9 +1,9 @@
 import { randomBytes } from "node:crypto";
 import { inArray } from "drizzle-orm";
-import { memberships, teams, users } from "~/db/schema";
-import { db } from "~/lib/db.server";
-import { hashPassword } from "~/lib/password.server";
-import type { Role } from "~/lib/roles";
+import { memberships, teams, users } from "~/lib/infra/db/schema";
+import { db } from "~/lib/infra/db.server";
+import { hashPassword } from "~/lib/infra/password.server";
+import type { Role } from "~/lib/domain/roles";
 
 // Fresh teams and accounts for one test, with random names, so tests never share state with
 // each other or with the demo accounts (which the browser tests also use).

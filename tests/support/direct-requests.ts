@@ -1,5 +1,5 @@
-import { issueCsrfToken } from "~/lib/csrf.server";
-import { startSession } from "~/lib/session.server";
+import { issueCsrfToken } from "~/lib/http/csrf.server";
+import { startSession } from "~/lib/http/session.server";
 
 // Calling route loaders and actions directly in node tests (docs/stack-notes.md: "Loaders and
 // actions can be called directly with a Request"), with a real session row and a real signed

@@ -1,10 +1,10 @@
 /**
  * A stand-in analysis worker for the fault tests (never used by the app): a drive log whose
  * first line is "# runaway" keeps allocating JS heap until the pool's real memory limit ends the
- * worker; "# throw" throws; any other file goes to the real worker (app/workers/analysis.worker.ts).
+ * worker; "# throw" throws; any other file goes to the real worker (app/lib/analyses/analysis.worker.ts).
  */
-import analyseStoredLog, { type AnalysisTask } from "../../app/workers/analysis.worker.ts";
-import { localBlobStore } from "../../app/lib/storage.server";
+import analyseStoredLog, { type AnalysisTask } from "../../app/lib/analyses/analysis.worker.ts";
+import { localBlobStore } from "../../app/lib/infra/storage.server";
 
 async function firstLine(task: AnalysisTask): Promise<string> {
   for await (const chunk of localBlobStore(task.blobRoot).read(task.blobKey)) {

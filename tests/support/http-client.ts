@@ -1,4 +1,4 @@
-import { readStoredMail } from "~/lib/fake-smtp.server";
+import { readStoredMail } from "~/lib/infra/fake-smtp.server";
 
 import { randomInt } from "node:crypto";
 

@@ -3,9 +3,9 @@ import { randomBytes } from "node:crypto";
 import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { applyMigrations } from "~/db/migrate.server";
-import { connectionOptions } from "~/lib/db-options.server";
-import { getEnv } from "~/lib/env.server";
+import { applyMigrations } from "~/lib/infra/db/migrate.server";
+import { connectionOptions } from "~/lib/infra/db-options.server";
+import { getEnv } from "~/lib/infra/env.server";
 
 /**
  * A database of this test file's own, with every migration applied. Tests that run job runners

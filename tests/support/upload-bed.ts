@@ -1,4 +1,4 @@
-import { createApiToken } from "~/lib/api-tokens.server";
+import { createApiToken } from "~/lib/data/api-tokens.server";
 import { createTestTeam } from "./accounts";
 import { startServer } from "./processes";
 

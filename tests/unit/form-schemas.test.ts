@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { vehicleFormSchema } from "~/components/vehicle-form";
-import { createShareSchema, emailShareSchema } from "~/lib/share-schema";
+import { createShareSchema, emailShareSchema } from "~/lib/domain/share-schema";
 
 // Issue 11: a form reports every problem of one submission, not one per submit. The vehicle
 // form and the share forms have no checks across fields, so each field's error comes back in

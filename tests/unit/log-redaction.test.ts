@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
-import { redactSecrets, requestLabel } from "~/lib/log-redaction";
+import { redactSecrets, requestLabel } from "~/lib/base/log-redaction";
 
-// Tokens in the shapes app/lib/secrets.server.ts makes: 32 random bytes, base64url (43 characters).
+// Tokens in the shapes app/lib/infra/secrets.server.ts makes: 32 random bytes, base64url (43 characters).
 const token = "Qm9vdHN0cmFwLXRva2VuLWZvci10ZXN0aW5nLW9ubHk";
 const apiToken = `twl_${token}`;
 

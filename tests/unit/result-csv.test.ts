@@ -1,6 +1,6 @@
 import Papa from "papaparse";
 import { describe, expect, it } from "vitest";
-import { resultCsv } from "~/lib/result-csv";
+import { resultCsv } from "~/lib/domain/result-csv";
 import type { AnalysisResult } from "~/lib/signal";
 
 // The result CSV is read back with papaparse (an independent CSV parser from npm, RFC 4180

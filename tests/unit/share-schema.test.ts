@@ -1,6 +1,10 @@
 import { describe, expect, it } from "vitest";
-import { parseCommentSubject, postCommentSchema } from "~/lib/comment-schema";
-import { apiCreateShareSchema, createShareSchema, emailShareSchema } from "~/lib/share-schema";
+import { parseCommentSubject, postCommentSchema } from "~/lib/domain/comment-schema";
+import {
+  apiCreateShareSchema,
+  createShareSchema,
+  emailShareSchema,
+} from "~/lib/domain/share-schema";
 
 // The pure parts of share links and comments (issue 7): subject keys, form and API limits.
 

@@ -39,8 +39,8 @@ vi.mock("node:fs", async (importOriginal) => {
   return { ...real, default: { ...real, createWriteStream }, createWriteStream };
 });
 
-const { localBlobStore } = await import("~/lib/storage.server");
-const { receiveUpload, UploadError } = await import("~/lib/uploads.server");
+const { localBlobStore } = await import("~/lib/infra/storage.server");
+const { receiveUpload, UploadError } = await import("~/lib/http/uploads.server");
 
 const root = await mkdtemp(join(tmpdir(), "twistlog-full-"));
 const store = localBlobStore(root);

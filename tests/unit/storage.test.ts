@@ -5,7 +5,12 @@ import { join } from "node:path";
 import { Readable } from "node:stream";
 import { gunzipSync } from "node:zlib";
 import { afterAll, describe, expect, it } from "vitest";
-import { BlobTooLargeError, formatBytes, localBlobStore, readAllText } from "~/lib/storage.server";
+import {
+  BlobTooLargeError,
+  formatBytes,
+  localBlobStore,
+  readAllText,
+} from "~/lib/infra/storage.server";
 import { readFile, readdir } from "node:fs/promises";
 
 const root = await mkdtemp(join(tmpdir(), "twistlog-blobs-"));

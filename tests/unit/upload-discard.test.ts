@@ -3,14 +3,14 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { Readable } from "node:stream";
 import { afterAll, beforeEach, describe, expect, it } from "vitest";
-import { localBlobStore, type BlobStore } from "~/lib/storage.server";
+import { localBlobStore, type BlobStore } from "~/lib/infra/storage.server";
 import {
   discardReceived,
   keepReceived,
   receiveUpload,
   recordUpload,
   UploadError,
-} from "~/lib/uploads.server";
+} from "~/lib/http/uploads.server";
 
 // What a refused upload leaves in the store (issue 12 §6): nothing it wrote, and nothing that
 // another upload or drive log still needs. Multipart bodies are built by the platform's

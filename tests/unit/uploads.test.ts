@@ -3,8 +3,8 @@ import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
-import { localBlobStore, readAllText } from "~/lib/storage.server";
-import { receiveUpload, UploadError } from "~/lib/uploads.server";
+import { localBlobStore, readAllText } from "~/lib/infra/storage.server";
+import { receiveUpload, UploadError } from "~/lib/http/uploads.server";
 
 const root = await mkdtemp(join(tmpdir(), "twistlog-uploads-"));
 const store = localBlobStore(root);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { countText, plural } from "~/lib/plural";
-import { warningText } from "~/lib/warning-text";
+import { countText, plural } from "~/lib/base/plural";
+import { warningText } from "~/lib/domain/warning-text";
 
 describe("countText", () => {
   // CLDR plural rules for English (unicode.org, Language Plural Rules): "one" is i = 1 and v = 0

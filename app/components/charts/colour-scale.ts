@@ -5,7 +5,7 @@
  * CC0). Its published 256-entry table (sRGB, 0–1) is sampled here every 8th entry plus the last
  * and interpolated linearly between them.
  */
-import { amplitudeDb } from "~/lib/chart-units";
+import { amplitudeDb } from "~/lib/domain/chart-units";
 
 /** [table index, r, g, b] from the published viridis table (entries 0, 8, …, 248, 255). */
 const VIRIDIS_STOPS: readonly (readonly [number, number, number, number])[] = [

@@ -5,7 +5,7 @@ import {
   amplitudeAxisLabel,
   convertAmplitude,
   type AmplitudeUnit,
-} from "~/lib/chart-units";
+} from "~/lib/domain/chart-units";
 import {
   amplitudeNumber,
   amplitudeText,
@@ -13,7 +13,7 @@ import {
   dbText,
   rpmRangeText,
   rpmText,
-} from "~/lib/format";
+} from "~/lib/domain/format";
 import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
 import { buildCsv } from "./csv";
 import { downloadCsv, downloadPng } from "./download";

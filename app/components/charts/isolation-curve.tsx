@@ -1,7 +1,7 @@
-import { countText } from "~/lib/plural";
+import { countText } from "~/lib/base/plural";
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
-import type { ChartData } from "~/lib/chart-data";
+import type { ChartData } from "~/lib/domain/chart-data";
 import {
   dbText,
   isolationRangeText,
@@ -9,7 +9,7 @@ import {
   dampingRatioText,
   rpmRangeText,
   rpmText,
-} from "~/lib/format";
+} from "~/lib/domain/format";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";

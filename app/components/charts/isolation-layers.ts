@@ -4,8 +4,8 @@
  * covers them; placeLabels puts them where they cover no point and no other label if it can.
  */
 import type uPlot from "uplot";
-import type { ChartData } from "~/lib/chart-data";
-import { dbText, rpmText } from "~/lib/format";
+import type { ChartData } from "~/lib/domain/chart-data";
+import { dbText, rpmText } from "~/lib/domain/format";
 import { COLOURS, FONT_FAMILY } from "./palette";
 import { drawXMarkers, drawYLine, px } from "./plot-kit";
 import type { TargetBand } from "./types";

@@ -1,14 +1,14 @@
-import { countText } from "~/lib/plural";
+import { countText } from "~/lib/base/plural";
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
-import { amplitudeText, orderNumber, rpmRangeText, rpmText } from "~/lib/format";
-import type { ChartData } from "~/lib/chart-data";
+import { amplitudeText, orderNumber, rpmRangeText, rpmText } from "~/lib/domain/format";
+import type { ChartData } from "~/lib/domain/chart-data";
 import {
   AMPLITUDE_UNITS,
   amplitudeAxisLabel,
   convertAmplitude,
   type AmplitudeUnit,
-} from "~/lib/chart-units";
+} from "~/lib/domain/chart-units";
 import { ChartFrame, Segmented, SelectControl } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
 import { downloadCsv, downloadPng } from "./download";

@@ -3,8 +3,8 @@
  * (uPlot has no heat map), crank side and gearbox input side by side on one shared level scale.
  */
 import { memo, useEffect, useId, useMemo, useRef, useState } from "react";
-import type { ChartData } from "~/lib/chart-data";
-import { amplitudeDb } from "~/lib/chart-units";
+import type { ChartData } from "~/lib/domain/chart-data";
+import { amplitudeDb } from "~/lib/domain/chart-units";
 import { formatValue, nearestIndex, niceTicks } from "./chart-math";
 import {
   amplitudeNumber,
@@ -14,7 +14,7 @@ import {
   orderNumber,
   rpmText,
   secondsText,
-} from "~/lib/format";
+} from "~/lib/domain/format";
 
 /** "0 to 42.3 rpm" or "−20.0 to 32.5 dB re 1 rpm": each end by the rule of its quantity. */
 function scaleText(scale: { min: number; max: number; unit: string }): string {

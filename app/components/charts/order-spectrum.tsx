@@ -1,7 +1,7 @@
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
-import { amplitudeText, orderNumber, rpmText } from "~/lib/format";
-import type { ChartData } from "~/lib/chart-data";
+import { amplitudeText, orderNumber, rpmText } from "~/lib/domain/format";
+import type { ChartData } from "~/lib/domain/chart-data";
 import { nearestIndex } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";

@@ -8,9 +8,9 @@ import {
   rpmText,
   secondsNumber,
   secondsText,
-} from "~/lib/format";
-import type { ChartData } from "~/lib/chart-data";
-import { convertSpeed, SPEED_UNITS, type SpeedUnit } from "~/lib/chart-units";
+} from "~/lib/domain/format";
+import type { ChartData } from "~/lib/domain/chart-data";
+import { convertSpeed, SPEED_UNITS, type SpeedUnit } from "~/lib/domain/chart-units";
 import { extent, withGaps } from "./chart-math";
 import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";

@@ -1,7 +1,7 @@
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
-import { rpmRangeText, rpmText, secondsNumber, secondsText } from "~/lib/format";
-import type { ChartData } from "~/lib/chart-data";
+import { rpmRangeText, rpmText, secondsNumber, secondsText } from "~/lib/domain/format";
+import type { ChartData } from "~/lib/domain/chart-data";
 import { extent } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";

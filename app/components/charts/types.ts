@@ -4,7 +4,7 @@
  * client only (uPlot, plus a plain canvas for the order maps) and size themselves to their
  * container.
  */
-import type { ChartData } from "~/lib/chart-data";
+import type { ChartData } from "~/lib/domain/chart-data";
 
 /** What GET …/charts.json answers (app/routes/drive-log.charts.ts, and share links). */
 export interface ChartsResponse {
@@ -42,18 +42,4 @@ export interface TargetBand {
   minDb: number;
 }
 
-/** One drive log in an overlay (comparison, vehicle page), from GET …/curves.json. */
-export interface CurveSet {
-  logId: number;
-  label: string;
-  /** Isolation at the firing order, dB, against engine speed, rpm. */
-  isolation: { rpm: number[]; dB: number[] };
-  /** Firing-order amplitude, rpm (0-peak), both sides, against engine speed, rpm. */
-  firingOrder: { rpm: number[]; crankRpm: number[]; gearboxRpm: number[] };
-  firingOrderValue: number;
-}
-
-export interface CurvesResponse {
-  vehicleId: number;
-  curves: CurveSet[];
-}
+export type { CurveSet, CurvesResponse } from "~/lib/domain/curves";

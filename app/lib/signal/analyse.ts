@@ -19,7 +19,7 @@ import { findSegments } from "./segments.ts";
 import { pickSpectrumSegment, timeSpectrum } from "./time-spectrum.ts";
 import { speedTrace } from "./traces.ts";
 import { fitTwoMassModel } from "./two-mass-model.ts";
-import { countText, plural } from "../plural.ts";
+import { countText, plural } from "../base/plural.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
 export interface AnalysisOptions {

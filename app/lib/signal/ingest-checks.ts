@@ -7,7 +7,7 @@ import type { ColumnMap } from "./columns.ts";
 import { fmt } from "./ingest-scan.ts";
 import type { DriveLog, SignalIssue } from "./types.ts";
 import { S_PER_UNIT } from "./units.ts";
-import { countText, plural } from "../plural.ts";
+import { countText, plural } from "../base/plural.ts";
 /** Limits for the checks that need the whole log (sampling, length, clipping). */
 export interface CheckOptions {
   /** Allowed deviation of a sampling interval from the nominal one, as a fraction (default 0.1). */

@@ -11,7 +11,7 @@
  * √(k(J1+J2)/(J1·J2)) at which both sides swing most.
  */
 import { orderFrequencyHz } from "./firing-order.ts";
-import { countText } from "../plural.ts";
+import { countText } from "../base/plural.ts";
 
 /** Transmissibility |H| (dimensionless) at frequency ratio r ≥ 0 and damping ratio ζ ≥ 0. */
 export function transmissibility(r: number, zeta: number): number {

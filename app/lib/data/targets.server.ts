@@ -1,0 +1,281 @@
+import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
+import { gunzipSync } from "node:zlib";
+import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-drive-logs";
+import { targets } from "~/lib/infra/db/schema-results";
+import type { AnalysisResult } from "~/lib/signal";
+import { db } from "../infra/db.server";
+import type { LogCondition } from "../domain/drive-log-terms";
+import { invariantResponse } from "../http/permissions.server";
+import {
+  evaluateTargets,
+  outOfScope,
+  type Target,
+  type TargetInput,
+  type TargetVerdict,
+} from "../domain/targets";
+import { vehicleData } from "./vehicles.server";
+
+export type TargetRow = typeof targets.$inferSelect;
+
+/** The evaluation's view of a stored target. */
+export function toTarget(row: TargetRow): Target {
+  return {
+    id: row.id,
+    name: row.name,
+    kind: row.kind,
+    rpmFrom: row.rpmFrom,
+    rpmTo: row.rpmTo,
+    minDb: row.minDb,
+    maxRadS2: row.maxRadS2,
+    conditions: row.conditions,
+    gears: row.gears,
+  };
+}
+
+/** The columns of a target; the other kind's columns are cleared. */
+function columns(input: TargetInput) {
+  return input.kind === "isolation"
+    ? {
+        kind: input.kind,
+        name: input.name,
+        rpmFrom: input.rpmFrom,
+        rpmTo: input.rpmTo,
+        minDb: input.minDb,
+        maxRadS2: null,
+        conditions: input.conditions,
+        gears: input.gears,
+      }
+    : {
+        kind: input.kind,
+        name: input.name,
+        rpmFrom: null,
+        rpmTo: null,
+        minDb: null,
+        maxRadS2: input.maxRadS2,
+        conditions: input.conditions,
+        gears: input.gears,
+      };
+}
+
+/**
+ * The time-domain idle peak (rad/s²) and the idle speed (rpm) are only in the compressed result
+ * JSON, not in columns. Analyses never change once saved (a re-analysis is a new row), so what is
+ * read once is kept for the life of the process; the cache is bounded so a server stays small.
+ */
+export interface IdleFigures {
+  peakRadS2: number;
+  meanRpm: number;
+}
+const idleCache = new Map<number, IdleFigures | null>();
+const IDLE_CACHE_MAX = 20_000;
+
+/** What a table row needs to be judged: the log's condition and gear and its latest analysis. */
+export interface LogForVerdicts {
+  id: number;
+  condition: LogCondition;
+  gear: number | null;
+  latestAnalysisId: number | null;
+}
+
+/**
+ * Every read and write of a team's targets (docs/architecture.md §2): another team's target or vehicle is a
+ * 404, like one that does not exist. Verdicts are computed when asked for, from the stored
+ * analysis (docs/targets.md), so a changed target applies to every drive log at once.
+ */
+export function targetData(teamId: number) {
+  const inTeam = eq(targets.teamId, teamId);
+
+  async function get(id: number): Promise<TargetRow> {
+    const [row] = await db
+      .select()
+      .from(targets)
+      .where(and(eq(targets.id, id), inTeam));
+    invariantResponse(row, "No such target in this team.", { status: 404 });
+    return row;
+  }
+
+  function list(vehicleId: number): Promise<TargetRow[]> {
+    return db
+      .select()
+      .from(targets)
+      .where(and(eq(targets.vehicleId, vehicleId), inTeam))
+      .orderBy(asc(targets.kind), asc(targets.rpmFrom), asc(targets.name), asc(targets.id));
+  }
+
+  /** The idle figures of these analyses of the team (null: no idle segment), from the cache or the result JSON. */
+  async function idleFigures(analysisIds: number[]): Promise<Map<number, IdleFigures | null>> {
+    const out = new Map<number, IdleFigures | null>();
+    const missing: number[] = [];
+    for (const id of new Set(analysisIds)) {
+      if (idleCache.has(id)) out.set(id, idleCache.get(id)!);
+      else missing.push(id);
+    }
+    for (let i = 0; i < missing.length; i += 50) {
+      const rows = await db
+        .select({ id: analyses.id, resultGz: analyses.resultGz })
+        .from(analyses)
+        .where(and(inArray(analyses.id, missing.slice(i, i + 50)), eq(analyses.teamId, teamId)));
+      for (const row of rows) {
+        const idle = (
+          JSON.parse(gunzipSync(row.resultGz).toString("utf8")) as {
+            idle?: { gearboxAngAccelPeakRadS2?: unknown; meanRpm?: unknown } | null;
+          }
+        ).idle;
+        const figures =
+          idle &&
+          typeof idle.gearboxAngAccelPeakRadS2 === "number" &&
+          typeof idle.meanRpm === "number"
+            ? { peakRadS2: idle.gearboxAngAccelPeakRadS2, meanRpm: idle.meanRpm }
+            : null;
+        if (idleCache.size >= IDLE_CACHE_MAX) idleCache.delete(idleCache.keys().next().value!);
+        idleCache.set(row.id, figures);
+        out.set(row.id, figures);
+      }
+    }
+    return out;
+  }
+
+  return {
+    teamId,
+    get,
+    list,
+    idleFigures,
+
+    async create(vehicleId: number, input: TargetInput, userId: number | null): Promise<number> {
+      const vehicle = await vehicleData(teamId).vehicle(vehicleId);
+      const [row] = await db
+        .insert(targets)
+        .values({ ...columns(input), teamId, vehicleId: vehicle.id, createdBy: userId })
+        .$returningId();
+      return row!.id;
+    },
+
+    async update(id: number, input: TargetInput): Promise<void> {
+      await get(id);
+      await db
+        .update(targets)
+        .set({ ...columns(input), updatedAt: new Date() })
+        .where(and(eq(targets.id, id), inTeam));
+    },
+
+    async remove(id: number): Promise<void> {
+      await get(id);
+      await db.delete(targets).where(and(eq(targets.id, id), inTeam));
+    },
+
+    /**
+     * Verdicts of each finished drive log of the vehicle against its targets (`rows`, or the
+     * stored ones), keyed by drive-log id; logs without an analysis are left out. One query for
+     * the analyses, one for all their isolation points, and the idle peaks (cached) only where
+     * a rattle target can apply.
+     */
+    async verdictsForLogs(
+      vehicleId: number,
+      logs: readonly LogForVerdicts[],
+      rows?: readonly TargetRow[],
+    ): Promise<Map<number, TargetVerdict[]>> {
+      const out = new Map<number, TargetVerdict[]>();
+      const all = (rows ?? (await list(vehicleId))).filter((t) => t.vehicleId === vehicleId);
+      const finished = logs.filter((l) => l.latestAnalysisId !== null);
+      if (all.length === 0 || finished.length === 0) {
+        for (const l of finished) out.set(l.id, []);
+        return out;
+      }
+      const judged = all.map(toTarget);
+      // The latest analysis of each of the vehicle's logs, scoped by team and vehicle in the join.
+      const latest = and(
+        eq(driveLogs.teamId, teamId),
+        eq(driveLogs.vehicleId, vehicleId),
+        isNotNull(driveLogs.latestAnalysisId),
+      );
+      // The analysis must be the log's own latest one (never another log's).
+      const ofLog = and(
+        eq(analyses.id, driveLogs.latestAnalysisId),
+        eq(analyses.driveLogId, driveLogs.id),
+        eq(analyses.teamId, teamId),
+      );
+      const wanted = judged.some((t) => t.kind === "isolation");
+      const [summaries, points] = await Promise.all([
+        db
+          .select({
+            logId: driveLogs.id,
+            analysisId: analyses.id,
+            settings: analyses.settings,
+            idleAngAccelRadS2: analyses.idleAngAccelRadS2,
+          })
+          .from(driveLogs)
+          .innerJoin(analyses, ofLog)
+          .where(latest),
+        wanted
+          ? db
+              .select({
+                analysisId: isolationPoints.analysisId,
+                rpm: isolationPoints.rpm,
+                dB: isolationPoints.dB,
+                aboveNoise: isolationPoints.aboveNoise,
+              })
+              .from(isolationPoints)
+              .innerJoin(analyses, eq(analyses.id, isolationPoints.analysisId))
+              .innerJoin(driveLogs, ofLog)
+              .where(latest)
+              .orderBy(asc(isolationPoints.analysisId), asc(isolationPoints.rpm))
+          : Promise.resolve([]),
+      ]);
+      const byAnalysis = new Map<number, { rpm: number; dB: number; aboveNoise: boolean }[]>();
+      for (const p of points) {
+        const bucket = byAnalysis.get(p.analysisId) ?? [];
+        bucket.push({ rpm: p.rpm, dB: p.dB, aboveNoise: p.aboveNoise });
+        byAnalysis.set(p.analysisId, bucket);
+      }
+      const summaryOf = new Map(summaries.map((s) => [s.logId, s]));
+      const rattleTargets = judged.filter((t) => t.kind === "rattle");
+      const needIdle = finished.filter((l) => {
+        const s = summaryOf.get(l.id);
+        return (
+          s && s.idleAngAccelRadS2 !== null && rattleTargets.some((t) => outOfScope(t, l) === null)
+        );
+      });
+      const figures = needIdle.length
+        ? await idleFigures(needIdle.map((l) => summaryOf.get(l.id)!.analysisId))
+        : new Map<number, IdleFigures | null>();
+      for (const l of finished) {
+        const s = summaryOf.get(l.id);
+        if (!s || s.analysisId !== l.latestAnalysisId) continue;
+        const binRpm = Number((s.settings as { binRpm?: unknown }).binRpm) || 50;
+        const amp = s.idleAngAccelRadS2;
+        const idle = figures.get(s.analysisId);
+        out.set(
+          l.id,
+          evaluateTargets(judged, l, {
+            isolation: byAnalysis.get(s.analysisId) ?? [],
+            binRpm,
+            idle:
+              amp === null
+                ? null
+                : {
+                    gearboxAngAccelRadS2: amp,
+                    // Without the stored peak (an unreadable result) the order amplitude alone.
+                    gearboxAngAccelPeakRadS2: idle?.peakRadS2 ?? amp,
+                    ...(idle ? { meanRpm: idle.meanRpm } : {}),
+                  },
+          }),
+        );
+      }
+      return out;
+    },
+
+    /** Verdicts of one analysis (the drive-log page has the result already). */
+    async verdictsForAnalysis(
+      vehicleId: number,
+      log: { condition: LogCondition; gear: number | null },
+      result: Pick<AnalysisResult, "isolation" | "settings" | "idle">,
+    ): Promise<TargetVerdict[]> {
+      const rows = await list(vehicleId);
+      return evaluateTargets(rows.map(toTarget), log, {
+        isolation: result.isolation,
+        binRpm: result.settings.binRpm,
+        idle: result.idle,
+      });
+    },
+  };
+}

@@ -1,0 +1,197 @@
+/**
+ * The JSON behind one drive log's charts (drive-log page, rattle check, share links), built from
+ * the stored analysis result. Columnar arrays, values exactly as the result JSON has them (so a
+ * chart's CSV export matches the API's result), except the order map, whose time-ordered rows
+ * are re-binned by engine speed for the "engine speed × order" view. Kept well under 300 KB for
+ * any log: every series is already decimated by the signal core (traces.ts, orderMap rows).
+ *
+ * Units: engine speed rpm; amplitudes 0-peak angular-velocity amplitude in rpm; isolation dB;
+ * time s; angular acceleration rad/s². Conversions for display are in chart-units.ts.
+ */
+import type { AnalysisResult } from "../signal/result-schema";
+import { modelIsolationDb } from "../signal/two-mass-model";
+
+export type SegmentKind = AnalysisResult["segments"][number]["kind"];
+
+export interface ChartData {
+  firingOrder: number;
+  durationS: number;
+  sampleRateHz: number;
+  revsPerBlock: number;
+  binRpm: number;
+  /** Null for analyses stored before the trace existed: re-analyse to draw it. */
+  speedTrace: AnalysisResult["speedTrace"];
+  segments: AnalysisResult["segments"];
+  /** Every tracked order's curve; `firingOrder` is one of them. */
+  orderCurves: { order: number; rpm: number[]; crankRpm: number[]; gearboxRpm: number[] }[];
+  /**
+   * `modelDb`: the fitted two-mass model's predicted isolation at the same engine speeds, dB
+   * (−20·log10 T(r), two-mass-model.ts); null when no model was fitted.
+   */
+  isolation: { rpm: number[]; dB: number[]; aboveNoise: boolean[]; modelDb: number[] | null };
+  resonance: AnalysisResult["resonance"];
+  model: AnalysisResult["model"];
+  /**
+   * Engine speed × order: rows are engine-speed bins (centre `rpm[i]`, width `rowRpm`),
+   * columns orders 0, orderStep, 2·orderStep, …; cells power-averaged amplitude, rpm.
+   */
+  orderMap: {
+    orderStep: number;
+    orderCount: number;
+    rowRpm: number;
+    rpm: number[];
+    crankRpm: number[][];
+    gearboxRpm: number[][];
+  };
+  /**
+   * Time × order, for logs that stay near one speed (idle, start): rows are consecutive groups
+   * of the result's order-map rows (mid time `timeS[i]`, mean engine speed `rowEngineRpm[i]`).
+   */
+  orderMapByTime: {
+    timeS: number[];
+    rowEngineRpm: number[];
+    crankRpm: number[][];
+    gearboxRpm: number[][];
+  };
+  /** Null without an idle segment. */
+  idle: null | {
+    meanRpm: number;
+    limitRadS2: number;
+    verdict: "ok" | "over-limit";
+    gearboxAngAccelRadS2: number;
+    gearboxAngAccelPeakRadS2: number;
+    idleDurationS: number;
+    spans: { startS: number; endS: number; durationS: number; peakRadS2: number }[];
+    accelTrace: { timeS: number[]; radS2: (number | null)[] } | null;
+    /** Firing-order amplitude over time in the idle segments, both sides, rpm (0-peak). */
+    firingOrderTrace: { timeS: number[]; crankRpm: number[]; gearboxRpm: number[] };
+  };
+  warnings: AnalysisResult["warnings"];
+}
+
+/** At most this many engine-speed rows in the order map. */
+export const MAP_ROWS = 120;
+
+/** Three significant digits: plenty for a colour, and a third of the bytes. */
+function sig3(x: number): number {
+  return x === 0 ? 0 : Number(x.toPrecision(3));
+}
+
+/** Row width for the order map: the result's bin width, widened so there are ≤ MAP_ROWS rows. */
+function mapRowRpm(rpm: number[], binRpm: number): number {
+  if (rpm.length === 0) return binRpm;
+  const span = Math.max(...rpm) - Math.min(...rpm);
+  let width = binRpm;
+  while (span / width + 1 > MAP_ROWS) width += binRpm;
+  return width;
+}
+
+export function chartData(result: AnalysisResult): ChartData {
+  const map = result.orderMap;
+  const rowRpm = mapRowRpm(map.blockRpm, result.settings.binRpm);
+  const rows = new Map<number, { c: Float64Array; g: Float64Array; n: number }>();
+  map.blockRpm.forEach((rpm, i) => {
+    const key = Math.round(rpm / rowRpm);
+    let row = rows.get(key);
+    if (!row) {
+      row = { c: new Float64Array(map.orderCount), g: new Float64Array(map.orderCount), n: 0 };
+      rows.set(key, row);
+    }
+    // Rows are themselves power averages of blocksPerRow blocks: weight them equally.
+    for (let k = 0; k < map.orderCount; k++) {
+      row.c[k] = row.c[k]! + (map.crankRpm[i]![k] ?? 0) ** 2;
+      row.g[k] = row.g[k]! + (map.gearboxRpm[i]![k] ?? 0) ** 2;
+    }
+    row.n += 1;
+  });
+  const keys = [...rows.keys()].sort((a, b) => a - b);
+  const rms = (v: Float64Array, n: number) => Array.from(v, (s) => sig3(Math.sqrt(s / n)));
+
+  const per = Math.max(1, Math.ceil(map.timeS.length / MAP_ROWS));
+  const byTime: ChartData["orderMapByTime"] = {
+    timeS: [],
+    rowEngineRpm: [],
+    crankRpm: [],
+    gearboxRpm: [],
+  };
+  for (let start = 0; start < map.timeS.length; start += per) {
+    const end = Math.min(map.timeS.length, start + per);
+    const c = new Float64Array(map.orderCount);
+    const g = new Float64Array(map.orderCount);
+    let rpm = 0;
+    for (let i = start; i < end; i++) {
+      rpm += map.blockRpm[i]!;
+      for (let k = 0; k < map.orderCount; k++) {
+        c[k] = c[k]! + (map.crankRpm[i]![k] ?? 0) ** 2;
+        g[k] = g[k]! + (map.gearboxRpm[i]![k] ?? 0) ** 2;
+      }
+    }
+    const n = end - start;
+    byTime.timeS.push(Math.round(((map.timeS[start]! + map.timeS[end - 1]!) / 2) * 1000) / 1000);
+    byTime.rowEngineRpm.push(Math.round((rpm / n) * 10) / 10);
+    byTime.crankRpm.push(rms(c, n));
+    byTime.gearboxRpm.push(rms(g, n));
+  }
+
+  let idle: ChartData["idle"] = null;
+  if (result.idle) {
+    const idleSegments = result.segments.filter((s) => s.kind === "idle");
+    const k = Math.round(result.firingOrder / map.orderStep);
+    const trace = { timeS: [] as number[], crankRpm: [] as number[], gearboxRpm: [] as number[] };
+    map.timeS.forEach((t, i) => {
+      if (!idleSegments.some((s) => t >= s.startS && t <= s.endS)) return;
+      trace.timeS.push(t);
+      trace.crankRpm.push(map.crankRpm[i]![k] ?? 0);
+      trace.gearboxRpm.push(map.gearboxRpm[i]![k] ?? 0);
+    });
+    const { blocks: _, ...rest } = result.idle;
+    idle = { ...rest, firingOrderTrace: trace };
+  }
+
+  return {
+    firingOrder: result.firingOrder,
+    durationS: result.durationS,
+    sampleRateHz: result.sampleRateHz,
+    revsPerBlock: result.settings.revsPerBlock,
+    binRpm: result.settings.binRpm,
+    speedTrace: result.speedTrace,
+    segments: result.segments,
+    orderCurves: result.orderCurves.map((c) => ({
+      order: c.order,
+      rpm: c.points.map((p) => p.rpm),
+      crankRpm: c.points.map((p) => p.crankRpm),
+      gearboxRpm: c.points.map((p) => p.gearboxRpm),
+    })),
+    isolation: {
+      rpm: result.isolation.map((p) => p.rpm),
+      dB: result.isolation.map((p) => p.dB),
+      aboveNoise: result.isolation.map((p) => p.aboveNoise),
+      modelDb: result.model
+        ? result.isolation.map(
+            (p) =>
+              Math.round(
+                modelIsolationDb(
+                  p.rpm,
+                  result.firingOrder,
+                  result.model!.naturalFrequencyHz,
+                  result.model!.dampingRatio,
+                ) * 100,
+              ) / 100,
+          )
+        : null,
+    },
+    resonance: result.resonance,
+    model: result.model,
+    orderMap: {
+      orderStep: map.orderStep,
+      orderCount: map.orderCount,
+      rowRpm,
+      rpm: keys.map((key) => key * rowRpm),
+      crankRpm: keys.map((key) => rms(rows.get(key)!.c, rows.get(key)!.n)),
+      gearboxRpm: keys.map((key) => rms(rows.get(key)!.g, rows.get(key)!.n)),
+    },
+    orderMapByTime: byTime,
+    idle,
+    warnings: result.warnings,
+  };
+}

@@ -1,0 +1,492 @@
+/**
+ * Targets: a vehicle's programme pass/fail limits (docs/architecture.md §3 "target") and how a drive log's
+ * analysis is judged against them. Pure and shared by the server, the forms and the pages; the
+ * rules are explained for users in docs/targets.md (a product rule of Twistlog, not a standard).
+ *
+ * - "isolation": at least `minDb` dB of isolation at the firing order over the engine-speed
+ *   range `rpmFrom`–`rpmTo` rpm (both ends included).
+ * - "rattle": the gearbox-input angular acceleration at idle at most `maxRadS2` rad/s².
+ * Either kind may be limited to test conditions and/or gears; empty lists mean every drive log.
+ * The margin is positive when the drive log does better than the target, in the target's unit.
+ */
+import { z } from "zod";
+import type { TargetKind } from "./target-kinds";
+import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "./drive-log-terms";
+import { countText, plural } from "../base/plural";
+import { dbChangeText, dbText, radS2Text, rpmRangeText, rpmText } from "./format";
+
+// Kept here (not imported from the schema file) so the browser bundle carries no Drizzle code.
+export const TARGET_KINDS = ["isolation", "rattle"] as const satisfies readonly TargetKind[];
+
+export const RPM_MIN = 0;
+export const RPM_MAX = 10_000;
+export const MIN_DB_LOW = -40;
+export const MIN_DB_HIGH = 60;
+export const MAX_RAD_S2_HIGH = 100_000;
+
+/** A stored target as the evaluation and the pages see it. */
+export interface Target {
+  id: number;
+  name: string;
+  kind: TargetKind;
+  rpmFrom: number | null;
+  rpmTo: number | null;
+  minDb: number | null;
+  maxRadS2: number | null;
+  conditions: LogCondition[];
+  gears: number[];
+}
+
+export type TargetStatus = "pass" | "fail" | "not-covered" | "not-applicable";
+
+/** A verdict's status in words, as pages show it. */
+export const TARGET_STATUS_LABELS: Record<TargetStatus, string> = {
+  pass: "pass",
+  fail: "fail",
+  "not-covered": "not covered",
+  "not-applicable": "does not apply",
+};
+
+export interface TargetVerdict {
+  targetId: number;
+  name: string;
+  kind: TargetKind;
+  status: TargetStatus;
+  /** Isolation: least isolation over the range, dB. Rattle: the larger of the two idle figures, rad/s². Null unless pass or fail. */
+  value: number | null;
+  /** minDb (dB) or maxRadS2 (rad/s²). */
+  limit: number;
+  /** Positive = better than the target, in `unit`: value − minDb, or maxRadS2 − value. Null unless pass or fail. */
+  margin: number | null;
+  unit: "dB" | "rad/s²";
+  /** Where `value` was found: the isolation bin, or the mean idle speed; rpm. */
+  atRpm: number | null;
+  /** One plain sentence: what was found, and why when there is no pass or fail. */
+  detail: string;
+}
+
+/** What the evaluation reads of an analysis (AnalysisResult has all of it). */
+export interface TargetEvidence {
+  /** Isolation at the firing order per engine-speed bin: rpm, dB, and false when the dB is a lower bound. */
+  isolation: readonly { rpm: number; dB: number; aboveNoise: boolean }[];
+  /** Width of the engine-speed bins, rpm. */
+  binRpm: number;
+  /** The rattle check of the idle segments, rad/s²; null when the log has no idle. */
+  idle: null | {
+    gearboxAngAccelRadS2: number;
+    gearboxAngAccelPeakRadS2: number;
+    meanRpm?: number;
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// The form and API input
+
+/** "" and null are "not given"; "−" (the typographic minus) is read as "-". */
+function toNumber(v: unknown): unknown {
+  if (v === "" || v === null || v === undefined) return undefined;
+  if (typeof v === "string") return Number(v.trim().replace(/\u2212/g, "-"));
+  return v;
+}
+
+const rpmField = (what: string) =>
+  z.preprocess(
+    toNumber,
+    z
+      .number({ error: `The ${what} engine speed is a number of rpm, e.g. 1000.` })
+      .min(RPM_MIN, `The ${what} engine speed is at least ${RPM_MIN} rpm.`)
+      .max(RPM_MAX, `The ${what} engine speed is at most ${RPM_MAX} rpm.`)
+      .optional(),
+  );
+
+/** Checkboxes post one value as a string and several as an array; JSON posts an array. */
+const list = (v: unknown): unknown =>
+  v === undefined || v === null || v === "" ? [] : Array.isArray(v) ? v : [v];
+
+const gearList = (v: unknown): unknown => {
+  if (typeof v === "string") {
+    const words = v
+      .trim()
+      .toLowerCase()
+      .split(/[\s,;]+/)
+      .filter(Boolean);
+    return words.map((w) =>
+      w === "r" || w === "reverse" ? -1 : w === "n" || w === "neutral" ? 0 : Number(w),
+    );
+  }
+  return list(v);
+};
+
+/**
+ * One schema for the target form (strings) and JSON callers (numbers, arrays). The fields of the
+ * other kind are ignored, so a form that shows both sets without JavaScript still posts cleanly.
+ */
+const OTHER_KIND_FIELDS = {
+  isolation: ["maxRadS2"],
+  rattle: ["rpmFrom", "rpmTo", "minDb"],
+} as const;
+
+function dropOtherKind(v: unknown): unknown {
+  if (typeof v !== "object" || v === null || Array.isArray(v)) return v;
+  const kind = (v as { kind?: unknown }).kind;
+  if (kind !== "isolation" && kind !== "rattle") return v;
+  const copy: Record<string, unknown> = { ...(v as Record<string, unknown>) };
+  for (const key of OTHER_KIND_FIELDS[kind]) delete copy[key];
+  return copy;
+}
+
+const targetFields = z
+  .object({
+    kind: z.enum(TARGET_KINDS, { error: "Choose what the target limits: isolation or rattle." }),
+    name: z
+      .string({ error: "Give the target a name, e.g. “Run-up isolation 1000–3000 rpm”." })
+      .trim()
+      .min(1, "Give the target a name, e.g. “Run-up isolation 1000–3000 rpm”.")
+      .max(120, "A name has at most 120 characters."),
+    rpmFrom: rpmField("lowest"),
+    rpmTo: rpmField("highest"),
+    minDb: z.preprocess(
+      toNumber,
+      z
+        .number({ error: "The minimum isolation is a number of dB, e.g. 10 or −2.5." })
+        .min(MIN_DB_LOW, `The minimum isolation is at least ${MIN_DB_LOW} dB.`)
+        .max(MIN_DB_HIGH, `The minimum isolation is at most ${MIN_DB_HIGH} dB.`)
+        .optional(),
+    ),
+    maxRadS2: z.preprocess(
+      toNumber,
+      z
+        .number({ error: "The maximum angular acceleration is a number of rad/s², e.g. 400." })
+        .positive("The maximum angular acceleration is more than 0 rad/s².")
+        .max(
+          MAX_RAD_S2_HIGH,
+          `The maximum angular acceleration is at most ${MAX_RAD_S2_HIGH} rad/s².`,
+        )
+        .optional(),
+    ),
+    conditions: z.preprocess(
+      list,
+      z
+        .array(z.enum(LOG_CONDITIONS, { error: "Choose test conditions from the list." }))
+        .transform((cs) => LOG_CONDITIONS.filter((c) => cs.includes(c))),
+    ),
+    gears: z.preprocess(
+      gearList,
+      z
+        .array(
+          z.coerce
+            .number({
+              error: "Gears are whole numbers, e.g. 2 3 4 (R for reverse, N for neutral).",
+            })
+            .int("Gears are whole numbers, e.g. 2 3 4 (R for reverse, N for neutral).")
+            .min(-1, "Reverse is R (or -1); there is no lower gear.")
+            .max(12, "At most gear 12."),
+        )
+        .max(14, "At most 14 gears.")
+        .transform((gs) => [...new Set(gs)].sort((a, b) => a - b)),
+    ),
+  })
+  // The checks across fields run even when a field has its own error, so one submission
+  // reports every problem at once (issue 11). A field that failed may hold anything (NaN, a
+  // string), so only readable numbers are compared, and only an absent field is "missing".
+  .superRefine(
+    (t, ctx) => {
+      const num = (v: unknown) => (typeof v === "number" && Number.isFinite(v) ? v : undefined);
+      if (t.kind === "isolation") {
+        const need = [
+          ["rpmFrom", "Enter the lowest engine speed in rpm."],
+          ["rpmTo", "Enter the highest engine speed in rpm."],
+          ["minDb", "Enter the minimum isolation in dB."],
+        ] as const;
+        for (const [key, message] of need)
+          if (t[key] === undefined) ctx.addIssue({ code: "custom", path: [key], message });
+        const from = num(t.rpmFrom);
+        const to = num(t.rpmTo);
+        if (from !== undefined && to !== undefined && !(from < to))
+          ctx.addIssue({
+            code: "custom",
+            path: ["rpmTo"],
+            message: `The highest engine speed must be above the lowest (${from} rpm).`,
+          });
+      } else if (t.kind === "rattle" && t.maxRadS2 === undefined) {
+        ctx.addIssue({
+          code: "custom",
+          path: ["maxRadS2"],
+          message: "Enter the maximum angular acceleration in rad/s².",
+        });
+      }
+    },
+    { when: (payload) => typeof payload.value === "object" && payload.value !== null },
+  )
+  .transform((t): TargetInput =>
+    t.kind === "isolation"
+      ? {
+          kind: "isolation",
+          name: t.name,
+          rpmFrom: t.rpmFrom!,
+          rpmTo: t.rpmTo!,
+          minDb: t.minDb!,
+          conditions: t.conditions,
+          gears: t.gears,
+        }
+      : {
+          kind: "rattle",
+          name: t.name,
+          maxRadS2: t.maxRadS2!,
+          conditions: t.conditions,
+          gears: t.gears,
+        },
+  );
+
+export const targetSchema = z.preprocess(dropOtherKind, targetFields);
+
+export type TargetInput =
+  | {
+      kind: "isolation";
+      name: string;
+      rpmFrom: number;
+      rpmTo: number;
+      minDb: number;
+      conditions: LogCondition[];
+      gears: number[];
+    }
+  | { kind: "rattle"; name: string; maxRadS2: number; conditions: LogCondition[]; gears: number[] };
+
+// ---------------------------------------------------------------------------------------------
+// Words and figures
+
+// The rounding rules of every figure are in ./format (one per quantity).
+export { dbText, radS2Text, rpmText };
+export function gearText(g: number | null): string {
+  return g === null ? "no gear given" : g === -1 ? "reverse" : g === 0 ? "neutral" : `gear ${g}`;
+}
+/** A margin with its sign: "+2.3 dB", "−12.4 rad/s²". */
+export function marginText(v: Pick<TargetVerdict, "margin" | "unit">): string {
+  if (v.margin === null) return "";
+  if (v.unit === "dB") return dbChangeText(v.margin);
+  const size = radS2Text(Math.abs(v.margin));
+  return `${v.margin > 0 ? "+" : v.margin < 0 ? "−" : "±"}${size}`;
+}
+
+/** "at least 10.0 dB over 1000–3000 rpm" / "at most 400 rad/s² at idle". */
+export function limitText(t: Target | TargetInput): string {
+  if (t.kind === "isolation")
+    return `at least ${dbText(t.minDb!)} at the firing order over ${rpmRangeText(t.rpmFrom, t.rpmTo)}`;
+  return `gearbox-input angular acceleration at idle at most ${radS2Text(t.maxRadS2!)}`;
+}
+
+/** "Every drive log", or "Run-up, Coast-down; gears 2, 3". */
+export function scopeText(t: Pick<Target, "conditions" | "gears">): string {
+  const parts: string[] = [];
+  if (t.conditions.length) parts.push(t.conditions.map((c) => conditionLabels[c]).join(", "));
+  if (t.gears.length)
+    parts.push(
+      `${plural(t.gears.length, "gear")} ${t.gears.map((g) => (g === -1 ? "R" : g === 0 ? "N" : String(g))).join(", ")}`,
+    );
+  return parts.length ? parts.join("; ") : "Every drive log";
+}
+
+// ---------------------------------------------------------------------------------------------
+// Evaluation (product rule, docs/targets.md)
+
+/** Below this share of the range covered by bins, an isolation target gets no pass (docs/targets.md). */
+export const MIN_COVERED_SHARE = 0.5;
+const EPS = 1e-9;
+const round = (x: number, digits: number) => Math.round(x * 10 ** digits) / 10 ** digits;
+
+/** Null when the target applies to the log (its conditions and gears), else why not. */
+export function outOfScope(target: Target, log: { condition: LogCondition; gear: number | null }) {
+  if (target.conditions.length && !target.conditions.includes(log.condition))
+    return `Applies to ${target.conditions.map((c) => conditionLabels[c]).join(", ")} only; this drive log is ${conditionLabels[log.condition]}.`;
+  if (target.gears.length && (log.gear === null || !target.gears.includes(log.gear)))
+    return `Applies to ${scopeText({ conditions: [], gears: target.gears })} only; this drive log has ${gearText(log.gear)}.`;
+  return null;
+}
+
+/**
+ * Judges one drive log's analysis against each target, in the order given. Rules (product rule,
+ * docs/targets.md):
+ *
+ * Isolation — the bins whose engine speed lies in [rpmFrom, rpmTo] (ends included):
+ * 1. none → "not-covered";
+ * 2. any bin above the gearbox noise floor with dB < minDb → "fail", value = the least such dB;
+ *    a fail needs no coverage: one measured bin under the limit breaks the target;
+ * 3. bins (each ±binRpm/2 wide) covering less than half of the range → "not-covered";
+ * 4. a bin below the noise floor measures a lower bound of the isolation: one that meets minDb
+ *    passes, one under minDb decides nothing (it cannot fail a target) → "not-covered" naming it;
+ * 5. otherwise "pass", value = the least dB over the bins (a lower bound when that bin is one).
+ * The range counts as covered partially when its lowest or highest bin lies more than one bin
+ * width inside the range's ends; the detail then says "covers only X–Y rpm".
+ *
+ * Rattle — value = max(firing-order amplitude, time-domain peak) of the idle check, the figure
+ * the rattle verdict compares with the vehicle's limit (app/lib/signal/rattle.ts); pass when
+ * value ≤ maxRadS2; no idle segment → "not-covered".
+ *
+ * Conditions and gears that do not match the log → "not-applicable" (a log without a gear never
+ * matches a gear-limited target).
+ */
+export function evaluateTargets(
+  targets: readonly Target[],
+  log: { condition: LogCondition; gear: number | null },
+  result: TargetEvidence,
+): TargetVerdict[] {
+  return targets.map((t) => {
+    const base = {
+      targetId: t.id,
+      name: t.name,
+      kind: t.kind,
+      value: null,
+      margin: null,
+      atRpm: null,
+    } as const;
+    const unit = t.kind === "isolation" ? ("dB" as const) : ("rad/s²" as const);
+    const limit = (t.kind === "isolation" ? t.minDb : t.maxRadS2) ?? 0;
+    const scope = outOfScope(t, log);
+    if (scope) return { ...base, unit, limit, status: "not-applicable", detail: scope };
+    return t.kind === "isolation" ? isolationVerdict(t, result) : rattleVerdict(t, result);
+  });
+}
+
+function isolationVerdict(t: Target, result: TargetEvidence): TargetVerdict {
+  const lo = t.rpmFrom ?? 0;
+  const hi = t.rpmTo ?? 0;
+  const minDb = t.minDb ?? 0;
+  const bin = result.binRpm;
+  const range = `${Math.round(lo)}–${Math.round(hi)} rpm`;
+  const shell = {
+    targetId: t.id,
+    name: t.name,
+    kind: t.kind,
+    unit: "dB" as const,
+    limit: minDb,
+  };
+  const none = { value: null, margin: null, atRpm: null };
+  const points = result.isolation
+    .filter((p) => p.rpm >= lo - EPS && p.rpm <= hi + EPS)
+    .slice()
+    .sort((a, b) => a.rpm - b.rpm);
+  if (points.length === 0) {
+    const all = result.isolation.map((p) => p.rpm);
+    return {
+      ...shell,
+      ...none,
+      status: "not-covered",
+      detail: all.length
+        ? `No isolation bins between ${range}; this drive log covers ${Math.round(Math.min(...all))}–${Math.round(Math.max(...all))} rpm.`
+        : "This drive log has no isolation bins.",
+    };
+  }
+  const first = points[0]!.rpm;
+  const last = points[points.length - 1]!.rpm;
+  const partial = first - lo > bin + EPS || hi - last > bin + EPS;
+  const coverNote = partial
+    ? ` The drive log covers only ${Math.round(first)}–${Math.round(last)} rpm of ${range}.`
+    : "";
+  const measured = points.filter((p) => p.aboveNoise);
+  const misses = measured.filter((p) => p.dB < minDb);
+  if (misses.length) {
+    const worst = misses.reduce((w, p) => (p.dB < w.dB ? p : w));
+    const margin = round(worst.dB - minDb, 2);
+    const count =
+      misses.length > 1
+        ? ` Under the target in ${misses.length} of ${countText(points.length, "bin")}.`
+        : "";
+    return {
+      ...shell,
+      status: "fail",
+      value: worst.dB,
+      margin,
+      atRpm: worst.rpm,
+      detail: `Least isolation ${dbText(worst.dB)} at ${rpmText(worst.rpm)}, ${dbText(Math.abs(margin))} short of the target.${count}${coverNote}`,
+    };
+  }
+  // Each bin stands for ±bin/2 around its centre; the share of the range those spans cover.
+  const covered = points.reduce(
+    (s, p) => s + Math.max(0, Math.min(hi, p.rpm + bin / 2) - Math.max(lo, p.rpm - bin / 2)),
+    0,
+  );
+  const share = hi > lo ? Math.min(1, covered / (hi - lo)) : 1;
+  if (share < MIN_COVERED_SHARE)
+    return {
+      ...shell,
+      ...none,
+      status: "not-covered",
+      detail: `Isolation bins cover only ${Math.round(share * 100)} % of ${range} (${Math.round(first)}–${Math.round(last)} rpm); a pass needs at least ${MIN_COVERED_SHARE * 100} %. No bin is under the target.`,
+    };
+  const undecided = points.filter((p) => !p.aboveNoise && p.dB < minDb);
+  if (undecided.length) {
+    const low = undecided.reduce((w, p) => (p.dB < w.dB ? p : w));
+    const where =
+      undecided.length === 1
+        ? `at ${rpmText(low.rpm)}`
+        : `in ${undecided.length} bins (lowest at ${rpmText(low.rpm)})`;
+    return {
+      ...shell,
+      ...none,
+      status: "not-covered",
+      detail: `Undecided: ${where} the gearbox signal is within its noise floor, so the isolation there is only known to be at least ${dbText(low.dB)}; a lower bound under the target cannot fail it, nor pass it.${coverNote}`,
+    };
+  }
+  const worst = points.reduce((w, p) => (p.dB < w.dB ? p : w));
+  const margin = round(worst.dB - minDb, 2);
+  const bound = worst.aboveNoise
+    ? ""
+    : " (a lower bound: the gearbox signal there is within its noise floor)";
+  return {
+    ...shell,
+    status: "pass",
+    value: worst.dB,
+    margin,
+    atRpm: worst.rpm,
+    detail: `Least isolation ${dbText(worst.dB)} at ${rpmText(worst.rpm)}${bound}, ${dbText(margin)} above the target.${coverNote}`,
+  };
+}
+
+function rattleVerdict(t: Target, result: TargetEvidence): TargetVerdict {
+  const max = t.maxRadS2 ?? 0;
+  const shell = {
+    targetId: t.id,
+    name: t.name,
+    kind: t.kind,
+    unit: "rad/s²" as const,
+    limit: max,
+  };
+  const idle = result.idle;
+  if (!idle)
+    return {
+      ...shell,
+      value: null,
+      margin: null,
+      atRpm: null,
+      status: "not-covered",
+      detail: "No idle segment in this drive log, so no rattle check.",
+    };
+  const amp = idle.gearboxAngAccelRadS2;
+  const peak = idle.gearboxAngAccelPeakRadS2;
+  const value = Math.max(amp, peak);
+  const margin = round(max - value, 1);
+  const which =
+    peak >= amp
+      ? `time-domain peak ${radS2Text(peak)} (firing-order amplitude ${radS2Text(amp)})`
+      : `firing-order amplitude ${radS2Text(amp)} (time-domain peak ${radS2Text(peak)})`;
+  const pass = value <= max;
+  return {
+    ...shell,
+    status: pass ? "pass" : "fail",
+    value,
+    margin,
+    atRpm: idle.meanRpm ?? null,
+    detail: `Gearbox-input ${which}: ${radS2Text(Math.abs(margin))} ${pass ? "below" : "over"} the target.`,
+  };
+}
+
+/** Counts of a drive log's verdicts, for tables. */
+export function tally(verdicts: readonly TargetVerdict[]) {
+  const n = (s: TargetStatus) => verdicts.filter((v) => v.status === s).length;
+  return {
+    passed: n("pass"),
+    failed: n("fail"),
+    notCovered: n("not-covered"),
+    notApplicable: n("not-applicable"),
+  };
+}
