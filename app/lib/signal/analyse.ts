@@ -2,7 +2,7 @@
  * The analysis pipeline: drive log in, result JSON out (docs/architecture.md §4; method and defaults in
  * docs/signal-computation.md). Pure computation; errors come back as values.
  */
-import { firingOrder as firingOrderOf, RPM_PER_RAD_S, type Stroke } from "./firing-order.ts";
+import { effectiveFiringOrder, RPM_PER_RAD_S, type Stroke } from "./firing-order.ts";
 import { findResonance, gearboxNoiseFloor, isolationCurve } from "./isolation.ts";
 import { orderCurve, orderMap, round } from "./order-curves.ts";
 import {
@@ -126,7 +126,7 @@ export function analyseDriveLog(
     return fail("invalid_option", `rattle limit must be a positive number of rad/s², got ${limit}`);
   for (const q of o.orders ?? [])
     if (!isPositive(q)) return fail("invalid_option", `orders must be positive numbers, got ${q}`);
-  const q = o.firingOrder ?? firingOrderOf(cylinders, stroke)!;
+  const q = effectiveFiringOrder(cylinders, stroke, o.firingOrder)!;
   const orders = [...new Set([0.5, 1, q, 2 * q, ...(o.orders ?? [])])].sort((a, b) => a - b);
   const topOrder = Math.max(TOP_ORDER_FACTOR * q, ...orders);
   if (
