@@ -5,14 +5,9 @@
 import { effectiveFiringOrder, RPM_PER_RAD_S, type Stroke } from "./firing-order.ts";
 import { findResonance, gearboxNoiseFloor, isolationCurve } from "./isolation.ts";
 import { orderCurve, orderMap, round } from "./order-curves.ts";
-import {
-  butterworthLowpass4,
-  chooseAngleGrid,
-  filtfilt,
-  integrateAngle,
-  MAX_SAMPLES_PER_REV,
-  trackBlocks,
-} from "./order-tracking.ts";
+import { chooseAngleGrid, integrateAngle, MAX_SAMPLES_PER_REV } from "./angle-grid.ts";
+import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
+import { trackBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
 import { findSegments } from "./segments.ts";

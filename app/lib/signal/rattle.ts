@@ -12,7 +12,8 @@
  * Verdict "over-limit" when either the order amplitude or the time-domain peak exceeds the limit.
  */
 import { angularAccelerationRadS2 } from "./firing-order.ts";
-import { butterworthLowpass4, filtfilt, type TrackedBlocks } from "./order-tracking.ts";
+import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
+import type { TrackedBlocks } from "./order-tracking.ts";
 import { orderBin } from "./order-curves.ts";
 import type { Segment } from "./segments.ts";
 import { envelopeMax, TRACE_POINTS } from "./traces.ts";
