@@ -3,7 +3,8 @@
  * the server run the same pipeline and produce the same JSON).
  */
 import type { Readable } from "node:stream";
-import { analyseDriveLog, type AnalysisOptions, type AnalysisStage } from "./analyse.ts";
+import { analyseDriveLog, type AnalysisStage } from "./analyse.ts";
+import type { AnalysisOptions } from "./analysis-options.ts";
 import { effectiveFiringOrder } from "./firing-order.ts";
 import type { IngestOptions } from "./ingest.ts";
 import { ingestFile, ingestStream } from "./ingest-stream.ts";
