@@ -33,7 +33,7 @@ import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.serve
 import { countText, plural } from "~/lib/base/plural";
 import { clientIp } from "~/lib/http/request.server";
 import { atLeast } from "~/lib/domain/roles";
-import { firingOrder } from "~/lib/signal/firing-order";
+import { vehicleFiringOrder } from "~/lib/domain/vehicle-firing-order";
 import {
   limitText,
   marginText,
@@ -129,10 +129,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     vehicle: {
       ...vehicle,
       archived: vehicle.archivedAt !== null,
-      firingOrder:
-        vehicle.firingOrderOverride ??
-        firingOrder(vehicle.cylinders, vehicle.stroke === 2 ? 2 : 4) ??
-        vehicle.cylinders / 2,
+      firingOrder: vehicleFiringOrder(vehicle) ?? vehicle.cylinders / 2,
     },
     logs: rows,
     targets: summaries,

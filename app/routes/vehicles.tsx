@@ -6,7 +6,7 @@ import { fuelLabels } from "~/components/vehicle-form";
 import { damperLabels } from "~/lib/domain/drive-log-terms";
 import { requireTeamRole } from "~/lib/http/permissions.server";
 import { atLeast } from "~/lib/domain/roles";
-import { firingOrder } from "~/lib/signal/firing-order";
+import { vehicleFiringOrder } from "~/lib/domain/vehicle-firing-order";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicles";
 import { ScrollArea } from "~/components/scroll-area";
@@ -32,7 +32,7 @@ export async function loader({ request }: Route.LoaderArgs) {
         cylinders: v.cylinders,
         stroke: v.stroke,
         fuel: v.fuel,
-        firingOrder: v.firingOrderOverride ?? firingOrder(v.cylinders, v.stroke === 2 ? 2 : 4),
+        firingOrder: vehicleFiringOrder(v),
         overridden: v.firingOrderOverride !== null,
         damper: `${damperLabels[v.damperType]}, ${v.damperVariant}`,
         archived: v.archivedAt !== null,

@@ -1,4 +1,4 @@
-import { firingOrder } from "~/lib/signal";
+import { vehicleFiringOrder } from "../domain/vehicle-firing-order";
 import type { DriveLogRow, Vehicle } from "../data/vehicles.server";
 
 // The JSON shapes of API v1 (README, "API"). Field names are a public contract: add, never rename.
@@ -13,7 +13,7 @@ export function vehicleJson(v: Vehicle) {
     fuel: v.fuel,
     idleRpm: v.idleRpm,
     /** The firing order the analyses use: the override, or z/2 (four-stroke) / z (two-stroke). */
-    firingOrder: v.firingOrderOverride ?? firingOrder(v.cylinders, v.stroke === 2 ? 2 : 4),
+    firingOrder: vehicleFiringOrder(v),
     firingOrderOverride: v.firingOrderOverride,
     transmissionType: v.transmissionType,
     gearRatios: v.gearRatios,

@@ -4,7 +4,7 @@ import { compareIsolation } from "../domain/comparison";
 import { comparisonLogs } from "../data/comparison.server";
 import { curvesForLogs } from "../data/curves.server";
 import { damperLabels, transmissionLabels } from "../domain/drive-log-terms";
-import { firingOrder } from "../signal";
+import { vehicleFiringOrder } from "../domain/vehicle-firing-order";
 import { NOT_FOUND_MESSAGE, UNAVAILABLE_MESSAGE } from "../domain/share-schema";
 import { resolveShare, sharedLogIds, type ResolvedShare } from "../data/shares.server";
 import { teamData } from "../data/team-data.server";
@@ -134,8 +134,7 @@ export async function sharedPageData(active: ActiveShare) {
       name: vehicle.name,
       identifier: vehicle.identifier,
       engine: `${vehicle.cylinders} cylinders, ${vehicle.stroke === 2 ? "two" : "four"}-stroke, ${vehicle.fuel}; idle ${vehicle.idleRpm} rpm`,
-      firingOrder:
-        vehicle.firingOrderOverride ?? firingOrder(vehicle.cylinders, vehicle.stroke === 2 ? 2 : 4),
+      firingOrder: vehicleFiringOrder(vehicle),
       transmission: transmissionLabels[vehicle.transmissionType],
       damper: damperLabels[vehicle.damperType],
       damperVariant: vehicle.damperVariant,

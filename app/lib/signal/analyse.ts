@@ -2,17 +2,13 @@
  * The analysis pipeline: drive log in, result JSON out (docs/architecture.md §4; method and defaults in
  * docs/signal-computation.md). Pure computation; errors come back as values.
  */
-import { firingOrder as firingOrderOf, RPM_PER_RAD_S, type Stroke } from "./firing-order.ts";
+import { resolveOptions, type AnalysisOptions } from "./analysis-options.ts";
+import { RPM_PER_RAD_S } from "./firing-order.ts";
 import { findResonance, gearboxNoiseFloor, isolationCurve } from "./isolation.ts";
 import { orderCurve, orderMap, round } from "./order-curves.ts";
-import {
-  butterworthLowpass4,
-  chooseAngleGrid,
-  filtfilt,
-  integrateAngle,
-  MAX_SAMPLES_PER_REV,
-  trackBlocks,
-} from "./order-tracking.ts";
+import { chooseAngleGrid, integrateAngle, MAX_SAMPLES_PER_REV } from "./angle-grid.ts";
+import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
+import { trackBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
 import { findSegments } from "./segments.ts";
@@ -22,39 +18,7 @@ import { fitTwoMassModel } from "./two-mass-model.ts";
 import { countText, plural } from "../base/plural.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
-export interface AnalysisOptions {
-  /** Cylinder count z. Default 4. */
-  cylinders?: number;
-  /** 4-stroke (firing order z/2) or 2-stroke (z). Default 4. */
-  stroke?: Stroke;
-  /** Firing order override (orders per crank revolution), e.g. for cylinder deactivation. Default from z and stroke. */
-  firingOrder?: number;
-  /** Angle-grid samples per revolution S. Default: chosen so nothing aliases (chooseAngleGrid). */
-  samplesPerRev?: number;
-  /** Revolutions per block R (order resolution 1/R). Default 8. */
-  revsPerBlock?: number;
-  /** Block overlap fraction, 0 ≤ overlap < 1. Default 0.5. */
-  overlap?: number;
-  /** Width of the engine-speed bins of curves and isolation, rpm. Default 50. */
-  binRpm?: number;
-  /** Rattle limit on gearbox-input angular acceleration, rad/s². Default 500. */
-  rattleLimitRadS2?: number;
-  /** Extra orders for order curves (beside 0.5, 1, firing order, 2× firing order). */
-  orders?: number[];
-}
-
 export type AnalysisStage = "track" | "spectra" | "results";
-
-export const DEFAULTS = {
-  cylinders: 4,
-  stroke: 4 as Stroke,
-  revsPerBlock: 8,
-  overlap: 0.5,
-  binRpm: 50,
-  rattleLimitRadS2: 500,
-};
-/** The order map and curves stop at this multiple of the firing order (unless an extra order is higher). */
-export const TOP_ORDER_FACTOR = 4;
 
 function fail(
   code: string,
@@ -92,54 +56,35 @@ function firstNonFinite(log: DriveLog): number {
   return -1;
 }
 
+/**
+ * Order-tracks a drive log and derives everything the result document holds (method step by
+ * step in docs/signal-computation.md; computed order tracking after Fyfe & Munck 1997).
+ *
+ * In: `log` with time in s (ascending) and crank and gearbox-input angular velocity in rad/s,
+ * at least two samples, sampling rate in Hz. `options` (analysis-options.ts, all optional):
+ * cylinders z (default 4, 1–24), stroke 4 or 2 (default 4), firingOrder override in orders per
+ * crank revolution (default z/2 or z), samplesPerRev (default chosen per block so nothing
+ * aliases), revsPerBlock R (default 8, order resolution 1/R), overlap (default 0.5), binRpm
+ * (default 50 rpm), rattleLimitRadS2 (default 500 rad/s²), extra orders. `onProgress` gets the
+ * stage (track, spectra, results) and the fraction 0–1 done.
+ *
+ * Out: the AnalysisResult checked against analysisResultSchema: isolation in dB at the firing
+ * order per rpm bin (positive = attenuation), order curves and map as 0-peak amplitudes in rpm,
+ * damper resonance in rpm, two-mass model fit in Hz, segments, idle rattle check in rad/s²,
+ * time-domain spectrum, speed trace; warnings as { code, message }. Bad options or data come
+ * back as { ok: false, error } with a code (invalid_option, no_data, sample_rate_too_low,
+ * too_few_revolutions, …), never a throw.
+ */
 export function analyseDriveLog(
   log: DriveLog,
   options: AnalysisOptions = {},
   onProgress?: (stage: AnalysisStage, fraction: number) => void,
 ): Outcome<AnalysisResult> {
   const o = options;
-  const cylinders = o.cylinders ?? DEFAULTS.cylinders;
-  const stroke = o.stroke ?? DEFAULTS.stroke;
-  const R = o.revsPerBlock ?? DEFAULTS.revsPerBlock;
-  const overlap = o.overlap ?? DEFAULTS.overlap;
-  const binRpm = o.binRpm ?? DEFAULTS.binRpm;
-  const limit = o.rattleLimitRadS2 ?? DEFAULTS.rattleLimitRadS2;
-  if (!Number.isInteger(cylinders) || cylinders < 1 || cylinders > 24)
-    return fail(
-      "invalid_option",
-      `cylinders must be a whole number from 1 to 24, got ${cylinders}`,
-    );
-  if (stroke !== 2 && stroke !== 4)
-    return fail("invalid_option", `stroke must be 2 or 4, got ${String(stroke)}`);
-  if (o.firingOrder !== undefined && !isPositive(o.firingOrder))
-    return fail("invalid_option", `firing order must be a positive number, got ${o.firingOrder}`);
-  if (!Number.isInteger(R) || R < 1 || R > 256)
-    return fail(
-      "invalid_option",
-      `revolutions per block must be a whole number from 1 to 256, got ${R}`,
-    );
-  if (!(typeof overlap === "number" && overlap >= 0 && overlap < 1))
-    return fail("invalid_option", `overlap must be at least 0 and below 1, got ${overlap}`);
-  if (!isPositive(binRpm))
-    return fail("invalid_option", `rpm bin width must be a positive number, got ${binRpm}`);
-  if (!isPositive(limit))
-    return fail("invalid_option", `rattle limit must be a positive number of rad/s², got ${limit}`);
-  for (const q of o.orders ?? [])
-    if (!isPositive(q)) return fail("invalid_option", `orders must be positive numbers, got ${q}`);
-  const q = o.firingOrder ?? firingOrderOf(cylinders, stroke)!;
-  const orders = [...new Set([0.5, 1, q, 2 * q, ...(o.orders ?? [])])].sort((a, b) => a - b);
-  const topOrder = Math.max(TOP_ORDER_FACTOR * q, ...orders);
-  if (
-    o.samplesPerRev !== undefined &&
-    (!Number.isInteger(o.samplesPerRev) ||
-      o.samplesPerRev / 2 <= topOrder ||
-      o.samplesPerRev > 8192)
-  ) {
-    return fail(
-      "invalid_option",
-      `samples per revolution must be a whole number above ${2 * topOrder} (twice the top order ${topOrder}) and at most 8192, got ${o.samplesPerRev}`,
-    );
-  }
+  const resolved = resolveOptions(o);
+  if (!resolved.ok) return fail("invalid_option", resolved.message);
+  const { cylinders, stroke, firingOrder: q, orders, topOrder } = resolved.value;
+  const { revsPerBlock: R, overlap, binRpm, rattleLimitRadS2: limit } = resolved.value;
 
   const n = log.timeS.length;
   if (n < 2 || log.crankRadS.length !== n || log.gearboxRadS.length !== n)

@@ -3,7 +3,7 @@
  * A bad flag or value becomes a one-line message, never a throw.
  */
 import { parseArgs } from "node:util";
-import type { AnalysisOptions } from "./analyse.ts";
+import type { AnalysisOptions } from "./analysis-options.ts";
 import type { IngestOptions } from "./ingest.ts";
 import type { SpeedUnit, TimeUnit } from "./types.ts";
 import { SPEED_UNITS, TIME_UNITS, parseSpeedUnit, parseTimeUnit } from "./units.ts";

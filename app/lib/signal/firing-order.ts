@@ -20,6 +20,20 @@ export function firingOrder(cylinders: number, stroke: Stroke = 4): number | nul
   return null;
 }
 
+/**
+ * The firing order an analysis uses, in orders: the explicit override when there is one (odd
+ * firing, cylinder deactivation), else firingOrder(cylinders, stroke). The one place this
+ * fallback is written; a vehicle's form of it is domain/vehicle-firing-order.ts. Null as
+ * firingOrder for an impossible cylinder count or stroke without an override.
+ */
+export function effectiveFiringOrder(
+  cylinders: number,
+  stroke: Stroke = 4,
+  override?: number | null,
+): number | null {
+  return override ?? firingOrder(cylinders, stroke);
+}
+
 /** Frequency in Hz of order `order` at engine speed `rpm` (rev/min): rpm/60 · order. */
 export function orderFrequencyHz(rpm: number, order: number): number {
   return (rpm / 60) * order;

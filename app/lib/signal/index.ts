@@ -27,7 +27,8 @@ export {
 } from "./pipeline.ts";
 
 // Analysis: DriveLog → AnalysisResult (the JSON the CLI prints and the server stores).
-export { analyseDriveLog, DEFAULTS, type AnalysisOptions, type AnalysisStage } from "./analyse.ts";
+export { analyseDriveLog, type AnalysisStage } from "./analyse.ts";
+export { DEFAULTS, type AnalysisOptions } from "./analysis-options.ts";
 export {
   analysisResultSchema,
   analysisSettingsSchema,

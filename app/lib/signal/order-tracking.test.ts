@@ -1,12 +1,7 @@
 import { describe, expect, it } from "vitest";
-import {
-  butterworthLowpass4,
-  chooseAngleGrid,
-  filtfilt,
-  integrateAngle,
-  samplesPerRevFor,
-  trackBlocks,
-} from "./order-tracking.ts";
+import { chooseAngleGrid, integrateAngle, samplesPerRevFor } from "./angle-grid.ts";
+import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
+import { trackBlocks } from "./order-tracking.ts";
 
 /** Crank speed with given order content on a known mean-speed profile (analytic). */
 function sweep(

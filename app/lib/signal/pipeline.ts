@@ -3,8 +3,9 @@
  * the server run the same pipeline and produce the same JSON).
  */
 import type { Readable } from "node:stream";
-import { analyseDriveLog, type AnalysisOptions, type AnalysisStage } from "./analyse.ts";
-import { firingOrder } from "./firing-order.ts";
+import { analyseDriveLog, type AnalysisStage } from "./analyse.ts";
+import type { AnalysisOptions } from "./analysis-options.ts";
+import { effectiveFiringOrder } from "./firing-order.ts";
 import type { IngestOptions } from "./ingest.ts";
 import { ingestFile, ingestStream } from "./ingest-stream.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
@@ -35,9 +36,11 @@ export async function analyseSource(
   onProgress?: (stage: PipelineStage, fraction: number) => void,
 ): Promise<Outcome<FileAnalysis>> {
   const q =
-    cmd.analysis.firingOrder ??
-    firingOrder(cmd.analysis.cylinders ?? 4, cmd.analysis.stroke ?? 4) ??
-    2;
+    effectiveFiringOrder(
+      cmd.analysis.cylinders ?? 4,
+      cmd.analysis.stroke ?? 4,
+      cmd.analysis.firingOrder,
+    ) ?? 2;
   onProgress?.("parse", 0);
   // 2 × firing order is the highest order the summary relies on (issue 4: 0.5, 1, q, 2q).
   const ingestOptions = { topOrder: 2 * q, ...cmd.ingest };

@@ -12,7 +12,8 @@
  * Verdict "over-limit" when either the order amplitude or the time-domain peak exceeds the limit.
  */
 import { angularAccelerationRadS2 } from "./firing-order.ts";
-import { butterworthLowpass4, filtfilt, type TrackedBlocks } from "./order-tracking.ts";
+import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
+import type { TrackedBlocks } from "./order-tracking.ts";
 import { orderBin } from "./order-curves.ts";
 import type { Segment } from "./segments.ts";
 import { envelopeMax, TRACE_POINTS } from "./traces.ts";
@@ -56,6 +57,21 @@ function indexAt(timeS: Float64Array, t: number): number {
   return lo;
 }
 
+/**
+ * The idle rattle check over the idle segments of a log (method at the top of this file;
+ * docs/signal-computation.md, step 13).
+ *
+ * In: `timeS` in s and `gearboxRadS` (gearbox-input angular velocity) in rad/s, the log's
+ * `sampleRateHz`, the order-tracked blocks (amplitudes 0-peak rad/s), the log's `segments`, the
+ * `firingOrder` q in orders per crank revolution and the limit in rad/s² (the analysis default
+ * is 500 rad/s², a typical design limit: Shock and Vibration 2022, art. 2954825).
+ *
+ * Out: null when the log has no idle segment or no block lies wholly inside one; else the mean
+ * idle speed in rpm (0.1 rpm), the order amplitude α = Δω·q·Ω and the time-domain peak in
+ * rad/s² (0.1), the idle time in s and blocks used, the spans over the limit (s, at most
+ * MAX_SPANS, the longest kept), the |α(t)| trace for the chart, and the verdict. The verdict
+ * reads a recording: it does not say that a vehicle is safe to drive or a damper to work on.
+ */
 export function rattleCheck(args: {
   timeS: Float64Array;
   gearboxRadS: Float64Array;

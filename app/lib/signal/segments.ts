@@ -155,6 +155,11 @@ export function estimateIdleRpm(
   return cluster[cluster.length >> 1]!;
 }
 
+/**
+ * Operating segments (method above). In: `timeS` in s, ascending; `crankRadS` in rad/s; options
+ * as SegmentOptions (own choices, no published source). Out: consecutive segments over the log:
+ * kind, start and end in s (to 1 ms), mean crank speed in rpm (to 0.1); none below two samples.
+ */
 export function findSegments(
   timeS: Float64Array,
   crankRadS: Float64Array,

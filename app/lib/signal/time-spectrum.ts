@@ -28,6 +28,21 @@ export interface TimeSpectrum {
   gearboxRpm: number[];
 }
 
+/**
+ * Frequency spectrum of both channels over one segment (docs/signal-computation.md, step 14):
+ * Welch-style averaging of Hann frames (Welch 1967, from memory), amplitude scaling as in
+ * spectrum.ts (Heinzel, Rüdiger & Schilling 2002).
+ *
+ * In: `timeS` in s, `crankRadS` and `gearboxRadS` in rad/s, `sampleRateHz` fs in Hz, the
+ * `segment` to read (start and end in s, mean speed in rpm) and `topOrder` in orders per crank
+ * revolution. The frame is the largest power of two (at least 64 samples) that fits in the
+ * segment and is not above fs / TARGET_RESOLUTION_HZ (0.25 Hz resolution); frames overlap 50 %.
+ *
+ * Out: null when the segment holds fewer than 64 samples; else frequencies in Hz up to
+ * 1.5 × topOrder × the segment's speed (and fs/2), power-averaged 0-peak amplitudes of each
+ * channel in rpm, at most MAX_POINTS points (each group of bins keeps its largest value), the
+ * resolution in Hz and the number of frames averaged.
+ */
 export function timeSpectrum(args: {
   timeS: Float64Array;
   crankRadS: Float64Array;

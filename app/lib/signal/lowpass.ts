@@ -1,0 +1,62 @@
+/**
+ * The zero-phase anti-alias low-pass of order tracking (order-tracking.ts, step 2) and of the
+ * rattle check (rattle.ts): a 4th-order Butterworth as two biquads by the bilinear transform
+ * with pre-warping, run forward then backward. Units: Hz for cutoff and sampling rate; the
+ * filtered signal keeps its own unit.
+ */
+
+/** One biquad section, coefficients normalised so a0 = 1. */
+export interface Biquad {
+  b0: number;
+  b1: number;
+  b2: number;
+  a1: number;
+  a2: number;
+}
+
+/** 4th-order Butterworth low-pass at `cutoffHz` for sampling rate `sampleRateHz` (bilinear, pre-warped). */
+export function butterworthLowpass4(cutoffHz: number, sampleRateHz: number): Biquad[] {
+  const k = Math.tan((Math.PI * cutoffHz) / sampleRateHz);
+  // Pole-pair quality factors of a 4th-order Butterworth: 1/(2cos(π/8)), 1/(2cos(3π/8)).
+  return [Math.PI / 8, (3 * Math.PI) / 8].map((theta) => {
+    const q = 1 / (2 * Math.cos(theta));
+    const norm = 1 / (1 + k / q + k * k);
+    return {
+      b0: k * k * norm,
+      b1: 2 * k * k * norm,
+      b2: k * k * norm,
+      a1: 2 * (k * k - 1) * norm,
+      a2: (1 - k / q + k * k) * norm,
+    };
+  });
+}
+
+/** Runs one section over x in place, forward or backward, starting in steady state at the first sample. */
+function runSection(x: Float64Array, s: Biquad, forward: boolean): void {
+  const n = x.length;
+  if (n === 0) return;
+  const first = forward ? 0 : n - 1;
+  const step = forward ? 1 : -1;
+  const x0 = x[first]!;
+  const dc = (s.b0 + s.b1 + s.b2) / (1 + s.a1 + s.a2);
+  let z1 = dc * x0 - s.b0 * x0;
+  let z2 = s.b2 * x0 - s.a2 * dc * x0;
+  for (let i = first, c = 0; c < n; i += step, c++) {
+    const xi = x[i]!;
+    const y = s.b0 * xi + z1;
+    z1 = s.b1 * xi - s.a1 * y + z2;
+    z2 = s.b2 * xi - s.a2 * y;
+    x[i] = y;
+  }
+}
+
+/**
+ * Zero-phase filtering (forward then backward, so the magnitude response is squared and the
+ * phase cancels). Returns a new array; the input is left untouched.
+ */
+export function filtfilt(x: Float64Array, sections: readonly Biquad[]): Float64Array {
+  const y = Float64Array.from(x);
+  for (const s of sections) runSection(y, s, true);
+  for (const s of sections) runSection(y, s, false);
+  return y;
+}
