@@ -129,7 +129,7 @@ function shutdown(signal: string) {
     () => void Promise.allSettled([analysis.stop(), fakeSmtp?.close()]).then(() => process.exit(0)),
   );
   // Open keep-alive connections or a long analysis must not hold the shutdown forever; an
-  // interrupted job is claimed again by the next start (app/lib/analyses/analysis-jobs.server.ts).
+  // interrupted job is claimed again by the next start (app/lib/analyses/queue.server.ts).
   setTimeout(() => process.exit(0), 5_000).unref();
   server.closeAllConnections?.();
 }

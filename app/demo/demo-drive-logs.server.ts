@@ -5,6 +5,7 @@ import type { LogMetadata, VehicleInput } from "~/lib/domain/vehicle-schema";
 import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { blobStore } from "~/lib/infra/storage-settings.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
+import { recordDriveLog } from "~/lib/data/drive-log-intake.server";
 import { db } from "~/lib/infra/db.server";
 import { driveLogs, vehicles } from "../lib/infra/db/schema-drive-logs";
 import { teams } from "../lib/infra/db/schema";
@@ -167,7 +168,8 @@ export async function seedDemoDriveLogs(teamSlug: string): Promise<number> {
         .from(driveLogs)
         .where(and(eq(driveLogs.vehicleId, vehicle.id), eq(driveLogs.blobKey, stored.key)));
       if (existing.length > 0) continue;
-      await data.addLog({
+      // Queued for analysis like an upload (the server's runner takes them when it starts).
+      await recordDriveLog(team.id, {
         vehicle,
         fileName: log.file,
         stored,

@@ -2,8 +2,8 @@ import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
 import { logJson } from "~/lib/http/api-json.server";
 import { apiError } from "~/lib/http/api.server";
 import { idParam } from "~/lib/http/params";
-import { blobStore, uploadMaxBytes } from "~/lib/infra/storage-settings.server";
-import { discardBody, recordUpload, UploadError } from "~/lib/http/uploads.server";
+import { recordUploads } from "~/lib/http/record-uploads.server";
+import { UploadError } from "~/lib/http/uploads.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.vehicle-logs";
 
@@ -24,36 +24,19 @@ export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => 
  */
 export const action = apiRoute(async ({ request, params }: Route.ActionArgs) => {
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use GET or POST.");
-  let teamId: number, userId: number, vehicle;
+  let uploaded;
   try {
-    ({ teamId, userId } = await requireApiAccess(request, "technician"));
-    vehicle = await vehicleData(teamId).vehicle(idParam(params.vehicleId));
-  } catch (refusal) {
-    await discardBody(request); // so the client reads the 401/403/404 instead of a reset
-    throw refusal;
-  }
-  const data = vehicleData(teamId);
-  if (vehicle.archivedAt) {
-    await discardBody(request);
-    return apiError(
-      409,
-      "vehicle_archived",
-      "This vehicle is archived: restore it before uploading.",
-    );
-  }
-
-  let added;
-  try {
-    [added] = await recordUpload(request, {
-      store: blobStore(),
-      maxBytes: uploadMaxBytes(),
+    uploaded = await recordUploads(request, {
+      access: () => requireApiAccess(request, "technician"),
+      vehicleId: params.vehicleId,
       maxFiles: 1,
-      record: (files, metadata) => data.addLogs({ vehicle, files, metadata, uploadedBy: userId }),
     });
   } catch (error) {
     if (error instanceof UploadError) return apiError(error.status, error.code, error.message);
     throw error;
   }
+  const [added] = uploaded.added;
+  const data = vehicleData(uploaded.teamId);
   const log = await data.log(added!.id);
   return Response.json(
     { log: { ...logJson(log), duplicateOf: added!.duplicateOf } },

@@ -23,7 +23,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       "No such analysis version of this drive log.",
       { status: 404 },
     );
-  const body = await chartsBody(data, log, wanted ?? log.latestAnalysisId);
+  const body = await chartsBody(log.id, wanted ?? log.latestAnalysisId, (id) =>
+    id === log.latestAnalysisId ? data.latestAnalysis(log.id) : data.analysisOf(log.id, id),
+  );
   if (body === null)
     return Response.json(
       {

@@ -19,6 +19,7 @@ import { Card, Notice, When } from "~/components/page";
 import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
 import { SharePanel } from "~/components/share-panel";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
+import { queueAnalysis } from "~/lib/analyses/requests.server";
 import { analysisParam } from "~/lib/http/analysis-param";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -165,7 +166,7 @@ export async function action({ request, params }: Route.ActionArgs) {
       Object.entries(mapping).filter(([, v]) => v !== undefined),
     ) as IngestMapping;
     await vehicles.rememberMapping(vehicle.id, clean);
-    await vehicles.reanalyse(log.id, {}, clean);
+    await queueAnalysis(await vehicles.reanalysisJob(log.id, {}, clean));
     return {
       notice:
         "The columns are set and remembered for this vehicle; the drive log is being analysed again.",
@@ -177,7 +178,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (submission.status !== "success")
     return data({ reanalyse: submission.reply() }, { status: 400 });
   const { intent: _, ...overrides } = submission.value;
-  await vehicles.reanalyse(log.id, overrides);
+  await queueAnalysis(await vehicles.reanalysisJob(log.id, overrides));
   return { notice: "A new analysis version is queued; the earlier ones are kept." };
 }
 

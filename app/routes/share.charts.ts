@@ -19,7 +19,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   if (active instanceof Response) return active;
   const log = await sharedLogFor(active, request);
   if (log instanceof Response) return log;
-  const body = await chartsBody(vehicleData(active.teamId), log);
+  const body = await chartsBody(log.id, log.latestAnalysisId, () =>
+    vehicleData(active.teamId).latestAnalysis(log.id),
+  );
   if (body === null)
     return shareJsonError(404, "no_result", `This drive log has no analysis yet (${log.status}).`);
   return new Response(body, {

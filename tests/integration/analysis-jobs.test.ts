@@ -20,8 +20,10 @@ import { useScratchDatabase } from "../support/scratch-db";
 
 // A database of its own: runners of other test files' servers must not take these jobs.
 const scratch = await useScratchDatabase("jobs");
-const { claimJob, MAX_ATTEMPTS, STALE_AFTER_MS, startJobRunner } =
-  await import("~/lib/analyses/analysis-jobs.server");
+const { claimJob, MAX_ATTEMPTS, STALE_AFTER_MS } = await import("~/lib/analyses/queue.server");
+const { startJobRunner } = await import("~/lib/analyses/runner.server");
+const { queueAnalysis } = await import("~/lib/analyses/requests.server");
+const { recordDriveLog } = await import("~/lib/data/drive-log-intake.server");
 const { db, pool } = await import("~/lib/infra/db.server");
 const { vehicleData } = await import("~/lib/data/vehicles.server");
 const { createTestTeam } = await import("../support/accounts");
@@ -62,7 +64,7 @@ afterAll(async () => {
 async function addLog(text: string) {
   const stored = await localBlobStore(blobRoot).put(Readable.from([Buffer.from(text)]));
   const vehicle = await data.vehicle(vehicleId);
-  const { id } = await data.addLog({
+  const { id } = await recordDriveLog(data.teamId, {
     vehicle,
     fileName: "t.csv",
     stored,
@@ -268,7 +270,7 @@ describe("analysis jobs", () => {
         (j) => j.status === "done",
         "the first analysis",
       );
-      await data.reanalyse(logId, { binRpm: 100, revsPerBlock: 16 });
+      await queueAnalysis(await data.reanalysisJob(logId, { binRpm: 100, revsPerBlock: 16 }));
       await until(
         async () => (await rowsFor(logId)).analyses,
         (n) => n === 2,

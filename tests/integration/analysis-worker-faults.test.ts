@@ -13,8 +13,10 @@ import { useJobTestbed } from "../support/scratch-db";
 
 // A database and storage of its own: no other server's runner may take these jobs.
 const testbed = await useJobTestbed("workerfaults");
-const { claimJob, failJob, retryJob, saveAnalysis, STALE_AFTER_MS, startJobRunner } =
-  await import("~/lib/analyses/analysis-jobs.server");
+const { claimJob, failJob, retryJob, STALE_AFTER_MS } = await import("~/lib/analyses/queue.server");
+const { saveAnalysis } = await import("~/lib/analyses/save.server");
+const { startJobRunner } = await import("~/lib/analyses/runner.server");
+const { recordDriveLog } = await import("~/lib/data/drive-log-intake.server");
 const { db, pool } = await import("~/lib/infra/db.server");
 const { vehicleData } = await import("~/lib/data/vehicles.server");
 const { createApiToken } = await import("~/lib/data/api-tokens.server");
@@ -42,7 +44,7 @@ afterAll(async () => {
 
 async function addLog(text: string) {
   const stored = await localBlobStore(testbed.storage).put(Readable.from([Buffer.from(text)]));
-  const { id } = await data.addLog({
+  const { id } = await recordDriveLog(data.teamId, {
     vehicle: await data.vehicle(vehicleId),
     fileName: "fault.csv",
     stored,

@@ -23,6 +23,7 @@ const { auditEvents } = await import("~/lib/infra/db/schema");
 const { shares, shareViews, comments } = await import("~/lib/infra/db/schema-results");
 const { driveLogs } = await import("~/lib/infra/db/schema-drive-logs");
 const { vehicleData } = await import("~/lib/data/vehicles.server");
+const { recordDriveLog } = await import("~/lib/data/drive-log-intake.server");
 const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
 const { blobStore } = await import("~/lib/infra/storage-settings.server");
 const { startAnalysisService } = await import("~/lib/analyses/analysis-service.server");
@@ -67,7 +68,7 @@ const at800: AnalyticIdle = { ...IDLE_800, durationS: 6 };
 async function addLog(csv: string, fileName: string) {
   const data = vehicleData(team.id);
   const stored = await blobStore().put(Readable.from([Buffer.from(csv)]));
-  const { id } = await data.addLog({
+  const { id } = await recordDriveLog(team.id, {
     vehicle: await data.vehicle(vehicleId),
     fileName,
     stored,

@@ -3,11 +3,12 @@
  * first line is "# runaway" keeps allocating JS heap until the pool's real memory limit ends the
  * worker; "# throw" throws; any other file goes to the real worker (app/lib/analyses/analysis.worker.ts).
  */
-import analyseStoredLog, { type AnalysisTask } from "../../app/lib/analyses/analysis.worker.ts";
-import { localBlobStore } from "../../app/lib/infra/storage.server";
+import analyseStoredLog from "../../app/lib/analyses/analysis.worker.ts";
+import type { AnalysisTask } from "../../app/lib/analyses/tasks";
+import { blobStoreFrom } from "../../app/lib/infra/storage.server";
 
 async function firstLine(task: AnalysisTask): Promise<string> {
-  for await (const chunk of localBlobStore(task.blobRoot).read(task.blobKey)) {
+  for await (const chunk of blobStoreFrom(task.store).read(task.blobKey)) {
     return String(chunk).split("\n", 1)[0]!;
   }
   return "";

@@ -1,9 +1,10 @@
-import { startJobRunner, type BeforeCommit } from "./analysis-jobs.server";
+import { startJobRunner } from "./runner.server";
+import type { BeforeCommit } from "./save.server";
 import { describeDbError } from "../infra/db-errors.server";
 import { db } from "../infra/db.server";
 import { getEnv } from "../infra/env.server";
 import { startStorageSweep } from "../infra/storage-sweep.server";
-import { blobRoot, blobStore, sweepGraceMs } from "../infra/storage-settings.server";
+import { blobStore, blobStoreDescription, sweepGraceMs } from "../infra/storage-settings.server";
 import { createAnalysisPool } from "../infra/worker-pool.server";
 
 /**
@@ -22,7 +23,8 @@ export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = 
   const runner = startJobRunner({
     db,
     pool,
-    blobRoot: blobRoot(),
+    store: blobStoreDescription(),
+    pollMs: getEnv().ANALYSIS_POLL_MS,
     beforeCommit: options.beforeCommit,
     onError(error) {
       // One line, and the same line at most once a minute (a stopped database must not flood the log).

@@ -1,30 +1,12 @@
 /**
  * A piscina worker: analyses one stored drive log off the request thread. It reads the raw
- * file from storage as a stream and runs the same pipeline as the CLI (app/lib/signal).
+ * file from storage (the BlobStore the task describes) as a stream and runs the same pipeline as the CLI (app/lib/signal).
  * Progress goes back over the MessagePort in the task; the result is returned whole.
  */
-import type { MessagePort } from "node:worker_threads";
-import {
-  analyseSource,
-  type AnalysisOptions,
-  type AnalysisResult,
-  type IngestOptions,
-} from "../signal/index.ts";
+import { analyseSource } from "../signal/index.ts";
 import type { LogError } from "../domain/drive-log-terms";
-import { localBlobStore } from "../infra/storage.server";
-
-export interface AnalysisTask {
-  blobRoot: string;
-  blobKey: string;
-  sizeBytes: number;
-  ingest: IngestOptions;
-  analysis: AnalysisOptions;
-  progress?: MessagePort;
-}
-
-export type AnalysisTaskOutcome =
-  | { ok: true; result: AnalysisResult }
-  | { ok: false; error: LogError; warnings: { code: string; message: string }[] };
+import { blobStoreFrom } from "../infra/storage.server";
+import type { AnalysisTask, AnalysisTaskOutcome } from "./tasks";
 
 /** Weights of the stages in the overall progress (parse is the slowest, see npm run bench). */
 const STAGES = {
@@ -35,7 +17,7 @@ const STAGES = {
 } as const;
 
 export default async function analyseStoredLog(task: AnalysisTask): Promise<AnalysisTaskOutcome> {
-  const source = localBlobStore(task.blobRoot).read(task.blobKey);
+  const source = blobStoreFrom(task.store).read(task.blobKey);
   let last = -1;
   const outcome = await analyseSource(
     { source, ingest: { sizeHintBytes: task.sizeBytes, ...task.ingest }, analysis: task.analysis },

@@ -1,8 +1,8 @@
 import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
-import { gunzipSync } from "node:zlib";
 import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-drive-logs";
 import { targets } from "~/lib/infra/db/schema-results";
 import type { AnalysisResult } from "~/lib/signal";
+import { idleFiguresOf, type IdleFigures } from "../analyses/result.server";
 import { db } from "../infra/db.server";
 import type { LogCondition } from "../domain/drive-log-terms";
 import { invariantResponse } from "../http/permissions.server";
@@ -57,17 +57,7 @@ function columns(input: TargetInput) {
       };
 }
 
-/**
- * The time-domain idle peak (rad/s²) and the idle speed (rpm) are only in the compressed result
- * JSON, not in columns. Analyses never change once saved (a re-analysis is a new row), so what is
- * read once is kept for the life of the process; the cache is bounded so a server stays small.
- */
-export interface IdleFigures {
-  peakRadS2: number;
-  meanRpm: number;
-}
-const idleCache = new Map<number, IdleFigures | null>();
-const IDLE_CACHE_MAX = 20_000;
+export type { IdleFigures };
 
 /** What a table row needs to be judged: the log's condition and gear and its latest analysis. */
 export interface LogForVerdicts {
@@ -102,37 +92,13 @@ export function targetData(teamId: number) {
       .orderBy(asc(targets.kind), asc(targets.rpmFrom), asc(targets.name), asc(targets.id));
   }
 
-  /** The idle figures of these analyses of the team (null: no idle segment), from the cache or the result JSON. */
-  async function idleFigures(analysisIds: number[]): Promise<Map<number, IdleFigures | null>> {
-    const out = new Map<number, IdleFigures | null>();
-    const missing: number[] = [];
-    for (const id of new Set(analysisIds)) {
-      if (idleCache.has(id)) out.set(id, idleCache.get(id)!);
-      else missing.push(id);
-    }
-    for (let i = 0; i < missing.length; i += 50) {
-      const rows = await db
-        .select({ id: analyses.id, resultGz: analyses.resultGz })
-        .from(analyses)
-        .where(and(inArray(analyses.id, missing.slice(i, i + 50)), eq(analyses.teamId, teamId)));
-      for (const row of rows) {
-        const idle = (
-          JSON.parse(gunzipSync(row.resultGz).toString("utf8")) as {
-            idle?: { gearboxAngAccelPeakRadS2?: unknown; meanRpm?: unknown } | null;
-          }
-        ).idle;
-        const figures =
-          idle &&
-          typeof idle.gearboxAngAccelPeakRadS2 === "number" &&
-          typeof idle.meanRpm === "number"
-            ? { peakRadS2: idle.gearboxAngAccelPeakRadS2, meanRpm: idle.meanRpm }
-            : null;
-        if (idleCache.size >= IDLE_CACHE_MAX) idleCache.delete(idleCache.keys().next().value!);
-        idleCache.set(row.id, figures);
-        out.set(row.id, figures);
-      }
-    }
-    return out;
+  /**
+   * The idle figures of these analyses of the team (null: no idle segment): the time-domain
+   * idle peak (rad/s²) and idle speed (rpm) are only in the result JSON, read and kept by the
+   * analyses' cache (result.server.ts).
+   */
+  function idleFigures(analysisIds: number[]): Promise<Map<number, IdleFigures | null>> {
+    return idleFiguresOf(teamId, analysisIds);
   }
 
   return {

@@ -1,12 +1,11 @@
 import { and, asc, desc, eq, inArray, isNull, ne } from "drizzle-orm";
-import { gunzipSync } from "node:zlib";
 import { z } from "zod";
 import { analyses, analysisJobs, driveLogs, vehicles } from "~/lib/infra/db/schema-drive-logs";
-import { analysisResultSchema, type AnalysisOptions, type AnalysisResult } from "~/lib/signal";
-import { enqueueAnalysis, type JobSettings } from "../analyses/analysis-jobs.server";
+import type { NewJob, Tx } from "../analyses/queue.server";
+import { decodeStoredJson, storedResult, type StoredAnalysis } from "../analyses/result.server";
+import { jobSettingsFor, type AnalysisOverrides, type JobSettings } from "../analyses/settings";
 import { db } from "../infra/db.server";
 import type { AppliedMapping, IngestMapping } from "../domain/drive-log-terms";
-import { deepFreeze, Lru } from "../base/lru";
 import { invariantResponse } from "../http/permissions.server";
 import type { StoredBlob } from "../infra/storage.server";
 import type { LogMetadata, VehicleInput } from "../domain/vehicle-schema";
@@ -14,75 +13,13 @@ import type { LogMetadata, VehicleInput } from "../domain/vehicle-schema";
 export type Vehicle = typeof vehicles.$inferSelect;
 export type DriveLogRow = typeof driveLogs.$inferSelect;
 
-/** One analysis version with its result (checked against the schema). */
-export interface StoredAnalysis {
-  id: number;
-  version: number;
-  createdAt: Date;
-  result: AnalysisResult;
-}
-
-/**
- * Parsed analysis results by analysis id. Decoding one (gunzip, JSON, schema check of the
- * order map; 10 ms or more for a demo run-up) with its garbage was about a third of a drive-log
- * page request's CPU under load (bench/load.bench.ts, profiled); an analysis never changes, so
- * the parsed result is kept, frozen so no request can change what the next one reads. The
- * promise is kept, so requests that arrive together decode once. At most about 1 MB each (the
- * order map has at most 400 rows).
- */
-const decoded = new Lru<number, Promise<AnalysisResult | null>>(16);
-
-function decodedResult(analysisId: number): Promise<AnalysisResult | null> {
-  const hit = decoded.get(analysisId);
-  if (hit) return hit;
-  const made = (async () => {
-    const [row] = await db
-      .select({ resultGz: analyses.resultGz, orderMapGz: analyses.orderMapGz })
-      .from(analyses)
-      .where(eq(analyses.id, analysisId));
-    if (!row) return null;
-    const parsed = analysisResultSchema.safeParse({
-      ...(JSON.parse(gunzipSync(row.resultGz).toString("utf8")) as object),
-      orderMap: JSON.parse(gunzipSync(row.orderMapGz).toString("utf8")) as unknown,
-    });
-    return parsed.success ? deepFreeze(parsed.data) : null;
-  })();
-  decoded.set(analysisId, made);
-  // A database error is not kept: the next request tries again.
-  made.catch(() => decoded.delete(analysisId));
-  return made;
-}
+export type { AnalysisOverrides, StoredAnalysis };
 
 /** The two settings of analyses.settings the version list names (besides the firing order). */
 const versionSettings = z.looseObject({
   revsPerBlock: z.number().optional(),
   binRpm: z.number().optional(),
 });
-
-/** Settings a re-analysis may change (issue: order override, block length, bin width). */
-export type AnalysisOverrides = Pick<AnalysisOptions, "firingOrder" | "revsPerBlock" | "binRpm">;
-
-/**
- * What a job runs with: the vehicle's engine and limit, any overrides, and the columns — those
- * `chosen` for this drive log, else the vehicle's remembered choice as a suggestion that the job
- * uses only where it fits the file (column-choice.server.ts).
- */
-export function jobSettingsFor(
-  vehicle: Vehicle,
-  chosen: IngestMapping | null,
-  overrides: AnalysisOverrides = {},
-): JobSettings {
-  const analysis: AnalysisOptions = {
-    cylinders: vehicle.cylinders,
-    stroke: vehicle.stroke === 2 ? 2 : 4,
-    rattleLimitRadS2: vehicle.rattleLimitRadS2,
-    ...(vehicle.firingOrderOverride ? { firingOrder: vehicle.firingOrderOverride } : {}),
-    ...Object.fromEntries(Object.entries(overrides).filter(([, v]) => v !== undefined)),
-  };
-  return chosen
-    ? { analysis, ingest: chosen, remembered: null }
-    : { analysis, ingest: {}, remembered: vehicle.columnMapping };
-}
 
 /**
  * Every read and write of vehicles and drive logs goes through here with the team in each
@@ -153,22 +90,27 @@ export function vehicleData(teamId: number) {
         ),
       );
     if (!stored) return null;
-    const result = await decodedResult(stored.id);
+    const result = await storedResult(stored.id);
     return result ? { ...stored, result } : null;
   }
 
   /**
-   * addLog for several files with the same test details, all in one transaction: a failure
-   * (the database went away) records none of them, so the upload can simply be sent again.
+   * addLog for several files with the same test details, all in one transaction (the caller's
+   * when given `within`, so their analysis jobs commit with them): a failure (the database went
+   * away) records none of them, so the upload can simply be sent again. Queues no analysis
+   * (app/lib/data/drive-log-intake.server.ts does both).
    */
-  async function addLogs(args: {
-    vehicle: Vehicle;
-    files: { fileName: string; stored: StoredBlob }[];
-    metadata: LogMetadata;
-    uploadedBy: number | null;
-  }): Promise<{ id: number; duplicateOf: number | null }[]> {
+  async function addLogs(
+    args: {
+      vehicle: Vehicle;
+      files: { fileName: string; stored: StoredBlob }[];
+      metadata: LogMetadata;
+      uploadedBy: number | null;
+    },
+    within?: Tx,
+  ): Promise<{ id: number; duplicateOf: number | null }[]> {
     const { vehicle: v, metadata } = args;
-    return db.transaction(async (tx) => {
+    const write = async (tx: Tx) => {
       const added = [];
       for (const { fileName, stored } of args.files) {
         const [earlier] = await tx
@@ -199,16 +141,11 @@ export function vehicleData(teamId: number) {
             uploadedBy: args.uploadedBy,
           })
           .$returningId();
-        const id = row!.id;
-        await enqueueAnalysis(tx, {
-          teamId,
-          driveLogId: id,
-          settings: jobSettingsFor(v, null),
-        });
-        added.push({ id, duplicateOf: earlier?.id ?? null });
+        added.push({ id: row!.id, duplicateOf: earlier?.id ?? null });
       }
       return added;
-    });
+    };
+    return within ? write(within) : db.transaction(write);
   }
 
   return {
@@ -322,8 +259,8 @@ export function vehicleData(teamId: number) {
     },
 
     /**
-     * Records an uploaded file as a drive log and queues its analysis, in one transaction.
-     * A file already stored for this vehicle is accepted again (scripts must not break) and
+     * Records an uploaded file as a drive log (no analysis is queued: see addLogs). A file
+     * already stored for this vehicle is accepted again (scripts must not break) and
      * `duplicateOf` names the earliest drive log with the same content.
      */
     async addLog(args: {
@@ -341,19 +278,20 @@ export function vehicleData(teamId: number) {
     addLogs,
 
     /**
-     * Queues a new analysis version of a drive log (the older ones are kept). Without a new
-     * `mapping`, columns chosen by hand for this drive log before are kept.
+     * The job of a new analysis version of a drive log (the older ones are kept), for
+     * queueAnalysis (app/lib/analyses/requests.server.ts). Without a new `mapping`, columns
+     * chosen by hand for this drive log before are kept.
      */
-    async reanalyse(logId: number, overrides: AnalysisOverrides = {}, mapping?: IngestMapping) {
+    async reanalysisJob(
+      logId: number,
+      overrides: AnalysisOverrides = {},
+      mapping?: IngestMapping,
+    ): Promise<NewJob> {
       const row = await log(logId);
       const v = await vehicle(row.vehicleId);
       const last = mapping ? null : await appliedColumns(row.id);
       const chosen = mapping ?? (last?.source === "chosen" ? last.mapping : null);
-      return enqueueAnalysis(db, {
-        teamId,
-        driveLogId: row.id,
-        settings: jobSettingsFor(v, chosen, overrides),
-      });
+      return { teamId, driveLogId: row.id, settings: jobSettingsFor(v, chosen, overrides) };
     },
 
     appliedColumns,
@@ -407,34 +345,7 @@ export function vehicleData(teamId: number) {
         .select({ resultGz: analyses.resultGz, orderMapGz: analyses.orderMapGz })
         .from(analyses)
         .where(and(eq(analyses.id, row.latestAnalysisId), eq(analyses.teamId, teamId)));
-      if (!stored) return null;
-      const result = JSON.parse(gunzipSync(stored.resultGz).toString("utf8")) as Record<
-        string,
-        unknown
-      >;
-      const orderMap = JSON.parse(gunzipSync(stored.orderMapGz).toString("utf8")) as unknown;
-      // Keys back in the signal core's order (orderMap sits after orderCurves).
-      const {
-        firingOrder,
-        sampleRateHz,
-        durationS,
-        settings,
-        blocks,
-        isolation,
-        orderCurves,
-        ...tail
-      } = result;
-      return {
-        firingOrder,
-        sampleRateHz,
-        durationS,
-        settings,
-        blocks,
-        isolation,
-        orderCurves,
-        orderMap,
-        ...tail,
-      };
+      return stored ? decodeStoredJson(stored) : null;
     },
   };
 }

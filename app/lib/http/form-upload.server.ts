@@ -1,53 +1,35 @@
 import { data, redirect } from "react-router";
 import { assertCsrf, assertSameOrigin, CSRF_FIELD } from "~/lib/http/csrf.server";
-import { idParam } from "~/lib/http/params";
 import { requireTeamRole } from "~/lib/http/permissions.server";
-import { blobStore, uploadMaxBytes } from "~/lib/infra/storage-settings.server";
-import { discardBody, recordUpload, UploadError } from "~/lib/http/uploads.server";
-import { vehicleData } from "~/lib/data/vehicles.server";
+import { recordUploads } from "~/lib/http/record-uploads.server";
+import { UploadError } from "~/lib/http/uploads.server";
 
 /**
  * The form upload without JavaScript: streams every file to storage and records one drive log
- * per file (recordUpload, shared with the API). The form's CSRF token comes before its file
+ * per file (recordUploads, shared with the API). The form's CSRF token comes before its file
  * input, so a wrong token is refused before anything is stored; a token sent after the files
  * is checked once they are in, and a refusal removes them.
  */
 export async function uploadFromForm(request: Request, vehicleIdParam: string | undefined) {
-  let teamId: number, userId: number, vehicle;
-  try {
-    assertSameOrigin(request); // another site's page: refused before the body is read
-    const current = await requireTeamRole(request, "technician");
-    teamId = current.team.id;
-    userId = current.user.id;
-    vehicle = await vehicleData(teamId).vehicle(idParam(vehicleIdParam));
-  } catch (refusal) {
-    await discardBody(request); // the browser reads the 403/404 instead of a reset connection
-    throw refusal;
-  }
-  if (vehicle.archivedAt) {
-    await discardBody(request);
-    return data(
-      { uploadError: "This vehicle is archived: an engineer restores it before new uploads." },
-      { status: 409 },
-    );
-  }
   const checkToken = (fields: Record<string, string>) => {
     const form = new FormData();
     for (const [k, v] of Object.entries(fields)) form.set(k, v);
     return assertCsrf(request, form);
   };
-  let added;
+  let uploaded;
   try {
-    added = await recordUpload(request, {
-      store: blobStore(),
-      maxBytes: uploadMaxBytes(),
+    uploaded = await recordUploads(request, {
+      access: async () => {
+        assertSameOrigin(request); // another site's page: refused before the body is read
+        const current = await requireTeamRole(request, "technician");
+        return { teamId: current.team.id, userId: current.user.id };
+      },
+      vehicleId: vehicleIdParam,
       maxFiles: 20,
       beforeFirstFile: async (fields) => {
         if (fields[CSRF_FIELD] !== undefined) await checkToken(fields);
       },
       afterReceive: checkToken,
-      record: (files, metadata) =>
-        vehicleData(teamId).addLogs({ vehicle, files, metadata, uploadedBy: userId }),
     });
   } catch (error) {
     // With the database away the page around the message cannot be drawn: the error page
@@ -58,6 +40,7 @@ export async function uploadFromForm(request: Request, vehicleIdParam: string | 
       return data({ uploadError: error.forPage }, { status: error.status });
     throw error;
   }
+  const { vehicle, added } = uploaded;
   const dup = added.filter((a) => a.duplicateOf).map((a) => `${a.id}-${a.duplicateOf}`);
   const query = new URLSearchParams({ uploaded: added.map((a) => a.id).join(",") });
   if (dup.length) query.set("dup", dup.join(","));

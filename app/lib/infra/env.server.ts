@@ -48,6 +48,9 @@ const envSchema = z.object({
   // (the drive log fails with a message), never the server. The pipeline needs about 16 MB of
   // heap for any file measured (its samples live in typed arrays outside that heap).
   ANALYSIS_WORKER_MEMORY_MB: z.coerce.number().int().min(8).max(16384).default(512),
+  // How often the job runner looks for queued analyses, in ms. A new job of this instance wakes
+  // it at once; the poll finds jobs queued by other instances and ones whose instance died.
+  ANALYSIS_POLL_MS: z.coerce.number().int().min(10).max(86_400_000).default(500),
 });
 
 const checkedEnv = envSchema

@@ -1,15 +1,20 @@
 import { join } from "node:path";
 import { getEnv } from "./env.server";
-import { localBlobStore, type BlobStore } from "./storage.server";
+import { blobStoreFrom, type BlobStore, type BlobStoreDescription } from "./storage.server";
 
 /** Where raw drive logs are kept (TWISTLOG_STORAGE_DIR, default .data/blobs). */
 export function blobRoot(): string {
   return getEnv().TWISTLOG_STORAGE_DIR ?? join(process.cwd(), ".data", "blobs");
 }
 
+/** The configured store as plain data (for the analysis worker, which opens its own). */
+export function blobStoreDescription(): BlobStoreDescription {
+  return { kind: "local", root: blobRoot() };
+}
+
 let store: BlobStore | undefined;
 export function blobStore(): BlobStore {
-  return (store ??= localBlobStore(blobRoot()));
+  return (store ??= blobStoreFrom(blobStoreDescription()));
 }
 
 /** The largest drive log accepted, in bytes (UPLOAD_MAX_BYTES, default 1 GiB). */

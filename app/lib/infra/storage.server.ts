@@ -64,6 +64,21 @@ export class BlobTooLargeError extends Error {
   }
 }
 
+/**
+ * Which store, as plain data: what crosses to a worker thread (a BlobStore object cannot) and
+ * is opened there with blobStoreFrom(). A new kind of store (S3) adds a variant here and a case
+ * in blobStoreFrom; its readers do not change.
+ */
+export type BlobStoreDescription = { kind: "local"; root: string };
+
+/** Opens the store a description names. */
+export function blobStoreFrom(description: BlobStoreDescription): BlobStore {
+  switch (description.kind) {
+    case "local":
+      return localBlobStore(description.root);
+  }
+}
+
 const keyPattern = /^[0-9a-f]{64}$/;
 
 /** A folder of gzip files, two directory levels deep by key prefix. */

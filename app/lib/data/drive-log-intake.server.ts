@@ -1,0 +1,41 @@
+/**
+ * New drive logs and their analyses: the rows (vehicleData.addLogs) and one analysis job per
+ * log (the analyses module's enqueueAnalysis, with the same transaction handle) commit together
+ * or not at all; then this process's job runner is woken, so the analysis starts at once rather
+ * than at the next poll. The one way uploads (recordUploads), the demo seed and tests add logs.
+ */
+import { enqueueAnalysis } from "../analyses/queue.server";
+import { wakeRunners } from "../analyses/runner.server";
+import { jobSettingsFor } from "../analyses/settings";
+import { db } from "../infra/db.server";
+import { vehicleData } from "./vehicles.server";
+
+type AddLogsArgs = Parameters<ReturnType<typeof vehicleData>["addLogs"]>[0];
+type Added = { id: number; duplicateOf: number | null };
+
+/** Records the files as drive logs of `args.vehicle` and queues their analyses. */
+export async function recordDriveLogs(teamId: number, args: AddLogsArgs): Promise<Added[]> {
+  const added = await db.transaction(async (tx) => {
+    const rows = await vehicleData(teamId).addLogs(args, tx);
+    for (const { id } of rows) {
+      await enqueueAnalysis(tx, {
+        teamId,
+        driveLogId: id,
+        settings: jobSettingsFor(args.vehicle, null),
+      });
+    }
+    return rows;
+  });
+  wakeRunners();
+  return added;
+}
+
+/** recordDriveLogs for one file. */
+export async function recordDriveLog(
+  teamId: number,
+  args: Omit<AddLogsArgs, "files"> & AddLogsArgs["files"][number],
+): Promise<Added> {
+  const { fileName, stored, ...rest } = args;
+  const [added] = await recordDriveLogs(teamId, { ...rest, files: [{ fileName, stored }] });
+  return added!;
+}
