@@ -9,7 +9,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import { gunzipSync, gzipSync } from "node:zlib";
 import { analyses } from "~/lib/infra/db/schema-drive-logs";
 import { analysisResultSchema, type AnalysisResult } from "~/lib/signal";
-import { deepFreeze } from "../base/lru";
+import { deepFreeze, Lru } from "../base/lru";
 import { db } from "../infra/db.server";
 
 /** One analysis version with its result (checked against the schema). */
@@ -77,52 +77,25 @@ export function decodeStoredJson(stored: EncodedResult): Record<string, unknown>
 // ---- The cache ------------------------------------------------------------------------------
 
 /**
- * What has been read of one analysis. Each part has its own bound, as their sizes differ: a
- * parsed result is up to about 1 MB (the order map has at most 400 rows), a chart body about
- * 200 KB, idle figures a few bytes.
+ * What has been read of analyses, by analysis id, in three least-recently-used parts with their
+ * own bounds, as their sizes differ: a parsed result is up to about 1 MB (the order map has at
+ * most 400 rows), a chart body about 200 KB, idle figures a few bytes. Decoding a result (gunzip,
+ * JSON, schema check of the order map; 10 ms or more for a demo run-up) with its garbage was
+ * about a third of a drive-log page request's CPU under load (bench/load.bench.ts, profiled), and
+ * a chart body takes 20–70 ms to build.
  */
-interface Entry {
-  /** The parsed, frozen result. The promise is kept, so requests that arrive together decode once. */
-  result?: Promise<AnalysisResult | null>;
-  /** The body of charts.json (chart-bodies.server.ts). */
-  chartBody?: string;
-  idle?: IdleFigures | null;
-}
-
-/**
- * Decoding a result (gunzip, JSON, schema check of the order map; 10 ms or more for a demo
- * run-up) with its garbage was about a third of a drive-log page request's CPU under load
- * (bench/load.bench.ts, profiled), and a chart body takes 20–70 ms to build.
- */
-const LIMITS = { result: 16, chartBody: 64, idle: 20_000 } as const;
-
-/** Least recently used first (a Map keeps insertion order; a read moves its entry to the end). */
-const entries = new Map<number, Entry>();
-
-function entry(id: number): Entry {
-  const found = entries.get(id) ?? {};
-  entries.delete(id);
-  entries.set(id, found);
-  return found;
-}
-
-/** Drops the least recently used parts of `part` beyond its limit (and entries left empty). */
-function trim(part: keyof Entry) {
-  let held = 0;
-  for (const e of entries.values()) if (e[part] !== undefined) held++;
-  for (const [id, e] of entries) {
-    if (held <= LIMITS[part]) break;
-    if (e[part] === undefined) continue;
-    delete e[part];
-    held--;
-    if (Object.keys(e).length === 0) entries.delete(id);
-  }
-}
+const cache = {
+  /** Parsed, frozen results. The promise is kept, so requests that arrive together decode once. */
+  results: new Lru<number, Promise<AnalysisResult | null>>(16),
+  /** Bodies of charts.json (chart-bodies.server.ts). */
+  chartBodies: new Lru<number, string>(64),
+  idle: new Lru<number, IdleFigures | null>(20_000),
+};
 
 /** The parsed result of an analysis (frozen: no request can change what the next one reads). */
 export function storedResult(analysisId: number): Promise<AnalysisResult | null> {
-  const e = entry(analysisId);
-  if (e.result) return e.result;
+  const kept = cache.results.get(analysisId);
+  if (kept) return kept;
   const made = (async () => {
     const [row] = await db
       .select({ resultGz: analyses.resultGz, orderMapGz: analyses.orderMapGz })
@@ -135,25 +108,21 @@ export function storedResult(analysisId: number): Promise<AnalysisResult | null>
     });
     return parsed.success ? deepFreeze(parsed.data) : null;
   })();
-  e.result = made;
-  trim("result");
+  cache.results.set(analysisId, made);
   // A database error is not kept: the next request tries again.
   made.catch(() => {
-    if (entries.get(analysisId)?.result === made) delete entries.get(analysisId)!.result;
+    if (cache.results.get(analysisId) === made) cache.results.delete(analysisId);
   });
   return made;
 }
 
 /** A chart body built before for this analysis, if still kept. */
 export function cachedChartBody(analysisId: number): string | undefined {
-  const body = entries.get(analysisId)?.chartBody;
-  if (body !== undefined) entry(analysisId);
-  return body;
+  return cache.chartBodies.get(analysisId);
 }
 
 export function keepChartBody(analysisId: number, body: string): void {
-  entry(analysisId).chartBody = body;
-  trim("chartBody");
+  cache.chartBodies.set(analysisId, body);
 }
 
 const idleSchema = analysisResultSchema.shape.idle.unwrap().pick({
@@ -169,8 +138,8 @@ export async function idleFiguresOf(
   const out = new Map<number, IdleFigures | null>();
   const missing: number[] = [];
   for (const id of new Set(analysisIds)) {
-    const known = entries.get(id)?.idle;
-    if (known !== undefined) out.set(id, entry(id).idle!);
+    const known = cache.idle.get(id);
+    if (known !== undefined) out.set(id, known);
     else missing.push(id);
   }
   for (let i = 0; i < missing.length; i += 50) {
@@ -184,10 +153,9 @@ export async function idleFiguresOf(
       const figures = idle.success
         ? { peakRadS2: idle.data.gearboxAngAccelPeakRadS2, meanRpm: idle.data.meanRpm }
         : null;
-      entry(row.id).idle = figures;
+      cache.idle.set(row.id, figures);
       out.set(row.id, figures);
     }
-    trim("idle");
   }
   return out;
 }
