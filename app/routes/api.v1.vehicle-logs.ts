@@ -1,17 +1,17 @@
-import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
 import { logJson } from "~/lib/http/api-json.server";
-import { apiError } from "~/lib/http/api.server";
 import { idParam } from "~/lib/http/params";
 import { blobStore, uploadMaxBytes } from "~/lib/infra/storage-settings.server";
 import { discardBody, recordUpload, UploadError } from "~/lib/http/uploads.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.vehicle-logs";
+import { requireAccess } from "~/lib/http/access.server";
+import { apiError, apiRoute } from "~/lib/http/edge.server";
 
 const noStore = { "Cache-Control": "no-store" };
 
 /** GET /api/v1/vehicles/:vehicleId/logs → { logs: [...] }, newest first. */
 export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
-  const { teamId } = await requireApiAccess(request, "viewer");
+  const { teamId } = await requireAccess(request, "viewer", { from: "api" });
   const data = vehicleData(teamId);
   const vehicle = await data.vehicle(idParam(params.vehicleId));
   const logs = await data.logs(vehicle.id);
@@ -26,7 +26,7 @@ export const action = apiRoute(async ({ request, params }: Route.ActionArgs) => 
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use GET or POST.");
   let teamId: number, userId: number, vehicle;
   try {
-    ({ teamId, userId } = await requireApiAccess(request, "technician"));
+    ({ teamId, userId } = await requireAccess(request, "technician", { from: "api" }));
     vehicle = await vehicleData(teamId).vehicle(idParam(params.vehicleId));
   } catch (refusal) {
     await discardBody(request); // so the client reads the 401/403/404 instead of a reset

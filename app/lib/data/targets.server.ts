@@ -5,7 +5,7 @@ import { targets } from "~/lib/infra/db/schema-results";
 import type { AnalysisResult } from "~/lib/signal";
 import { db } from "../infra/db.server";
 import type { LogCondition } from "../domain/drive-log-terms";
-import { invariantResponse } from "../http/permissions.server";
+import { NotFound } from "../domain/errors";
 import {
   evaluateTargets,
   outOfScope,
@@ -90,7 +90,7 @@ export function targetData(teamId: number) {
       .select()
       .from(targets)
       .where(and(eq(targets.id, id), inTeam));
-    invariantResponse(row, "No such target in this team.", { status: 404 });
+    if (!row) throw new NotFound("No such target in this team.");
     return row;
   }
 

@@ -1,10 +1,10 @@
 import { data, redirect } from "react-router";
 import { assertCsrf, assertSameOrigin, CSRF_FIELD } from "~/lib/http/csrf.server";
 import { idParam } from "~/lib/http/params";
-import { requireTeamRole } from "~/lib/http/permissions.server";
 import { blobStore, uploadMaxBytes } from "~/lib/infra/storage-settings.server";
 import { discardBody, recordUpload, UploadError } from "~/lib/http/uploads.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
+import { requireAccess } from "~/lib/http/access.server";
 
 /**
  * The form upload without JavaScript: streams every file to storage and records one drive log
@@ -16,7 +16,7 @@ export async function uploadFromForm(request: Request, vehicleIdParam: string | 
   let teamId: number, userId: number, vehicle;
   try {
     assertSameOrigin(request); // another site's page: refused before the body is read
-    const current = await requireTeamRole(request, "technician");
+    const current = await requireAccess(request, "technician");
     teamId = current.team.id;
     userId = current.user.id;
     vehicle = await vehicleData(teamId).vehicle(idParam(vehicleIdParam));
