@@ -3,7 +3,7 @@ import { migrate } from "drizzle-orm/mysql2/migrator";
 import mysql from "mysql2/promise";
 import { fileURLToPath } from "node:url";
 
-export const migrationsFolder = fileURLToPath(new URL("../../drizzle", import.meta.url));
+export const migrationsFolder = fileURLToPath(new URL("../../../../drizzle", import.meta.url));
 
 /**
  * Applies the committed drizzle-kit migrations on one connection (docs/stack-notes.md: drizzle-kit
