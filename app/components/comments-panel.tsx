@@ -84,7 +84,7 @@ type Reply = {
   intent?: string;
   result?: SubmissionResult<string[]>;
   notice?: string;
-  error?: { status: number; message: string };
+  error?: { code: string; message: string };
 };
 
 export function CommentsPanel({ vehicleId, subject }: { vehicleId: number; subject: string }) {

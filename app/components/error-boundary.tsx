@@ -27,7 +27,7 @@ export function GeneralErrorBoundary() {
   if (isRouteErrorResponse(error)) {
     status = error.status;
     // The router's own answers (e.g. 405 'Error: You made a POST request to …') are for
-    // developers: readers get the friendly text; our invariantResponse messages are shown.
+    // developers: readers get the friendly text; our refusals' messages are shown.
     const internal = "internal" in error && (error as { internal?: boolean }).internal === true;
     detail = typeof error.data === "string" && !internal ? error.data : undefined;
   } else if (import.meta.env.DEV && error instanceof Error) {

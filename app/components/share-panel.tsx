@@ -119,7 +119,7 @@ type Reply = {
   result?: SubmissionResult<string[]>;
   created?: { id: number; url: string; expiresAt: string };
   notice?: string;
-  error?: { status: number; message: string };
+  error?: { code: string; message: string };
 };
 
 /** Calls `onDone` once per successful reply of a fetcher. */

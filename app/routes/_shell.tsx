@@ -2,11 +2,12 @@ import { Outlet, useLoaderData } from "react-router";
 import { AppHeader } from "~/components/app-header";
 import { mainProps, SkipLink } from "~/components/skip-link";
 import { usingFakeMail } from "~/lib/infra/mail.server";
-import { getCurrentUser } from "~/lib/http/permissions.server";
 import type { Route } from "./+types/_shell";
+import { getCurrentUser } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 /** The header needs to know who is signed in; pages check permissions themselves. */
-export async function loader({ request }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
   const current = await getCurrentUser(request);
   if (!current) return { user: null };
   return {
@@ -18,7 +19,7 @@ export async function loader({ request }: Route.LoaderArgs) {
       fakeMail: usingFakeMail(),
     },
   };
-}
+});
 
 export default function Shell() {
   const { user } = useLoaderData<typeof loader>();

@@ -8,12 +8,13 @@ import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { acceptInvitation, findInvitation, InvitationProblem } from "~/lib/data/invitations.server";
 import { verifyPassword } from "~/lib/infra/password.server";
-import { invariantResponse } from "~/lib/http/permissions.server";
 import { clientIp } from "~/lib/http/request.server";
 import { roleLabels } from "~/lib/domain/roles";
 import { startSession } from "~/lib/http/session.server";
 import { nameField, newPasswordField, passwordField } from "~/lib/domain/validation";
 import type { Route } from "./+types/accept-invitation";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Gone } from "~/lib/domain/errors";
 
 // A new colleague chooses a name and password; someone with an account already confirms theirs.
 const newAccountSchema = z.object({ name: nameField, password: newPasswordField });
@@ -21,20 +22,18 @@ const existingSchema = z.object({ password: passwordField.min(1, "Enter your pas
 
 export const meta = () => [{ title: "Join a team · Twistlog" }];
 
-export async function loader({ params }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ params }: Route.LoaderArgs) => {
   const invitation = await findInvitation(params.token);
   if (!invitation) return { invitation: null };
   const { teamName, email, role, existingUser } = invitation;
   return { invitation: { teamName, email, role, hasAccount: !!existingUser } };
-}
+});
 
-export async function action({ request, params, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, params, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const invitation = await findInvitation(params.token);
-  invariantResponse(invitation, "This invitation was already used, withdrawn or has expired.", {
-    status: 410,
-  });
+  if (!invitation) throw new Gone("This invitation was already used, withdrawn or has expired.");
   const ip = clientIp(context);
   const existing = invitation.existingUser;
   let newAccount: { name: string; password: string } | null = null;
@@ -61,8 +60,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   try {
     userId = await acceptInvitation(invitation, newAccount);
   } catch (error) {
-    if (error instanceof InvitationProblem)
-      invariantResponse(false, error.message, { status: 410 });
+    if (error instanceof InvitationProblem) throw new Gone(error.message);
     throw error;
   }
   await audit({
@@ -74,7 +72,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   });
   const setCookie = await startSession(request, userId, invitation.teamId, ip);
   throw redirect("/team", { headers: { "Set-Cookie": setCookie } });
-}
+});
 
 export default function AcceptInvitation() {
   const { invitation } = useLoaderData<typeof loader>();

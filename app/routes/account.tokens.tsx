@@ -29,12 +29,14 @@ import {
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
-import { invariantResponse, requireTeamRole, requireUser } from "~/lib/http/permissions.server";
 import { clientIp } from "~/lib/http/request.server";
 import { atLeast } from "~/lib/domain/roles";
 import type { Route } from "./+types/account.tokens";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { ScrollArea } from "~/components/scroll-area";
+import { requireAccess, requireUser } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Invalid, NotFound } from "~/lib/domain/errors";
 
 const expiryChoices = [
   { value: "30", label: "30 days" },
@@ -58,7 +60,7 @@ const revokeSchema = z.object({
 
 export const meta = () => [{ title: "API tokens · Twistlog" }];
 
-export async function loader({ request }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
   const { user, team } = await requireUser(request);
   const admin = team && atLeast(team.role, "admin");
   return {
@@ -66,15 +68,15 @@ export async function loader({ request }: Route.LoaderArgs) {
     tokens: await listApiTokens(user.id),
     teamTokens: admin ? await listTeamApiTokens(team.id, user.id) : [],
   };
-}
+});
 
-export async function action({ request, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const ip = clientIp(context);
   if (form.get("intent") === "create") {
     // A token acts with its owner's role in the team chosen now, so any member may make one.
-    const { user, team } = await requireTeamRole(request, "viewer");
+    const { user, team } = await requireAccess(request, "viewer");
     const submission = parseWithZod(form, { schema: createSchema });
     if (submission.status !== "success") return data(submission.reply(), { status: 400 });
     const { name, expires } = submission.value;
@@ -88,18 +90,16 @@ export async function action({ request, context }: Route.ActionArgs) {
     };
   }
   const parsed = revokeSchema.safeParse(Object.fromEntries(form));
-  invariantResponse(parsed.success, "No token was chosen.", { status: 400 });
+  if (!parsed.success) throw new Invalid("No token was chosen.");
   const { intent, tokenId } = parsed.data;
   const current =
-    intent === "revoke-other"
-      ? await requireTeamRole(request, "admin")
-      : await requireUser(request);
+    intent === "revoke-other" ? await requireAccess(request, "admin") : await requireUser(request);
   const revoked = await revokeApiToken(
     current.user.id,
     tokenId,
     intent === "revoke-other" ? current.team!.id : undefined,
   );
-  invariantResponse(revoked, "No such token.", { status: 404 });
+  if (!revoked) throw new NotFound("No such token.");
   await audit({
     teamId: revoked.teamId,
     actor: current.user,
@@ -108,7 +108,7 @@ export async function action({ request, context }: Route.ActionArgs) {
     ip,
   });
   return { notice: `The token “${revoked.name}” is revoked; requests with it now get 401.` };
-}
+});
 
 export default function Tokens() {
   const { team, tokens, teamTokens } = useLoaderData<typeof loader>();

@@ -7,12 +7,14 @@ import { ScrollArea } from "~/components/scroll-area";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
-import { invariantResponse, requireUser } from "~/lib/http/permissions.server";
 import { clientIp } from "~/lib/http/request.server";
 import { roleLabels } from "~/lib/domain/roles";
 import { listSessions, revokeAllSessions, revokeSession } from "~/lib/http/session.server";
 import type { Route } from "./+types/account";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { requireUser } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Invalid, NotFound } from "~/lib/domain/errors";
 
 const revokeSchema = z.object({
   intent: z.literal("revoke"),
@@ -21,13 +23,13 @@ const revokeSchema = z.object({
 
 export const meta = () => [{ title: "Account · Twistlog" }];
 
-export async function loader({ request }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
   const { user, sessionId, teams } = await requireUser(request);
   const sessions = await listSessions(user.id);
   return { user, teams, sessions: sessions.map((s) => ({ ...s, current: s.id === sessionId })) };
-}
+});
 
-export async function action({ request, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const { user, sessionId } = await requireUser(request);
@@ -44,14 +46,13 @@ export async function action({ request, context }: Route.ActionArgs) {
     return { notice: "Every other session has ended." };
   }
   const parsed = revokeSchema.safeParse(Object.fromEntries(form));
-  invariantResponse(parsed.success, "No session was chosen.", { status: 400 });
-  invariantResponse(await revokeSession(user.id, parsed.data.sessionId), "No such session.", {
-    status: 404,
-  });
+  if (!parsed.success) throw new Invalid("No session was chosen.");
+  if (!(await revokeSession(user.id, parsed.data.sessionId)))
+    throw new NotFound("No such session.");
   await audit({ teamId: null, actor: user, action: "session-revoked", ip });
   if (parsed.data.sessionId === sessionId) throw redirect("/sign-in?notice=signed-out");
   return { notice: "The session has ended." };
-}
+});
 
 export default function Account() {
   const { user, teams, sessions } = useLoaderData<typeof loader>();

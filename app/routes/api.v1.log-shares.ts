@@ -1,5 +1,3 @@
-import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
-import { apiError } from "~/lib/http/api.server";
 import { audit } from "~/lib/data/audit.server";
 import { idParam } from "~/lib/http/params";
 import { appOrigin, clientIp } from "~/lib/http/request.server";
@@ -7,12 +5,14 @@ import { apiCreateShareSchema } from "~/lib/domain/share-schema";
 import { auditActor, createShare, listShares, shareUrl } from "~/lib/data/shares.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.log-shares";
+import { requireAccess } from "~/lib/http/access.server";
+import { apiError, apiRoute } from "~/lib/http/edge.server";
 
 const noStore = { "Cache-Control": "no-store" };
 
 /** GET /api/v1/logs/:logId/shares (engineer and up) → { shares: [...] }: this drive log's links. */
 export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
-  const { teamId, userId, role } = await requireApiAccess(request, "engineer");
+  const { teamId, userId, role } = await requireAccess(request, "engineer", { from: "api" });
   const log = await vehicleData(teamId).log(idParam(params.logId));
   const shares = await listShares(teamId, { userId, role }, { logId: log.id });
   return Response.json({ shares }, { headers: noStore });
@@ -25,7 +25,7 @@ export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => 
  */
 export const action = apiRoute(async ({ request, params, context }: Route.ActionArgs) => {
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use GET or POST.");
-  const { teamId, userId, role } = await requireApiAccess(request, "engineer");
+  const { teamId, userId, role } = await requireAccess(request, "engineer", { from: "api" });
   const logId = idParam(params.logId);
   const text = await request.text();
   let body: unknown = {};

@@ -1,4 +1,4 @@
-import { apiError } from "~/lib/http/api.server";
+import { apiError } from "~/lib/http/edge.server";
 
 // Any other /api/v1/ URL answers in the API's own JSON error shape, not with an HTML page.
 export function loader() {

@@ -1,17 +1,17 @@
-import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
-import { apiError } from "~/lib/http/api.server";
 import { audit } from "~/lib/data/audit.server";
 import { idParam } from "~/lib/http/params";
 import { clientIp } from "~/lib/http/request.server";
 import { SHARE_MAX_DAYS } from "~/lib/domain/share-schema";
 import { auditActor, extendShare, getShare, revokeShare } from "~/lib/data/shares.server";
 import type { Route } from "./+types/api.v1.share";
+import { requireAccess } from "~/lib/http/access.server";
+import { apiError, apiRoute } from "~/lib/http/edge.server";
 
 const noStore = { "Cache-Control": "no-store" };
 
 /** GET /api/v1/shares/:shareId (engineer and up) → { share: {...} }. */
 export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
-  const { teamId, userId, role } = await requireApiAccess(request, "engineer");
+  const { teamId, userId, role } = await requireAccess(request, "engineer", { from: "api" });
   const share = await getShare(teamId, { userId, role }, idParam(params.shareId));
   return Response.json({ share }, { headers: noStore });
 });
@@ -22,7 +22,7 @@ export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => 
  * extends it to that many days from now. Only the sharer and admins (403 for others).
  */
 export const action = apiRoute(async ({ request, params, context }: Route.ActionArgs) => {
-  const { teamId, userId, role } = await requireApiAccess(request, "engineer");
+  const { teamId, userId, role } = await requireAccess(request, "engineer", { from: "api" });
   const shareId = idParam(params.shareId);
   const caller = { userId, role };
   if (request.method === "DELETE") {

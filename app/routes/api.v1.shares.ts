@@ -1,7 +1,7 @@
-import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
-import { apiError } from "~/lib/http/api.server";
 import { listShares } from "~/lib/data/shares.server";
 import type { Route } from "./+types/api.v1.shares";
+import { requireAccess } from "~/lib/http/access.server";
+import { apiError, apiRoute } from "~/lib/http/edge.server";
 
 /**
  * GET /api/v1/shares[?logId=ID][&vehicleId=ID] (engineer and up) → { shares: [...] }: the
@@ -9,7 +9,7 @@ import type { Route } from "./+types/api.v1.shares";
  * manage each one. Tokens are never listed: only their sha256 is stored.
  */
 export const loader = apiRoute(async ({ request }: Route.LoaderArgs) => {
-  const { teamId, userId, role } = await requireApiAccess(request, "engineer");
+  const { teamId, userId, role } = await requireAccess(request, "engineer", { from: "api" });
   const url = new URL(request.url);
   const filter: { logId?: number; vehicleId?: number } = {};
   for (const key of ["logId", "vehicleId"] as const) {

@@ -1,17 +1,17 @@
-import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
 import { logJson } from "~/lib/http/api-json.server";
-import { apiError } from "~/lib/http/api.server";
 import { idParam } from "~/lib/http/params";
 import { recordUploads } from "~/lib/http/record-uploads.server";
 import { UploadError } from "~/lib/http/uploads.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.vehicle-logs";
+import { requireAccess } from "~/lib/http/access.server";
+import { apiError, apiRoute } from "~/lib/http/edge.server";
 
 const noStore = { "Cache-Control": "no-store" };
 
 /** GET /api/v1/vehicles/:vehicleId/logs → { logs: [...] }, newest first. */
 export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
-  const { teamId } = await requireApiAccess(request, "viewer");
+  const { teamId } = await requireAccess(request, "viewer", { from: "api" });
   const data = vehicleData(teamId);
   const vehicle = await data.vehicle(idParam(params.vehicleId));
   const logs = await data.logs(vehicle.id);
@@ -27,7 +27,7 @@ export const action = apiRoute(async ({ request, params }: Route.ActionArgs) => 
   let uploaded;
   try {
     uploaded = await recordUploads(request, {
-      access: () => requireApiAccess(request, "technician"),
+      access: () => requireAccess(request, "technician", { from: "api" }),
       vehicleId: params.vehicleId,
       maxFiles: 1,
     });

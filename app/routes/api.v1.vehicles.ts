@@ -1,15 +1,15 @@
-import { apiRoute, requireApiAccess } from "~/lib/http/api-access.server";
 import { vehicleJson } from "~/lib/http/api-json.server";
-import { apiError } from "~/lib/http/api.server";
 import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/api.v1.vehicles";
+import { requireAccess } from "~/lib/http/access.server";
+import { apiError, apiRoute } from "~/lib/http/edge.server";
 
 const noStore = { "Cache-Control": "no-store" };
 
 /** GET /api/v1/vehicles → { vehicles: [...] } (the caller's team, not archived; ?archived=1 for all). */
 export const loader = apiRoute(async ({ request }: Route.LoaderArgs) => {
-  const { teamId } = await requireApiAccess(request, "viewer");
+  const { teamId } = await requireAccess(request, "viewer", { from: "api" });
   const archived = new URL(request.url).searchParams.get("archived") === "1";
   const rows = await vehicleData(teamId).list({ archived });
   return Response.json({ vehicles: rows.map(vehicleJson) }, { headers: noStore });
@@ -18,7 +18,7 @@ export const loader = apiRoute(async ({ request }: Route.LoaderArgs) => {
 /** POST /api/v1/vehicles (JSON; engineer or admin) → 201 { vehicle }. */
 export const action = apiRoute(async ({ request }: Route.ActionArgs) => {
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use GET or POST.");
-  const { teamId } = await requireApiAccess(request, "engineer");
+  const { teamId } = await requireAccess(request, "engineer", { from: "api" });
   let body: unknown;
   try {
     body = await request.json();

@@ -8,10 +8,12 @@ import { compareIsolation } from "~/lib/domain/comparison";
 import { comparisonLogs } from "~/lib/data/comparison.server";
 import { curvesForLogs, parseLogIds } from "~/lib/data/curves.server";
 import { idParam } from "~/lib/http/params";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { atLeast } from "~/lib/domain/roles";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/compare";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Invalid } from "~/lib/domain/errors";
 
 export const meta = ({ data }: Route.MetaArgs) => [
   { title: `Comparison${data ? ` · ${data.vehicle.identifier}` : ""} · Twistlog` },
@@ -22,8 +24,8 @@ export const meta = ({ data }: Route.MetaArgs) => [
  * reference follows one rule (app/lib/domain/comparison-order.ts), not the order of `logs`, so every way
  * into a comparison reads the same. The URL is the comparison: it can be bookmarked and shared.
  */
-export async function loader({ request, params }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "viewer");
   const data = vehicleData(team.id);
   const vehicle = await data.vehicle(idParam(params.vehicleId));
   const search = new URL(request.url).searchParams;
@@ -32,11 +34,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   if (search.has("with") && folded)
     throw redirect(`/vehicles/${vehicle.id}/compare?logs=${folded.join(",")}`);
   const ids = parseLogIds(search.get("logs"));
-  invariantResponse(
-    ids && ids.length >= 2,
-    "A comparison needs two to eight drive logs: choose them on the vehicle page and press “Compare selected”.",
-    { status: 400 },
-  );
+  if (!(ids && ids.length >= 2))
+    throw new Invalid(
+      "A comparison needs two to eight drive logs: choose them on the vehicle page and press “Compare selected”.",
+    );
   const { logs, referenceNote } = await comparisonLogs(data, vehicle, ids);
   const curves = await curvesForLogs(team.id, vehicle.id, ids);
   const comparison = compareIsolation(
@@ -54,7 +55,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     referenceNote,
     comparison,
   };
-}
+});
 
 export default function ComparePage() {
   const { role, vehicle, logs, referenceNote, comparison } = useLoaderData<typeof loader>();

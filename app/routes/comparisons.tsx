@@ -4,9 +4,10 @@ import { linkClass } from "~/components/form-fields";
 import { Card, EmptyState, PageHeader } from "~/components/page";
 import { suggestedPairs } from "~/lib/domain/comparison-order";
 import { conditionLabels, LOG_CONDITIONS, type LogCondition } from "~/lib/domain/drive-log-terms";
-import { requireTeamRole } from "~/lib/http/permissions.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/comparisons";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 export const meta = () => [{ title: "Comparisons · Twistlog" }];
 
@@ -24,8 +25,8 @@ interface Suggestion {
  * app/lib/domain/comparison-order.ts: stable, a file uploaded again is no new candidate). Any other set
  * is picked on the vehicle page.
  */
-export async function loader({ request }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "viewer");
   const data = vehicleData(team.id);
   const vehicles = await data.list();
   const rows = await Promise.all(
@@ -46,7 +47,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     }),
   );
   return { vehicles: rows };
-}
+});
 
 export default function Comparisons() {
   const { vehicles } = useLoaderData<typeof loader>();

@@ -1,9 +1,11 @@
 import { chartsBody } from "~/lib/analyses/chart-bodies.server";
 import { analysisParam } from "~/lib/http/analysis-param";
 import { idParam } from "~/lib/http/params";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/drive-log.charts";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { NotFound } from "~/lib/domain/errors";
 
 /**
  * GET /vehicles/:vehicleId/logs/:logId/charts.json: the chart data of the latest analysis
@@ -11,18 +13,15 @@ import type { Route } from "./+types/drive-log.charts";
  * `?analysis=<id>` gives an earlier version of this drive log (404 for any other id).
  * 404 with { error } until an analysis has finished.
  */
-export async function loader({ request, params }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "viewer");
   const data = vehicleData(team.id);
   const { log } = await data.vehicleLog(idParam(params.vehicleId), idParam(params.logId));
   const wanted = analysisParam(request);
   if (wanted !== undefined)
     // Checked before the cache is asked: the cache answers any id it holds.
-    invariantResponse(
-      wanted !== null && (await data.versions(log.id)).some((v) => v.id === wanted),
-      "No such analysis version of this drive log.",
-      { status: 404 },
-    );
+    if (!(wanted !== null && (await data.versions(log.id)).some((v) => v.id === wanted)))
+      throw new NotFound("No such analysis version of this drive log.");
   const body = await chartsBody(log.id, wanted ?? log.latestAnalysisId, (id) =>
     id === log.latestAnalysisId ? data.latestAnalysis(log.id) : data.analysisOf(log.id, id),
   );
@@ -43,4 +42,4 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       "Cache-Control": "private, max-age=30",
     },
   });
-}
+});

@@ -1,16 +1,18 @@
 import { idParam } from "~/lib/http/params";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { resultCsv } from "~/lib/domain/result-csv";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/drive-log.result-csv";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { NotFound } from "~/lib/domain/errors";
 
 /** GET /vehicles/:vehicleId/logs/:logId/result.csv: the latest analysis' curves as CSV (viewer and up). */
-export async function loader({ request, params }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "viewer");
   const data = vehicleData(team.id);
   const { log } = await data.vehicleLog(idParam(params.vehicleId), idParam(params.logId));
   const analysis = await data.latestAnalysis(log.id);
-  invariantResponse(analysis, "This drive log has no analysis yet.", { status: 404 });
+  if (!analysis) throw new NotFound("This drive log has no analysis yet.");
   const name = `drive-log-${log.id}-analysis-${analysis.version}.csv`;
   return new Response(resultCsv(analysis.result), {
     headers: {
@@ -19,4 +21,4 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       "Cache-Control": "private, no-store",
     },
   });
-}
+});

@@ -26,7 +26,6 @@ import { readForm } from "~/lib/http/forms.server";
 import { logLabel } from "~/lib/data/curves.server";
 import { conditionLabels, gearLabel, type IngestMapping } from "~/lib/domain/drive-log-terms";
 import { idParam } from "~/lib/http/params";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { atLeast } from "~/lib/domain/roles";
 import { teamData } from "~/lib/data/team-data.server";
 import { outOfScope } from "~/lib/domain/targets";
@@ -34,6 +33,9 @@ import { targetData, toTarget } from "~/lib/data/targets.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import { readPreview } from "../lib/data/drive-log-preview.server";
 import type { Route } from "./+types/drive-log";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Conflict, Invalid, NotFound } from "~/lib/domain/errors";
 
 export const meta = ({ data }: Route.MetaArgs) => [
   { title: `${data?.log.fileName ?? "Drive log"} · Twistlog` },
@@ -44,7 +46,7 @@ async function load(
   params: Route.LoaderArgs["params"],
   role: "viewer" | "technician" | "engineer",
 ) {
-  const current = await requireTeamRole(request, role);
+  const current = await requireAccess(request, role);
   const vehicles = vehicleData(current.team.id);
   const { vehicle, log } = await vehicles.vehicleLog(
     idParam(params.vehicleId),
@@ -53,15 +55,13 @@ async function load(
   return { ...current, vehicles, vehicle, log };
 }
 
-export async function loader({ request, params }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
   const { team, vehicles, vehicle, log } = await load(request, params, "viewer");
   const versions = await vehicles.versions(log.id);
   // ?analysis=<id> shows an earlier version, read only; without it the latest, as always.
   const wanted = analysisParam(request);
   const chosen = wanted === undefined ? null : versions.find((v) => v.id === wanted);
-  invariantResponse(chosen !== undefined, "No such analysis version of this drive log.", {
-    status: 404,
-  });
+  if (chosen === undefined) throw new NotFound("No such analysis version of this drive log.");
   const analysis =
     chosen && chosen.id !== log.latestAnalysisId
       ? await vehicles.analysisOf(log.id, chosen.id)
@@ -130,9 +130,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     preview: mapping,
     applied,
   };
-}
+});
 
-export async function action({ request, params }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, params }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const intent = form.get("intent");
@@ -141,11 +141,10 @@ export async function action({ request, params }: Route.ActionArgs) {
     const { vehicles, vehicle, log } = await load(request, params, "technician");
     // Only the page's offer may be taken: a log that failed over its columns. Otherwise a post
     // would overwrite the vehicle's remembered columns from a log that read fine.
-    invariantResponse(
-      log.status === "failed" && log.error && canChooseColumns(log.error),
-      "The columns can be chosen only for a drive log that could not be read because of its columns; this one is not in that state, so nothing was changed.",
-      { status: 409 },
-    );
+    if (!(log.status === "failed" && log.error && canChooseColumns(log.error)))
+      throw new Conflict(
+        "The columns can be chosen only for a drive log that could not be read because of its columns; this one is not in that state, so nothing was changed.",
+      );
     const submission = parseWithZod(form, { schema: mappingSchema });
     if (submission.status !== "success") return data({ map: submission.reply() }, { status: 400 });
     const { intent: _, ...mapping } = submission.value;
@@ -172,7 +171,7 @@ export async function action({ request, params }: Route.ActionArgs) {
         "The columns are set and remembered for this vehicle; the drive log is being analysed again.",
     };
   }
-  invariantResponse(intent === "reanalyse", "Unknown action.", { status: 400 });
+  if (intent !== "reanalyse") throw new Invalid("Unknown action.");
   const { vehicles, log } = await load(request, params, "engineer");
   const submission = parseWithZod(form, { schema: reanalyseSchema });
   if (submission.status !== "success")
@@ -180,7 +179,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { intent: _, ...overrides } = submission.value;
   await queueAnalysis(await vehicles.reanalysisJob(log.id, overrides));
   return { notice: "A new analysis version is queued; the earlier ones are kept." };
-}
+});
 
 export default function DriveLogPage() {
   const {

@@ -11,12 +11,13 @@ import { requestPasswordReset } from "~/lib/data/password-reset.server";
 import { appOrigin, clientIp } from "~/lib/http/request.server";
 import { emailField } from "~/lib/domain/validation";
 import type { Route } from "./+types/forgot-password";
+import { pageRoute } from "~/lib/http/edge.server";
 
 const schema = z.object({ email: emailField });
 
 export const meta = () => [{ title: "Reset your password · Twistlog" }];
 
-export async function action({ request, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const submission = parseWithZod(form, { schema });
@@ -33,7 +34,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   }
   // The same answer whether or not the address has an account.
   return { sent: email };
-}
+});
 
 export default function ForgotPassword() {
   const result = useActionData<typeof action>();

@@ -1,7 +1,7 @@
 import { data, Link, useLoaderData } from "react-router";
 import { buttonLinkClass, linkClass } from "~/components/form-fields";
-import { getCurrentUser } from "~/lib/http/permissions.server";
 import type { Route } from "./+types/not-found";
+import { getCurrentUser } from "~/lib/http/access.server";
 
 /**
  * Every URL no other route matches (the last entry of app/routes.ts; /api/v1/ has its own JSON

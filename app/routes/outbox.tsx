@@ -3,10 +3,12 @@ import { EmptyState, PageHeader, When } from "~/components/page";
 import { getEnv } from "~/lib/infra/env.server";
 import { readStoredMail, type StoredMail } from "~/lib/infra/fake-smtp.server";
 import { usingFakeMail } from "~/lib/infra/mail.server";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { teamData } from "~/lib/data/team-data.server";
 import type { Route } from "./+types/outbox";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { NotFound } from "~/lib/domain/errors";
 
 export const meta = () => [{ title: "Outbox · Twistlog" }];
 
@@ -14,16 +16,13 @@ export const meta = () => [{ title: "Outbox · Twistlog" }];
  * The local fake mail server's messages, for admins, only while it is in use (SMTP_URL unset):
  * on a laptop nobody receives real e-mail, so invitation and reset links are read here.
  */
-export async function loader({ request }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "admin");
-  invariantResponse(
-    usingFakeMail(),
-    "Mail goes to a real provider here, so there is no local outbox.",
-    { status: 404 },
-  );
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "admin");
+  if (!usingFakeMail())
+    throw new NotFound("Mail goes to a real provider here, so there is no local outbox.");
   const members = new Set((await teamData(team.id).members()).map((m) => m.email.toLowerCase()));
   return { messages: visibleMail(await readStoredMail(getEnv().MAIL_DIR, 500), team.id, members) };
-}
+});
 
 const PER_PAGE = 50;
 

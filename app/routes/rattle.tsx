@@ -9,19 +9,20 @@ import { Card, EmptyState, tableClass, tdClass, thClass } from "~/components/pag
 import { conditionLabels, RATTLE_LIMIT_SOURCE } from "~/lib/domain/drive-log-terms";
 import { radS2Number, radS2Text, rpmText, secondsNumber, secondsText } from "~/lib/domain/format";
 import { idParam } from "~/lib/http/params";
-import { requireTeamRole } from "~/lib/http/permissions.server";
 import { rattleReading } from "~/lib/domain/rattle-reading";
 import { targetData } from "~/lib/data/targets.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/rattle";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 export const meta = ({ data }: Route.MetaArgs) => [
   { title: `Rattle check · ${data?.log.fileName ?? "Drive log"} · Twistlog` },
 ];
 
 /** /vehicles/:vehicleId/logs/:logId/rattle: the idle gear-rattle assessment of one drive log. */
-export async function loader({ request, params }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "viewer");
   const data = vehicleData(team.id);
   const { vehicle, log } = await data.vehicleLog(idParam(params.vehicleId), idParam(params.logId));
   const analysis = await data.latestAnalysis(log.id);
@@ -48,7 +49,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     idle: idle ? { ...idle, accelTrace: null } : null,
     reading: idle ? rattleReading(idle) : null,
   };
-}
+});
 
 export default function RattlePage() {
   const { vehicle, log, analysis, idle, reading, targets } = useLoaderData<typeof loader>();

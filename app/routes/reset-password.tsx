@@ -7,10 +7,11 @@ import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { completePasswordReset, findPasswordReset } from "~/lib/data/password-reset.server";
-import { invariantResponse } from "~/lib/http/permissions.server";
 import { clientIp } from "~/lib/http/request.server";
 import { newPasswordField } from "~/lib/domain/validation";
 import type { Route } from "./+types/reset-password";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Gone } from "~/lib/domain/errors";
 
 const schema = z
   .object({ password: newPasswordField, confirm: z.string({ error: "Repeat the password." }) })
@@ -21,16 +22,16 @@ const schema = z
 
 export const meta = () => [{ title: "Choose a new password · Twistlog" }];
 
-export async function loader({ params }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ params }: Route.LoaderArgs) => {
   const reset = await findPasswordReset(params.token);
   return { email: reset?.email ?? null };
-}
+});
 
-export async function action({ request, params, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, params, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const reset = await findPasswordReset(params.token);
-  invariantResponse(reset, "This link was already used or has expired.", { status: 410 });
+  if (!reset) throw new Gone("This link was already used or has expired.");
   const submission = parseWithZod(form, { schema });
   if (submission.status !== "success")
     return data(submission.reply({ hideFields: ["password", "confirm"] }), { status: 400 });
@@ -47,7 +48,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
     ip: clientIp(context),
   });
   throw redirect("/sign-in?notice=password-changed");
-}
+});
 
 export default function ResetPassword() {
   const { email } = useLoaderData<typeof loader>();

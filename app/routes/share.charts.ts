@@ -7,6 +7,7 @@ import {
 } from "~/lib/http/share-link.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/share.charts";
+import { pageRoute } from "~/lib/http/edge.server";
 
 /**
  * GET /s/:token/charts.json[?log=ID]: the chart data of the shared drive log's latest analysis
@@ -14,7 +15,7 @@ import type { Route } from "./+types/share.charts";
  * `log` may only name a drive log of the share (a comparison's logs); any other id is a 404,
  * so a share link never reaches another drive log. Revoked or expired: 410 with no data.
  */
-export async function loader({ request, params }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
   const active = await shareForJson(params.token);
   if (active instanceof Response) return active;
   const log = await sharedLogFor(active, request);
@@ -27,4 +28,4 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return new Response(body, {
     headers: { ...shareHeaders, "Content-Type": "application/json; charset=utf-8" },
   });
-}
+});

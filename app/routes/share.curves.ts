@@ -2,13 +2,14 @@ import { curvesForLogs, parseLogIds } from "~/lib/data/curves.server";
 import { shareForJson, shareHeaders, shareJsonError } from "~/lib/http/share-link.server";
 import { sharedLogIds } from "~/lib/data/shares.server";
 import type { Route } from "./+types/share.curves";
+import { pageRoute } from "~/lib/http/edge.server";
 
 /**
  * GET /s/:token/curves.json[?logs=ID,ID…] → { vehicleId, curves: CurveSet[] }: the isolation and
  * firing-order curves of the shared drive logs, for the comparison overlay. `logs` may pick
  * among the share's own drive logs only; an id outside the share is refused with 404.
  */
-export async function loader({ request, params }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
   const active = await shareForJson(params.token);
   if (active instanceof Response) return active;
   const shared = sharedLogIds(active.share);
@@ -25,4 +26,4 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const ids = asked.length ? asked : shared;
   const curves = await curvesForLogs(active.teamId, active.share.vehicleId, ids);
   return Response.json({ vehicleId: active.share.vehicleId, curves }, { headers: shareHeaders });
-}
+});

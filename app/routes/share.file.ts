@@ -6,12 +6,13 @@ import {
   sharedLogFor,
 } from "~/lib/http/share-link.server";
 import type { Route } from "./+types/share.file";
+import { pageRoute } from "~/lib/http/edge.server";
 
 /**
  * GET /s/:token/file[?log=ID]: the raw drive log, only when the sharer allowed it (403
  * otherwise), and only a drive log of the share (404 for any other).
  */
-export async function loader({ request, params }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
   const active = await shareForJson(params.token);
   if (active instanceof Response) return active;
   if (!active.share.allowRawDownload)
@@ -23,4 +24,4 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const log = await sharedLogFor(active, request);
   if (log instanceof Response) return log;
   return rawFileResponse(log, shareHeaders);
-}
+});

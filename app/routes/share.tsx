@@ -10,6 +10,7 @@ import { countShareView } from "~/lib/data/shares.server";
 import { requireShareForPage, shareHeaders, sharedPageData } from "~/lib/http/share-link.server";
 import { NOT_FOUND_MESSAGE, UNAVAILABLE_MESSAGE } from "~/lib/domain/share-schema";
 import type { Route } from "./+types/share";
+import { pageRoute } from "~/lib/http/edge.server";
 
 /**
  * /s/:token — the read-only page of a share link, without sign-in (issue 7). Its own frame: no
@@ -28,13 +29,13 @@ export const meta = ({ data }: Route.MetaArgs) => [
 
 export const headers: Route.HeadersFunction = () => shareHeaders;
 
-export async function loader({ request, params }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
   const active = await requireShareForPage(params.token);
   const page = await sharedPageData(active);
   // One view per opening of the page (the time only, no personal data); a HEAD is not a view.
   if (request.method === "GET") await countShareView(active.share.id);
   return page;
-}
+});
 
 export default function SharedPage() {
   const page = useLoaderData<typeof loader>();

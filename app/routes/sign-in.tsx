@@ -6,11 +6,12 @@ import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form
 import { authenticateWithPassword, SignInRefused } from "~/lib/http/auth.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
-import { getCurrentUser } from "~/lib/http/permissions.server";
 import { clientIp, safeRedirect } from "~/lib/http/request.server";
 import { startSession } from "~/lib/http/session.server";
 import { emailField, passwordField } from "~/lib/domain/validation";
 import type { Route } from "./+types/sign-in";
+import { getCurrentUser } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 const schema = z.object({
   email: emailField,
@@ -20,14 +21,14 @@ const schema = z.object({
 
 export const meta = () => [{ title: "Sign in · Twistlog" }];
 
-export async function loader({ request }: Route.LoaderArgs) {
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
   const url = new URL(request.url);
   const redirectTo = safeRedirect(url.searchParams.get("redirectTo"));
   if (await getCurrentUser(request)) throw redirect(redirectTo);
   return { redirectTo, notice: url.searchParams.get("notice") };
-}
+});
 
-export async function action({ request, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, context }: Route.ActionArgs) => {
   // remix-auth's FormStrategy reads the body itself: read a clone here (docs/stack-notes.md).
   const form = await readForm(request.clone());
   await assertCsrf(request, form);
@@ -48,7 +49,7 @@ export async function action({ request, context }: Route.ActionArgs) {
       status: error.reason === "throttled" ? 429 : 400,
     });
   }
-}
+});
 
 const notices: Record<string, string> = {
   "signed-out": "You are signed out.",

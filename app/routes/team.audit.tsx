@@ -4,11 +4,12 @@ import { z } from "zod";
 import { inputClass, linkClass } from "~/components/form-fields";
 import { EmptyState, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
 import { ScrollArea } from "~/components/scroll-area";
-import { requireTeamRole } from "~/lib/http/permissions.server";
 import type { AuditAction } from "~/lib/data/audit.server";
 import { teamData } from "~/lib/data/team-data.server";
 import type { Route } from "./+types/team.audit";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 export const meta = () => [{ title: "Audit log · Twistlog" }];
 
@@ -61,8 +62,8 @@ type FilterErrors = Partial<Record<"action" | "person" | "from" | "to", string>>
 const DAY_MS = 86_400_000;
 
 /** /team/audit — admins read who did what, when and from where, newest first (last 200). */
-export async function loader({ request }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "admin");
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "admin");
   const scoped = teamData(team.id);
   // An empty field of the form means "any".
   const raw = Object.fromEntries(
@@ -109,7 +110,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     filtered,
     errors: {} as FilterErrors,
   };
-}
+});
 
 export default function AuditLog() {
   const { teamName, events, actions, people, shown, filtered, errors } =

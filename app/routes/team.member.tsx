@@ -6,13 +6,15 @@ import { Card, PageHeader, When } from "~/components/page";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { clientIp } from "~/lib/http/request.server";
 import { roleHints, roleLabels, ROLES } from "~/lib/domain/roles";
 import { teamData } from "~/lib/data/team-data.server";
 import { roleField } from "~/lib/domain/validation";
 import type { Route } from "./+types/team.member";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Invalid, NotFound } from "~/lib/domain/errors";
 
 const params = z.object({ memberId: z.coerce.number().int().positive() });
 const roleSchema = z.object({ intent: z.literal("change-role"), role: roleField });
@@ -22,16 +24,16 @@ export const meta: Route.MetaFunction = ({ data }) => [
 ];
 
 /** /team/members/:memberId — admins only; a member of another team is 404, like no member. */
-export async function loader({ request, params: raw }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "admin");
+export const loader = pageRoute(async ({ request, params: raw }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "admin");
   const { memberId } = parseParams(raw);
   return { teamName: team.name, member: await teamData(team.id).member(memberId) };
-}
+});
 
-export async function action({ request, params: raw, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, params: raw, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
-  const { team, user } = await requireTeamRole(request, "admin");
+  const { team, user } = await requireAccess(request, "admin");
   const scoped = teamData(team.id);
   const member = await scoped.member(parseParams(raw).memberId);
   const ip = clientIp(context);
@@ -56,7 +58,7 @@ export async function action({ request, params: raw, context }: Route.ActionArgs
   }
 
   const parsed = roleSchema.safeParse(Object.fromEntries(form));
-  invariantResponse(parsed.success, "Choose one of the roles.", { status: 400 });
+  if (!parsed.success) throw new Invalid("Choose one of the roles.");
   const role = parsed.data.role;
   if (lastAdmin && role !== "admin") {
     return data(
@@ -75,11 +77,11 @@ export async function action({ request, params: raw, context }: Route.ActionArgs
     });
   }
   throw redirect("/team");
-}
+});
 
 function parseParams(raw: unknown) {
   const parsed = params.safeParse(raw);
-  invariantResponse(parsed.success, "No such member in this team.", { status: 404 });
+  if (!parsed.success) throw new NotFound("No such member in this team.");
   return parsed.data;
 }
 

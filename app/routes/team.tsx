@@ -24,7 +24,6 @@ import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { inviteToTeam, InvitationProblem } from "~/lib/data/invitations.server";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { appOrigin, clientIp } from "~/lib/http/request.server";
 import { atLeast, roleHints, roleLabels, ROLES } from "~/lib/domain/roles";
 import { teamData } from "~/lib/data/team-data.server";
@@ -32,6 +31,9 @@ import { emailField, roleField } from "~/lib/domain/validation";
 import type { Route } from "./+types/team";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { ScrollArea } from "~/components/scroll-area";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Invalid } from "~/lib/domain/errors";
 
 const inviteSchema = z.object({ intent: z.literal("invite"), email: emailField, role: roleField });
 const unitSchema = z.object({ intent: z.literal("set-units"), unit: z.enum(["rpm", "rad/s"]) });
@@ -42,8 +44,8 @@ const revokeSchema = z.object({
 
 export const meta = () => [{ title: "Team · Twistlog" }];
 
-export async function loader({ request }: Route.LoaderArgs) {
-  const { team, user } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
+  const { team, user } = await requireAccess(request, "viewer");
   const scoped = teamData(team.id);
   const admin = atLeast(team.role, "admin");
   return {
@@ -52,9 +54,9 @@ export async function loader({ request }: Route.LoaderArgs) {
     members: await scoped.members(),
     invitations: admin ? await scoped.openInvitations() : [],
   };
-}
+});
 
-export async function action({ request, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const intent = form.get("intent");
@@ -62,9 +64,9 @@ export async function action({ request, context }: Route.ActionArgs) {
 
   if (intent === "set-units") {
     // Display settings belong to the people who analyse: engineers and admins.
-    const { team, user } = await requireTeamRole(request, "engineer");
+    const { team, user } = await requireAccess(request, "engineer");
     const parsed = unitSchema.safeParse(Object.fromEntries(form));
-    invariantResponse(parsed.success, "Choose rpm or rad/s.", { status: 400 });
+    if (!parsed.success) throw new Invalid("Choose rpm or rad/s.");
     await teamData(team.id).setAmplitudeUnit(parsed.data.unit);
     await audit({
       teamId: team.id,
@@ -76,10 +78,10 @@ export async function action({ request, context }: Route.ActionArgs) {
     return { notice: `Amplitudes are now shown in ${parsed.data.unit}.` };
   }
 
-  const { team, user } = await requireTeamRole(request, "admin");
+  const { team, user } = await requireAccess(request, "admin");
   if (intent === "revoke-invitation") {
     const parsed = revokeSchema.safeParse(Object.fromEntries(form));
-    invariantResponse(parsed.success, "No invitation was chosen.", { status: 400 });
+    if (!parsed.success) throw new Invalid("No invitation was chosen.");
     await teamData(team.id).revokeInvitation(parsed.data.invitationId);
     await audit({
       teamId: team.id,
@@ -91,7 +93,7 @@ export async function action({ request, context }: Route.ActionArgs) {
     return { notice: "The invitation is withdrawn; its link no longer works." };
   }
 
-  invariantResponse(intent === "invite", "Unknown action.", { status: 400 });
+  if (intent !== "invite") throw new Invalid("Unknown action.");
   const submission = parseWithZod(form, { schema: inviteSchema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });
   const { email, role } = submission.value;
@@ -116,7 +118,7 @@ export async function action({ request, context }: Route.ActionArgs) {
     ip,
   });
   return { ...submission.reply({ resetForm: true }), notice: `Invitation sent to ${email}.` };
-}
+});
 
 export default function Team() {
   const { me, team, members, invitations } = useLoaderData<typeof loader>();

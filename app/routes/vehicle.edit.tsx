@@ -6,26 +6,27 @@ import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/ve
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { idParam } from "~/lib/http/params";
-import { requireTeamRole } from "~/lib/http/permissions.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import { audit } from "~/lib/data/audit.server";
 import { clientIp } from "~/lib/http/request.server";
 import type { Route } from "./+types/vehicle.edit";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 export const meta = ({ data }: Route.MetaArgs) => [
   { title: `Edit ${data?.vehicle.identifier ?? "vehicle"} · Twistlog` },
 ];
 
-export async function loader({ request, params }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "engineer");
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "engineer");
   const vehicle = await vehicleData(team.id).vehicle(idParam(params.vehicleId));
   return { vehicle };
-}
+});
 
-export async function action({ request, params, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, params, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
-  const { team, user } = await requireTeamRole(request, "engineer");
+  const { team, user } = await requireAccess(request, "engineer");
   const vehicles = vehicleData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
   const submission = parseWithZod(form, { schema: vehicleFormSchema });
@@ -49,7 +50,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
     ip: clientIp(context),
   });
   return redirect(`/vehicles/${vehicle.id}?notice=saved`);
-}
+});
 
 export default function EditVehicle() {
   const { vehicle } = useLoaderData<typeof loader>();

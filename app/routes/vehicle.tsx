@@ -29,7 +29,6 @@ import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { idParam } from "~/lib/http/params";
-import { invariantResponse, requireTeamRole } from "~/lib/http/permissions.server";
 import { countText, plural } from "~/lib/base/plural";
 import { clientIp } from "~/lib/http/request.server";
 import { atLeast } from "~/lib/domain/roles";
@@ -45,13 +44,16 @@ import { targetData, toTarget } from "~/lib/data/targets.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicle";
 import { uploadFromForm } from "../lib/http/form-upload.server";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
+import { Invalid, NotFound } from "~/lib/domain/errors";
 
 export const meta = ({ data }: Route.MetaArgs) => [
   { title: `${data?.vehicle.identifier ?? "Vehicle"} · Twistlog` },
 ];
 
-export async function loader({ request, params }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "viewer");
   const vehicles = vehicleData(team.id);
   const targets = targetData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
@@ -148,7 +150,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       ),
     notice: search.get("notice") === "saved" ? "The vehicle is saved." : null,
   };
-}
+});
 
 function verdictCounts(verdicts: TargetVerdict[]): NonNullable<DriveLogTableRow["targets"]> {
   return {
@@ -185,7 +187,7 @@ export function shouldRevalidate({
 
 const TARGET_INTENTS = ["create-target", "update-target", "delete-target"];
 
-export async function action({ request, params, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, params, context }: Route.ActionArgs) => {
   const type = request.headers.get("content-type") ?? "";
   if (type.toLowerCase().startsWith("multipart/form-data"))
     return uploadFromForm(request, params.vehicleId);
@@ -193,7 +195,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   await assertCsrf(request, form);
   const intent = form.get("intent");
   // Vehicles and their targets are the engineer's (docs/architecture.md §2): 403 for technicians and viewers.
-  const { team, user } = await requireTeamRole(request, "engineer");
+  const { team, user } = await requireAccess(request, "engineer");
   const vehicles = vehicleData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
   const ip = clientIp(context);
@@ -203,11 +205,9 @@ export async function action({ request, params, context }: Route.ActionArgs) {
     let existing = null;
     if (intent !== "create-target") {
       const id = Number(form.get("targetId"));
-      invariantResponse(Number.isSafeInteger(id) && id > 0, "No such target.", { status: 404 });
+      if (!(Number.isSafeInteger(id) && id > 0)) throw new NotFound("No such target.");
       existing = await targets.get(id);
-      invariantResponse(existing.vehicleId === vehicle.id, "No such target for this vehicle.", {
-        status: 404,
-      });
+      if (existing.vehicleId !== vehicle.id) throw new NotFound("No such target for this vehicle.");
     }
     if (intent === "delete-target" && existing) {
       // Deleting asks first: without confirm=yes (the delete button without JavaScript) the
@@ -251,9 +251,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
       targetForm: reply,
     };
   }
-  invariantResponse(intent === "archive" || intent === "restore", "Unknown action.", {
-    status: 400,
-  });
+  if (!(intent === "archive" || intent === "restore")) throw new Invalid("Unknown action.");
   await vehicles.setArchived(vehicle.id, intent === "archive");
   await audit({
     teamId: team.id,
@@ -268,7 +266,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
         ? "The vehicle is archived: it is hidden from the list and takes no new drive logs. Its results stay."
         : "The vehicle is restored.",
   };
-}
+});
 
 export default function VehiclePage() {
   const { role, vehicle, logs, targets, analysedLogs, uploaded, duplicates, notice } =

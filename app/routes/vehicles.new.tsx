@@ -5,23 +5,24 @@ import { PageHeader } from "~/components/page";
 import { VehicleForm, vehicleDefaults, vehicleFormSchema } from "~/components/vehicle-form";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
-import { requireTeamRole } from "~/lib/http/permissions.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import { audit } from "~/lib/data/audit.server";
 import { clientIp } from "~/lib/http/request.server";
 import type { Route } from "./+types/vehicles.new";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 export const meta = () => [{ title: "Add a vehicle · Twistlog" }];
 
-export async function loader({ request }: Route.LoaderArgs) {
-  await requireTeamRole(request, "engineer");
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
+  await requireAccess(request, "engineer");
   return null;
-}
+});
 
-export async function action({ request, context }: Route.ActionArgs) {
+export const action = pageRoute(async ({ request, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
-  const { team, user } = await requireTeamRole(request, "engineer");
+  const { team, user } = await requireAccess(request, "engineer");
   const submission = parseWithZod(form, { schema: vehicleFormSchema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });
   const vehicles = vehicleData(team.id);
@@ -44,7 +45,7 @@ export async function action({ request, context }: Route.ActionArgs) {
     ip: clientIp(context),
   });
   return redirect(`/vehicles/${id}`);
-}
+});
 
 export default function NewVehicle() {
   const lastResult = useActionData<typeof action>();

@@ -4,17 +4,18 @@ import { buttonLinkClass, linkClass } from "~/components/form-fields";
 import { Card, EmptyState, PageHeader, tableClass, tdClass, thClass } from "~/components/page";
 import { fuelLabels } from "~/components/vehicle-form";
 import { damperLabels } from "~/lib/domain/drive-log-terms";
-import { requireTeamRole } from "~/lib/http/permissions.server";
 import { atLeast } from "~/lib/domain/roles";
 import { vehicleFiringOrder } from "~/lib/domain/vehicle-firing-order";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicles";
 import { ScrollArea } from "~/components/scroll-area";
+import { requireAccess } from "~/lib/http/access.server";
+import { pageRoute } from "~/lib/http/edge.server";
 
 export const meta = () => [{ title: "Vehicles · Twistlog" }];
 
-export async function loader({ request }: Route.LoaderArgs) {
-  const { team } = await requireTeamRole(request, "viewer");
+export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
+  const { team } = await requireAccess(request, "viewer");
   const showArchived = new URL(request.url).searchParams.get("archived") === "1";
   const rows = await vehicleData(team.id).list({ archived: true });
   const archivedCount = rows.filter((v) => v.archivedAt).length;
@@ -38,7 +39,7 @@ export async function loader({ request }: Route.LoaderArgs) {
         archived: v.archivedAt !== null,
       })),
   };
-}
+});
 
 export default function Vehicles() {
   const { role, teamName, vehicles, showArchived, archivedCount } = useLoaderData<typeof loader>();

@@ -454,7 +454,8 @@ function walk(routes: { file: string; children?: unknown[] }[]): string[] {
  */
 function intentsIn(file: string): string[] {
   const sources = [file];
-  if (/(drive-log|comparison)\.share\.ts$/.test(file)) sources.push("lib/http/share-actions.server.ts");
+  if (/(drive-log|comparison)\.share\.ts$/.test(file))
+    sources.push("lib/http/share-panel.server.ts");
   const found = new Set<string>();
   for (const s of sources) {
     const text = readFileSync(join(repoRoot, "app", s), "utf8");

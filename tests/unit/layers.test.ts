@@ -39,7 +39,8 @@ function layerOf(path: string): Layer | undefined {
   for (const layer of layers) {
     for (const prefix of layer.paths) {
       const matches = prefix.endsWith("/") ? path.startsWith(prefix) : path === prefix;
-      if (matches && (!best || prefix.length > best.length)) best = { layer, length: prefix.length };
+      if (matches && (!best || prefix.length > best.length))
+        best = { layer, length: prefix.length };
     }
   }
   return best?.layer;
@@ -115,7 +116,11 @@ describe("layers (docs/architecture.md §5)", () => {
     expect(domain?.name).toBe("domain");
     expect(component?.name).toBe("ui");
     expect(component!.rank).toBeGreaterThan(domain!.rank);
-    const found = ts.preProcessFile('import type { X } from "~/components/y";\nimport("./z");', true, true);
+    const found = ts.preProcessFile(
+      'import type { X } from "~/components/y";\nimport("./z");',
+      true,
+      true,
+    );
     expect(found.importedFiles.map((file) => file.fileName)).toEqual(["~/components/y", "./z"]);
   });
 });

@@ -78,7 +78,7 @@ export async function revokeApiToken(userId: number, tokenId: number, adminOfTea
 }
 
 export interface ApiCaller {
-  user: { id: number; email: string };
+  user: { id: number; email: string; name: string };
   team: { id: number; name: string };
   role: Role;
   tokenId: number;
@@ -96,6 +96,7 @@ export async function findApiCaller(token: string): Promise<ApiCaller | null> {
       expiresAt: apiTokens.expiresAt,
       userId: users.id,
       email: users.email,
+      name: users.name,
       teamId: teams.id,
       teamName: teams.name,
       role: memberships.role,
@@ -111,7 +112,7 @@ export async function findApiCaller(token: string): Promise<ApiCaller | null> {
   if (!row || (row.expiresAt && row.expiresAt <= new Date())) return null;
   await db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId));
   return {
-    user: { id: row.userId, email: row.email },
+    user: { id: row.userId, email: row.email, name: row.name },
     team: { id: row.teamId, name: row.teamName },
     role: row.role,
     tokenId: row.tokenId,

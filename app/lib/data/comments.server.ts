@@ -4,8 +4,8 @@ import { comments } from "~/lib/infra/db/schema-results";
 import type { CommentSubject, CommentView, CommentsResponse } from "../domain/comment-schema";
 import { db } from "../infra/db.server";
 import { sendMail } from "../infra/mail.server";
-import { invariantResponse } from "../http/permissions.server";
-import { atLeast } from "../domain/roles";
+import { Forbidden, NotFound } from "../domain/errors";
+import { canComment } from "../domain/roles";
 import { teamData } from "./team-data.server";
 import { vehicleData } from "./vehicles.server";
 
@@ -21,10 +21,6 @@ export interface CommentCaller {
   role: Role;
 }
 
-export function canComment(role: Role): boolean {
-  return atLeast(role, "technician");
-}
-
 /** Tolerance beyond the recorded speed range, in engine-speed bins (half a bin either side). */
 const RPM_MARGIN_BINS = 0.5;
 
@@ -37,9 +33,7 @@ export function commentData(teamId: number) {
     const logs = [];
     for (const id of subject.logIds) {
       const log = await vehicles.log(id);
-      invariantResponse(log.vehicleId === vehicle.id, "No such drive log for this vehicle.", {
-        status: 404,
-      });
+      if (log.vehicleId !== vehicle.id) throw new NotFound("No such drive log for this vehicle.");
       logs.push(log);
     }
     return { vehicle, logs };
@@ -139,13 +133,8 @@ export function commentData(teamId: number) {
       body: string;
       pin: { timeS?: number; rpm?: number };
     }): Promise<number> {
-      invariantResponse(
-        canComment(input.author.role),
-        "Comments need the Technician role or higher.",
-        {
-          status: 403,
-        },
-      );
+      if (!canComment(input.author.role))
+        throw new Forbidden("Comments need the Technician role or higher.");
       await checkSubject(input.vehicleId, input.subject);
       const [row] = await db
         .insert(comments)
@@ -175,12 +164,9 @@ export function commentData(teamId: number) {
             isNull(comments.deletedAt),
           ),
         );
-      invariantResponse(row, "No such comment.", { status: 404 });
-      invariantResponse(
-        row.authorId === caller.userId || caller.role === "admin",
-        "Only the author of a comment (or an admin) may delete it.",
-        { status: 403 },
-      );
+      if (!row) throw new NotFound("No such comment.");
+      if (!(row.authorId === caller.userId || caller.role === "admin"))
+        throw new Forbidden("Only the author of a comment (or an admin) may delete it.");
       await db
         .update(comments)
         .set({ deletedAt: new Date() })

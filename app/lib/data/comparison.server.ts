@@ -1,7 +1,7 @@
 import { comparisonOrder, referenceSentence } from "../domain/comparison-order";
 import type { LogCondition } from "../domain/drive-log-terms";
 import { logLabel } from "./curves.server";
-import { invariantResponse } from "../http/permissions.server";
+import { NotFound } from "../domain/errors";
 import type { Vehicle, vehicleData } from "./vehicles.server";
 
 export interface ComparedLog {
@@ -32,13 +32,8 @@ export async function comparisonLogs(
 ): Promise<{ logs: ComparedLog[]; referenceNote: string | null }> {
   const rows = await Promise.all(ids.map((id) => data.log(id)));
   for (const row of rows)
-    invariantResponse(
-      row.vehicleId === vehicle.id,
-      `Drive log ${row.id} is not one of ${vehicle.identifier}'s.`,
-      {
-        status: 404,
-      },
-    );
+    if (row.vehicleId !== vehicle.id)
+      throw new NotFound(`Drive log ${row.id} is not one of ${vehicle.identifier}'s.`);
   const distinct = (values: (string | null)[]) =>
     values.every((v) => v) && new Set(values).size === values.length;
   const byVariant = distinct(rows.map((r) => r.damperVariant));

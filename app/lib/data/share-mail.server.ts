@@ -1,12 +1,9 @@
 import { conditionLabels } from "../domain/drive-log-terms";
+import type { ShareSubject } from "../domain/share-schema";
 import { sendMail } from "../infra/mail.server";
 import { createShare, shareUrl, type ShareCaller } from "./shares.server";
 import { teamData } from "./team-data.server";
 import { vehicleData } from "./vehicles.server";
-
-export type ShareSubject =
-  | { kind: "log"; vehicleId: number; logId: number }
-  | { kind: "comparison"; vehicleId: number; logIds: number[] };
 
 /** The signed-in page of a subject, for colleagues who are in the team. */
 export function inAppPath(subject: ShareSubject): string {

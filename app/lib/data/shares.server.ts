@@ -2,10 +2,15 @@ import { and, desc, eq, sql } from "drizzle-orm";
 import { users, type Role } from "~/lib/infra/db/schema";
 import { shares, shareViews, type ShareKind } from "~/lib/infra/db/schema-results";
 import { db } from "../infra/db.server";
-import { invariantResponse } from "../http/permissions.server";
-import { atLeast } from "../domain/roles";
+import { Conflict, Forbidden, Invalid, NotFound } from "../domain/errors";
+import { canCreateShares, canManageShare } from "../domain/roles";
 import { newSecret, sha256Hex } from "../infra/secrets.server";
-import { SHARE_MAX_DAYS, type ShareState, type ShareSummary } from "../domain/share-schema";
+import {
+  SHARE_MAX_DAYS,
+  type ShareState,
+  type ShareSubject,
+  type ShareSummary,
+} from "../domain/share-schema";
 import { vehicleData } from "./vehicles.server";
 
 /**
@@ -26,18 +31,6 @@ export interface ShareCaller {
 
 export type ShareRow = typeof shares.$inferSelect;
 
-/** Engineers and admins make links; the sharer and the team's admins manage each one. */
-export function canCreateShares(role: Role): boolean {
-  return atLeast(role, "engineer");
-}
-
-export function canManageShare(caller: ShareCaller, share: { createdBy: number | null }): boolean {
-  return (
-    caller.role === "admin" ||
-    (atLeast(caller.role, "engineer") && share.createdBy === caller.userId)
-  );
-}
-
 export function shareState(
   share: Pick<ShareRow, "revokedAt" | "expiresAt">,
   now = new Date(),
@@ -57,11 +50,8 @@ export function looksLikeShareToken(token: string | undefined): token is string 
 }
 
 function expiryFromNow(days: number): Date {
-  invariantResponse(
-    Number.isInteger(days) && days >= 1 && days <= SHARE_MAX_DAYS,
-    `Choose a whole number of days from 1 to ${SHARE_MAX_DAYS}.`,
-    { status: 400 },
-  );
+  if (!(Number.isInteger(days) && days >= 1 && days <= SHARE_MAX_DAYS))
+    throw new Invalid(`Choose a whole number of days from 1 to ${SHARE_MAX_DAYS}.`);
   return new Date(Date.now() + days * DAY_MS);
 }
 
@@ -80,13 +70,8 @@ export async function createShare(input: {
   note: string;
   allowRawDownload: boolean;
 }): Promise<{ id: number; token: string; expiresAt: Date; vehicleId: number; kind: ShareKind }> {
-  invariantResponse(
-    canCreateShares(input.caller.role),
-    "Share links need the Engineer role or higher.",
-    {
-      status: 403,
-    },
-  );
+  if (!canCreateShares(input.caller.role))
+    throw new Forbidden("Share links need the Engineer role or higher.");
   const data = vehicleData(input.teamId);
   let vehicleId: number;
   let driveLogId: number | null = null;
@@ -99,22 +84,12 @@ export async function createShare(input: {
   } else {
     const vehicle = await data.vehicle(input.subject.vehicleId);
     logIds = [...new Set(input.subject.logIds)];
-    invariantResponse(
-      logIds.length >= 2 && logIds.length <= 8,
-      "A comparison has 2 to 8 drive logs.",
-      {
-        status: 400,
-      },
-    );
+    if (!(logIds.length >= 2 && logIds.length <= 8))
+      throw new Invalid("A comparison has 2 to 8 drive logs.");
     for (const id of logIds) {
       const log = await data.log(id);
-      invariantResponse(
-        log.vehicleId === vehicle.id,
-        `Drive log ${id} is not one of this vehicle's.`,
-        {
-          status: 404,
-        },
-      );
+      if (log.vehicleId !== vehicle.id)
+        throw new NotFound(`Drive log ${id} is not one of this vehicle's.`);
     }
     vehicleId = vehicle.id;
   }
@@ -178,13 +153,8 @@ export async function listShares(
   caller: ShareCaller,
   filter: { logId?: number; vehicleId?: number } = {},
 ): Promise<ShareSummary[]> {
-  invariantResponse(
-    atLeast(caller.role, "engineer"),
-    "Share links need the Engineer role or higher.",
-    {
-      status: 403,
-    },
-  );
+  if (!canCreateShares(caller.role))
+    throw new Forbidden("Share links need the Engineer role or higher.");
   const rows = await db
     .select(listColumns)
     .from(shares)
@@ -202,25 +172,37 @@ export async function listShares(
   return rows.map((r) => summary(r, caller, now));
 }
 
+/**
+ * The share links of one subject (the share panel's list), newest first. A comparison is its
+ * set of drive logs: the same logs in another order are the same comparison.
+ */
+export async function sharesOfSubject(
+  teamId: number,
+  caller: ShareCaller,
+  subject: ShareSubject,
+): Promise<ShareSummary[]> {
+  if (subject.kind === "log") return listShares(teamId, caller, { logId: subject.logId });
+  const setOf = (ids: number[]) => [...ids].sort((a, b) => a - b).join(",");
+  const key = setOf(subject.logIds);
+  return (await listShares(teamId, caller, { vehicleId: subject.vehicleId })).filter(
+    (s) => s.kind === "comparison" && setOf(s.logIds) === key,
+  );
+}
+
 /** One of the team's share links (404 for another team's or none). */
 export async function getShare(
   teamId: number,
   caller: ShareCaller,
   shareId: number,
 ): Promise<ShareSummary> {
-  invariantResponse(
-    atLeast(caller.role, "engineer"),
-    "Share links need the Engineer role or higher.",
-    {
-      status: 403,
-    },
-  );
+  if (!canCreateShares(caller.role))
+    throw new Forbidden("Share links need the Engineer role or higher.");
   const [row] = await db
     .select(listColumns)
     .from(shares)
     .leftJoin(users, eq(users.id, shares.createdBy))
     .where(and(eq(shares.id, shareId), eq(shares.teamId, teamId)));
-  invariantResponse(row, "No such share link in this team.", { status: 404 });
+  if (!row) throw new NotFound("No such share link in this team.");
   return summary(row, caller, new Date());
 }
 
@@ -230,12 +212,9 @@ async function manageable(teamId: number, caller: ShareCaller, shareId: number):
     .select()
     .from(shares)
     .where(and(eq(shares.id, shareId), eq(shares.teamId, teamId)));
-  invariantResponse(row, "No such share link in this team.", { status: 404 });
-  invariantResponse(
-    canManageShare(caller, row),
-    "Only the person who made this share link, or an admin, may change it.",
-    { status: 403 },
-  );
+  if (!row) throw new NotFound("No such share link in this team.");
+  if (!canManageShare(caller, row))
+    throw new Forbidden("Only the person who made this share link, or an admin, may change it.");
   return row;
 }
 
@@ -250,9 +229,7 @@ export async function extendShare(
   days: number,
 ): Promise<ShareSummary> {
   const row = await manageable(teamId, caller, shareId);
-  invariantResponse(!row.revokedAt, "This share link is revoked; make a new one instead.", {
-    status: 409,
-  });
+  if (row.revokedAt) throw new Conflict("This share link is revoked; make a new one instead.");
   const expiresAt = expiryFromNow(days);
   await db
     .update(shares)
@@ -324,7 +301,7 @@ export function sharedLogIds(share: Pick<ShareRow, "kind" | "driveLogId" | "logI
   return share.kind === "log" ? (share.driveLogId ? [share.driveLogId] : []) : share.logIds;
 }
 
-/** The audit log's actor for an API caller (requireApiAccess gives the id only). */
+/** The audit log's actor for an API caller (an API token's access has the id only). */
 export async function auditActor(userId: number): Promise<{ id: number; email: string }> {
   const [row] = await db.select({ email: users.email }).from(users).where(eq(users.id, userId));
   return { id: userId, email: row?.email ?? "" };

@@ -5,7 +5,7 @@ import type { AnalysisResult } from "~/lib/signal";
 import { idleFiguresOf, type IdleFigures } from "../analyses/result.server";
 import { db } from "../infra/db.server";
 import type { LogCondition } from "../domain/drive-log-terms";
-import { invariantResponse } from "../http/permissions.server";
+import { NotFound } from "../domain/errors";
 import {
   evaluateTargets,
   outOfScope,
@@ -80,7 +80,7 @@ export function targetData(teamId: number) {
       .select()
       .from(targets)
       .where(and(eq(targets.id, id), inTeam));
-    invariantResponse(row, "No such target in this team.", { status: 404 });
+    if (!row) throw new NotFound("No such target in this team.");
     return row;
   }
 

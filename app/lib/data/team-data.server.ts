@@ -2,7 +2,7 @@ import { and, asc, desc, eq, gt, isNull } from "drizzle-orm";
 import { invitations, memberships, teams, users, type Role } from "~/lib/infra/db/schema";
 import { teamAuditChoices, teamAuditLog, type AuditFilter } from "./audit.server";
 import { db } from "../infra/db.server";
-import { invariantResponse } from "../http/permissions.server";
+import { NotFound } from "../domain/errors";
 
 /** What a member row shows: the membership with its user. */
 const memberColumns = {
@@ -28,7 +28,7 @@ export function teamData(teamId: number) {
         .select({ id: teams.id, name: teams.name, amplitudeUnit: teams.amplitudeUnit })
         .from(teams)
         .where(eq(teams.id, teamId));
-      invariantResponse(team, "Team not found.", { status: 404 });
+      if (!team) throw new NotFound("Team not found.");
       return team;
     },
 
@@ -52,7 +52,7 @@ export function teamData(teamId: number) {
         .from(memberships)
         .innerJoin(users, eq(users.id, memberships.userId))
         .where(and(eq(memberships.id, membershipId), eq(memberships.teamId, teamId)));
-      invariantResponse(member, "No such member in this team.", { status: 404 });
+      if (!member) throw new NotFound("No such member in this team.");
       return member;
     },
 
@@ -111,9 +111,7 @@ export function teamData(teamId: number) {
             isNull(invitations.revokedAt),
           ),
         );
-      invariantResponse(result.affectedRows > 0, "No such open invitation in this team.", {
-        status: 404,
-      });
+      if (!(result.affectedRows > 0)) throw new NotFound("No such open invitation in this team.");
     },
 
     auditLog(limit = 200, filter: AuditFilter = {}) {

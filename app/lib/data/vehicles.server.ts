@@ -6,7 +6,7 @@ import { decodeStoredJson, storedResult, type StoredAnalysis } from "../analyses
 import { jobSettingsFor, type AnalysisOverrides, type JobSettings } from "../analyses/settings";
 import { db } from "../infra/db.server";
 import type { AppliedMapping, IngestMapping } from "../domain/drive-log-terms";
-import { invariantResponse } from "../http/permissions.server";
+import { NotFound } from "../domain/errors";
 import type { StoredBlob } from "../infra/storage.server";
 import type { LogMetadata, VehicleInput } from "../domain/vehicle-schema";
 
@@ -33,7 +33,7 @@ export function vehicleData(teamId: number) {
       .select()
       .from(vehicles)
       .where(and(eq(vehicles.id, id), inTeam));
-    invariantResponse(row, "No such vehicle in this team.", { status: 404 });
+    if (!row) throw new NotFound("No such vehicle in this team.");
     return row;
   }
 
@@ -42,14 +42,14 @@ export function vehicleData(teamId: number) {
       .select()
       .from(driveLogs)
       .where(and(eq(driveLogs.id, id), eq(driveLogs.teamId, teamId)));
-    invariantResponse(row, "No such drive log in this team.", { status: 404 });
+    if (!row) throw new NotFound("No such drive log in this team.");
     return row;
   }
 
   /** A drive log in its vehicle, as a URL names them: 404 unless the log is that vehicle's. */
   async function vehicleLog(vehicleId: number, logId: number) {
     const [v, l] = await Promise.all([vehicle(vehicleId), log(logId)]);
-    invariantResponse(l.vehicleId === v.id, "No such drive log for this vehicle.", { status: 404 });
+    if (l.vehicleId !== v.id) throw new NotFound("No such drive log for this vehicle.");
     return { vehicle: v, log: l };
   }
 
@@ -333,7 +333,7 @@ export function vehicleData(teamId: number) {
     async analysisOf(logId: number, analysisId: number): Promise<StoredAnalysis> {
       const row = await log(logId);
       const found = await readAnalysis(row.id, analysisId);
-      invariantResponse(found, "No such analysis version of this drive log.", { status: 404 });
+      if (!found) throw new NotFound("No such analysis version of this drive log.");
       return found;
     },
 

@@ -10,6 +10,29 @@ export function atLeast(role: Role, needed: Role): boolean {
   return rank[role] >= rank[needed];
 }
 
+// What a role may do inside a team, beyond the one access check per request
+// (app/lib/http/access.server.ts). The data helpers keep these rules as a second guard.
+
+/** Engineers and admins make share links. */
+export function canCreateShares(role: Role): boolean {
+  return atLeast(role, "engineer");
+}
+
+/** The sharer (an engineer or admin) and the team's admins manage each share link. */
+export function canManageShare(
+  caller: { userId: number; role: Role },
+  share: { createdBy: number | null },
+): boolean {
+  return (
+    caller.role === "admin" || (canCreateShares(caller.role) && share.createdBy === caller.userId)
+  );
+}
+
+/** Technicians and up write comments (viewers read them). */
+export function canComment(role: Role): boolean {
+  return atLeast(role, "technician");
+}
+
 export const roleLabels: Record<Role, string> = {
   admin: "Admin",
   engineer: "Engineer",

@@ -154,3 +154,8 @@ export interface ShareSummary {
   /** Whether the caller may extend or revoke it: its sharer, or an admin. */
   canManage: boolean;
 }
+
+/** What a share link shows: one drive log, or a comparison of 2 to 8 of one vehicle's logs. */
+export type ShareSubject =
+  | { kind: "log"; vehicleId: number; logId: number }
+  | { kind: "comparison"; vehicleId: number; logIds: number[] };

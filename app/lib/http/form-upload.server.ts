@@ -1,6 +1,6 @@
 import { data, redirect } from "react-router";
 import { assertCsrf, assertSameOrigin, CSRF_FIELD } from "~/lib/http/csrf.server";
-import { requireTeamRole } from "~/lib/http/permissions.server";
+import { requireAccess } from "~/lib/http/access.server";
 import { recordUploads } from "~/lib/http/record-uploads.server";
 import { UploadError } from "~/lib/http/uploads.server";
 
@@ -21,7 +21,7 @@ export async function uploadFromForm(request: Request, vehicleIdParam: string | 
     uploaded = await recordUploads(request, {
       access: async () => {
         assertSameOrigin(request); // another site's page: refused before the body is read
-        const current = await requireTeamRole(request, "technician");
+        const current = await requireAccess(request, "technician");
         return { teamId: current.team.id, userId: current.user.id };
       },
       vehicleId: vehicleIdParam,

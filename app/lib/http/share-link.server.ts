@@ -8,6 +8,7 @@ import { vehicleFiringOrder } from "../domain/vehicle-firing-order";
 import { NOT_FOUND_MESSAGE, UNAVAILABLE_MESSAGE } from "../domain/share-schema";
 import { resolveShare, sharedLogIds, type ResolvedShare } from "../data/shares.server";
 import { teamData } from "../data/team-data.server";
+import { apiError } from "./edge.server";
 import { vehicleData, type DriveLogRow } from "../data/vehicles.server";
 
 /**
@@ -34,8 +35,11 @@ export async function requireShareForPage(token: string | undefined): Promise<Ac
   return resolved;
 }
 
+/** The API's error shape (apiError) with the share link's headers. */
 export function shareJsonError(status: number, code: string, message: string): Response {
-  return Response.json({ error: { code, message } }, { status, headers: shareHeaders });
+  const answer = apiError(status, code, message);
+  for (const [name, value] of Object.entries(shareHeaders)) answer.headers.set(name, value);
+  return answer;
 }
 
 /** For the JSON routes: the active share, or the 404 / 410 JSON answer to return. */
