@@ -14,7 +14,8 @@ import {
 } from "~/lib/domain/format";
 import type { AnalysisSummary } from "~/lib/domain/analysis-summary";
 import { countText } from "~/lib/base/plural";
-import { marginText, TARGET_STATUS_LABELS, type TargetVerdict } from "~/lib/domain/targets";
+import type { TargetVerdict } from "~/lib/domain/targets";
+import { marginText, TARGET_STATUS_LABELS } from "~/lib/domain/target-text";
 import { warningText } from "~/lib/domain/warning-text";
 export { summarise, type AnalysisSummary } from "~/lib/domain/analysis-summary";
 import { VerdictCaution } from "./caution-note";

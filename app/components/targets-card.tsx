@@ -3,16 +3,9 @@ import { useEffect, useRef, useState } from "react";
 import { Form, Link } from "react-router";
 import type { z } from "zod";
 import { conditionLabels, LOG_CONDITIONS } from "~/lib/domain/drive-log-terms";
-import {
-  limitText,
-  marginText,
-  scopeText,
-  TARGET_STATUS_LABELS,
-  targetSchema,
-  type Target,
-  type TargetInput,
-  type TargetVerdict,
-} from "~/lib/domain/targets";
+import type { Target, TargetInput, TargetVerdict } from "~/lib/domain/targets";
+import { targetSchema } from "~/lib/domain/target-schema";
+import { limitText, marginText, scopeText, TARGET_STATUS_LABELS } from "~/lib/domain/target-text";
 import { countText } from "~/lib/base/plural";
 import { CsrfInput } from "./csrf-input";
 import { buttonClass, Field, FormError, IntentButton, SubmitButton, useSchemaForm } from "./form";

@@ -34,13 +34,9 @@ import { countText, plural } from "~/lib/base/plural";
 import { clientIp } from "~/lib/http/request.server";
 import { atLeast } from "~/lib/domain/roles";
 import { firingOrder } from "~/lib/signal/firing-order";
-import {
-  limitText,
-  marginText,
-  scopeText,
-  targetSchema,
-  type TargetVerdict,
-} from "~/lib/domain/targets";
+import type { TargetVerdict } from "~/lib/domain/targets";
+import { targetSchema } from "~/lib/domain/target-schema";
+import { limitText, marginText, scopeText } from "~/lib/domain/target-text";
 import { targetData, toTarget } from "~/lib/data/targets.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicle";
