@@ -31,6 +31,16 @@ export function Card({
   );
 }
 
+/** A smaller panel with a muted heading: one figure group of a drive log's summary. */
+export function Tile({ title, children }: { title: string; children: React.ReactNode }) {
+  return (
+    <section className="rounded-lg border border-neutral-200 bg-white p-5 shadow-xs">
+      <h3 className="text-sm font-semibold text-neutral-500">{title}</h3>
+      <div className="mt-2">{children}</div>
+    </section>
+  );
+}
+
 /** What an empty list says instead of showing nothing: what it is and what to do next. */
 export function EmptyState({ children }: { children: React.ReactNode }) {
   return (

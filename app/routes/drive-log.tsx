@@ -1,6 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, useActionData, useLoaderData } from "react-router";
-import { AnalysisDetails, AnalysisSummaryView, summarise } from "~/components/analysis-summary";
+import { AnalysisDetails } from "~/components/analysis-details";
+import { AnalysisSummaryView } from "~/components/analysis-summary";
 import { AnalysisVersions, EarlierVersionNote } from "~/components/analysis-versions";
 import {
   ColumnMapping,
@@ -19,6 +20,7 @@ import { Card, Notice, When } from "~/components/page";
 import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
 import { SharePanel } from "~/components/share-panel";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
+import { summarise } from "~/lib/domain/analysis-summary";
 import { analysisParam } from "~/lib/http/analysis-param";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";

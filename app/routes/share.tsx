@@ -1,5 +1,6 @@
 import { isRouteErrorResponse, useLoaderData, useParams, useRouteError } from "react-router";
-import { AnalysisDetails, AnalysisSummaryView } from "~/components/analysis-summary";
+import { AnalysisDetails } from "~/components/analysis-details";
+import { AnalysisSummaryView } from "~/components/analysis-summary";
 import { DriveLogCharts } from "~/components/charts/drive-log-charts";
 import { ComparisonView } from "~/components/comparison-view";
 import { LogoMark } from "~/components/logo-mark";
