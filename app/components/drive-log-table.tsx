@@ -25,14 +25,9 @@ import { linkClass } from "./form-fields";
 import type { LogProgress } from "./log-status";
 import { EmptyState } from "./page";
 import { ScrollArea } from "./scroll-area";
+import { useHydrated } from "./use-hydrated";
 
 export { TABLE_PARAMS, type DriveLogTableRow } from "./drive-log-table-state";
-
-function useHydrated() {
-  const [hydrated, setHydrated] = useState(false);
-  useEffect(() => setHydrated(true), []);
-  return hydrated;
-}
 
 /**
  * The vehicle page's drive logs (docs/ui.md, vehicle page item 3): TanStack Table for sorting,

@@ -15,6 +15,11 @@ export const TARGET_STATUS_LABELS: Record<TargetStatus, string> = {
   "not-applicable": "does not apply",
 };
 
+/** A gear as the target form and scopes write it: "R" for reverse, "N" for neutral, else its number. */
+export function gearCode(g: number): string {
+  return g === -1 ? "R" : g === 0 ? "N" : String(g);
+}
+
 export function gearText(g: number | null): string {
   return g === null ? "no gear given" : g === -1 ? "reverse" : g === 0 ? "neutral" : `gear ${g}`;
 }
@@ -38,8 +43,6 @@ export function scopeText(t: Pick<Target, "conditions" | "gears">): string {
   const parts: string[] = [];
   if (t.conditions.length) parts.push(t.conditions.map((c) => conditionLabels[c]).join(", "));
   if (t.gears.length)
-    parts.push(
-      `${plural(t.gears.length, "gear")} ${t.gears.map((g) => (g === -1 ? "R" : g === 0 ? "N" : String(g))).join(", ")}`,
-    );
+    parts.push(`${plural(t.gears.length, "gear")} ${t.gears.map(gearCode).join(", ")}`);
   return parts.length ? parts.join("; ") : "Every drive log";
 }
