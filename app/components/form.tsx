@@ -140,6 +140,18 @@ export function FormError({ id, errors }: { id: string; errors: string[] | undef
   );
 }
 
+/** A refusal in one line where there is no form error to tie it to (e.g. a fetcher's reply). */
+export function ErrorLine({ message }: { message: string }) {
+  return (
+    <p
+      role="alert"
+      className="rounded-md border border-red-200 bg-red-50 px-3 py-2 text-sm text-red-800"
+    >
+      {message}
+    </p>
+  );
+}
+
 export function SubmitButton({
   children,
   name,

@@ -1,4 +1,4 @@
-import { useEffect, useRef, useState } from "react";
+import { useRef, useState } from "react";
 import { linkClass } from "./form-fields";
 import type { LogProgress } from "./log-status";
 import { FileRow, send } from "./upload-file-row";
