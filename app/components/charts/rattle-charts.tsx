@@ -1,4 +1,4 @@
-import { memo, useEffect, useId, useMemo, useRef, useState } from "react";
+import { memo, useEffect, useId, useMemo, useState } from "react";
 import type uPlot from "uplot";
 import {
   amplitudeNumber,
@@ -14,11 +14,12 @@ import { convertSpeed, SPEED_UNITS, type SpeedUnit } from "~/lib/domain/chart-un
 import { extent, withGaps } from "./chart-math";
 import { ChartFrame, ChartsError, Segmented } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
-import { downloadCsv, downloadPng } from "./download";
-import { ChartExportContext, useExportContext } from "./export-context";
+import { downloadCsv } from "./download";
+import { ChartExportContext } from "./export-context";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
-import { Plot, type PlotOptions } from "./plot";
+import { FramePlot, usePlotPng } from "./frame-plot";
+import type { PlotOptions } from "./plot";
 import {
   cursor,
   drawXBands,
@@ -90,11 +91,10 @@ const AccelChart = memo(function AccelChart({
   syncKey: string;
   fileSuffix?: string;
 }) {
-  const exportContext = useExportContext();
   const idle = charts?.idle ?? null;
   const trace = idle?.accelTrace ?? null;
   const [readout, setReadout] = useState("");
-  const plot = useRef<uPlot | null>(null);
+  const { onPlot, png } = usePlotPng();
   const timeMarkers = useTimeMarkers(markers);
   const data = useMemo<uPlot.AlignedData>(
     () => (trace ? [trace.timeS, trace.radS2] : [[]]),
@@ -194,24 +194,18 @@ const AccelChart = memo(function AccelChart({
           fileSuffix,
         )
       }
-      onPng={() =>
-        plot.current &&
-        void downloadPng(ACCEL_TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
-      }
+      onPng={png(ACCEL_TITLE, legend, fileSuffix)}
     >
-      {(summaryId) =>
-        options ? (
-          <Plot
-            height={RATTLE_CHART_HEIGHT}
-            options={options}
-            data={data}
-            keyboard
-            label={`${ACCEL_TITLE}: |α| in rad/s² against time in s, with the rattle limit`}
-            describedBy={summaryId}
-            onPlot={(u) => (plot.current = u)}
-          />
-        ) : null
-      }
+      {(summaryId) => (
+        <FramePlot
+          height={RATTLE_CHART_HEIGHT}
+          options={options}
+          data={data}
+          label={`${ACCEL_TITLE}: |α| in rad/s² against time in s, with the rattle limit`}
+          describedBy={summaryId}
+          onPlot={onPlot}
+        />
+      )}
     </ChartFrame>
   );
 });
@@ -229,12 +223,11 @@ const FluctuationChart = memo(function FluctuationChart({
   syncKey: string;
   fileSuffix?: string;
 }) {
-  const exportContext = useExportContext();
   const idle = charts?.idle ?? null;
   const trace = idle?.firingOrderTrace ?? null;
   const [unit, setUnit] = useState<SpeedUnit>("rpm");
   const [readout, setReadout] = useState("");
-  const plot = useRef<uPlot | null>(null);
+  const { onPlot, png } = usePlotPng();
   const timeMarkers = useTimeMarkers(markers);
 
   const data = useMemo<uPlot.AlignedData>(() => {
@@ -336,30 +329,18 @@ const FluctuationChart = memo(function FluctuationChart({
       readout={readout || "Point at the chart to read the fluctuation."}
       summary={summary}
       onCsv={csv}
-      onPng={() =>
-        plot.current &&
-        void downloadPng(
-          FLUCTUATION_TITLE,
-          plot.current.ctx.canvas,
-          legend,
-          fileSuffix,
-          exportContext,
-        )
-      }
+      onPng={png(FLUCTUATION_TITLE, legend, fileSuffix)}
     >
-      {(summaryId) =>
-        options ? (
-          <Plot
-            height={RATTLE_CHART_HEIGHT}
-            options={options}
-            data={data}
-            keyboard
-            label={`${FLUCTUATION_TITLE}: firing-order amplitude in ${unit} at crank and gearbox input against time in s`}
-            describedBy={summaryId}
-            onPlot={(u) => (plot.current = u)}
-          />
-        ) : null
-      }
+      {(summaryId) => (
+        <FramePlot
+          height={RATTLE_CHART_HEIGHT}
+          options={options}
+          data={data}
+          label={`${FLUCTUATION_TITLE}: firing-order amplitude in ${unit} at crank and gearbox input against time in s`}
+          describedBy={summaryId}
+          onPlot={onPlot}
+        />
+      )}
     </ChartFrame>
   );
 });
