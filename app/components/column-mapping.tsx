@@ -5,7 +5,7 @@ import { mappingSchema, speedUnits, type Preview } from "~/lib/domain/column-map
 import { CsrfInput } from "./csrf-input";
 import { FormError, SubmitButton, useSchemaForm } from "./form";
 import { ChoiceField } from "./form-fields";
-import { tableClass, tdClass, thClass } from "./page";
+import { Card, tableClass, tdClass, thClass } from "./page";
 
 export { mappingSchema, type Preview } from "~/lib/domain/column-mapping-schema";
 
@@ -134,4 +134,41 @@ export function mappingDefaults(applied: AppliedMapping | null): Record<string, 
   for (const [k, v] of Object.entries(applied?.mapping ?? {}))
     if (typeof v === "string") out[k] = v;
   return out;
+}
+
+/**
+ * The drive-log page's columns: the mapping step when it is offered (the file could not be read
+ * over its columns and the user may choose), else which columns the last analysis read.
+ */
+export function ColumnsStep({
+  offer,
+  preview,
+  applied,
+  lastResult,
+}: {
+  offer: boolean;
+  preview: Preview | null;
+  applied: AppliedMapping | null;
+  lastResult: SubmissionResult<string[]> | null | undefined;
+}) {
+  if (preview && offer)
+    return (
+      <Card title="Choose the columns" id="mapping">
+        {applied ? (
+          <p className="mb-4 text-sm text-neutral-700" data-columns-used={applied.source}>
+            {columnsUsedText(applied)}
+          </p>
+        ) : null}
+        <ColumnMapping
+          preview={preview}
+          current={mappingDefaults(applied)}
+          lastResult={lastResult}
+        />
+      </Card>
+    );
+  return applied ? (
+    <p className="text-sm text-neutral-600" data-columns-used={applied.source}>
+      {columnsUsedText(applied)}
+    </p>
+  ) : null;
 }

@@ -41,6 +41,16 @@ export function Tile({ title, children }: { title: string; children: React.React
   );
 }
 
+/** A term and its value on one line, in a <dl> of facts (a drive log's test details). */
+export function InlineTerm({ term, children }: { term: string; children: React.ReactNode }) {
+  return (
+    <div className="flex gap-1.5">
+      <dt className="text-neutral-500">{term}</dt>
+      <dd className="font-medium text-neutral-900">{children}</dd>
+    </div>
+  );
+}
+
 /** What an empty list says instead of showing nothing: what it is and what to do next. */
 export function EmptyState({ children }: { children: React.ReactNode }) {
   return (
