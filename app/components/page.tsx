@@ -76,6 +76,29 @@ export const tableClass = "w-full text-left text-sm";
 export const thClass = "border-b border-neutral-200 py-2 pr-4 font-medium text-neutral-500";
 export const tdClass = "border-b border-neutral-100 py-2.5 pr-4";
 
+/**
+ * A table's header row: the column names, then (with `action`) a last column for each row's
+ * button, named for screen readers only.
+ */
+export function TableHead({ columns, action }: { columns: string[]; action?: string }) {
+  return (
+    <thead>
+      <tr>
+        {columns.map((c) => (
+          <th key={c} className={thClass}>
+            {c}
+          </th>
+        ))}
+        {action ? (
+          <th className={thClass}>
+            <span className="sr-only">{action}</span>
+          </th>
+        ) : null}
+      </tr>
+    </thead>
+  );
+}
+
 /** Dates in the UI: day, month, year and (unless dateOnly) the time, in UTC. */
 export function When({
   date,
