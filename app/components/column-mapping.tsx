@@ -1,9 +1,7 @@
 import type { SubmissionResult } from "@conform-to/react";
 import type { AppliedMapping, IngestMapping } from "~/lib/domain/drive-log-terms";
-import { Form } from "react-router";
 import { mappingSchema, speedUnits, type Preview } from "~/lib/domain/column-mapping-schema";
-import { CsrfInput } from "./csrf-input";
-import { FormError, SubmitButton, useSchemaForm } from "./form";
+import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import { ChoiceField } from "./form-fields";
 import { Card, tableClass, tdClass, thClass } from "./page";
 
@@ -60,10 +58,7 @@ export function ColumnMapping({
           </tbody>
         </table>
       </div>
-      <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
-        <CsrfInput />
-        <input type="hidden" name="intent" value="map" />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} intent="map" className="space-y-4">
         <div className="grid gap-4 sm:grid-cols-3">
           <ChoiceField label="Time column" meta={fields.timeColumn} options={columnOptions} />
           <ChoiceField
@@ -93,7 +88,7 @@ export function ColumnMapping({
           these columns, and are recognised from the header otherwise.
         </p>
         <SubmitButton>Use these columns and analyse again</SubmitButton>
-      </Form>
+      </SchemaForm>
     </div>
   );
 }

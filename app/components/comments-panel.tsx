@@ -10,8 +10,8 @@ import {
 } from "~/lib/domain/comment-schema";
 import type { ChartMarker } from "./charts/types";
 import { CsrfInput } from "./csrf-input";
-import { FetcherSchemaForm, useOnReply, type FetcherReply } from "./fetcher-form";
-import { SubmitButton, useSchemaForm } from "./form";
+import { useOnReply, type FetcherReply } from "./fetcher-form";
+import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import { inputClass, InputField, TextAreaField } from "./form-fields";
 import { EmptyState, When } from "./page";
 import { fetchJson, QueryState } from "./query-state";
@@ -223,7 +223,7 @@ function CommentForm({
   // Controlled here (the pin field follows the choice), so conform's defaultValue is left out.
   const { defaultValue: _unused, key: selectKey, ...selectProps } = getSelectProps(fields.pinKind);
   return (
-    <FetcherSchemaForm
+    <SchemaForm
       fetcher={fetcher}
       action={`/vehicles/${vehicleId}/comments`}
       form={form}
@@ -275,6 +275,6 @@ function CommentForm({
           {reply.notice}
         </p>
       ) : null}
-    </FetcherSchemaForm>
+    </SchemaForm>
   );
 }

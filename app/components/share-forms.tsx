@@ -8,8 +8,8 @@ import {
   SHARE_MAX_DAYS,
   SHARE_MAX_RECIPIENTS,
 } from "~/lib/domain/share-schema";
-import { FetcherSchemaForm, useOnReply, type FetcherReply } from "./fetcher-form";
-import { ErrorLine, SubmitButton, useSchemaForm } from "./form";
+import { useOnReply, type FetcherReply } from "./fetcher-form";
+import { ErrorLine, SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import { inputClass, InputField, TextAreaField } from "./form-fields";
 import { When } from "./page";
 
@@ -67,7 +67,7 @@ export function CreateForm({
   const created = fetcher.state === "idle" ? reply?.created : undefined;
   return (
     <div className="space-y-4">
-      <FetcherSchemaForm
+      <SchemaForm
         fetcher={fetcher}
         action={endpoint}
         form={form}
@@ -88,7 +88,7 @@ export function CreateForm({
         <SubmitButton>
           {fetcher.state === "submitting" ? "Making the link…" : "Make share link"}
         </SubmitButton>
-      </FetcherSchemaForm>
+      </SchemaForm>
       {reply?.error ? <ErrorLine message={reply.error.message} /> : null}
       {created ? <CreatedLink key={created.id} created={created} /> : null}
     </div>
@@ -159,7 +159,7 @@ export function EmailForm({
   });
   useOnReply(fetcher, onDone);
   return (
-    <FetcherSchemaForm
+    <SchemaForm
       fetcher={fetcher}
       action={endpoint}
       form={form}
@@ -190,6 +190,6 @@ export function EmailForm({
           {reply.notice}
         </p>
       ) : null}
-    </FetcherSchemaForm>
+    </SchemaForm>
   );
 }

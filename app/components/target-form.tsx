@@ -1,12 +1,10 @@
 import { getCollectionProps, type SubmissionResult } from "@conform-to/react";
-import { Form } from "react-router";
 import type { z } from "zod";
 import { conditionLabels, LOG_CONDITIONS } from "~/lib/domain/drive-log-terms";
 import type { Target, TargetInput } from "~/lib/domain/targets";
 import { targetSchema } from "~/lib/domain/target-schema";
 import { gearCode } from "~/lib/domain/target-text";
-import { CsrfInput } from "./csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "./form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import { ChoiceField, fieldsetClass, InputField, legendClass } from "./form-fields";
 import { useHydrated } from "./use-hydrated";
 
@@ -63,11 +61,12 @@ export function TargetForm({
   const showRattle = !hydrated || kind === "rattle";
   const conditionErrors = Object.values(fields.conditions.allErrors ?? {}).flat();
   return (
-    <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
-      <CsrfInput />
-      <input type="hidden" name="intent" value={target ? "update-target" : "create-target"} />
-      {target ? <input type="hidden" name="targetId" value={target.id} /> : null}
-      <FormError id={form.errorId} errors={form.errors} />
+    <SchemaForm
+      form={form}
+      intent={target ? "update-target" : "create-target"}
+      hidden={target ? <input type="hidden" name="targetId" value={target.id} /> : null}
+      className="space-y-4"
+    >
       <div className="grid gap-4 sm:grid-cols-2">
         <Field
           label="Name"
@@ -158,6 +157,6 @@ export function TargetForm({
         </div>
       </fieldset>
       <SubmitButton>{target ? "Save target" : "Add target"}</SubmitButton>
-    </Form>
+    </SchemaForm>
   );
 }

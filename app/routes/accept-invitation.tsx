@@ -1,8 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { data, Link, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -103,15 +102,7 @@ export default function AcceptInvitation() {
       <p className="mt-2 text-sm text-neutral-600">
         You are invited as {roleLabels[invitation.role]}, with the address {invitation.email}.
       </p>
-      <Form
-        method="post"
-        id={form.id}
-        onSubmit={form.onSubmit}
-        noValidate
-        className="mt-6 space-y-4"
-      >
-        <CsrfInput />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} className="mt-6 space-y-4">
         {invitation.hasAccount ? (
           <Field
             label="Your Twistlog password"
@@ -133,7 +124,7 @@ export default function AcceptInvitation() {
           </>
         )}
         <SubmitButton>Join the team</SubmitButton>
-      </Form>
+      </SchemaForm>
     </>
   );
 }

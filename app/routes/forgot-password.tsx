@@ -1,8 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, useActionData } from "react-router";
+import { data, Link, useActionData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -59,18 +58,10 @@ export default function ForgotPassword() {
     <>
       <h1 className="text-xl font-semibold">Reset your password</h1>
       <p className="mt-2 text-sm text-neutral-600">We e-mail you a link to choose a new one.</p>
-      <Form
-        method="post"
-        id={form.id}
-        onSubmit={form.onSubmit}
-        noValidate
-        className="mt-6 space-y-4"
-      >
-        <CsrfInput />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} className="mt-6 space-y-4">
         <Field label="E-mail address" meta={fields.email} type="email" autoComplete="username" />
         <SubmitButton>Send the link</SubmitButton>
-      </Form>
+      </SchemaForm>
       <p className="mt-6 text-sm">
         <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
           Back to sign-in

@@ -1,8 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { data, Link, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -74,15 +73,7 @@ export default function ResetPassword() {
       <p className="mt-2 text-sm text-neutral-600">
         For {email}. Every signed-in session of this account ends.
       </p>
-      <Form
-        method="post"
-        id={form.id}
-        onSubmit={form.onSubmit}
-        noValidate
-        className="mt-6 space-y-4"
-      >
-        <CsrfInput />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} className="mt-6 space-y-4">
         <Field
           label="New password"
           meta={fields.password}
@@ -97,7 +88,7 @@ export default function ResetPassword() {
           autoComplete="new-password"
         />
         <SubmitButton>Set the password</SubmitButton>
-      </Form>
+      </SchemaForm>
     </>
   );
 }

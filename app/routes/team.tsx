@@ -1,8 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, useActionData, useLoaderData } from "react-router";
+import { data, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SelectField, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SelectField, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
 import { Card, Notice, PageHeader } from "~/components/page";
 import { Invitations, MembersCard, RolesCard, UnitsCard } from "~/components/team-cards";
 import { audit } from "~/lib/data/audit.server";
@@ -139,10 +138,7 @@ function InviteForm({ lastResult }: { lastResult: Parameters<typeof useSchemaFor
   const [form, fields] = useSchemaForm("invite", inviteSchema, lastResult, { role: "engineer" });
   return (
     <Card title="Invite a colleague" id="invite">
-      <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
-        <CsrfInput />
-        <input type="hidden" name="intent" value="invite" />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} intent="invite" className="space-y-4">
         <Field
           label="E-mail address"
           meta={fields.email}
@@ -155,7 +151,7 @@ function InviteForm({ lastResult }: { lastResult: Parameters<typeof useSchemaFor
           options={ROLES.map((r) => ({ value: r, label: roleLabels[r] }))}
         />
         <SubmitButton>Send invitation</SubmitButton>
-      </Form>
+      </SchemaForm>
     </Card>
   );
 }
