@@ -1,7 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Link, useActionData } from "react-router";
+import { data, useActionData } from "react-router";
 import { z } from "zod";
 import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { AuthLink, AuthNote } from "~/components/auth-note";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -40,18 +41,14 @@ export default function ForgotPassword() {
   const [form, fields] = useSchemaForm("forgot", schema, sent ? undefined : (result as never));
   if (sent) {
     return (
-      <>
-        <h1 className="text-xl font-semibold">Check your e-mail</h1>
-        <p role="status" className="mt-4 text-sm text-neutral-700">
-          If {sent} has a Twistlog account, a link to choose a new password is on its way. It works
-          once, for {RESET_MINUTES} minutes.
-        </p>
-        <p className="mt-6 text-sm">
-          <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
-            Back to sign-in
-          </Link>
-        </p>
-      </>
+      <AuthNote
+        title="Check your e-mail"
+        status
+        link={{ to: "/sign-in", label: "Back to sign-in" }}
+      >
+        If {sent} has a Twistlog account, a link to choose a new password is on its way. It works
+        once, for {RESET_MINUTES} minutes.
+      </AuthNote>
     );
   }
   return (
@@ -62,11 +59,7 @@ export default function ForgotPassword() {
         <Field label="E-mail address" meta={fields.email} type="email" autoComplete="username" />
         <SubmitButton>Send the link</SubmitButton>
       </SchemaForm>
-      <p className="mt-6 text-sm">
-        <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
-          Back to sign-in
-        </Link>
-      </p>
+      <AuthLink to="/sign-in">Back to sign-in</AuthLink>
     </>
   );
 }

@@ -1,7 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { data, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { AuthNote } from "~/components/auth-note";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -54,17 +55,12 @@ export default function ResetPassword() {
   const [form, fields] = useSchemaForm("reset", schema, lastResult);
   if (!email) {
     return (
-      <>
-        <h1 className="text-xl font-semibold">This link no longer works</h1>
-        <p className="mt-4 text-sm text-neutral-700">
-          A reset link works once, for 30 minutes. Ask for a new one.
-        </p>
-        <p className="mt-6 text-sm">
-          <Link to="/forgot-password" className="text-indigo-700 underline underline-offset-4">
-            Send a new link
-          </Link>
-        </p>
-      </>
+      <AuthNote
+        title="This link no longer works"
+        link={{ to: "/forgot-password", label: "Send a new link" }}
+      >
+        A reset link works once, for 30 minutes. Ask for a new one.
+      </AuthNote>
     );
   }
   return (

@@ -1,7 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { data, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { AuthLink } from "~/components/auth-note";
 import { authenticateWithPassword, SignInRefused } from "~/lib/http/auth.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -82,11 +83,7 @@ export default function SignIn() {
         />
         <SubmitButton>Sign in</SubmitButton>
       </SchemaForm>
-      <p className="mt-6 text-sm">
-        <Link to="/forgot-password" className="text-indigo-700 underline underline-offset-4">
-          Forgot your password?
-        </Link>
-      </p>
+      <AuthLink to="/forgot-password">Forgot your password?</AuthLink>
     </>
   );
 }
