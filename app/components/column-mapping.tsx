@@ -1,11 +1,9 @@
 import type { SubmissionResult } from "@conform-to/react";
 import type { AppliedMapping, IngestMapping } from "~/lib/domain/drive-log-terms";
-import { Form } from "react-router";
 import { mappingSchema, speedUnits, type Preview } from "~/lib/domain/column-mapping-schema";
-import { CsrfInput } from "./csrf-input";
-import { FormError, SubmitButton, useSchemaForm } from "./form";
+import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import { ChoiceField } from "./form-fields";
-import { tableClass, tdClass, thClass } from "./page";
+import { Card, tableClass, tdClass, thClass } from "./page";
 
 export { mappingSchema, type Preview } from "~/lib/domain/column-mapping-schema";
 
@@ -60,10 +58,7 @@ export function ColumnMapping({
           </tbody>
         </table>
       </div>
-      <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
-        <CsrfInput />
-        <input type="hidden" name="intent" value="map" />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} intent="map" className="space-y-4">
         <div className="grid gap-4 sm:grid-cols-3">
           <ChoiceField label="Time column" meta={fields.timeColumn} options={columnOptions} />
           <ChoiceField
@@ -93,7 +88,7 @@ export function ColumnMapping({
           these columns, and are recognised from the header otherwise.
         </p>
         <SubmitButton>Use these columns and analyse again</SubmitButton>
-      </Form>
+      </SchemaForm>
     </div>
   );
 }
@@ -134,4 +129,41 @@ export function mappingDefaults(applied: AppliedMapping | null): Record<string, 
   for (const [k, v] of Object.entries(applied?.mapping ?? {}))
     if (typeof v === "string") out[k] = v;
   return out;
+}
+
+/**
+ * The drive-log page's columns: the mapping step when it is offered (the file could not be read
+ * over its columns and the user may choose), else which columns the last analysis read.
+ */
+export function ColumnsStep({
+  offer,
+  preview,
+  applied,
+  lastResult,
+}: {
+  offer: boolean;
+  preview: Preview | null;
+  applied: AppliedMapping | null;
+  lastResult: SubmissionResult<string[]> | null | undefined;
+}) {
+  if (preview && offer)
+    return (
+      <Card title="Choose the columns" id="mapping">
+        {applied ? (
+          <p className="mb-4 text-sm text-neutral-700" data-columns-used={applied.source}>
+            {columnsUsedText(applied)}
+          </p>
+        ) : null}
+        <ColumnMapping
+          preview={preview}
+          current={mappingDefaults(applied)}
+          lastResult={lastResult}
+        />
+      </Card>
+    );
+  return applied ? (
+    <p className="text-sm text-neutral-600" data-columns-used={applied.source}>
+      {columnsUsedText(applied)}
+    </p>
+  ) : null;
 }

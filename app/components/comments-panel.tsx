@@ -1,7 +1,6 @@
-import type { SubmissionResult } from "@conform-to/react";
 import { getSelectProps } from "@conform-to/react";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useEffect, useMemo, useRef, useState } from "react";
+import { useMemo, useState } from "react";
 import { useFetcher } from "react-router";
 import {
   COMMENT_MAX,
@@ -11,9 +10,11 @@ import {
 } from "~/lib/domain/comment-schema";
 import type { ChartMarker } from "./charts/types";
 import { CsrfInput } from "./csrf-input";
-import { FormError, SubmitButton, useSchemaForm } from "./form";
+import { useOnReply, type FetcherReply } from "./fetcher-form";
+import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import { inputClass, InputField, TextAreaField } from "./form-fields";
 import { EmptyState, When } from "./page";
+import { fetchJson, QueryState } from "./query-state";
 
 /**
  * Comments on a drive log or a comparison (issue 7), with optional pins to a time (s) or an
@@ -36,18 +37,12 @@ export function commentsQueryKey(vehicleId: number, subject: string) {
 export function useComments(vehicleId: number, subject: string) {
   return useQuery({
     queryKey: commentsQueryKey(vehicleId, subject),
-    queryFn: async (): Promise<CommentsResponse> => {
-      const response = await fetch(commentsUrl(vehicleId, subject), {
-        headers: { Accept: "application/json" },
-      });
-      const body = (await response.json().catch(() => null)) as
-        (CommentsResponse & { error?: { message: string } }) | null;
-      if (!response.ok || !body?.comments)
-        throw new Error(
-          body?.error?.message ?? `The comments could not be loaded (${response.status}).`,
-        );
-      return body;
-    },
+    queryFn: (): Promise<CommentsResponse> =>
+      fetchJson<CommentsResponse>(
+        commentsUrl(vehicleId, subject),
+        "The comments",
+        (body) => !!body.comments,
+      ),
     staleTime: 10_000,
   });
 }
@@ -80,13 +75,6 @@ export function useCommentMarkers(vehicleId: number, subject: string): ChartMark
   );
 }
 
-type Reply = {
-  intent?: string;
-  result?: SubmissionResult<string[]>;
-  notice?: string;
-  error?: { code: string; message: string };
-};
-
 export function CommentsPanel({ vehicleId, subject }: { vehicleId: number; subject: string }) {
   const query = useComments(vehicleId, subject);
   const queryClient = useQueryClient();
@@ -103,54 +91,49 @@ export function CommentsPanel({ vehicleId, subject }: { vehicleId: number; subje
         Comments
       </h2>
       <div className="mt-4 space-y-4" aria-busy={query.isPending}>
-        {query.isPending ? (
-          <div
-            className="h-20 animate-pulse rounded-md bg-neutral-100"
-            aria-label="Loading the comments"
-          />
-        ) : query.isError ? (
-          <p role="alert" className="text-sm text-red-700">
-            {query.error.message}{" "}
-            <button type="button" className="underline" onClick={refresh}>
-              Try again
-            </button>
-          </p>
-        ) : (
-          <>
-            {query.data.comments.length === 0 ? (
-              <EmptyState>
-                No comments yet.
-                {query.data.canPost
-                  ? " Note what happened on the test drive, e.g. “A/C compressor engaged at 32 s”, and pin it to the time or engine speed."
-                  : ""}
-              </EmptyState>
-            ) : (
-              <ol className="space-y-3" aria-label="Comments, oldest first">
-                {query.data.comments.map((c) => (
-                  <CommentItem
-                    key={c.id}
-                    comment={c}
-                    vehicleId={vehicleId}
-                    subject={subject}
-                    onDone={refresh}
-                  />
-                ))}
-              </ol>
-            )}
-            {query.data.canPost ? (
-              <CommentForm
-                vehicleId={vehicleId}
-                subject={subject}
-                ranges={query.data.ranges}
-                onDone={refresh}
-              />
-            ) : (
-              <p className="text-sm text-neutral-600">
-                Viewers read comments; technicians and engineers write them.
-              </p>
-            )}
-          </>
-        )}
+        <QueryState
+          query={query}
+          loadingLabel="Loading the comments"
+          height="h-20"
+          onRetry={refresh}
+        >
+          {(data) => (
+            <>
+              {data.comments.length === 0 ? (
+                <EmptyState>
+                  No comments yet.
+                  {data.canPost
+                    ? " Note what happened on the test drive, e.g. “A/C compressor engaged at 32 s”, and pin it to the time or engine speed."
+                    : ""}
+                </EmptyState>
+              ) : (
+                <ol className="space-y-3" aria-label="Comments, oldest first">
+                  {data.comments.map((c) => (
+                    <CommentItem
+                      key={c.id}
+                      comment={c}
+                      vehicleId={vehicleId}
+                      subject={subject}
+                      onDone={refresh}
+                    />
+                  ))}
+                </ol>
+              )}
+              {data.canPost ? (
+                <CommentForm
+                  vehicleId={vehicleId}
+                  subject={subject}
+                  ranges={data.ranges}
+                  onDone={refresh}
+                />
+              ) : (
+                <p className="text-sm text-neutral-600">
+                  Viewers read comments; technicians and engineers write them.
+                </p>
+              )}
+            </>
+          )}
+        </QueryState>
       </div>
     </section>
   );
@@ -167,14 +150,8 @@ function CommentItem({
   subject: string;
   onDone: () => void;
 }) {
-  const fetcher = useFetcher<Reply>();
-  const seen = useRef<Reply | undefined>(undefined);
-  useEffect(() => {
-    if (fetcher.state === "idle" && fetcher.data && fetcher.data !== seen.current) {
-      seen.current = fetcher.data;
-      if (!fetcher.data.error) onDone();
-    }
-  });
+  const fetcher = useFetcher<FetcherReply>();
+  useOnReply(fetcher, onDone);
   const pin = pinText(c);
   return (
     <li className="rounded-md border border-neutral-200 px-4 py-3" data-comment-id={c.id}>
@@ -223,20 +200,15 @@ function CommentForm({
   ranges: CommentsResponse["ranges"];
   onDone: () => void;
 }) {
-  const fetcher = useFetcher<Reply>();
+  const fetcher = useFetcher<FetcherReply>();
   const reply = fetcher.data;
   const [form, fields] = useSchemaForm("comment-new", postCommentSchema, reply?.result, {
     pinKind: "none",
   });
   const [pinKind, setPinKind] = useState("none");
-  const seen = useRef<Reply | undefined>(undefined);
-  useEffect(() => {
-    if (fetcher.state !== "idle" || !reply || reply === seen.current) return;
-    seen.current = reply;
-    if (!reply.error && reply.result?.status !== "error") {
-      setPinKind("none");
-      onDone();
-    }
+  useOnReply(fetcher, () => {
+    setPinKind("none");
+    onDone();
   });
   const pinHint =
     pinKind === "time"
@@ -251,18 +223,14 @@ function CommentForm({
   // Controlled here (the pin field follows the choice), so conform's defaultValue is left out.
   const { defaultValue: _unused, key: selectKey, ...selectProps } = getSelectProps(fields.pinKind);
   return (
-    <fetcher.Form
-      method="post"
+    <SchemaForm
+      fetcher={fetcher}
       action={`/vehicles/${vehicleId}/comments`}
-      id={form.id}
-      onSubmit={form.onSubmit}
-      noValidate
+      form={form}
+      intent="post"
+      hidden={<input type="hidden" name="subject" value={subject} />}
       className="space-y-3"
     >
-      <CsrfInput />
-      <input type="hidden" name="intent" value="post" />
-      <input type="hidden" name="subject" value={subject} />
-      <FormError id={form.errorId} errors={form.errors} />
       <TextAreaField
         label="New comment"
         meta={fields.body}
@@ -307,6 +275,6 @@ function CommentForm({
           {reply.notice}
         </p>
       ) : null}
-    </fetcher.Form>
+    </SchemaForm>
   );
 }

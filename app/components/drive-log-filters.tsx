@@ -11,6 +11,15 @@ import {
 } from "./drive-log-table-state";
 import { inputClass } from "./form-fields";
 
+const labelClass = "block text-xs font-medium text-neutral-700";
+const controlClass = `mt-1 ${inputClass} py-1.5`;
+
+/** What every filter control gets: the current filters, and the change to write. */
+interface FilterProps {
+  filters: Filters;
+  onChange: (patch: Partial<Params>) => void;
+}
+
 /**
  * The filters above the drive-log table: labelled selects and date inputs that apply at once
  * with JavaScript, and a plain GET form (with an "Apply filters" button) without it. Only the
@@ -40,8 +49,7 @@ export function DriveLogFilters({
     return { conditions, gears, variants };
   }, [rows, filters.condition]);
 
-  const label = "block text-xs font-medium text-neutral-700";
-  const select = `mt-1 ${inputClass} py-1.5`;
+  const field = { filters, onChange };
   return (
     <Form
       method="get"
@@ -53,110 +61,39 @@ export function DriveLogFilters({
       onSubmit={(e) => e.preventDefault()}
     >
       <input type="hidden" name="sort" value={sortValue} />
-      <div>
-        <label htmlFor="filter-condition" className={label}>
-          Condition
-        </label>
-        <select
-          id="filter-condition"
-          name="condition"
-          className={select}
-          value={filters.condition}
-          onChange={(e) => onChange({ condition: e.target.value })}
-        >
-          <option value="">All conditions</option>
-          {options.conditions.map((c) => (
-            <option key={c} value={c}>
-              {conditionLabels[c]}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div>
-        <label htmlFor="filter-gear" className={label}>
-          Gear
-        </label>
-        <select
-          id="filter-gear"
-          name="gear"
-          className={select}
-          value={filters.gear}
-          onChange={(e) => onChange({ gear: e.target.value })}
-        >
-          <option value="">All gears</option>
-          {options.gears.map((g) => (
-            <option key={gearKey(g)} value={gearKey(g)}>
-              {g === null ? "No gear given" : gearLabel(g)}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div>
-        <label htmlFor="filter-variant" className={label}>
-          Damper variant
-        </label>
-        <select
-          id="filter-variant"
-          name="variant"
-          className={select}
-          value={filters.variant}
-          onChange={(e) => onChange({ variant: e.target.value })}
-        >
-          <option value="">All variants</option>
-          {options.variants.map((v) => (
-            <option key={v} value={v}>
-              {v}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div>
-        <label htmlFor="filter-from" className={label}>
-          From date
-        </label>
-        <input
-          id="filter-from"
-          type="date"
-          name="from"
-          className={select}
-          value={filters.from}
-          max={filters.to || undefined}
-          onChange={(e) => onChange({ from: e.target.value })}
-        />
-      </div>
-      <div>
-        <label htmlFor="filter-to" className={label}>
-          To date
-        </label>
-        <input
-          id="filter-to"
-          type="date"
-          name="to"
-          className={select}
-          value={filters.to}
-          min={filters.from || undefined}
-          onChange={(e) => onChange({ to: e.target.value })}
-        />
-      </div>
-      <div>
-        <label htmlFor="filter-verdict" className={label}>
-          Verdict
-        </label>
-        <select
-          id="filter-verdict"
-          name="verdict"
-          className={select}
-          value={filters.verdict}
-          onChange={(e) => onChange({ verdict: e.target.value })}
-        >
-          <option value="">Any verdict</option>
-          {VERDICTS.map((v) => (
-            <option key={v.value} value={v.value}>
-              {v.label}
-            </option>
-          ))}
-        </select>
-      </div>
+      <FilterSelect
+        {...field}
+        name="condition"
+        label="Condition"
+        all="All conditions"
+        options={options.conditions.map((c) => ({ value: c, label: conditionLabels[c] }))}
+      />
+      <FilterSelect
+        {...field}
+        name="gear"
+        label="Gear"
+        all="All gears"
+        options={options.gears.map((g) => ({
+          value: gearKey(g),
+          label: g === null ? "No gear given" : gearLabel(g),
+        }))}
+      />
+      <FilterSelect
+        {...field}
+        name="variant"
+        label="Damper variant"
+        all="All variants"
+        options={options.variants.map((v) => ({ value: v, label: v }))}
+      />
+      <FilterDate {...field} name="from" label="From date" max={filters.to} />
+      <FilterDate {...field} name="to" label="To date" min={filters.from} />
+      <FilterSelect
+        {...field}
+        name="verdict"
+        label="Verdict"
+        all="Any verdict"
+        options={VERDICTS}
+      />
       {hydrated ? null : (
         <div className="flex items-end gap-3 sm:col-span-3 lg:col-span-6">
           <button
@@ -168,5 +105,72 @@ export function DriveLogFilters({
         </div>
       )}
     </Form>
+  );
+}
+
+/** One labelled select of the filters; the first option ("All …") clears the filter. */
+function FilterSelect({
+  filters,
+  onChange,
+  name,
+  label,
+  all,
+  options,
+}: FilterProps & {
+  name: keyof Filters;
+  label: string;
+  all: string;
+  options: readonly { value: string; label: string }[];
+}) {
+  const id = `filter-${name}`;
+  return (
+    <div>
+      <label htmlFor={id} className={labelClass}>
+        {label}
+      </label>
+      <select
+        id={id}
+        name={name}
+        className={controlClass}
+        value={filters[name]}
+        onChange={(e) => onChange({ [name]: e.target.value })}
+      >
+        <option value="">{all}</option>
+        {options.map((o) => (
+          <option key={o.value} value={o.value}>
+            {o.label}
+          </option>
+        ))}
+      </select>
+    </div>
+  );
+}
+
+/** One labelled date input of the filters; `min`/`max` keep the range in order. */
+function FilterDate({
+  filters,
+  onChange,
+  name,
+  label,
+  min,
+  max,
+}: FilterProps & { name: "from" | "to"; label: string; min?: string; max?: string }) {
+  const id = `filter-${name}`;
+  return (
+    <div>
+      <label htmlFor={id} className={labelClass}>
+        {label}
+      </label>
+      <input
+        id={id}
+        type="date"
+        name={name}
+        className={controlClass}
+        value={filters[name]}
+        min={min || undefined}
+        max={max || undefined}
+        onChange={(e) => onChange({ [name]: e.target.value })}
+      />
+    </div>
   );
 }

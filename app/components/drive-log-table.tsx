@@ -7,13 +7,14 @@ import {
   type RowSelectionState,
 } from "@tanstack/react-table";
 import { useEffect, useMemo, useState } from "react";
-import { Form, Link, useLocation, useNavigate, useSearchParams } from "react-router";
-import { columns, FORM_ID, SortButton, sortLabel, type TableMeta } from "./drive-log-columns";
+import { Link, useLocation, useSearchParams } from "react-router";
+import { columns, SortButton, sortLabel, type TableMeta } from "./drive-log-columns";
+import { CompareSelected } from "./drive-log-compare";
 import { DriveLogFilters } from "./drive-log-filters";
+import { Pager } from "./drive-log-pager";
 import {
   filterRows,
   FILTER_KEYS,
-  MAX_COMPARE,
   mirror,
   PAGE_SIZE,
   readState,
@@ -25,14 +26,9 @@ import { linkClass } from "./form-fields";
 import type { LogProgress } from "./log-status";
 import { EmptyState } from "./page";
 import { ScrollArea } from "./scroll-area";
+import { useHydrated } from "./use-hydrated";
 
 export { TABLE_PARAMS, type DriveLogTableRow } from "./drive-log-table-state";
-
-function useHydrated() {
-  const [hydrated, setHydrated] = useState(false);
-  useEffect(() => setHydrated(true), []);
-  return hydrated;
-}
 
 /**
  * The vehicle page's drive logs (docs/ui.md, vehicle page item 3): TanStack Table for sorting,
@@ -57,7 +53,6 @@ export function DriveLogTable({
 }) {
   const [search] = useSearchParams();
   const location = useLocation();
-  const navigate = useNavigate();
   const hydrated = useHydrated();
   // The state starts from the URL (so a bookmarked view opens as it was) and then lives here.
   const [params, setParams] = useState<Params>(() => tableParams(search));
@@ -116,15 +111,6 @@ export function DriveLogTable({
     .getSortedRowModel()
     .rows.filter((r) => r.getIsSelected() && r.getCanSelect())
     .map((r) => r.original);
-  const canCompare = selected.length >= 2 && selected.length <= MAX_COMPARE;
-  const compareHint =
-    selected.length > MAX_COMPARE
-      ? `A comparison takes at most ${MAX_COMPARE} drive logs; ${selected.length} are selected.`
-      : selected.length === 1
-        ? "Select at least one more analysed drive log to compare."
-        : canCompare
-          ? `${selected.length} drive logs selected.`
-          : `Select 2 to ${MAX_COMPARE} analysed drive logs to compare them.`;
 
   const filtering = FILTER_KEYS.some((k) => filters[k]);
   const [sort] = sorting;
@@ -152,75 +138,29 @@ export function DriveLogTable({
       />
 
       <div className="flex flex-wrap items-center justify-between gap-3">
-        <Form
-          method="get"
-          action={`/vehicles/${vehicleId}`}
-          id="compare-logs"
-          className="flex flex-wrap items-center gap-3"
-          onSubmit={(e) => {
-            e.preventDefault();
-            if (canCompare)
-              void navigate(
-                `/vehicles/${vehicleId}/compare?logs=${selected.map((r) => r.id).join(",")}`,
-              );
-          }}
-        >
-          {/* Without JavaScript the page's loader turns ?compare=1&logs=…&logs=… into the comparison. */}
-          <input type="hidden" name="compare" value="1" />
-          <button
-            type="submit"
-            disabled={hydrated && !canCompare}
-            aria-describedby="compare-hint"
-            className="inline-flex items-center rounded-md bg-indigo-600 px-3 py-1.5 text-sm font-medium text-white hover:bg-indigo-700 focus-visible:outline-2 focus-visible:outline-offset-2 focus-visible:outline-indigo-600 disabled:cursor-not-allowed disabled:bg-neutral-300 disabled:text-neutral-600"
-          >
-            Compare selected{selected.length ? ` (${selected.length})` : ""}
-          </button>
-          <span id="compare-hint" className="text-sm text-neutral-600" aria-live="polite">
-            {hydrated
-              ? compareHint
-              : `Tick 2 to ${MAX_COMPARE} analysed drive logs, then compare them.`}
-          </span>
-          {selected.length ? (
-            <button
-              type="button"
-              className={`${linkClass} text-sm`}
-              onClick={() => setRowSelection({})}
-            >
-              Clear selection
-            </button>
-          ) : null}
-        </Form>
+        <CompareSelected
+          vehicleId={vehicleId}
+          selected={selected}
+          hydrated={hydrated}
+          onClear={() => setRowSelection({})}
+        />
         {filtering && filtered.length > 0 ? (
-          <Link
-            to={resetHref}
-            replace
-            preventScrollReset
-            onClick={(e) => {
-              e.preventDefault();
-              resetFilters();
-            }}
+          <ResetFilters
+            href={resetHref}
+            onReset={resetFilters}
             className={`${linkClass} text-sm`}
-          >
-            Reset filters
-          </Link>
+          />
         ) : null}
       </div>
 
       {filtered.length === 0 ? (
         <div className="rounded-md border border-dashed border-neutral-300 px-4 py-6 text-center text-sm text-neutral-600">
           <p>No drive logs match these filters.</p>
-          <Link
-            to={resetHref}
-            replace
-            preventScrollReset
-            onClick={(e) => {
-              e.preventDefault();
-              resetFilters();
-            }}
+          <ResetFilters
+            href={resetHref}
+            onReset={resetFilters}
             className="mt-3 inline-flex items-center rounded-md border border-neutral-300 bg-white px-3 py-1.5 text-sm font-medium text-neutral-800 hover:bg-neutral-50"
-          >
-            Reset filters
-          </Link>
+          />
         </div>
       ) : (
         <ScrollArea label="Drive logs">
@@ -288,30 +228,14 @@ export function DriveLogTable({
       )}
 
       {filtered.length > PAGE_SIZE ? (
-        <nav
-          aria-label="Pages of drive logs"
-          className="flex items-center justify-between gap-3 text-sm"
-        >
-          <span>
-            Page {pageIndex + 1} of {pageCount}
-          </span>
-          <span className="flex gap-2">
-            <PageButton
-              page={pageIndex}
-              disabled={!table.getCanPreviousPage()}
-              onClick={() => table.previousPage()}
-            >
-              ← Previous
-            </PageButton>
-            <PageButton
-              page={pageIndex + 2}
-              disabled={!table.getCanNextPage()}
-              onClick={() => table.nextPage()}
-            >
-              Next →
-            </PageButton>
-          </span>
-        </nav>
+        <Pager
+          pageIndex={pageIndex}
+          pageCount={pageCount}
+          canPrevious={table.getCanPreviousPage()}
+          canNext={table.getCanNextPage()}
+          onPrevious={() => table.previousPage()}
+          onNext={() => table.nextPage()}
+        />
       ) : null}
       <p role="status" className="sr-only">
         {filtering ? `${filtered.length} of ${rows.length} drive logs match the filters.` : ""}
@@ -320,31 +244,28 @@ export function DriveLogTable({
   );
 }
 
-function PageButton({
-  page,
-  disabled,
-  onClick,
-  children,
+/** "Reset filters": clears the filters in place, or follows the plain link without JavaScript. */
+function ResetFilters({
+  href,
+  onReset,
+  className,
 }: {
-  page: number;
-  disabled: boolean;
-  onClick: () => void;
-  children: React.ReactNode;
+  href: string;
+  onReset: () => void;
+  className: string;
 }) {
   return (
-    <button
-      type="submit"
-      form={FORM_ID}
-      name="page"
-      value={page}
-      disabled={disabled}
+    <Link
+      to={href}
+      replace
+      preventScrollReset
       onClick={(e) => {
         e.preventDefault();
-        onClick();
+        onReset();
       }}
-      className="rounded-md border border-neutral-300 bg-white px-3 py-1.5 font-medium text-neutral-800 hover:bg-neutral-50 focus-visible:outline-2 focus-visible:outline-offset-2 focus-visible:outline-indigo-600 disabled:cursor-not-allowed disabled:opacity-50"
+      className={className}
     >
-      {children}
-    </button>
+      Reset filters
+    </Link>
   );
 }

@@ -7,7 +7,7 @@ import {
 } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { useEffect, useRef } from "react";
-import { Form } from "react-router";
+import { Form, type FetcherWithComponents } from "react-router";
 import type { z } from "zod";
 import { CsrfInput } from "./csrf-input";
 
@@ -125,6 +125,53 @@ function FieldError({ id, errors }: { id: string; errors: string[] | undefined }
   );
 }
 
+/**
+ * The frame of a schema form (useSchemaForm): a post with the browser's own checks off (the
+ * schema checks instead), the CSRF token, the intent and the `hidden` fields that name its
+ * subject, and the form's own error; the fields are the children. With a `fetcher` it posts
+ * through it (the page stays); `action` is the route it posts to when not the page's own.
+ */
+export function SchemaForm<R>({
+  form,
+  intent,
+  hidden,
+  fetcher,
+  action,
+  className,
+  children,
+}: {
+  form: {
+    id: string;
+    errorId: string;
+    errors: string[] | undefined;
+    onSubmit: (event: React.FormEvent<HTMLFormElement>) => void;
+  };
+  intent?: string;
+  hidden?: React.ReactNode;
+  fetcher?: FetcherWithComponents<R>;
+  action?: string;
+  className: string;
+  children: React.ReactNode;
+}) {
+  const Frame = fetcher ? fetcher.Form : Form;
+  return (
+    <Frame
+      method="post"
+      action={action}
+      id={form.id}
+      onSubmit={form.onSubmit}
+      noValidate
+      className={className}
+    >
+      <CsrfInput />
+      {intent ? <input type="hidden" name="intent" value={intent} /> : null}
+      {hidden}
+      <FormError id={form.errorId} errors={form.errors} />
+      {children}
+    </Frame>
+  );
+}
+
 /** Errors of the whole form (e.g. a refused sign-in), announced to screen readers. */
 export function FormError({ id, errors }: { id: string; errors: string[] | undefined }) {
   if (!errors?.length) return null;
@@ -137,6 +184,18 @@ export function FormError({ id, errors }: { id: string; errors: string[] | undef
     >
       {errors.join(" ")}
     </div>
+  );
+}
+
+/** A refusal in one line where there is no form error to tie it to (e.g. a fetcher's reply). */
+export function ErrorLine({ message }: { message: string }) {
+  return (
+    <p
+      role="alert"
+      className="rounded-md border border-red-200 bg-red-50 px-3 py-2 text-sm text-red-800"
+    >
+      {message}
+    </p>
   );
 }
 

@@ -31,6 +31,26 @@ export function Card({
   );
 }
 
+/** A smaller panel with a muted heading: one figure group of a drive log's summary. */
+export function Tile({ title, children }: { title: string; children: React.ReactNode }) {
+  return (
+    <section className="rounded-lg border border-neutral-200 bg-white p-5 shadow-xs">
+      <h3 className="text-sm font-semibold text-neutral-500">{title}</h3>
+      <div className="mt-2">{children}</div>
+    </section>
+  );
+}
+
+/** A term and its value on one line, in a <dl> of facts (a drive log's test details). */
+export function InlineTerm({ term, children }: { term: string; children: React.ReactNode }) {
+  return (
+    <div className="flex gap-1.5">
+      <dt className="text-neutral-500">{term}</dt>
+      <dd className="font-medium text-neutral-900">{children}</dd>
+    </div>
+  );
+}
+
 /** What an empty list says instead of showing nothing: what it is and what to do next. */
 export function EmptyState({ children }: { children: React.ReactNode }) {
   return (
@@ -55,6 +75,29 @@ export function Notice({ children }: { children: React.ReactNode }) {
 export const tableClass = "w-full text-left text-sm";
 export const thClass = "border-b border-neutral-200 py-2 pr-4 font-medium text-neutral-500";
 export const tdClass = "border-b border-neutral-100 py-2.5 pr-4";
+
+/**
+ * A table's header row: the column names, then (with `action`) a last column for each row's
+ * button, named for screen readers only.
+ */
+export function TableHead({ columns, action }: { columns: string[]; action?: string }) {
+  return (
+    <thead>
+      <tr>
+        {columns.map((c) => (
+          <th key={c} className={thClass}>
+            {c}
+          </th>
+        ))}
+        {action ? (
+          <th className={thClass}>
+            <span className="sr-only">{action}</span>
+          </th>
+        ) : null}
+      </tr>
+    </thead>
+  );
+}
 
 /** Dates in the UI: day, month, year and (unless dateOnly) the time, in UTC. */
 export function When({

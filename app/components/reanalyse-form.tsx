@@ -1,8 +1,6 @@
 import type { SubmissionResult } from "@conform-to/react";
-import { Form } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "./csrf-input";
-import { FormError, SubmitButton, useSchemaForm } from "./form";
+import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import { InputField } from "./form-fields";
 
 const number = (schema: z.ZodNumber) =>
@@ -45,10 +43,7 @@ export function ReanalyseForm({
       ? undefined
       : `Now ${x}${unit}. Empty keeps the vehicle's setting or the default.`;
   return (
-    <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
-      <CsrfInput />
-      <input type="hidden" name="intent" value="reanalyse" />
-      <FormError id={form.errorId} errors={form.errors} />
+    <SchemaForm form={form} intent="reanalyse" className="space-y-4">
       <div className="grid gap-4 sm:grid-cols-3">
         <InputField
           label="Firing order"
@@ -75,6 +70,6 @@ export function ReanalyseForm({
         Re-analysing makes a new analysis version; the earlier versions are kept.
       </p>
       <SubmitButton tone="secondary">Re-analyse</SubmitButton>
-    </Form>
+    </SchemaForm>
   );
 }

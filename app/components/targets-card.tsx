@@ -1,23 +1,12 @@
-import { getCollectionProps, type SubmissionResult } from "@conform-to/react";
-import { useEffect, useRef, useState } from "react";
-import { Form, Link } from "react-router";
-import type { z } from "zod";
-import { conditionLabels, LOG_CONDITIONS } from "~/lib/domain/drive-log-terms";
-import {
-  limitText,
-  marginText,
-  scopeText,
-  TARGET_STATUS_LABELS,
-  targetSchema,
-  type Target,
-  type TargetInput,
-  type TargetVerdict,
-} from "~/lib/domain/targets";
+import type { SubmissionResult } from "@conform-to/react";
+import { Link } from "react-router";
+import type { Target, TargetVerdict } from "~/lib/domain/targets";
+import { limitText, marginText, scopeText, TARGET_STATUS_LABELS } from "~/lib/domain/target-text";
 import { countText } from "~/lib/base/plural";
-import { CsrfInput } from "./csrf-input";
-import { buttonClass, Field, FormError, IntentButton, SubmitButton, useSchemaForm } from "./form";
-import { ChoiceField, fieldsetClass, InputField, legendClass } from "./form-fields";
+import { DeleteTarget } from "./delete-target";
 import { Card, EmptyState } from "./page";
+import { ReplyDisclosure } from "./reply-disclosure";
+import { TargetForm } from "./target-form";
 
 /** A target with how the vehicle's analysed drive logs fare against it. */
 export interface TargetSummary extends Target {
@@ -31,42 +20,6 @@ export interface TargetSummary extends Target {
 export interface TargetFormReply {
   form: string;
   result: SubmissionResult<string[]>;
-}
-
-/** What the form posts; targetSchema accepts it (and JSON) and returns a TargetInput. */
-type TargetFormFields = {
-  kind: string;
-  name: string;
-  rpmFrom: string;
-  rpmTo: string;
-  minDb: string;
-  maxRadS2: string;
-  conditions: string[];
-  gears: string;
-};
-const formSchema = targetSchema as unknown as z.ZodType<TargetInput, TargetFormFields>;
-
-/** The form's starting values for a stored target, or a new one. */
-function defaults(t?: Target): Record<string, string | string[]> {
-  if (!t) return { kind: "isolation", conditions: [] };
-  const s = (v: number | null) => (v === null ? "" : String(v));
-  return {
-    kind: t.kind,
-    name: t.name,
-    rpmFrom: s(t.rpmFrom),
-    rpmTo: s(t.rpmTo),
-    minDb: s(t.minDb),
-    maxRadS2: s(t.maxRadS2),
-    conditions: t.conditions,
-    gears: t.gears.map((g) => (g === -1 ? "R" : g === 0 ? "N" : String(g))).join(" "),
-  };
-}
-
-/** True after the first render in the browser: before it (and without JavaScript) both kinds' fields show. */
-function useHydrated() {
-  const [hydrated, setHydrated] = useState(false);
-  useEffect(() => setHydrated(true), []);
-  return hydrated;
 }
 
 /** The vehicle page's "Targets" card (docs/ui.md, vehicle page item 2). */
@@ -116,7 +69,7 @@ export function TargetsCard({
                 </div>
                 {t.latest ? <Latest vehicleId={vehicleId} latest={t.latest} /> : null}
                 {canEdit ? (
-                  <Disclosure
+                  <ReplyDisclosure
                     className="mt-2"
                     reply={reply?.form === `target-${t.id}` ? reply.result : null}
                     forceOpen={confirmDelete === t.id}
@@ -139,14 +92,14 @@ export function TargetsCard({
                         asked={confirmDelete === t.id}
                       />
                     </div>
-                  </Disclosure>
+                  </ReplyDisclosure>
                 ) : null}
               </li>
             ))}
           </ul>
         )}
         {canEdit ? (
-          <Disclosure
+          <ReplyDisclosure
             reply={reply?.form === "target-new" ? reply.result : null}
             summary={
               <span className="text-sm font-medium text-indigo-700 hover:text-indigo-900">
@@ -161,138 +114,10 @@ export function TargetsCard({
                 rattleLimitRadS2={rattleLimitRadS2}
               />
             </div>
-          </Disclosure>
+          </ReplyDisclosure>
         ) : null}
       </div>
     </Card>
-  );
-}
-
-/**
- * A <details> around a form: open after a refused submission (also without JavaScript), closed
- * after a saved one, and otherwise as the user leaves it.
- */
-function Disclosure({
-  reply,
-  forceOpen = false,
-  summary,
-  className,
-  children,
-}: {
-  reply: SubmissionResult<string[]> | null;
-  /** Open regardless of the reply (a delete waiting for its confirmation). */
-  forceOpen?: boolean;
-  summary: React.ReactNode;
-  className?: string;
-  children: React.ReactNode;
-}) {
-  const refused = reply?.status === "error";
-  const [open, setOpen] = useState(refused || forceOpen);
-  useEffect(() => {
-    if (reply) setOpen(reply.status === "error");
-  }, [reply]);
-  return (
-    <details className={className} open={open} onToggle={(e) => setOpen(e.currentTarget.open)}>
-      <summary className="cursor-pointer">{summary}</summary>
-      {children}
-    </details>
-  );
-}
-
-/**
- * "Delete target" asks first (issue 11): with JavaScript the question opens in place and takes
- * the focus (Escape or "Keep the target" closes it and gives the focus back to the button);
- * without, the button posts and the page comes back with the same question. Only the second
- * button, which posts confirm=yes, deletes.
- */
-function DeleteTarget({
-  vehicleId,
-  target,
-  asked,
-}: {
-  vehicleId: number;
-  target: Target;
-  asked: boolean;
-}) {
-  const hydrated = useHydrated();
-  const [asking, setAsking] = useState(asked);
-  const askButton = useRef<HTMLButtonElement>(null);
-  const question = useRef<HTMLDivElement>(null);
-  const opened = useRef(false);
-  useEffect(() => {
-    if (asking && opened.current) question.current?.focus();
-  }, [asking]);
-  const panelId = `delete-target-${target.id}`;
-  const keep = () => {
-    setAsking(false);
-    askButton.current?.focus();
-  };
-  return (
-    <div className="space-y-3 border-t border-neutral-100 pt-3">
-      {hydrated ? (
-        <button
-          ref={askButton}
-          type="button"
-          aria-expanded={asking}
-          aria-controls={panelId}
-          onClick={() => {
-            opened.current = true;
-            setAsking(true);
-          }}
-          className={buttonClass("danger")}
-        >
-          Delete target <span className="sr-only">{target.name}</span>
-        </button>
-      ) : (
-        <IntentButton intent="delete-target" fields={{ targetId: target.id }} tone="danger">
-          Delete target <span className="sr-only">{target.name}</span>
-        </IntentButton>
-      )}
-      {asking ? (
-        <div
-          id={panelId}
-          ref={question}
-          role="group"
-          tabIndex={-1}
-          autoFocus={asked}
-          aria-labelledby={`${panelId}-question`}
-          aria-describedby={`${panelId}-effect`}
-          onKeyDown={(e) => {
-            if (e.key === "Escape" && hydrated) {
-              e.preventDefault();
-              keep();
-            }
-          }}
-          className="rounded-md border border-red-200 bg-red-50 p-3 focus:outline-2 focus:outline-red-600"
-          data-delete-confirm={target.id}
-        >
-          <p id={`${panelId}-question`} className="text-sm font-semibold text-red-900">
-            Delete the target “{target.name}”?
-          </p>
-          <p id={`${panelId}-effect`} className="mt-1 text-sm text-red-900">
-            Its pass and fail verdicts disappear from every drive log of this vehicle. This cannot
-            be undone.
-          </p>
-          <Form method="post" className="mt-3 flex flex-wrap items-center gap-3">
-            <CsrfInput />
-            <input type="hidden" name="targetId" value={target.id} />
-            <input type="hidden" name="confirm" value="yes" />
-            <SubmitButton name="intent" value="delete-target" tone="danger">
-              Yes, delete <span className="sr-only">{target.name}</span>
-            </SubmitButton>
-            {hydrated ? (
-              <button type="button" onClick={keep} className={buttonClass("secondary")}>
-                Keep the target
-              </button>
-            ) : (
-              <a href={`/vehicles/${vehicleId}#targets`} className={buttonClass("secondary")}>
-                Keep the target
-              </a>
-            )}
-          </Form>
-        </div>
-      ) : null}
-    </div>
   );
 }
 
@@ -357,128 +182,5 @@ function Counts({
       ) : null}
       <span>of {countText(c.applicable, "analysed drive log")} it applies to</span>
     </p>
-  );
-}
-
-/** Add or edit one target; targetSchema checks it here and in the page's action. */
-function TargetForm({
-  id,
-  target,
-  reply,
-  rattleLimitRadS2,
-}: {
-  id: string;
-  target?: Target;
-  reply: SubmissionResult<string[]> | null;
-  rattleLimitRadS2: number;
-}) {
-  const [form, fields] = useSchemaForm(
-    id,
-    formSchema,
-    reply,
-    defaults(target) as unknown as Record<string, string>,
-  );
-  const hydrated = useHydrated();
-  const kind = (fields.kind.value as string | undefined) ?? target?.kind ?? "isolation";
-  const showIsolation = !hydrated || kind === "isolation";
-  const showRattle = !hydrated || kind === "rattle";
-  const conditionErrors = Object.values(fields.conditions.allErrors ?? {}).flat();
-  return (
-    <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
-      <CsrfInput />
-      <input type="hidden" name="intent" value={target ? "update-target" : "create-target"} />
-      {target ? <input type="hidden" name="targetId" value={target.id} /> : null}
-      <FormError id={form.errorId} errors={form.errors} />
-      <div className="grid gap-4 sm:grid-cols-2">
-        <Field
-          label="Name"
-          meta={fields.name}
-          hint="What the programme calls it, e.g. “Run-up isolation, 2nd–4th gear”."
-        />
-        <ChoiceField
-          label="What it limits"
-          meta={fields.kind}
-          options={[
-            { value: "isolation", label: "Isolation (minimum, dB)" },
-            { value: "rattle", label: "Gear rattle at idle (maximum, rad/s²)" },
-          ]}
-        />
-      </div>
-      {showIsolation ? (
-        <fieldset className={fieldsetClass}>
-          <legend className={legendClass}>
-            Isolation target{hydrated ? "" : " (fill in when it limits isolation)"}
-          </legend>
-          <div className="grid gap-4 sm:grid-cols-3">
-            <InputField label="From engine speed" unit="rpm" meta={fields.rpmFrom} numeric />
-            <InputField label="To engine speed" unit="rpm" meta={fields.rpmTo} numeric />
-            <InputField
-              label="Minimum isolation"
-              unit="dB"
-              meta={fields.minDb}
-              numeric
-              hint="20·log10 of crank over gearbox-input amplitude; negative allows amplification."
-            />
-          </div>
-        </fieldset>
-      ) : null}
-      {showRattle ? (
-        <fieldset className={fieldsetClass}>
-          <legend className={legendClass}>
-            Rattle target{hydrated ? "" : " (fill in when it limits gear rattle)"}
-          </legend>
-          <div className="max-w-md">
-            <InputField
-              label="Maximum angular acceleration"
-              unit="rad/s²"
-              meta={fields.maxRadS2}
-              numeric
-              hint={`Gearbox input at idle: the larger of the firing-order amplitude and the time-domain peak. The vehicle's rattle limit is ${rattleLimitRadS2} rad/s².`}
-            />
-          </div>
-        </fieldset>
-      ) : null}
-      <fieldset className={fieldsetClass}>
-        <legend className={legendClass}>Applies to</legend>
-        <div
-          role="group"
-          aria-labelledby={`${id}-conditions-label`}
-          aria-describedby={
-            conditionErrors.length ? fields.conditions.errorId : `${id}-conditions-hint`
-          }
-        >
-          <p id={`${id}-conditions-label`} className="text-sm font-medium text-neutral-800">
-            Test conditions
-          </p>
-          <p id={`${id}-conditions-hint`} className="text-xs text-neutral-500">
-            None ticked: drive logs of every condition.
-          </p>
-          <div className="mt-2 grid gap-x-4 gap-y-1 sm:grid-cols-3">
-            {getCollectionProps(fields.conditions, {
-              type: "checkbox",
-              options: [...LOG_CONDITIONS],
-            }).map((props) => (
-              <label key={props.key} className="flex items-center gap-2 text-sm">
-                <input {...props} key={props.key} className="size-4 accent-indigo-600" />
-                {conditionLabels[props.value as (typeof LOG_CONDITIONS)[number]]}
-              </label>
-            ))}
-          </div>
-          {conditionErrors.length ? (
-            <p id={fields.conditions.errorId} className="mt-1 text-sm text-red-700">
-              {conditionErrors.join(" ")}
-            </p>
-          ) : null}
-        </div>
-        <div className="mt-4 max-w-md">
-          <InputField
-            label="Gears"
-            meta={fields.gears}
-            hint="Separated by spaces or commas, e.g. 2 3 4; R for reverse, N for neutral. Empty: every gear, and logs without a gear."
-          />
-        </div>
-      </fieldset>
-      <SubmitButton>{target ? "Save target" : "Add target"}</SubmitButton>
-    </Form>
   );
 }

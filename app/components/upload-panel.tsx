@@ -1,9 +1,10 @@
-import { useEffect, useRef, useState } from "react";
+import { useRef, useState } from "react";
 import { linkClass } from "./form-fields";
 import type { LogProgress } from "./log-status";
 import { FileRow, send } from "./upload-file-row";
 import { PlainUpload, primaryButton, type Item } from "./upload-fields";
 import { refusalOf } from "./upload-format";
+import { useHydrated } from "./use-hydrated";
 
 /**
  * The upload panel. Before the page's JavaScript runs it is a plain multipart form posting to
@@ -17,8 +18,7 @@ export function UploadPanel(props: {
   statuses: Map<number, LogProgress>;
   onUploaded: () => void;
 }) {
-  const [hydrated, setHydrated] = useState(false);
-  useEffect(() => setHydrated(true), []);
+  const hydrated = useHydrated();
   return hydrated ? <EnhancedUpload {...props} /> : <PlainUpload {...props} />;
 }
 

@@ -1,5 +1,5 @@
 import type { SubmissionResult } from "@conform-to/react";
-import { Form, Link } from "react-router";
+import { Link } from "react-router";
 import {
   DAMPER_TYPES,
   damperLabels,
@@ -11,8 +11,7 @@ import {
 } from "~/lib/domain/drive-log-terms";
 import { z } from "zod";
 import { vehicleSchema } from "~/lib/domain/vehicle-schema";
-import { CsrfInput } from "./csrf-input";
-import { FormError, SubmitButton, useSchemaForm } from "./form";
+import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import {
   ChoiceField,
   fieldsetClass,
@@ -120,10 +119,7 @@ export function VehicleForm({
 }) {
   const [form, fields] = useSchemaForm("vehicle", vehicleFormSchema, lastResult, defaults);
   return (
-    <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-6">
-      <CsrfInput />
-      <input type="hidden" name="intent" value="save" />
-      <FormError id={form.errorId} errors={form.errors} />
+    <SchemaForm form={form} intent="save" className="space-y-6">
       <div className="grid gap-4 sm:grid-cols-2">
         <InputField label="Name" meta={fields.name} hint="E.g. “Kestrel estate, diesel”." />
         <InputField
@@ -221,6 +217,6 @@ export function VehicleForm({
           Cancel
         </Link>
       </div>
-    </Form>
+    </SchemaForm>
   );
 }

@@ -1,8 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { data, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { AuthNote } from "~/components/auth-note";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -81,18 +81,13 @@ export default function AcceptInvitation() {
   const [form, fields] = useSchemaForm("accept", schema as typeof newAccountSchema, lastResult);
   if (!invitation) {
     return (
-      <>
-        <h1 className="text-xl font-semibold">This invitation no longer works</h1>
-        <p className="mt-4 text-sm text-neutral-700">
-          An invitation link works once, for 7 days, and an admin can withdraw it. Ask the admin who
-          invited you for a new one.
-        </p>
-        <p className="mt-6 text-sm">
-          <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
-            Go to sign-in
-          </Link>
-        </p>
-      </>
+      <AuthNote
+        title="This invitation no longer works"
+        link={{ to: "/sign-in", label: "Go to sign-in" }}
+      >
+        An invitation link works once, for 7 days, and an admin can withdraw it. Ask the admin who
+        invited you for a new one.
+      </AuthNote>
     );
   }
   return (
@@ -101,15 +96,7 @@ export default function AcceptInvitation() {
       <p className="mt-2 text-sm text-neutral-600">
         You are invited as {roleLabels[invitation.role]}, with the address {invitation.email}.
       </p>
-      <Form
-        method="post"
-        id={form.id}
-        onSubmit={form.onSubmit}
-        noValidate
-        className="mt-6 space-y-4"
-      >
-        <CsrfInput />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} className="mt-6 space-y-4">
         {invitation.hasAccount ? (
           <Field
             label="Your Twistlog password"
@@ -131,7 +118,7 @@ export default function AcceptInvitation() {
           </>
         )}
         <SubmitButton>Join the team</SubmitButton>
-      </Form>
+      </SchemaForm>
     </>
   );
 }

@@ -2,24 +2,9 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
-import {
-  Field,
-  FormError,
-  IntentButton,
-  SelectField,
-  SubmitButton,
-  useSchemaForm,
-} from "~/components/form";
-import {
-  Card,
-  EmptyState,
-  Notice,
-  PageHeader,
-  tableClass,
-  tdClass,
-  thClass,
-  When,
-} from "~/components/page";
+import { Field, FormError, SelectField, SubmitButton, useSchemaForm } from "~/components/form";
+import { Card, EmptyState, Notice, PageHeader } from "~/components/page";
+import { NewToken, TokenTable } from "~/components/token-table";
 import {
   createApiToken,
   listApiTokens,
@@ -33,7 +18,6 @@ import { clientIp } from "~/lib/http/request.server";
 import { atLeast } from "~/lib/domain/roles";
 import type { Route } from "./+types/account.tokens";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
-import { ScrollArea } from "~/components/scroll-area";
 import { requireAccess, requireUser } from "~/lib/http/access.server";
 import { pageRoute } from "~/lib/http/edge.server";
 import { Invalid, NotFound } from "~/lib/domain/errors";
@@ -132,27 +116,7 @@ export default function Tokens() {
         }
       />
       {result && "notice" in result ? <Notice>{result.notice}</Notice> : null}
-      {created ? (
-        <section
-          aria-labelledby="new-token-title"
-          className="rounded-lg border border-indigo-200 bg-indigo-50 p-6"
-        >
-          <h2 id="new-token-title" className="font-semibold text-indigo-950">
-            Copy your new token now
-          </h2>
-          <p className="mt-1 text-sm text-indigo-900">
-            “{created.name}” for {created.teamName}. It is shown only this once; Twistlog keeps only
-            a fingerprint of it.
-          </p>
-          <output
-            aria-label="New API token"
-            className="mt-3 block break-all rounded-md border border-indigo-200 bg-white px-3 py-2 font-mono text-sm"
-            data-token
-          >
-            {created.token}
-          </output>
-        </section>
-      ) : null}
+      {created ? <NewToken created={created} /> : null}
       {team ? (
         <Card title={`New token for ${team.name}`} id="create">
           <Form
@@ -205,60 +169,6 @@ export default function Tokens() {
         </Card>
       ) : null}
     </div>
-  );
-}
-
-function TokenTable({
-  rows,
-  whoLabel,
-  label,
-  intent,
-}: {
-  rows: {
-    id: number;
-    name: string;
-    prefix: string;
-    who: string;
-    expiresAt: Date | null;
-    lastUsedAt: Date | null;
-  }[];
-  whoLabel: string;
-  label: string;
-  intent: string;
-}) {
-  return (
-    <ScrollArea label={label}>
-      <table className={tableClass}>
-        <thead>
-          <tr>
-            <th className={thClass}>Name</th>
-            <th className={thClass}>Starts with</th>
-            <th className={thClass}>{whoLabel}</th>
-            <th className={thClass}>Expires</th>
-            <th className={thClass}>Last used</th>
-            <th className={thClass}>
-              <span className="sr-only">Revoke</span>
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {rows.map((t) => (
-            <tr key={t.id}>
-              <td className={tdClass}>{t.name}</td>
-              <td className={`${tdClass} font-mono`}>{t.prefix}…</td>
-              <td className={tdClass}>{t.who}</td>
-              <td className={tdClass}>{t.expiresAt ? <When date={t.expiresAt} /> : "never"}</td>
-              <td className={tdClass}>{t.lastUsedAt ? <When date={t.lastUsedAt} /> : "not yet"}</td>
-              <td className={`${tdClass} text-right`}>
-                <IntentButton intent={intent} fields={{ tokenId: t.id }} tone="danger">
-                  Revoke<span className="sr-only"> {t.name}</span>
-                </IntentButton>
-              </td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </ScrollArea>
   );
 }
 

@@ -2,7 +2,7 @@ import { Form, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { CsrfInput } from "~/components/csrf-input";
 import { IntentButton, SubmitButton } from "~/components/form";
-import { Card, Notice, PageHeader, tableClass, tdClass, thClass, When } from "~/components/page";
+import { Card, Notice, PageHeader, TableHead, tableClass, tdClass, When } from "~/components/page";
 import { ScrollArea } from "~/components/scroll-area";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
@@ -80,16 +80,7 @@ export default function Account() {
         </p>
         <ScrollArea label="Signed-in sessions">
           <table className={tableClass}>
-            <thead>
-              <tr>
-                <th className={thClass}>Browser</th>
-                <th className={thClass}>Address</th>
-                <th className={thClass}>Signed in</th>
-                <th className={thClass}>
-                  <span className="sr-only">End</span>
-                </th>
-              </tr>
-            </thead>
+            <TableHead columns={["Browser", "Address", "Signed in"]} action="End" />
             <tbody>
               {sessions.map((s) => (
                 <tr key={s.id}>

@@ -1,21 +1,17 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, useActionData, useLoaderData } from "react-router";
-import { AnalysisDetails, AnalysisSummaryView, summarise } from "~/components/analysis-summary";
-import { AnalysisVersions, EarlierVersionNote } from "~/components/analysis-versions";
-import {
-  ColumnMapping,
-  columnsUsedText,
-  mappingDefaults,
-  mappingSchema,
-} from "~/components/column-mapping";
+import { AnalysisDetails } from "~/components/analysis-details";
+import { AnalysisSection } from "~/components/analysis-section";
+import { AnalysisVersions } from "~/components/analysis-versions";
+import { ColumnsStep, mappingSchema } from "~/components/column-mapping";
 import { DriveLogCharts } from "~/components/charts";
 import { canChooseColumns, Failure } from "~/components/log-failure";
 import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
-import { linkClass } from "~/components/form-fields";
+import { DriveLogHeader } from "~/components/drive-log-header";
 import { isActive, LogStatus } from "~/components/log-status";
 import { useLiveStatus } from "~/components/use-log-progress";
-import { Card, Notice, When } from "~/components/page";
+import { Card, Notice } from "~/components/page";
 import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
 import { SharePanel } from "~/components/share-panel";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
@@ -24,7 +20,8 @@ import { analysisParam } from "~/lib/http/analysis-param";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { logLabel } from "~/lib/data/curves.server";
-import { conditionLabels, gearLabel, type IngestMapping } from "~/lib/domain/drive-log-terms";
+import { conditionLabels, type IngestMapping } from "~/lib/domain/drive-log-terms";
+import { summarise } from "~/lib/domain/analysis-summary";
 import { idParam } from "~/lib/http/params";
 import { atLeast } from "~/lib/domain/roles";
 import { teamData } from "~/lib/data/team-data.server";
@@ -214,111 +211,40 @@ export default function DriveLogPage() {
           { label: `${conditionLabels[log.condition]}${log.testDate ? `, ${log.testDate}` : ""}` },
         ]}
       />
-      <header className="flex flex-wrap items-start justify-between gap-4">
-        <div className="min-w-0">
-          <h1 className="text-2xl font-semibold tracking-tight break-all">{log.fileName}</h1>
-          <dl className="mt-3 flex flex-wrap gap-x-6 gap-y-1 text-sm">
-            <Meta term="Vehicle">{vehicle.name}</Meta>
-            <Meta term="Condition">{conditionLabels[log.condition]}</Meta>
-            <Meta term="Gear">{gearLabel(log.gear)}</Meta>
-            <Meta term="Damper variant">{log.damperVariant}</Meta>
-            <Meta term="Test date">
-              {log.testDate ? <When date={log.testDate} dateOnly /> : "—"}
-            </Meta>
-            <Meta term="Uploaded">
-              <When date={log.uploadedAt} /> by {log.uploadedBy}
-            </Meta>
-          </dl>
-          <div className="mt-3 flex flex-wrap items-center gap-x-4 gap-y-2 text-sm">
-            <LogStatus log={progress.log} label={log.fileName} />
-            <a href={`/vehicles/${vehicle.id}/logs/${log.id}/file`} className={linkClass} download>
-              Download the raw file
-            </a>
-            {summary && !earlier ? (
-              <>
-                <a
-                  href={`/api/v1/logs/${log.id}/result`}
-                  className={linkClass}
-                  download={`drive-log-${log.id}-result.json`}
-                >
-                  Result JSON
-                </a>
-                <a
-                  href={`/vehicles/${vehicle.id}/logs/${log.id}/result.csv`}
-                  className={linkClass}
-                  download
-                >
-                  Result CSV
-                </a>
-              </>
-            ) : null}
-            {summary && others.length ? (
-              <CompareWith vehicleId={vehicle.id} logId={log.id} others={others} />
-            ) : null}
-          </div>
-          {log.notes ? (
-            <p className="mt-2 max-w-3xl text-sm text-neutral-700 whitespace-pre-line">
-              Driver notes: {log.notes}
-            </p>
-          ) : null}
-        </div>
-      </header>
+      <DriveLogHeader
+        vehicle={vehicle}
+        log={log}
+        status={<LogStatus log={progress.log} label={log.fileName} />}
+        downloads={!!summary && !earlier}
+        others={summary ? others : []}
+      />
       <p role="status" aria-live="polite" className="sr-only">
         {progress.announcement}
       </p>
       {notice ? <Notice>{notice}</Notice> : null}
       {log.status === "failed" && log.error ? <Failure error={log.error} /> : null}
-      {preview && !earlier && atLeast(role, "technician") ? (
-        <Card title="Choose the columns" id="mapping">
-          {applied ? (
-            <p className="mb-4 text-sm text-neutral-700" data-columns-used={applied.source}>
-              {columnsUsedText(applied)}
-            </p>
-          ) : null}
-          <ColumnMapping
-            preview={preview}
-            current={mappingDefaults(applied)}
-            lastResult={result && "map" in result ? result.map : undefined}
-          />
-        </Card>
-      ) : applied ? (
-        <p className="text-sm text-neutral-600" data-columns-used={applied.source}>
-          {columnsUsedText(applied)}
-        </p>
-      ) : null}
+      <ColumnsStep
+        offer={!earlier && atLeast(role, "technician")}
+        preview={preview}
+        applied={applied}
+        lastResult={result && "map" in result ? result.map : undefined}
+      />
       {isActive(progress.log.status) && !summary ? (
         <p className="text-sm text-neutral-600">
           The analysis summary appears here when the analysis has finished.
         </p>
       ) : null}
       {summary ? (
-        <section aria-labelledby="analysis-title" className="space-y-4">
-          <h2 id="analysis-title" className="text-lg font-semibold">
-            Analysis{shown ? ` version ${shown.version}` : ""}
-            {shown ? (
-              <span className="ml-2 text-sm font-normal text-neutral-500">
-                made <When date={shown.createdAt} />
-              </span>
-            ) : null}
-          </h2>
-          {earlier && latest ? (
-            <EarlierVersionNote shown={earlier} latest={latest} logHref={logHref} />
-          ) : null}
-          {isActive(progress.log.status) && !earlier ? (
-            <p className="text-sm text-neutral-600">
-              A new analysis is running; these are the figures of the previous version.
-            </p>
-          ) : null}
-          <AnalysisSummaryView
-            s={summary}
-            targets={verdicts}
-            rattleHref={
-              summary.rattle && !earlier
-                ? `/vehicles/${vehicle.id}/logs/${log.id}/rattle`
-                : undefined
-            }
-          />
-        </section>
+        <AnalysisSection
+          summary={summary}
+          verdicts={verdicts}
+          shown={shown}
+          earlier={earlier}
+          latest={latest}
+          logHref={logHref}
+          rattleHref={`${logHref}/rattle`}
+          running={isActive(progress.log.status)}
+        />
       ) : null}
       {summary ? (
         <DriveLogCharts
@@ -351,61 +277,6 @@ export default function DriveLogPage() {
         <AnalysisVersions versions={versions} shownId={shown?.id} logHref={logHref} />
       ) : null}
       {earlier ? null : <CommentsPanel vehicleId={vehicle.id} subject={`log:${log.id}`} />}
-    </div>
-  );
-}
-
-/** "Compare with…": pick another analysed drive log of the vehicle and open the comparison. */
-function CompareWith({
-  vehicleId,
-  logId,
-  others,
-}: {
-  vehicleId: number;
-  logId: number;
-  others: { id: number; label: string; fileName: string }[];
-}) {
-  return (
-    <form
-      method="get"
-      action={`/vehicles/${vehicleId}/compare`}
-      className="flex flex-wrap items-center gap-2"
-    >
-      <input type="hidden" name="logs" value={String(logId)} />
-      <label htmlFor="compare-with" className="text-neutral-600">
-        Compare with
-      </label>
-      <select
-        id="compare-with"
-        name="with"
-        required
-        className="max-w-64 rounded-md border border-neutral-300 px-2 py-1 text-sm sm:max-w-72"
-        defaultValue=""
-      >
-        <option value="" disabled>
-          choose a drive log…
-        </option>
-        {others.map((o) => (
-          <option key={o.id} value={o.id}>
-            {o.label} ({o.fileName})
-          </option>
-        ))}
-      </select>
-      <button
-        type="submit"
-        className="rounded-md border border-neutral-300 px-2 py-1 text-sm hover:bg-neutral-50"
-      >
-        Compare
-      </button>
-    </form>
-  );
-}
-
-function Meta({ term, children }: { term: string; children: React.ReactNode }) {
-  return (
-    <div className="flex gap-1.5">
-      <dt className="text-neutral-500">{term}</dt>
-      <dd className="font-medium text-neutral-900">{children}</dd>
     </div>
   );
 }

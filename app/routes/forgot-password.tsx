@@ -1,8 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, useActionData } from "react-router";
+import { data, useActionData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { AuthLink, AuthNote } from "~/components/auth-note";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -42,41 +42,25 @@ export default function ForgotPassword() {
   const [form, fields] = useSchemaForm("forgot", schema, sent ? undefined : (result as never));
   if (sent) {
     return (
-      <>
-        <h1 className="text-xl font-semibold">Check your e-mail</h1>
-        <p role="status" className="mt-4 text-sm text-neutral-700">
-          If {sent} has a Twistlog account, a link to choose a new password is on its way. It works
-          once, for {RESET_MINUTES} minutes.
-        </p>
-        <p className="mt-6 text-sm">
-          <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
-            Back to sign-in
-          </Link>
-        </p>
-      </>
+      <AuthNote
+        title="Check your e-mail"
+        status
+        link={{ to: "/sign-in", label: "Back to sign-in" }}
+      >
+        If {sent} has a Twistlog account, a link to choose a new password is on its way. It works
+        once, for {RESET_MINUTES} minutes.
+      </AuthNote>
     );
   }
   return (
     <>
       <h1 className="text-xl font-semibold">Reset your password</h1>
       <p className="mt-2 text-sm text-neutral-600">We e-mail you a link to choose a new one.</p>
-      <Form
-        method="post"
-        id={form.id}
-        onSubmit={form.onSubmit}
-        noValidate
-        className="mt-6 space-y-4"
-      >
-        <CsrfInput />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} className="mt-6 space-y-4">
         <Field label="E-mail address" meta={fields.email} type="email" autoComplete="username" />
         <SubmitButton>Send the link</SubmitButton>
-      </Form>
-      <p className="mt-6 text-sm">
-        <Link to="/sign-in" className="text-indigo-700 underline underline-offset-4">
-          Back to sign-in
-        </Link>
-      </p>
+      </SchemaForm>
+      <AuthLink to="/sign-in">Back to sign-in</AuthLink>
     </>
   );
 }

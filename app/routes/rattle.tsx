@@ -1,5 +1,5 @@
 import { Link, useLoaderData } from "react-router";
-import { TargetVerdictList } from "~/components/analysis-summary";
+import { TargetVerdictList } from "~/components/target-verdict-list";
 import { VerdictCaution } from "~/components/caution-note";
 import { RattleCharts } from "~/components/charts";
 import { Breadcrumb } from "~/components/breadcrumb";

@@ -1,8 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { data, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { AuthNote } from "~/components/auth-note";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -56,17 +56,12 @@ export default function ResetPassword() {
   const [form, fields] = useSchemaForm("reset", schema, lastResult);
   if (!email) {
     return (
-      <>
-        <h1 className="text-xl font-semibold">This link no longer works</h1>
-        <p className="mt-4 text-sm text-neutral-700">
-          A reset link works once, for 30 minutes. Ask for a new one.
-        </p>
-        <p className="mt-6 text-sm">
-          <Link to="/forgot-password" className="text-indigo-700 underline underline-offset-4">
-            Send a new link
-          </Link>
-        </p>
-      </>
+      <AuthNote
+        title="This link no longer works"
+        link={{ to: "/forgot-password", label: "Send a new link" }}
+      >
+        A reset link works once, for 30 minutes. Ask for a new one.
+      </AuthNote>
     );
   }
   return (
@@ -75,15 +70,7 @@ export default function ResetPassword() {
       <p className="mt-2 text-sm text-neutral-600">
         For {email}. Every signed-in session of this account ends.
       </p>
-      <Form
-        method="post"
-        id={form.id}
-        onSubmit={form.onSubmit}
-        noValidate
-        className="mt-6 space-y-4"
-      >
-        <CsrfInput />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} className="mt-6 space-y-4">
         <Field
           label="New password"
           meta={fields.password}
@@ -98,7 +85,7 @@ export default function ResetPassword() {
           autoComplete="new-password"
         />
         <SubmitButton>Set the password</SubmitButton>
-      </Form>
+      </SchemaForm>
     </>
   );
 }

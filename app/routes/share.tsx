@@ -1,10 +1,11 @@
 import { isRouteErrorResponse, useLoaderData, useParams, useRouteError } from "react-router";
-import { AnalysisDetails, AnalysisSummaryView } from "~/components/analysis-summary";
+import { AnalysisDetails } from "~/components/analysis-details";
+import { AnalysisSummaryView } from "~/components/analysis-summary";
 import { DriveLogCharts } from "~/components/charts/drive-log-charts";
 import { ComparisonView } from "~/components/comparison-view";
 import { LogoMark } from "~/components/logo-mark";
 import { mainProps, SkipLink } from "~/components/skip-link";
-import { Card, When } from "~/components/page";
+import { Card, InlineTerm, When } from "~/components/page";
 import { conditionLabels, gearLabel } from "~/lib/domain/drive-log-terms";
 import { countShareView } from "~/lib/data/shares.server";
 import { requireShareForPage, shareHeaders, sharedPageData } from "~/lib/http/share-link.server";
@@ -102,20 +103,20 @@ export default function SharedPage() {
               {log.fileName}
             </Heading>
             <dl className="mt-2 flex flex-wrap gap-x-6 gap-y-1 text-sm">
-              <Inline term="Condition">{conditionLabels[log.condition]}</Inline>
-              <Inline term="Gear">{gearLabel(log.gear)}</Inline>
-              <Inline term="Damper in this drive log">
+              <InlineTerm term="Condition">{conditionLabels[log.condition]}</InlineTerm>
+              <InlineTerm term="Gear">{gearLabel(log.gear)}</InlineTerm>
+              <InlineTerm term="Damper in this drive log">
                 <span data-log-damper>
                   {page.vehicle.damper}, variant {log.damperVariant}
                 </span>
-              </Inline>
-              <Inline term="Test date">
+              </InlineTerm>
+              <InlineTerm term="Test date">
                 {log.testDate ? <When date={log.testDate} dateOnly /> : "—"}
-              </Inline>
+              </InlineTerm>
               {log.analysis ? (
-                <Inline term="Analysis">
+                <InlineTerm term="Analysis">
                   version {log.analysis.version}, made <When date={log.analysis.createdAt} />
-                </Inline>
+                </InlineTerm>
               ) : null}
             </dl>
             {page.allowRawDownload ? (
@@ -205,15 +206,6 @@ function Item({ term, children }: { term: string; children: React.ReactNode }) {
     <div>
       <dt className="text-neutral-500">{term}</dt>
       <dd className="mt-0.5 font-medium text-neutral-900">{children}</dd>
-    </div>
-  );
-}
-
-function Inline({ term, children }: { term: string; children: React.ReactNode }) {
-  return (
-    <div className="flex gap-1.5">
-      <dt className="text-neutral-500">{term}</dt>
-      <dd className="font-medium text-neutral-900">{children}</dd>
     </div>
   );
 }

@@ -1,8 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, redirect, useActionData, useLoaderData } from "react-router";
+import { data, redirect, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import { Field, FormError, SubmitButton, useSchemaForm } from "~/components/form";
+import { Field, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { AuthLink } from "~/components/auth-note";
 import { authenticateWithPassword, SignInRefused } from "~/lib/http/auth.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -70,16 +70,11 @@ export default function SignIn() {
           {noticeText}
         </p>
       ) : null}
-      <Form
-        method="post"
-        id={form.id}
-        onSubmit={form.onSubmit}
-        noValidate
+      <SchemaForm
+        form={form}
+        hidden={<input type="hidden" name="redirectTo" value={redirectTo} />}
         className="mt-6 space-y-4"
       >
-        <CsrfInput />
-        <input type="hidden" name="redirectTo" value={redirectTo} />
-        <FormError id={form.errorId} errors={form.errors} />
         <Field label="E-mail address" meta={fields.email} type="email" autoComplete="username" />
         <Field
           label="Password"
@@ -88,12 +83,8 @@ export default function SignIn() {
           autoComplete="current-password"
         />
         <SubmitButton>Sign in</SubmitButton>
-      </Form>
-      <p className="mt-6 text-sm">
-        <Link to="/forgot-password" className="text-indigo-700 underline underline-offset-4">
-          Forgot your password?
-        </Link>
-      </p>
+      </SchemaForm>
+      <AuthLink to="/forgot-password">Forgot your password?</AuthLink>
     </>
   );
 }

@@ -1,36 +1,19 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, Link, useActionData, useLoaderData } from "react-router";
+import { data, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
-import { CsrfInput } from "~/components/csrf-input";
-import {
-  Field,
-  FormError,
-  IntentButton,
-  SelectField,
-  SubmitButton,
-  useSchemaForm,
-} from "~/components/form";
-import {
-  Card,
-  EmptyState,
-  Notice,
-  PageHeader,
-  tableClass,
-  tdClass,
-  thClass,
-  When,
-} from "~/components/page";
+import { Field, SelectField, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
+import { Card, Notice, PageHeader } from "~/components/page";
+import { Invitations, MembersCard, RolesCard, UnitsCard } from "~/components/team-cards";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { inviteToTeam, InvitationProblem } from "~/lib/data/invitations.server";
 import { appOrigin, clientIp } from "~/lib/http/request.server";
-import { atLeast, roleHints, roleLabels, ROLES } from "~/lib/domain/roles";
+import { atLeast, roleLabels, ROLES } from "~/lib/domain/roles";
 import { teamData } from "~/lib/data/team-data.server";
 import { emailField, roleField } from "~/lib/domain/validation";
 import type { Route } from "./+types/team";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
-import { ScrollArea } from "~/components/scroll-area";
 import { requireAccess } from "~/lib/http/access.server";
 import { pageRoute } from "~/lib/http/edge.server";
 import { Invalid } from "~/lib/domain/errors";
@@ -134,52 +117,7 @@ export default function Team() {
       {/* min-w-0: a wide table scrolls in its box instead of widening the column and the page. */}
       <div className="grid gap-6 lg:grid-cols-[2fr_1fr]">
         <div className="min-w-0 space-y-6">
-          <Card title="Members" id="members">
-            <ScrollArea label="Members">
-              <table className={tableClass}>
-                <thead>
-                  <tr>
-                    <th className={thClass}>Name</th>
-                    <th className={thClass}>E-mail</th>
-                    <th className={thClass}>Role</th>
-                    <th className={thClass}>Joined</th>
-                    {admin ? (
-                      <th className={thClass}>
-                        <span className="sr-only">Manage</span>
-                      </th>
-                    ) : null}
-                  </tr>
-                </thead>
-                <tbody>
-                  {members.map((m) => (
-                    <tr key={m.id}>
-                      <td className={tdClass}>
-                        {m.name}
-                        {m.userId === me.userId ? (
-                          <span className="ml-1 text-neutral-500">(you)</span>
-                        ) : null}
-                      </td>
-                      <td className={tdClass}>{m.email}</td>
-                      <td className={tdClass}>{roleLabels[m.role]}</td>
-                      <td className={`${tdClass} whitespace-nowrap`}>
-                        <When date={m.joinedAt} dateOnly />
-                      </td>
-                      {admin ? (
-                        <td className={`${tdClass} text-right`}>
-                          <Link
-                            to={`/team/members/${m.id}`}
-                            className="text-indigo-700 underline underline-offset-4"
-                          >
-                            Manage<span className="sr-only"> {m.name}</span>
-                          </Link>
-                        </td>
-                      ) : null}
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </ScrollArea>
-          </Card>
+          <MembersCard members={members} meId={me.userId} admin={admin} />
           {admin ? <Invitations invitations={invitations} /> : null}
         </div>
         <div className="min-w-0 space-y-6">
@@ -191,68 +129,10 @@ export default function Team() {
             />
           ) : null}
           <UnitsCard unit={team.amplitudeUnit} canEdit={atLeast(me.role, "engineer")} />
-          <Card title="Roles">
-            <dl className="space-y-2 text-sm">
-              {ROLES.map((r) => (
-                <div key={r}>
-                  <dt className="font-medium">{roleLabels[r]}</dt>
-                  <dd className="text-neutral-600">{roleHints[r]}</dd>
-                </div>
-              ))}
-            </dl>
-          </Card>
+          <RolesCard />
         </div>
       </div>
     </div>
-  );
-}
-
-function Invitations({
-  invitations,
-}: {
-  invitations: { id: number; email: string; role: keyof typeof roleLabels; expiresAt: Date }[];
-}) {
-  return (
-    <Card title="Open invitations" id="invitations">
-      {invitations.length === 0 ? (
-        <EmptyState>No open invitations. Invite a colleague with the form on this page.</EmptyState>
-      ) : (
-        <ScrollArea label="Open invitations">
-          <table className={tableClass}>
-            <thead>
-              <tr>
-                <th className={thClass}>E-mail</th>
-                <th className={thClass}>Role</th>
-                <th className={thClass}>Link works until</th>
-                <th className={thClass}>
-                  <span className="sr-only">Withdraw</span>
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {invitations.map((i) => (
-                <tr key={i.id}>
-                  <td className={tdClass}>{i.email}</td>
-                  <td className={tdClass}>{roleLabels[i.role]}</td>
-                  <td className={tdClass}>
-                    <When date={i.expiresAt} />
-                  </td>
-                  <td className={`${tdClass} text-right`}>
-                    <IntentButton
-                      intent="revoke-invitation"
-                      fields={{ invitationId: i.id }}
-                      tone="danger"
-                    >
-                      Withdraw<span className="sr-only"> the invitation for {i.email}</span>
-                    </IntentButton>
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </ScrollArea>
-      )}
-    </Card>
   );
 }
 
@@ -260,10 +140,7 @@ function InviteForm({ lastResult }: { lastResult: Parameters<typeof useSchemaFor
   const [form, fields] = useSchemaForm("invite", inviteSchema, lastResult, { role: "engineer" });
   return (
     <Card title="Invite a colleague" id="invite">
-      <Form method="post" id={form.id} onSubmit={form.onSubmit} noValidate className="space-y-4">
-        <CsrfInput />
-        <input type="hidden" name="intent" value="invite" />
-        <FormError id={form.errorId} errors={form.errors} />
+      <SchemaForm form={form} intent="invite" className="space-y-4">
         <Field
           label="E-mail address"
           meta={fields.email}
@@ -276,26 +153,7 @@ function InviteForm({ lastResult }: { lastResult: Parameters<typeof useSchemaFor
           options={ROLES.map((r) => ({ value: r, label: roleLabels[r] }))}
         />
         <SubmitButton>Send invitation</SubmitButton>
-      </Form>
-    </Card>
-  );
-}
-
-function UnitsCard({ unit, canEdit }: { unit: "rpm" | "rad/s"; canEdit: boolean }) {
-  return (
-    <Card title="Amplitude unit" id="units">
-      <p className="text-sm text-neutral-600">
-        Angular-velocity amplitudes are shown in <strong>{unit}</strong> for everyone in the team.
-      </p>
-      {canEdit ? (
-        <Form method="post" className="mt-3 flex gap-2">
-          <CsrfInput />
-          <input type="hidden" name="unit" value={unit === "rpm" ? "rad/s" : "rpm"} />
-          <SubmitButton name="intent" value="set-units" tone="secondary">
-            Show in {unit === "rpm" ? "rad/s" : "rpm"}
-          </SubmitButton>
-        </Form>
-      ) : null}
+      </SchemaForm>
     </Card>
   );
 }

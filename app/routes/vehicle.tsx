@@ -1,45 +1,36 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { useQueryClient } from "@tanstack/react-query";
-import { useEffect, useMemo, useRef } from "react";
+import { useMemo } from "react";
 import {
   data,
-  Form,
-  Link,
   redirect,
   useActionData,
   useLoaderData,
   useRevalidator,
   type ShouldRevalidateFunctionArgs,
 } from "react-router";
-import { RoadTestCaution, VerdictCaution } from "~/components/caution-note";
-import { CurveOverlay } from "~/components/charts";
-import { CsrfInput } from "~/components/csrf-input";
+import { VerdictCaution } from "~/components/caution-note";
 import { Breadcrumb } from "~/components/breadcrumb";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
-import { SubmitButton } from "~/components/form";
-import { buttonLinkClass, linkClass } from "~/components/form-fields";
 import { DriveLogTable, TABLE_PARAMS, type DriveLogTableRow } from "~/components/drive-log-table";
+import { LatestCurves, useCurvesRefresh } from "~/components/latest-curves";
 import type { LogProgress } from "~/components/log-status";
-import { Card, EmptyState, Notice } from "~/components/page";
+import { Card, Notice } from "~/components/page";
 import { TargetsCard, type TargetFormReply, type TargetSummary } from "~/components/targets-card";
-import { UploadPanel } from "~/components/upload-panel";
+import { UploadCard } from "~/components/upload-card";
+import { ProgressNotes, UploadNotices } from "~/components/upload-notices";
 import { useLogProgress } from "~/components/use-log-progress";
 import { VehicleCard } from "~/components/vehicle-card";
+import { VehicleHeading } from "~/components/vehicle-heading";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { idParam } from "~/lib/http/params";
-import { countText, plural } from "~/lib/base/plural";
 import { clientIp } from "~/lib/http/request.server";
 import { atLeast } from "~/lib/domain/roles";
 import { vehicleFiringOrder } from "~/lib/domain/vehicle-firing-order";
-import {
-  limitText,
-  marginText,
-  scopeText,
-  targetSchema,
-  type TargetVerdict,
-} from "~/lib/domain/targets";
+import type { TargetVerdict } from "~/lib/domain/targets";
+import { targetSchema } from "~/lib/domain/target-schema";
+import { limitText, marginText, scopeText } from "~/lib/domain/target-text";
 import { targetData, toTarget } from "~/lib/data/targets.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicle";
@@ -279,18 +270,7 @@ export default function VehiclePage() {
   );
   const names = useMemo(() => new Map(logs.map((l) => [l.id, l.fileName])), [logs]);
   const { statuses, announcement } = useLogProgress(vehicle.id, progress, names);
-  // The overlay's curves are cached for 30 s (root.tsx); a newly finished analysis refreshes them.
-  const queryClient = useQueryClient();
-  const finished = logs
-    .filter((l) => l.status === "done")
-    .map((l) => l.id)
-    .join(",");
-  const seenFinished = useRef(finished);
-  useEffect(() => {
-    if (seenFinished.current === finished) return;
-    seenFinished.current = finished;
-    void queryClient.invalidateQueries({ queryKey: ["curves"] });
-  }, [finished, queryClient]);
+  useCurvesRefresh(logs);
   const engineer = atLeast(role, "engineer");
   const actionNotice = result && "notice" in result ? result.notice : null;
   const uploadError = result && "uploadError" in result ? result.uploadError : null;
@@ -300,74 +280,16 @@ export default function VehiclePage() {
   return (
     <div className="space-y-6">
       <Breadcrumb trail={[{ label: "Vehicles", to: "/vehicles" }, { label: vehicle.identifier }]} />
-      <div className="flex flex-wrap items-start justify-between gap-4">
-        <div>
-          <h1 className="text-2xl font-semibold tracking-tight">
-            {vehicle.name}
-            {vehicle.archived ? (
-              <span className="ml-3 rounded bg-neutral-100 px-2 py-0.5 align-middle text-sm font-medium text-neutral-600">
-                archived
-              </span>
-            ) : null}
-          </h1>
-          <p className="mt-1 font-mono text-sm text-neutral-600">{vehicle.identifier}</p>
-        </div>
-        {engineer ? (
-          <div className="flex gap-2">
-            <Link
-              to={`/vehicles/${vehicle.id}/edit`}
-              className={`${buttonLinkClass} border border-neutral-300 bg-white text-neutral-800 hover:bg-neutral-50`}
-            >
-              Edit vehicle
-            </Link>
-            <Form method="post">
-              <CsrfInput />
-              <SubmitButton
-                name="intent"
-                value={vehicle.archived ? "restore" : "archive"}
-                tone="secondary"
-              >
-                {vehicle.archived ? "Restore" : "Archive"}
-              </SubmitButton>
-            </Form>
-          </div>
-        ) : null}
-      </div>
+      <VehicleHeading vehicle={vehicle} engineer={engineer} />
       {notice ? <Notice>{notice}</Notice> : null}
       {actionNotice ? <Notice>{actionNotice}</Notice> : null}
-      {uploaded.length ? (
-        <Notice>
-          {countText(uploaded.length, "drive log")} uploaded;{" "}
-          {plural(uploaded.length, "its analysis runs", "their analyses run")} in the background.
-        </Notice>
-      ) : null}
-      {duplicates.map(([id, earlier]) => (
-        <p
-          key={id}
-          className="rounded-md border border-amber-500 bg-amber-50 px-4 py-2 text-sm text-amber-950"
-        >
-          Drive log {id}: the same file was uploaded before as drive log {earlier} —{" "}
-          <Link to={`/vehicles/${vehicle.id}/logs/${earlier}`} className={linkClass}>
-            open it
-          </Link>
-          .
-        </p>
-      ))}
+      <UploadNotices vehicleId={vehicle.id} uploaded={uploaded} duplicates={duplicates} />
       <VehicleCard vehicle={vehicle} />
-      <p role="status" aria-live="polite" className="sr-only">
-        {announcement}
-      </p>
-      {logs.some((l) => l.status === "queued" || l.status === "analysing") ? (
-        <noscript>
-          <p className="text-sm text-neutral-700">
-            Analyses are running.{" "}
-            <a href={`/vehicles/${vehicle.id}`} className={linkClass}>
-              Reload the page
-            </a>{" "}
-            to see how far they are.
-          </p>
-        </noscript>
-      ) : null}
+      <ProgressNotes
+        vehicleId={vehicle.id}
+        announcement={announcement}
+        running={logs.some((l) => l.status === "queued" || l.status === "analysing")}
+      />
       <div className="grid gap-6 xl:grid-cols-2">
         <TargetsCard
           vehicleId={vehicle.id}
@@ -378,29 +300,7 @@ export default function VehiclePage() {
           analysedLogs={analysedLogs}
           rattleLimitRadS2={vehicle.rattleLimitRadS2}
         />
-        <section aria-labelledby="latest-curves-title" className="min-w-0 space-y-3">
-          <div>
-            <h2 id="latest-curves-title" className="text-base font-semibold">
-              Latest isolation curves
-            </h2>
-            <p className="text-sm text-neutral-600">
-              The firing-order isolation of the vehicle&apos;s latest analysed drive logs (up to 8),
-              newest first.
-            </p>
-          </div>
-          {analysedLogs === 0 ? (
-            <EmptyState>
-              No analysed drive logs yet: their isolation curves appear here once an analysis has
-              finished.
-            </EmptyState>
-          ) : (
-            <CurveOverlay
-              curvesUrl={`/vehicles/${vehicle.id}/curves.json`}
-              kind="isolation"
-              exportContext={{ vehicle: `${vehicle.name} (${vehicle.identifier})` }}
-            />
-          )}
-        </section>
+        <LatestCurves vehicle={vehicle} analysedLogs={analysedLogs} />
       </div>
       <Card title="Drive logs" id="drive-logs">
         <DriveLogTable
@@ -418,29 +318,12 @@ export default function VehiclePage() {
         ) : null}
       </Card>
       {atLeast(role, "technician") && !vehicle.archived ? (
-        <Card title="Upload drive logs" id="upload">
-          <div className="grid gap-6 lg:grid-cols-[2fr_1fr]">
-            <div className="self-start lg:order-last">
-              <RoadTestCaution />
-            </div>
-            <div className="space-y-4">
-              {uploadError ? (
-                <p
-                  role="alert"
-                  className="rounded-md border border-red-200 bg-red-50 px-3 py-2 text-sm text-red-800"
-                >
-                  {uploadError}
-                </p>
-              ) : null}
-              <UploadPanel
-                vehicleId={vehicle.id}
-                damperVariant={vehicle.damperVariant}
-                statuses={statuses}
-                onUploaded={() => void revalidator.revalidate()}
-              />
-            </div>
-          </div>
-        </Card>
+        <UploadCard
+          vehicle={vehicle}
+          statuses={statuses}
+          uploadError={uploadError}
+          onUploaded={() => void revalidator.revalidate()}
+        />
       ) : null}
     </div>
   );

@@ -19,7 +19,8 @@ import { buildCsv } from "./csv";
 import { downloadCsv, downloadPng } from "./download";
 import type { LegendEntry } from "./legend";
 import { COLOURS, OVERLAY_STYLES } from "./palette";
-import { Plot, type PlotOptions } from "./plot";
+import { FramePlot } from "./frame-plot";
+import type { PlotOptions } from "./plot";
 import { cursor, drawYLine, fromZero, rangeWith, xAxis, xRangeAround, yAxis } from "./plot-kit";
 import { useCurvesQuery } from "./queries";
 import type { CurveSet, ExportContext } from "./types";
@@ -235,19 +236,16 @@ export function CurveOverlay({
         })
       }
     >
-      {(summaryId) =>
-        options ? (
-          <Plot
-            height={OVERLAY_HEIGHT}
-            options={options}
-            data={data}
-            keyboard
-            label={`${title}: ${curves?.length ?? 0} drive logs against engine speed in rpm`}
-            describedBy={summaryId}
-            onPlot={(u) => (plot.current = u)}
-          />
-        ) : null
-      }
+      {(summaryId) => (
+        <FramePlot
+          height={OVERLAY_HEIGHT}
+          options={options}
+          data={data}
+          label={`${title}: ${curves?.length ?? 0} drive logs against engine speed in rpm`}
+          describedBy={summaryId}
+          onPlot={(u) => (plot.current = u)}
+        />
+      )}
     </ChartFrame>
   );
 }

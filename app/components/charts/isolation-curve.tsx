@@ -12,13 +12,13 @@ import {
 } from "~/lib/domain/format";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
-import { downloadCsv, downloadPng } from "./download";
-import { useExportContext } from "./export-context";
+import { downloadCsv } from "./download";
 import { commentLegend, type LegendEntry } from "./legend";
 import { ENGINE_SPEED_CHART_HEIGHT } from "./order-curves";
 import { drawTargetFills, isolationLayers } from "./isolation-layers";
 import { COLOURS } from "./palette";
-import { Plot, type PlotOptions } from "./plot";
+import { FramePlot, usePlotPng } from "./frame-plot";
+import type { PlotOptions } from "./plot";
 import { cursor, lineSeries, rangeWith, xAxis, xRangeAround, yAxis } from "./plot-kit";
 import type { ChartMarker, TargetBand } from "./types";
 import { useRpmMarkers, useTargets } from "./use-stable";
@@ -41,9 +41,8 @@ export const IsolationCurve = memo(function IsolationCurve({
   targets?: TargetBand[];
   fileSuffix?: string;
 }) {
-  const exportContext = useExportContext();
   const [readout, setReadout] = useState("");
-  const plot = useRef<uPlot | null>(null);
+  const { onPlot, png } = usePlotPng();
   const report = useRef(onCursorRpm);
   report.current = onCursorRpm;
   const rpmMarkers = useRpmMarkers(markers);
@@ -204,24 +203,18 @@ export const IsolationCurve = memo(function IsolationCurve({
           fileSuffix,
         )
       }
-      onPng={() =>
-        plot.current &&
-        void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
-      }
+      onPng={png(TITLE, legend, fileSuffix)}
     >
-      {(summaryId) =>
-        options ? (
-          <Plot
-            height={ENGINE_SPEED_CHART_HEIGHT}
-            options={options}
-            data={data}
-            keyboard
-            label={`${TITLE}: isolation in dB against engine speed in rpm. Use the left and right arrow keys to move the engine-speed cursor.`}
-            describedBy={summaryId}
-            onPlot={(u) => (plot.current = u)}
-          />
-        ) : null
-      }
+      {(summaryId) => (
+        <FramePlot
+          height={ENGINE_SPEED_CHART_HEIGHT}
+          options={options}
+          data={data}
+          label={`${TITLE}: isolation in dB against engine speed in rpm. Use the left and right arrow keys to move the engine-speed cursor.`}
+          describedBy={summaryId}
+          onPlot={onPlot}
+        />
+      )}
     </ChartFrame>
   );
 });

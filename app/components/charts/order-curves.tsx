@@ -11,11 +11,11 @@ import {
 } from "~/lib/domain/chart-units";
 import { ChartFrame, Segmented, SelectControl } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
-import { downloadCsv, downloadPng } from "./download";
-import { useExportContext } from "./export-context";
+import { downloadCsv } from "./download";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
-import { Plot, type PlotOptions } from "./plot";
+import { FramePlot, usePlotPng } from "./frame-plot";
+import type { PlotOptions } from "./plot";
 import { cursor, drawXMarkers, fromZero, lineSeries, xAxis, xRangeAround, yAxis } from "./plot-kit";
 import type { ChartMarker } from "./types";
 import { useRpmMarkers } from "./use-stable";
@@ -41,11 +41,10 @@ export const OrderCurves = memo(function OrderCurves({
   markers?: ChartMarker[];
   fileSuffix?: string;
 }) {
-  const exportContext = useExportContext();
   const [chosen, setChosen] = useState<number | null>(null);
   const [unit, setUnit] = useState<AmplitudeUnit>("rpm");
   const [readout, setReadout] = useState("");
-  const plot = useRef<uPlot | null>(null);
+  const { onPlot, png } = usePlotPng();
   const report = useRef(onCursorRpm);
   report.current = onCursorRpm;
   const rpmMarkers = useRpmMarkers(markers);
@@ -166,30 +165,18 @@ export const OrderCurves = memo(function OrderCurves({
       }
       summary={summary}
       onCsv={csv}
-      onPng={() =>
-        plot.current &&
-        void downloadPng(
-          `${TITLE}, order ${order}`,
-          plot.current.ctx.canvas,
-          legend,
-          fileSuffix,
-          exportContext,
-        )
-      }
+      onPng={png(`${TITLE}, order ${order}`, legend, fileSuffix)}
     >
-      {(summaryId) =>
-        options ? (
-          <Plot
-            height={ENGINE_SPEED_CHART_HEIGHT}
-            options={options}
-            data={data}
-            keyboard
-            label={`${TITLE}: order ${order} amplitude in ${unit} at crank and gearbox input against engine speed in rpm. Use the left and right arrow keys to move the engine-speed cursor.`}
-            describedBy={summaryId}
-            onPlot={(u) => (plot.current = u)}
-          />
-        ) : null
-      }
+      {(summaryId) => (
+        <FramePlot
+          height={ENGINE_SPEED_CHART_HEIGHT}
+          options={options}
+          data={data}
+          label={`${TITLE}: order ${order} amplitude in ${unit} at crank and gearbox input against engine speed in rpm. Use the left and right arrow keys to move the engine-speed cursor.`}
+          describedBy={summaryId}
+          onPlot={onPlot}
+        />
+      )}
     </ChartFrame>
   );
 });

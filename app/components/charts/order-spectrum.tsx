@@ -5,11 +5,11 @@ import type { ChartData } from "~/lib/domain/chart-data";
 import { nearestIndex } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
-import { downloadCsv, downloadPng } from "./download";
-import { useExportContext } from "./export-context";
+import { downloadCsv } from "./download";
 import type { LegendEntry } from "./legend";
 import { COLOURS, FONT_FAMILY } from "./palette";
-import { Plot, type PlotOptions } from "./plot";
+import { FramePlot, usePlotPng } from "./frame-plot";
+import type { PlotOptions } from "./plot";
 import { cursor, fromZero, lineSeries, px, xAxis, yAxis } from "./plot-kit";
 
 export const ORDER_SPECTRUM_HEIGHT = 260;
@@ -40,9 +40,8 @@ export const OrderSpectrum = memo(function OrderSpectrum({
   cursorRpm: number | null;
   fileSuffix?: string;
 }) {
-  const exportContext = useExportContext();
   const [readout, setReadout] = useState("");
-  const plot = useRef<uPlot | null>(null);
+  const { onPlot, png } = usePlotPng();
   const map = charts?.orderMap ?? null;
   const want = cursorRpm ?? (charts ? defaultSpectrumRpm(charts) : null);
   const row = map && want !== null ? nearestIndex(map.rpm, want) : -1;
@@ -135,24 +134,18 @@ export const OrderSpectrum = memo(function OrderSpectrum({
           fileSuffix,
         )
       }
-      onPng={() =>
-        plot.current &&
-        void downloadPng(title, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
-      }
+      onPng={png(title, legend, fileSuffix)}
     >
-      {(summaryId) =>
-        options ? (
-          <Plot
-            height={ORDER_SPECTRUM_HEIGHT}
-            options={options}
-            data={data}
-            keyboard
-            label={`${title}: amplitude in rpm against order, crank and gearbox input. Use the left and right arrow keys to move the order cursor.`}
-            describedBy={summaryId}
-            onPlot={(u) => (plot.current = u)}
-          />
-        ) : null
-      }
+      {(summaryId) => (
+        <FramePlot
+          height={ORDER_SPECTRUM_HEIGHT}
+          options={options}
+          data={data}
+          label={`${title}: amplitude in rpm against order, crank and gearbox input. Use the left and right arrow keys to move the order cursor.`}
+          describedBy={summaryId}
+          onPlot={onPlot}
+        />
+      )}
     </ChartFrame>
   );
 });

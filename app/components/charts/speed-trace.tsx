@@ -1,15 +1,15 @@
-import { memo, useEffect, useMemo, useRef, useState } from "react";
+import { memo, useEffect, useMemo, useState } from "react";
 import type uPlot from "uplot";
 import { rpmRangeText, rpmText, secondsNumber, secondsText } from "~/lib/domain/format";
 import type { ChartData } from "~/lib/domain/chart-data";
 import { extent } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
-import { downloadCsv, downloadPng } from "./download";
-import { useExportContext } from "./export-context";
+import { downloadCsv } from "./download";
 import { commentLegend, type LegendEntry } from "./legend";
 import { COLOURS } from "./palette";
-import { Plot, type PlotOptions } from "./plot";
+import { FramePlot, usePlotPng } from "./frame-plot";
+import type { PlotOptions } from "./plot";
 import {
   cursor,
   drawXBands,
@@ -43,9 +43,8 @@ export const SpeedTrace = memo(function SpeedTrace({
   markers?: ChartMarker[];
   fileSuffix?: string;
 }) {
-  const exportContext = useExportContext();
   const trace = charts?.speedTrace ?? null;
-  const plot = useRef<uPlot | null>(null);
+  const { onPlot, png } = usePlotPng();
   const [readout, setReadout] = useState("");
   const timeMarkers = useTimeMarkers(markers);
 
@@ -136,24 +135,18 @@ export const SpeedTrace = memo(function SpeedTrace({
           fileSuffix,
         )
       }
-      onPng={() =>
-        plot.current &&
-        void downloadPng(TITLE, plot.current.ctx.canvas, legend, fileSuffix, exportContext)
-      }
+      onPng={png(TITLE, legend, fileSuffix)}
     >
-      {(summaryId) =>
-        options ? (
-          <Plot
-            height={SPEED_TRACE_HEIGHT}
-            options={options}
-            data={data}
-            keyboard
-            label={`${TITLE}: crank and gearbox-input speed in rpm against time in s. Use the left and right arrow keys to move the time cursor.`}
-            describedBy={summaryId}
-            onPlot={(u) => (plot.current = u)}
-          />
-        ) : null
-      }
+      {(summaryId) => (
+        <FramePlot
+          height={SPEED_TRACE_HEIGHT}
+          options={options}
+          data={data}
+          label={`${TITLE}: crank and gearbox-input speed in rpm against time in s. Use the left and right arrow keys to move the time cursor.`}
+          describedBy={summaryId}
+          onPlot={onPlot}
+        />
+      )}
     </ChartFrame>
   );
 });

@@ -1,4 +1,4 @@
-import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
+import { and, asc, eq, isNotNull } from "drizzle-orm";
 import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-drive-logs";
 import { targets } from "~/lib/infra/db/schema-results";
 import type { AnalysisResult } from "~/lib/signal";

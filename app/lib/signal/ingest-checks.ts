@@ -3,7 +3,6 @@
  * length, sampling rate against the top order, plausible speeds and clipping (ingest.ts runs
  * them after the last row). Units: s, rad/s, rad.
  */
-import type { ColumnMap } from "./columns.ts";
 import { fmt } from "./ingest-scan.ts";
 import type { DriveLog, SignalIssue } from "./types.ts";
 import { S_PER_UNIT } from "./units.ts";

@@ -1,0 +1,139 @@
+/** The team page's cards: members, open invitations, the amplitude unit and what each role may do. */
+import { Form, Link } from "react-router";
+import { roleHints, roleLabels, ROLES, type Role } from "~/lib/domain/roles";
+import { CsrfInput } from "./csrf-input";
+import { IntentButton, SubmitButton } from "./form";
+import { Card, EmptyState, TableHead, tableClass, tdClass, When } from "./page";
+import { ScrollArea } from "./scroll-area";
+
+/** The team's members; admins get a "Manage" link per member. */
+export function MembersCard({
+  members,
+  meId,
+  admin,
+}: {
+  members: {
+    id: number;
+    userId: number;
+    name: string;
+    email: string;
+    role: Role;
+    joinedAt: Date;
+  }[];
+  /** The signed-in user's id, marked "(you)". */
+  meId: number;
+  admin: boolean;
+}) {
+  return (
+    <Card title="Members" id="members">
+      <ScrollArea label="Members">
+        <table className={tableClass}>
+          <TableHead
+            columns={["Name", "E-mail", "Role", "Joined"]}
+            action={admin ? "Manage" : undefined}
+          />
+          <tbody>
+            {members.map((m) => (
+              <tr key={m.id}>
+                <td className={tdClass}>
+                  {m.name}
+                  {m.userId === meId ? <span className="ml-1 text-neutral-500">(you)</span> : null}
+                </td>
+                <td className={tdClass}>{m.email}</td>
+                <td className={tdClass}>{roleLabels[m.role]}</td>
+                <td className={`${tdClass} whitespace-nowrap`}>
+                  <When date={m.joinedAt} dateOnly />
+                </td>
+                {admin ? (
+                  <td className={`${tdClass} text-right`}>
+                    <Link
+                      to={`/team/members/${m.id}`}
+                      className="text-indigo-700 underline underline-offset-4"
+                    >
+                      Manage<span className="sr-only"> {m.name}</span>
+                    </Link>
+                  </td>
+                ) : null}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </ScrollArea>
+    </Card>
+  );
+}
+
+export function Invitations({
+  invitations,
+}: {
+  invitations: { id: number; email: string; role: Role; expiresAt: Date }[];
+}) {
+  return (
+    <Card title="Open invitations" id="invitations">
+      {invitations.length === 0 ? (
+        <EmptyState>No open invitations. Invite a colleague with the form on this page.</EmptyState>
+      ) : (
+        <ScrollArea label="Open invitations">
+          <table className={tableClass}>
+            <TableHead columns={["E-mail", "Role", "Link works until"]} action="Withdraw" />
+            <tbody>
+              {invitations.map((i) => (
+                <tr key={i.id}>
+                  <td className={tdClass}>{i.email}</td>
+                  <td className={tdClass}>{roleLabels[i.role]}</td>
+                  <td className={tdClass}>
+                    <When date={i.expiresAt} />
+                  </td>
+                  <td className={`${tdClass} text-right`}>
+                    <IntentButton
+                      intent="revoke-invitation"
+                      fields={{ invitationId: i.id }}
+                      tone="danger"
+                    >
+                      Withdraw<span className="sr-only"> the invitation for {i.email}</span>
+                    </IntentButton>
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </ScrollArea>
+      )}
+    </Card>
+  );
+}
+
+export function UnitsCard({ unit, canEdit }: { unit: "rpm" | "rad/s"; canEdit: boolean }) {
+  return (
+    <Card title="Amplitude unit" id="units">
+      <p className="text-sm text-neutral-600">
+        Angular-velocity amplitudes are shown in <strong>{unit}</strong> for everyone in the team.
+      </p>
+      {canEdit ? (
+        <Form method="post" className="mt-3 flex gap-2">
+          <CsrfInput />
+          <input type="hidden" name="unit" value={unit === "rpm" ? "rad/s" : "rpm"} />
+          <SubmitButton name="intent" value="set-units" tone="secondary">
+            Show in {unit === "rpm" ? "rad/s" : "rpm"}
+          </SubmitButton>
+        </Form>
+      ) : null}
+    </Card>
+  );
+}
+
+/** What each role may do, for everyone to read. */
+export function RolesCard() {
+  return (
+    <Card title="Roles">
+      <dl className="space-y-2 text-sm">
+        {ROLES.map((r) => (
+          <div key={r}>
+            <dt className="font-medium">{roleLabels[r]}</dt>
+            <dd className="text-neutral-600">{roleHints[r]}</dd>
+          </div>
+        ))}
+      </dl>
+    </Card>
+  );
+}
