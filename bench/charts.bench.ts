@@ -65,7 +65,7 @@ try {
       const ms = performance.now() - r0;
       if (r.status !== 200) throw new Error(`${path} answered ${r.status}`);
       bytes = Buffer.byteLength(r.html);
-      // The first request builds the body (then kept per analysis, chart-data.server.ts).
+      // The first request builds the body (then kept per analysis, analyses/chart-bodies.server.ts).
       if (i > 0) times.push(ms);
       else first = ms;
     }
