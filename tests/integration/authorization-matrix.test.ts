@@ -190,7 +190,10 @@ async function seedTeam(t: TestTeam, mark: string, technician: HttpClient, admin
   await admin.get("/team");
   const invitee = `invitee-${mark}@example.test`;
   const invited = await admin.post("/team", { intent: "invite", email: invitee, role: "viewer" });
-  if (invited.status !== 200) throw new Error(`invitation answered ${invited.status}`);
+  if (invited.status !== 200)
+    throw new Error(
+      `invitation answered ${invited.status}; server log:\n${server.output().slice(-3000)}`,
+    );
   const [inv] = (await pool.query("SELECT id FROM invitations WHERE email = ?", [invitee]))[0] as {
     id: number;
   }[];

@@ -10,8 +10,9 @@ export function atLeast(role: Role, needed: Role): boolean {
   return rank[role] >= rank[needed];
 }
 
-// What a role may do inside a team, beyond the one access check per request
-// (app/lib/http/access.server.ts). The data helpers keep these rules as a second guard.
+// What a role may do inside a team, for the pages' buttons and the ownership rule of share links.
+// The role itself is checked, and a refusal worded, once per request by requireAccess
+// (app/lib/http/access.server.ts); the data helpers apply only the ownership rules.
 
 /** Engineers and admins make share links. */
 export function canCreateShares(role: Role): boolean {
