@@ -36,8 +36,7 @@ export const action = apiRoute(async ({ request, params }: Route.ActionArgs) => 
     throw error;
   }
   const [added] = uploaded.added;
-  const data = vehicleData(uploaded.teamId);
-  const log = await data.log(added!.id);
+  const log = added!.log;
   return Response.json(
     { log: { ...logJson(log), duplicateOf: added!.duplicateOf } },
     { status: 202, headers: { ...noStore, Location: `/api/v1/logs/${log.id}` } },

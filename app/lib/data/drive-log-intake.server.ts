@@ -8,10 +8,11 @@ import { enqueueAnalysis } from "../analyses/queue.server";
 import { wakeRunners } from "../analyses/runner.server";
 import { jobSettingsFor } from "../analyses/settings";
 import { db } from "../infra/db.server";
-import { vehicleData } from "./vehicles.server";
+import { vehicleData, type DriveLogRow } from "./vehicles.server";
 
 type AddLogsArgs = Parameters<ReturnType<typeof vehicleData>["addLogs"]>[0];
-type Added = { id: number; duplicateOf: number | null };
+/** A recorded drive log: its row as committed (status queued) and the earlier log of the same bytes. */
+type Added = { id: number; duplicateOf: number | null; log: DriveLogRow };
 
 /** Records the files as drive logs of `args.vehicle` and queues their analyses. */
 export async function recordDriveLogs(teamId: number, args: AddLogsArgs): Promise<Added[]> {
@@ -26,8 +27,14 @@ export async function recordDriveLogs(teamId: number, args: AddLogsArgs): Promis
     }
     return rows;
   });
+  // Read before the wake, so the answer shows the drive log as recorded (queued), not whatever
+  // stage the runner has reached by the time the caller looks.
+  const data = vehicleData(teamId);
+  const recorded = await Promise.all(
+    added.map(async (row) => ({ ...row, log: await data.log(row.id) })),
+  );
   wakeRunners();
-  return added;
+  return recorded;
 }
 
 /** recordDriveLogs for one file. */

@@ -122,32 +122,28 @@ export function pageRoute<A extends { request: Request }, R>(
   };
 }
 
-/** A panel's resource route: refusals are returned as JSON; a sign-in redirect is thrown. */
-export function panelRoute<A extends { request: Request }>(
-  handler: Handler<A, Response>,
-): (args: A) => Promise<Response> {
-  return async (args) => {
-    try {
-      return await handler(args);
-    } catch (error) {
-      const answer = await answerFor(error, args.request, "panel");
-      if (!answer || (answer.status >= 300 && answer.status < 400)) throw answer ?? error;
-      return answer;
-    }
+/**
+ * A JSON route's loader or action: refusals are returned in the one JSON shape; a redirect (a
+ * panel's signed-out GET goes to sign-in) is thrown, as React Router expects.
+ */
+function jsonRoute(edge: "panel" | "api") {
+  return <A extends { request: Request }>(
+    handler: Handler<A, Response>,
+  ): ((args: A) => Promise<Response>) => {
+    return async (args) => {
+      try {
+        return await handler(args);
+      } catch (error) {
+        const answer = await answerFor(error, args.request, edge);
+        if (!answer || (answer.status >= 300 && answer.status < 400)) throw answer ?? error;
+        return answer;
+      }
+    };
   };
 }
 
+/** A panel's resource route (the share panel, comments). */
+export const panelRoute = jsonRoute("panel");
+
 /** An /api/v1 loader or action: every refusal leaves in the API's JSON shape. */
-export function apiRoute<A extends { request: Request }>(
-  handler: Handler<A, Response>,
-): (args: A) => Promise<Response> {
-  return async (args) => {
-    try {
-      return await handler(args);
-    } catch (error) {
-      const answer = await answerFor(error, args.request, "api");
-      if (answer) return answer;
-      throw error;
-    }
-  };
-}
+export const apiRoute = jsonRoute("api");
