@@ -80,3 +80,33 @@ export function markDatabaseDown(request: Request): void {
 export function failedOnDatabase(request: Request): boolean {
   return downRequests.has(request);
 }
+
+/**
+ * Whether an error (or one in its `cause` chain: Drizzle wraps mysql2's) is InnoDB choosing this
+ * transaction as a deadlock victim: MariaDB error 1213, ER_LOCK_DEADLOCK. The server has rolled
+ * it back whole, so running it again is safe (MariaDB's error reference: "try restarting
+ * transaction").
+ */
+export function isDeadlock(error: unknown): boolean {
+  for (let e = error as { code?: unknown; errno?: unknown; cause?: unknown } | undefined; e;) {
+    if (e.errno === 1213 || e.code === "ER_LOCK_DEADLOCK") return true;
+    e = e.cause as typeof e;
+  }
+  return false;
+}
+
+/**
+ * Runs a write transaction, again when it was a deadlock victim (up to `attempts` times in all,
+ * with a short random pause so two victims do not meet again). Two admins inviting at the same
+ * moment lock the same index gaps; one of them loses and is retried instead of answering 500.
+ */
+export async function retryOnDeadlock<T>(run: () => Promise<T>, attempts = 3): Promise<T> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await run();
+    } catch (error) {
+      if (attempt >= attempts || !isDeadlock(error)) throw error;
+      await new Promise((resolve) => setTimeout(resolve, 5 + Math.random() * 20 * attempt));
+    }
+  }
+}
