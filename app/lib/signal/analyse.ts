@@ -12,6 +12,7 @@ import { trackBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
 import { findSegments } from "./segments.ts";
+import { sourceBlock } from "./source-block.ts";
 import { pickSpectrumSegment, timeSpectrum } from "./time-spectrum.ts";
 import { speedTrace } from "./traces.ts";
 import { fitTwoMassModel } from "./two-mass-model.ts";
@@ -242,6 +243,7 @@ export function analyseDriveLog(
     timeSpectrum: spectrum,
     speedTrace: speedTrace(log.timeS, log.crankRadS, log.gearboxRadS),
     warnings: warnings.map(({ code, message }) => ({ code, message })),
+    source: sourceBlock(log),
   };
   const checked = analysisResultSchema.safeParse(result);
   onProgress?.("results", 1);

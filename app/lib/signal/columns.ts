@@ -2,7 +2,7 @@
  * Header recognition: which column is time, which is the crank side and which the gearbox
  * side, and in which unit each is written — from the names alone, always overridable.
  */
-import type { SignalIssue, SpeedUnit, TimeUnit } from "./types.ts";
+import type { ChannelName, SignalIssue, SpeedUnit, TimeUnit } from "./types.ts";
 import { parseSpeedUnit, parseTimeUnit } from "./units.ts";
 
 export type ColumnRole = "time" | "crank" | "gearbox" | "other";
@@ -12,6 +12,8 @@ export interface ColumnGuess {
   /** Unit written in the name, if any (a speed unit for speed columns, a time unit for time). */
   speedUnit?: SpeedUnit;
   timeUnit?: TimeUnit;
+  /** The team's own channel names, applied before the built-in recognition. */
+  channelNames?: ChannelName[];
 }
 
 /** Options that override what the header says. Column names match case- and space-insensitively. */

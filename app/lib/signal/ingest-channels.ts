@@ -74,6 +74,9 @@ export function buildDriveLog(ch: Channels, n: number, header: LogHeader): Drive
       timeUnit: m.timeUnit,
       crankUnit: m.crankUnit,
       gearboxUnit: m.gearboxUnit,
+      format: "csv",
+      metadata: [],
+      repairs: [],
     },
   };
   m.extra.forEach((e, k) => {

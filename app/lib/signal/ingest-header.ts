@@ -20,6 +20,8 @@ export interface HeaderOptions extends ColumnOptions {
   delimiter?: "," | ";" | "\t";
   /** Decimal mark; detected from the first data lines when not given ("." with a "," delimiter). */
   decimal?: "." | ",";
+  /** The header's file line (1-based), when the user picks it instead of the detection. */
+  headerRow?: number;
 }
 
 /** What the head of the file decided, for the row scanner and the channels. */

@@ -2,10 +2,14 @@
  * Node adapter for the ingest (the only Node-specific part of it): reads a file or a readable
  * chunk by chunk into createIngester, so a large log never sits in memory as text.
  */
+import { createReadStream } from "node:fs";
 import { open, stat } from "node:fs/promises";
 import type { Readable } from "node:stream";
+import { listCsvChannels } from "./csv-channels.ts";
+import { sniffFormat } from "./format.ts";
 import { createIngester, type IngestOptions } from "./ingest.ts";
-import type { DriveLog, Outcome } from "./types.ts";
+import { listMdf4Channels } from "./mdf4/index.ts";
+import type { ChannelInfo, DriveLog, Outcome } from "./types.ts";
 
 /**
  * Read size in bytes. On the bench log 256 KiB was as fast as 1 MiB (64 KiB was slower), and
@@ -84,4 +88,32 @@ export async function ingestFile(
     await fh?.close();
   }
   return ingester.finish();
+}
+
+/**
+ * Every channel of a drive log file (CSV or MDF4, told by content) with its unit, rate, count,
+ * range and recognised role: the channel picker's and `--list-channels`' source.
+ */
+export async function listChannelsOfFile(
+  path: string,
+  options: IngestOptions = {},
+): Promise<Outcome<ChannelInfo[]>> {
+  const head = Buffer.alloc(8);
+  try {
+    const fh = await open(path, "r");
+    try {
+      await fh.read(head, 0, 8, 0);
+    } finally {
+      await fh.close();
+    }
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    const error =
+      code === "ENOENT"
+        ? { code: "file_not_found", message: `no such file: ${path}` }
+        : { code: "read_failed", message: `cannot open ${path} (${code ?? "error"})` };
+    return { ok: false, error, warnings: [] };
+  }
+  if (sniffFormat(head) === "mdf4") return listMdf4Channels(path, options);
+  return listCsvChannels(createReadStream(path), options);
 }

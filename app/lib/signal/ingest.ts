@@ -16,16 +16,16 @@
  * length, clipping); 4. build the channels and the DriveLog (ingest-channels.ts).
  */
 import { buildDriveLog, createChannels, type Channels } from "./ingest-channels.ts";
-import { checkLog, type CheckOptions } from "./ingest-checks.ts";
+import { finishLog, type FinishOptions } from "./ingest-finish.ts";
 import { readHeader, type HeaderOptions, type LogHeader } from "./ingest-header.ts";
 import { createRowReader, type RowReader } from "./ingest-rows.ts";
 import { parseNumberText, SAMPLE_LINES } from "./ingest-scan.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
 export { parseNumberText };
-export type { CheckOptions };
+export type { FinishOptions };
 
-export interface IngestOptions extends HeaderOptions, CheckOptions {
+export interface IngestOptions extends HeaderOptions, FinishOptions {
   /** Highest plausible speed of either channel in rpm (default 12000). */
   maxRpm?: number;
   /** Lowest plausible speed in rpm (default −20: sensor noise at standstill is not an error). */
@@ -124,11 +124,8 @@ export function createIngester(options: IngestOptions = {}): Ingester {
     const { rows: n, skipped } = reader;
     const firstDataLine = header.headerLine + 1;
     const rowOf = (i: number) => firstDataLine + i + skipped.filter((k) => k <= i).length;
-    const log = buildDriveLog(channels, n, header);
-    const checked = checkLog(log, rowOf, options);
-    warnings.push(...checked.warnings);
-    if (checked.error) return { ok: false, error: checked.error, warnings };
-    return { ok: true, value: log, warnings };
+    const finished = finishLog(buildDriveLog(channels, n, header), rowOf, options);
+    return { ...finished, warnings: [...warnings, ...finished.warnings] };
   }
 
   return { push, finish };

@@ -151,6 +151,33 @@ export const analysisResultSchema = z.object({
     .nullable()
     .default(null),
   warnings: z.array(z.object({ code: z.string(), message: z.string() })),
+  /**
+   * Where the numbers came from (issue 14): the file's format, the channels read, the file's own
+   * metadata, every repair made to the samples and the sections analysed. Absent in results
+   * stored before it existed.
+   */
+  source: z
+    .object({
+      format: z.enum(["csv", "mdf4"]),
+      channels: z.object({ time: z.string(), crank: z.string(), gearbox: z.string() }),
+      units: z.object({ time: z.string(), crank: z.string(), gearbox: z.string() }),
+      metadata: z.array(z.object({ key: z.string(), value: z.string() })),
+      repairs: z.array(
+        z.object({
+          code: z.string(),
+          message: z.string(),
+          count: z.int().nonnegative(),
+          rows: z.array(z.object({ from: z.int(), to: z.int() })),
+          fromS: z.number(),
+          toS: z.number(),
+        }),
+      ),
+      /** Stretches analysed separately (a gap too long to repair lies between two), s. */
+      sections: z.array(
+        z.object({ startS: z.number(), endS: z.number(), samples: z.int().positive() }),
+      ),
+    })
+    .optional(),
 });
 
 export type AnalysisResult = z.infer<typeof analysisResultSchema>;
