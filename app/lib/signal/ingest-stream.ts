@@ -117,3 +117,15 @@ export async function listChannelsOfFile(
   if (sniffFormat(head) === "mdf4") return listMdf4Channels(path, options);
   return listCsvChannels(createReadStream(path), options);
 }
+
+/**
+ * The channel list of a drive log read from a readable (the server's stored file): CSV in one
+ * streaming pass; MDF4 needs random access, so it is spooled to a temporary file first (STUB:
+ * MDF4 lands with the reader).
+ */
+export async function listChannelsOfStream(
+  readable: Readable | AsyncIterable<string | Uint8Array>,
+  options: IngestOptions = {},
+): Promise<Outcome<ChannelInfo[]>> {
+  return listCsvChannels(readable as AsyncIterable<string | Uint8Array>, options);
+}
