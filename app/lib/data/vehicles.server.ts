@@ -7,6 +7,8 @@ import { jobSettingsFor, type AnalysisOverrides, type JobSettings } from "../ana
 import { db } from "../infra/db.server";
 import type { AppliedMapping, IngestMapping } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";
+import type { TeamIngestSettings } from "../domain/channel-names";
+import { teamData } from "./team-data.server";
 import type { StoredBlob } from "../infra/storage.server";
 import type { LogMetadata, VehicleInput } from "../domain/vehicle-schema";
 
@@ -53,8 +55,8 @@ export function vehicleData(teamId: number) {
     return { vehicle: v, log: l };
   }
 
-  /** The columns the drive log's last finished run read (and where they came from), or null. */
-  async function appliedColumns(logId: number): Promise<AppliedMapping | null> {
+  /** The settings of the drive log's last finished job, or null. */
+  async function lastJobSettings(logId: number): Promise<JobSettings | null> {
     const [job] = await db
       .select({ settings: analysisJobs.settings })
       .from(analysisJobs)
@@ -67,8 +69,13 @@ export function vehicleData(teamId: number) {
       )
       .orderBy(desc(analysisJobs.id))
       .limit(1);
-    if (!job) return null;
-    const settings = job.settings as unknown as JobSettings;
+    return job ? (job.settings as unknown as JobSettings) : null;
+  }
+
+  /** The columns the drive log's last finished run read (and where they came from), or null. */
+  async function appliedColumns(logId: number): Promise<AppliedMapping | null> {
+    const settings = await lastJobSettings(logId);
+    if (!settings) return null;
     if (settings.applied) return settings.applied;
     // Jobs queued before the choice was recorded ran with `ingest` as it stood.
     const mapping = settings.ingest ?? {};
@@ -291,10 +298,17 @@ export function vehicleData(teamId: number) {
       const v = await vehicle(row.vehicleId);
       const last = mapping ? null : await appliedColumns(row.id);
       const chosen = mapping ?? (last?.source === "chosen" ? last.mapping : null);
-      return { teamId, driveLogId: row.id, settings: jobSettingsFor(v, chosen, overrides) };
+      // A re-analysis reads with the team's channel names as they are now (and records them).
+      const team = await teamData(teamId).ingestSettings();
+      return { teamId, driveLogId: row.id, settings: jobSettingsFor(v, chosen, overrides, team) };
     },
 
     appliedColumns,
+
+    /** The team's channel names and strict flag the last finished run used; null for older runs. */
+    async teamIngestUsed(logId: number): Promise<TeamIngestSettings | null> {
+      return (await lastJobSettings(logId))?.team ?? null;
+    },
 
     /** A drive log's analysis versions, newest first, with the settings each was made with. */
     async versions(logId: number) {
