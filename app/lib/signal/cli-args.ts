@@ -14,16 +14,21 @@ export interface CliCommand {
   analysis: AnalysisOptions;
   json: boolean;
   help: boolean;
+  /** --list-channels: print the file's channel table instead of analysing it. */
+  listChannels?: boolean;
 }
 
 export const USAGE = `usage: npm run -s analyse -- FILE [--cylinders N] [--stroke 4|2] [--order Q]
        [--time COL] [--crank COL] [--gearbox COL] [--unit rpm|rad/s|deg/s|rev/s]
        [--crank-unit U] [--gearbox-unit U] [--time-unit s|ms] [--rattle-limit RAD_PER_S2]
        [--bin-rpm N] [--json]
+       npm run -s analyse -- FILE --list-channels [--time COL] [--crank COL] [--gearbox COL]
 
 Reads a CSV drive log (time, crank-side and gearbox-side angular velocity), tracks the
 orders against the crank, and prints the isolation at the firing order, the damper
-resonance and the idle rattle check. --json prints the full result document instead.`;
+resonance and the idle rattle check. --json prints the full result document instead.
+--list-channels prints every channel of the file (CSV or ASAM MDF4): name, unit, group, rate,
+samples, range and the role it is recognised as, then exits.`;
 
 const OPTIONS = {
   cylinders: { type: "string" },
@@ -39,6 +44,7 @@ const OPTIONS = {
   "rattle-limit": { type: "string" },
   "bin-rpm": { type: "string" },
   json: { type: "boolean" },
+  "list-channels": { type: "boolean" },
   help: { type: "boolean", short: "h" },
 } as const;
 
@@ -149,6 +155,7 @@ export function parseCliArgs(argv: string[]): Parsed {
       analysis,
       json: v.json === true,
       help: false,
+      ...(v["list-channels"] === true ? { listChannels: true } : {}),
     },
   };
 }
