@@ -27,33 +27,40 @@ export function channelKey(name: string): string {
   return name.trim().toLowerCase().replace(/\s+/g, "");
 }
 
-export const channelNameSchema = z
-  .object({
-    name: z
-      .string({ error: "Enter the channel's name as the logger writes it." })
-      .trim()
-      .min(1, "Enter the channel's name as the logger writes it.")
-      .max(120, "A channel name has at most 120 characters."),
-    role: z.enum(CHANNEL_ROLES, { error: "Choose time, crank-side or gearbox-input speed." }),
-    unit: z.preprocess(blank, z.enum([...timeUnits, ...speedUnits]).optional()),
-  })
-  .superRefine((c, ctx) => {
-    // A time channel in rpm (or a speed in ms) would be read wrongly on every upload.
-    const fits =
-      c.unit === undefined ||
-      (c.role === "time"
-        ? (timeUnits as readonly string[]).includes(c.unit)
-        : (speedUnits as readonly string[]).includes(c.unit));
-    if (!fits)
-      ctx.addIssue({
-        code: "custom",
-        path: ["unit"],
-        message:
-          c.role === "time"
-            ? "A time channel is in s or ms."
-            : `A speed channel is in ${SPEED_UNITS.join(", ")}.`,
-      });
-  });
+const channelNameShape = {
+  name: z
+    .string({ error: "Enter the channel's name as the logger writes it." })
+    .trim()
+    .min(1, "Enter the channel's name as the logger writes it.")
+    .max(120, "A channel name has at most 120 characters."),
+  role: z.enum(CHANNEL_ROLES, { error: "Choose time, crank-side or gearbox-input speed." }),
+  unit: z.preprocess(blank, z.enum([...timeUnits, ...speedUnits]).optional()),
+};
+
+// A time channel in rpm (or a speed in ms) would be read wrongly on every upload.
+function unitFits(c: { role: ChannelRole; unit?: string }, ctx: z.RefinementCtx) {
+  const fits =
+    c.unit === undefined ||
+    (c.role === "time"
+      ? (timeUnits as readonly string[]).includes(c.unit)
+      : (speedUnits as readonly string[]).includes(c.unit));
+  if (!fits)
+    ctx.addIssue({
+      code: "custom",
+      path: ["unit"],
+      message:
+        c.role === "time"
+          ? "A time channel is in s or ms."
+          : `A speed channel is in ${SPEED_UNITS.join(", ")}.`,
+    });
+}
+
+export const channelNameSchema = z.object(channelNameShape).superRefine(unitFits);
+
+/** The team page's form that adds one name. */
+export const addChannelNameSchema = z
+  .object({ intent: z.literal("add-channel-name"), ...channelNameShape })
+  .superRefine(unitFits);
 
 /** The whole list as stored: unique names, at most MAX_CHANNEL_NAMES. */
 export const channelNamesSchema = z
