@@ -85,7 +85,7 @@ describe("a remembered column choice", () => {
     expect(await finished(odd)).toBe("failed");
     const path = `/vehicles/${vehicleId}/logs/${odd}`;
     const page = await technician.get(path);
-    expect(page.html).toContain("Choose the columns");
+    expect(page.html).toContain("Channel chooser");
     const mapped = await technician.post(path, {
       intent: "map",
       timeColumn: "Zeit",
@@ -132,7 +132,7 @@ describe("a remembered column choice", () => {
     const before = (await vehicleData(team.id).vehicle(vehicleId)).columnMapping;
     const versions = (await vehicleData(team.id).versions(done)).length;
     const path = `/vehicles/${vehicleId}/logs/${done}`;
-    expect((await technician.get(path)).html).not.toContain("Choose the columns");
+    expect((await technician.get(path)).html).not.toContain("Channel chooser");
     // Columns that exist in the file (so only the log's state can refuse it), swapped around.
     const posted = await technician.post(path, {
       intent: "map",

@@ -7,7 +7,6 @@ import { jobSettingsFor, type AnalysisOverrides, type JobSettings } from "../ana
 import { db } from "../infra/db.server";
 import type { AppliedMapping, IngestMapping } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";
-import type { TeamIngestSettings } from "../domain/channel-names";
 import { teamData } from "./team-data.server";
 import type { StoredBlob } from "../infra/storage.server";
 import type { LogMetadata, VehicleInput } from "../domain/vehicle-schema";
@@ -21,6 +20,11 @@ export type { AnalysisOverrides, StoredAnalysis };
 const versionSettings = z.looseObject({
   revsPerBlock: z.number().optional(),
   binRpm: z.number().optional(),
+  // The team's channel names and strict flag the run read with (absent before issue 14).
+  teamChannelNames: z
+    .array(z.object({ name: z.string(), role: z.string(), unit: z.string().optional() }))
+    .optional(),
+  strictIngest: z.boolean().optional(),
 });
 
 /**
@@ -305,9 +309,33 @@ export function vehicleData(teamId: number) {
 
     appliedColumns,
 
-    /** The team's channel names and strict flag the last finished run used; null for older runs. */
-    async teamIngestUsed(logId: number): Promise<TeamIngestSettings | null> {
-      return (await lastJobSettings(logId))?.team ?? null;
+    /**
+     * Takes the file's own date and comment as the drive log's test date and notes, each only
+     * where it is still empty (checked in the update itself, so a concurrent edit is never
+     * overwritten). Returns which of the two were set.
+     */
+    async fillTestDetails(logId: number, details: { testDate?: string; notes?: string }) {
+      const row = await log(logId);
+      const set: { date: boolean; notes: boolean } = { date: false, notes: false };
+      if (details.testDate) {
+        const [r] = await db
+          .update(driveLogs)
+          .set({ testDate: details.testDate })
+          .where(
+            and(eq(driveLogs.id, row.id), eq(driveLogs.teamId, teamId), isNull(driveLogs.testDate)),
+          );
+        set.date = r.affectedRows > 0;
+      }
+      if (details.notes) {
+        const [r] = await db
+          .update(driveLogs)
+          .set({ notes: details.notes.slice(0, 5000) })
+          .where(
+            and(eq(driveLogs.id, row.id), eq(driveLogs.teamId, teamId), eq(driveLogs.notes, "")),
+          );
+        set.notes = r.affectedRows > 0;
+      }
+      return set;
     },
 
     /** A drive log's analysis versions, newest first, with the settings each was made with. */
@@ -330,6 +358,13 @@ export function vehicleData(teamId: number) {
           ...v,
           revsPerBlock: known.success ? (known.data.revsPerBlock ?? null) : null,
           binRpm: known.success ? (known.data.binRpm ?? null) : null,
+          team:
+            known.success && known.data.strictIngest !== undefined
+              ? {
+                  channelNames: known.data.teamChannelNames ?? [],
+                  strict: known.data.strictIngest,
+                }
+              : null,
         };
       });
     },
