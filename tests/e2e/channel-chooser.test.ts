@@ -1,0 +1,94 @@
+import { readFile } from "node:fs/promises";
+import { join } from "node:path";
+import type { Browser } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { repoRoot } from "../support/processes";
+import { baseUrl, launchBrowser } from "./browser";
+import { signIn, snap } from "./sign-in";
+
+// Issue 14 in Chromium against the production server: an ASAM MDF4 drive log is uploaded, the
+// channel chooser lists its channels, the two speeds are picked, and the analysis finishes.
+// The team's Logger vocabulary is edited on the team page.
+
+let browser: Browser;
+const tag = Date.now().toString(36).toUpperCase();
+
+beforeAll(async () => {
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+});
+
+describe("the channel chooser", () => {
+  it("an MDF4 upload: pick EngSpd and GbxInpShaftSpd, and the analysis is done", async () => {
+    // Written by an independent MDF4 implementation (see tests/fixtures/mdf4/ for its origin).
+    const mf4 = await readFile(join(repoRoot, "tests/fixtures/mdf4/drive-log-plain.mf4"));
+    const page = await signIn(browser, "engineer@twistlog.test");
+    await page.goto(`${baseUrl}/vehicles/new`);
+    await page.getByLabel("Name").fill(`Kestrel MDF4 car ${tag}`);
+    await page.getByLabel("Identifier").fill(`MF4-${tag}`);
+    await page.getByLabel("Cylinders").fill("4");
+    await page.getByRole("button", { name: "Add vehicle" }).click();
+    await page.waitForURL(/\/vehicles\/\d+$/);
+
+    const name = `kestrel-${tag}.mf4`;
+    await page
+      .locator("#upload-files")
+      .setInputFiles([{ name, mimeType: "application/octet-stream", buffer: mf4 }]);
+    const row = page.locator("fieldset", { hasText: name });
+    await expect(row.getByText("Cannot be sent").count()).resolves.toBe(0);
+    await page.getByRole("button", { name: "Upload 1 file" }).click();
+    await row.getByText(/Uploaded as/).waitFor();
+    await page
+      .getByText(new RegExp(`Analysis of ${name.replace(".", "\\.")} (finished|failed)\\.`))
+      .waitFor({ state: "attached", timeout: 60_000 });
+    await row.getByRole("link", { name: /^drive log \d+$/ }).click();
+    await page.waitForURL(/\/logs\/\d+(#.*)?$/);
+
+    await page.getByRole("heading", { name: "Channel chooser" }).waitFor();
+    // Folded when the first analysis read the file fine: open it.
+    const fold = page.locator("#mapping summary");
+    if (await fold.count()) await fold.click();
+    const crank = page.getByRole("radio", { name: "Crank: EngSpd" });
+    await crank.waitFor({ timeout: 30_000 });
+    // The filter narrows the table; a pick survives it.
+    await page.getByLabel("Filter channels").fill("GbxInp");
+    await expect(page.locator("tr[data-channel='EngSpd']").count()).resolves.toBe(0);
+    await page.getByRole("radio", { name: "Gearbox: GbxInpShaftSpd" }).check();
+    await page.getByLabel("Filter channels").fill("");
+    await crank.check();
+    await expect(crank.isChecked()).resolves.toBe(true);
+    await page.locator("[data-picked='crank']").getByText("EngSpd").waitFor();
+    await page.locator("[data-picked='gearbox']").getByText("GbxInpShaftSpd").waitFor();
+    await snap(page, "chooser-mdf4-picked");
+
+    await page.getByRole("button", { name: "Analyse with these channels" }).click();
+    await page.getByText(/The channels are set and remembered for this vehicle/).waitFor();
+    await page.getByRole("heading", { name: /^Analysis version/ }).waitFor({ timeout: 90_000 });
+    await page.getByText("Where the numbers came from").waitFor();
+    await page.locator("[data-source-format='mdf4']").waitFor();
+    await page.getByText("the crank side from “EngSpd”", { exact: false }).waitFor();
+    await snap(page, "chooser-mdf4-done");
+    await page.context().close();
+  });
+
+  it("the team's Logger vocabulary: an engineer adds and removes a channel name", async () => {
+    const page = await signIn(browser, "engineer@twistlog.test");
+    await page.goto(`${baseUrl}/team`);
+    const card = page.locator("#logger-vocabulary-title").locator("..");
+    await page.getByRole("heading", { name: "Logger vocabulary" }).waitFor();
+    const channel = `n_kw_${tag}`;
+    await page.getByLabel("Channel name").fill(channel);
+    await page.getByLabel("Read as").selectOption("crank");
+    await page.getByLabel("Unit", { exact: true }).selectOption("rpm");
+    await page.getByRole("button", { name: "Add channel name" }).click();
+    await page.getByRole("cell", { name: channel }).waitFor();
+    await snap(page, "team-logger-vocabulary");
+    await page.getByRole("button", { name: `Remove ${channel}` }).click();
+    await page.getByText(`“${channel}” is no longer one of the team's channel names.`).waitFor();
+    await expect(page.getByRole("cell", { name: channel }).count()).resolves.toBe(0);
+    expect(await card.count()).toBeGreaterThan(0);
+    await page.context().close();
+  });
+});
