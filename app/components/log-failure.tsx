@@ -30,9 +30,9 @@ export function Failure({ error }: { error: LogError }) {
       </p>
       <p className="mt-2 text-sm text-red-800">
         {header
-          ? "Choose the columns below and it is analysed again; the raw file is kept."
+          ? "Pick the channels in the channel chooser below and it is analysed again; the raw file is kept."
           : canChooseColumns(error)
-            ? "The raw file is kept. If a column or its unit was read wrongly, choose them below; otherwise fix the file and upload it again."
+            ? "The raw file is kept. If a channel or its unit was read wrongly, pick them in the channel chooser below; otherwise fix the file and upload it again."
             : "The raw file is kept: fix the file and upload it again, or ask an engineer to re-analyse it with other settings."}
       </p>
     </section>
