@@ -9,12 +9,13 @@ import { useQuery } from "@tanstack/react-query";
 import { useMemo, useState } from "react";
 import { Form } from "react-router";
 import type { AppliedMapping } from "~/lib/domain/drive-log-terms";
-import type { ChannelInfo, ChannelRole } from "~/lib/signal/types";
+import type { ChannelInfo } from "~/lib/signal/types";
 import { SPEED_UNITS } from "~/lib/signal/units";
 import { CsrfInput } from "./csrf-input";
 import { ErrorLine, SubmitButton } from "./form";
 import { inputClass } from "./form-fields";
-import { ChannelRows, type Picks } from "./channel-rows";
+import { ChannelRows } from "./channel-rows";
+import { initialPicks, type Picks } from "./channel-picks";
 import { PickedSpeeds } from "./picked-speeds";
 
 /** The file's channel list, fetched once per page (it is cached on the server too). */
@@ -37,18 +38,6 @@ export function useChannels(logId: number, enabled: boolean) {
       return body.channels;
     },
   });
-}
-
-/** What is preselected: the columns the last analysis used, else the recognised roles. */
-function initialPicks(channels: ChannelInfo[], applied: AppliedMapping | null): Picks {
-  const m = applied?.mapping ?? {};
-  const has = (n: string | undefined) => (n && channels.some((c) => c.name === n) ? n : undefined);
-  const byRole = (r: ChannelRole) => channels.find((c) => c.role === r)?.name ?? "";
-  return {
-    time: has(m.timeColumn) ?? byRole("time"),
-    crank: has(m.crankColumn) ?? byRole("crank"),
-    gearbox: has(m.gearboxColumn) ?? byRole("gearbox"),
-  };
 }
 
 export function ChannelChooser({

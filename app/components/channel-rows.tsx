@@ -4,9 +4,10 @@
  * channel). A picked channel hidden by the filter still goes with the form.
  */
 import type { ChannelInfo, ChannelRole } from "~/lib/signal/types";
+import type { Picks } from "./channel-picks";
 import { tableClass, tdClass, thClass } from "./page";
 
-export type Picks = Record<ChannelRole, string>;
+export type { Picks } from "./channel-picks";
 
 export const CHOOSER_ROLES: { role: ChannelRole; field: string; label: string }[] = [
   { role: "time", field: "timeChannel", label: "Time" },

@@ -1,3 +1,4 @@
+import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { readFile } from "node:fs/promises";
 import { join } from "node:path";
@@ -11,7 +12,8 @@ import { useJobTestbed } from "../support/scratch-db";
 // MariaDB and the production server. A database of its own (job runners of other files).
 const testbed = await useJobTestbed("channels");
 const { createApiToken } = await import("~/lib/data/api-tokens.server");
-const { pool } = await import("~/lib/infra/db.server");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { auditEvents } = await import("~/lib/infra/db/schema");
 const { vehicleData } = await import("~/lib/data/vehicles.server");
 const { teamData } = await import("~/lib/data/team-data.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
@@ -243,7 +245,11 @@ describe("the team's channel names (Logger vocabulary)", () => {
       { name: "Kanal1", role: "crank", unit: "rpm" },
       { name: "Kanal2", role: "gearbox", unit: "rpm" },
     ]);
-    expect((await engineer.get("/team/audit")).html).toContain("Kanal1");
+    const audited = await db
+      .select({ detail: auditEvents.detail })
+      .from(auditEvents)
+      .where(eq(auditEvents.teamId, team.id));
+    expect(audited.map((a) => a.detail)).toContain("channel name “Kanal1” → crank in rpm");
 
     // The logger's names are read by the team's vocabulary alone, and the run keeps what it used.
     const vehicle = await createVehicle();

@@ -158,16 +158,12 @@ describe("a remembered column choice", () => {
     });
     const page = await technician.get(`/vehicles/${vehicleId}/logs/${bad}`);
     expect(page.html).toContain('data-columns-used="remembered"');
-    // Each select starts at the column used, not at "Recognise from the header".
-    for (const [field, column] of [
-      ["timeColumn", "Zeit"],
-      ["crankColumn", "Kanal1"],
-      ["gearboxColumn", "Kanal2"],
-    ]) {
-      const select = new RegExp(`<select[^>]*name="${field}"[^>]*>(.*?)</select>`, "s").exec(
-        page.html,
-      )?.[1];
-      expect(select).toMatch(new RegExp(`<option value="${column}" selected="">`));
-    }
+    // The channel chooser starts from the columns that run used (initialPicks, unit-tested in
+    // tests/unit/channel-picks.test.ts), which the page hands it as `applied`.
+    expect(await vehicleData(team.id).appliedColumns(bad)).toMatchObject({
+      source: "remembered",
+      mapping: { timeColumn: "Zeit", crankColumn: "Kanal1", gearboxColumn: "Kanal2" },
+    });
+    expect(page.html).toContain("Channel chooser");
   });
 });
