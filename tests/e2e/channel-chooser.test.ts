@@ -83,11 +83,11 @@ describe("the channel chooser", () => {
     await page.getByLabel("Read as").selectOption("crank");
     await page.getByLabel("Unit", { exact: true }).selectOption("rpm");
     await page.getByRole("button", { name: "Add channel name" }).click();
-    await page.getByRole("cell", { name: channel }).waitFor();
+    await page.getByRole("cell", { name: channel, exact: true }).waitFor();
     await snap(page, "team-logger-vocabulary");
     await page.getByRole("button", { name: `Remove ${channel}` }).click();
     await page.getByText(`“${channel}” is no longer one of the team's channel names.`).waitFor();
-    await expect(page.getByRole("cell", { name: channel }).count()).resolves.toBe(0);
+    await expect(page.getByRole("cell", { name: channel, exact: true }).count()).resolves.toBe(0);
     expect(await card.count()).toBeGreaterThan(0);
     await page.context().close();
   });
