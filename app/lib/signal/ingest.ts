@@ -17,9 +17,16 @@
  */
 import { buildDriveLog, createChannels, type Channels } from "./ingest-channels.ts";
 import { finishLog, type FinishOptions } from "./ingest-finish.ts";
-import { readHeader, type HeaderOptions, type LogHeader } from "./ingest-header.ts";
+import {
+  HEAD_MAX_BYTES,
+  HEAD_MAX_LINES,
+  readHeader,
+  type HeaderOptions,
+  type LogHeader,
+} from "./ingest-header.ts";
 import { createRowReader, type RowReader } from "./ingest-rows.ts";
-import { parseNumberText, SAMPLE_LINES } from "./ingest-scan.ts";
+import { parseNumberText } from "./ingest-scan.ts";
+import { rateMismatch } from "./stated-rate.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
 export { parseNumberText };
@@ -51,34 +58,50 @@ export function createIngester(options: IngestOptions = {}): Ingester {
   let header: LogHeader | undefined;
   let channels: Channels | undefined;
   let reader: RowReader | undefined;
-  let head = true; // still collecting the first lines, before the header is decided
+  // The head (preamble, header, units row, first data rows) is collected until it can be
+  // decided: tried after 16 lines, then after twice as many each time, so tiny pushes stay
+  // linear; at HEAD_MAX_BYTES or HEAD_MAX_LINES it is decided on what it holds.
+  let head = true;
   let headParts: Uint8Array[] = [];
   let headBytes = 0;
   let headLines = 0;
-  const takeHead = (): Uint8Array => {
+  let nextTry = 16;
+  const joinHead = (): Uint8Array => {
+    if (headParts.length === 1) return headParts[0] as Uint8Array;
     const all = new Uint8Array(headBytes);
     let at = 0;
     for (const part of headParts) {
       all.set(part, at);
       at += part.length;
     }
-    head = false;
-    headParts = [];
+    headParts = [all];
     return all;
   };
   const failed = () => error ?? reader?.error;
 
-  function startData(prefix: Uint8Array, atEnd: boolean): void {
+  /** Tries to decide the head; false when it needs more lines. */
+  function startData(atEnd: boolean): boolean {
+    const prefix = joinHead();
     const read = readHeader(prefix, atEnd, options);
+    if (read.ok === "more") return false;
+    head = false;
+    headParts = [];
     if (!read.ok) {
       error = read.error;
-      return;
+      return true;
     }
     header = read.value;
     warnings.push(...header.warnings);
     channels = createChannels(header, options.sizeHintBytes);
-    reader = createRowReader(header, channels, limits, warnings);
+    // The row reader counts file lines from the line before the data (the units row, if any).
+    reader = createRowReader(
+      { ...header, headerLine: header.lastHeadLine },
+      channels,
+      limits,
+      warnings,
+    );
     reader.feed(prefix.subarray(header.dataStart), atEnd);
+    return true;
   }
 
   function push(chunk: string | Uint8Array): void {
@@ -93,26 +116,25 @@ export function createIngester(options: IngestOptions = {}): Ingester {
       // Pieces are kept in a list (not concatenated per push) so tiny pushes stay linear.
       headParts.push(bytes.slice()); // a copy: the caller may reuse its buffer
       headBytes += bytes.length;
-      for (
-        let i = bytes.indexOf(10);
-        i >= 0 && headLines <= SAMPLE_LINES;
-        i = bytes.indexOf(10, i + 1)
-      )
+      for (let i = bytes.indexOf(10); i >= 0 && headLines < nextTry; i = bytes.indexOf(10, i + 1))
         headLines++;
-      if (headLines > SAMPLE_LINES || headBytes > 1 << 16) startData(takeHead(), false);
+      if (headLines >= nextTry || headBytes >= HEAD_MAX_BYTES) {
+        // A full window always decides (ingest-header.ts), so "more" means: wait for lines.
+        if (!startData(false)) nextTry = Math.min(nextTry * 2, HEAD_MAX_LINES + 1);
+      }
       return;
     }
     reader?.feed(bytes, false);
   }
 
   function finish(): Outcome<DriveLog> {
-    if (!failed() && head) startData(takeHead(), true);
+    if (!failed() && head) startData(true);
     else if (!failed()) reader?.feed(new Uint8Array(0), true);
     if (!failed() && header && reader?.rows === 0)
       error = {
         code: "no_data_rows",
         message: "the file has a header but no data rows",
-        row: header.headerLine + 1,
+        row: header.lastHeadLine + 1,
       };
     const problem = failed();
     if (problem || !header || !channels || !reader)
@@ -122,10 +144,11 @@ export function createIngester(options: IngestOptions = {}): Ingester {
         warnings,
       };
     const { rows: n, skipped } = reader;
-    const firstDataLine = header.headerLine + 1;
+    const firstDataLine = header.lastHeadLine + 1;
     const rowOf = (i: number) => firstDataLine + i + skipped.filter((k) => k <= i).length;
     const finished = finishLog(buildDriveLog(channels, n, header), rowOf, options);
-    return { ...finished, warnings: [...warnings, ...finished.warnings] };
+    const stated = finished.ok ? rateMismatch(header.statedRateHz, finished.value) : [];
+    return { ...finished, warnings: [...warnings, ...finished.warnings, ...stated] };
   }
 
   return { push, finish };
