@@ -213,13 +213,17 @@ export function resolveColumns(
  * it names is not in this header, none of it applies and the header is recognised as usual (a
  * choice made for one odd file must not break the next, ordinary one). A remembered unit goes
  * with a column the choice names; for a channel left to the header it only fills in a unit that
- * the recognised column's name does not give (the header's own unit always wins).
+ * the recognised column's name (or units row) does not give (the file's own unit always wins).
  */
-export function fitRemembered(headers: string[], remembered: ColumnOptions): ColumnOptions | null {
+export function fitRemembered(
+  headers: string[],
+  remembered: ColumnOptions,
+  units: readonly (string | null | undefined)[] = [],
+): ColumnOptions | null {
   const has = (name: string) => headers.some((h) => norm(h) === norm(name));
   const named = [remembered.timeColumn, remembered.crankColumn, remembered.gearboxColumn];
   if (named.some((n) => n !== undefined && !has(n))) return null;
-  const guesses = headers.map(recogniseColumn);
+  const guesses = namesWithUnits(headers, units).map(recogniseColumn);
   const headerUnit = (role: "time" | "crank" | "gearbox") =>
     guesses.some((g) => g.role === role && (role === "time" ? g.timeUnit : g.speedUnit));
   const fitted: ColumnOptions = {};

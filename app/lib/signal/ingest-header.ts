@@ -177,20 +177,14 @@ export function locateHead(
   };
 }
 
-/**
- * Reads the header from `prefix` (see locateHead) and resolves its columns with the options.
- * The first problem comes back as a value, with the header's row.
- */
-export function readHeader(
-  prefix: Uint8Array,
-  atEnd: boolean,
+/** The head's columns resolved with the options; a problem carries the header's row. */
+export function resolveHead(
+  head: CsvHead,
   options: HeaderOptions,
-): HeadOutcome<LogHeader> {
-  const head = locateHead(prefix, atEnd, options);
-  if (head.ok !== true) return head;
-  const { headers, units, headerLine } = head.value;
+): { ok: true; value: LogHeader } | { ok: false; error: SignalIssue } {
+  const { headers, units, headerLine } = head;
   const resolved = resolveColumns(headers, options, units);
   if (!resolved.ok) return { ok: false, error: { ...resolved.error, row: headerLine } };
   const warnings = resolved.warnings.map((w) => ({ ...w, row: headerLine }));
-  return { ok: true, value: { ...head.value, map: resolved.map, warnings } };
+  return { ok: true, value: { ...head, map: resolved.map, warnings } };
 }

@@ -17,13 +17,8 @@
  */
 import { buildDriveLog, createChannels, type Channels } from "./ingest-channels.ts";
 import { finishLog, type FinishOptions } from "./ingest-finish.ts";
-import {
-  HEAD_MAX_BYTES,
-  HEAD_MAX_LINES,
-  readHeader,
-  type HeaderOptions,
-  type LogHeader,
-} from "./ingest-header.ts";
+import { createHeadCollector, type HeadResult } from "./csv-head.ts";
+import { resolveHead, type HeaderOptions, type LogHeader } from "./ingest-header.ts";
 import { createRowReader, type RowReader } from "./ingest-rows.ts";
 import { parseNumberText } from "./ingest-scan.ts";
 import { rateMismatch } from "./stated-rate.ts";
@@ -59,49 +54,26 @@ export function createIngester(options: IngestOptions = {}): Ingester {
   let channels: Channels | undefined;
   let reader: RowReader | undefined;
   // The head (preamble, header, units row, first data rows) is collected until it can be
-  // decided: tried after 16 lines, then after twice as many each time, so tiny pushes stay
-  // linear; at HEAD_MAX_BYTES or HEAD_MAX_LINES it is decided on what it holds.
+  // decided (csv-head.ts); then the rows go straight to the row reader.
+  const collector = createHeadCollector(options);
   let head = true;
-  let headParts: Uint8Array[] = [];
-  let headBytes = 0;
-  let headLines = 0;
-  let nextTry = 16;
-  const joinHead = (): Uint8Array => {
-    if (headParts.length === 1) return headParts[0] as Uint8Array;
-    const all = new Uint8Array(headBytes);
-    let at = 0;
-    for (const part of headParts) {
-      all.set(part, at);
-      at += part.length;
-    }
-    headParts = [all];
-    return all;
-  };
   const failed = () => error ?? reader?.error;
 
-  /** Tries to decide the head; false when it needs more lines. */
-  function startData(atEnd: boolean): boolean {
-    const prefix = joinHead();
-    const read = readHeader(prefix, atEnd, options);
-    if (read.ok === "more") return false;
+  function startData(read: HeadResult, atEnd: boolean): void {
     head = false;
-    headParts = [];
-    if (!read.ok) {
-      error = read.error;
-      return true;
+    const prefix = collector.take();
+    const resolved = read.ok ? resolveHead(read.value, options) : read;
+    if (!resolved.ok) {
+      error = resolved.error;
+      return;
     }
-    header = read.value;
+    header = resolved.value;
     warnings.push(...header.warnings);
     channels = createChannels(header, options.sizeHintBytes);
     // The row reader counts file lines from the line before the data (the units row, if any).
-    reader = createRowReader(
-      { ...header, headerLine: header.lastHeadLine },
-      channels,
-      limits,
-      warnings,
-    );
+    const rowsFrom = { ...header, headerLine: header.lastHeadLine };
+    reader = createRowReader(rowsFrom, channels, limits, warnings);
     reader.feed(prefix.subarray(header.dataStart), atEnd);
-    return true;
   }
 
   function push(chunk: string | Uint8Array): void {
@@ -113,22 +85,15 @@ export function createIngester(options: IngestOptions = {}): Ingester {
         ? new TextEncoder().encode(chunk)
         : new Uint8Array(chunk.buffer, chunk.byteOffset, chunk.byteLength);
     if (head) {
-      // Pieces are kept in a list (not concatenated per push) so tiny pushes stay linear.
-      headParts.push(bytes.slice()); // a copy: the caller may reuse its buffer
-      headBytes += bytes.length;
-      for (let i = bytes.indexOf(10); i >= 0 && headLines < nextTry; i = bytes.indexOf(10, i + 1))
-        headLines++;
-      if (headLines >= nextTry || headBytes >= HEAD_MAX_BYTES) {
-        // A full window always decides (ingest-header.ts), so "more" means: wait for lines.
-        if (!startData(false)) nextTry = Math.min(nextTry * 2, HEAD_MAX_LINES + 1);
-      }
+      const read = collector.push(bytes);
+      if (read) startData(read, false);
       return;
     }
     reader?.feed(bytes, false);
   }
 
   function finish(): Outcome<DriveLog> {
-    if (!failed() && head) startData(true);
+    if (!failed() && head) startData(collector.finish(), true);
     else if (!failed()) reader?.feed(new Uint8Array(0), true);
     if (!failed() && header && reader?.rows === 0)
       error = {
