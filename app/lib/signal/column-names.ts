@@ -75,6 +75,11 @@ function unitText(name: string): { unit: string; rest: string } | undefined {
   return undefined;
 }
 
+/** A name without the unit written in it: "n_kw [rpm]" → "n_kw". */
+export function nameWithoutUnit(name: string): string {
+  return unitText(name)?.rest ?? name;
+}
+
 /**
  * The unit a name states, whatever its role: "n_kw [1/min]" states rpm though the built-in
  * words do not know "n_kw" (the team's name or an explicit column gives it a role).

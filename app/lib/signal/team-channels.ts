@@ -1,8 +1,10 @@
 /**
  * A team's own channel names (ColumnOptions.channelNames, a team setting): the role and unit
  * a team gives one of its loggers' names. Matched like the column overrides, ignoring case and
- * extra spaces, so "N_KW " is the team's "n_kw".
+ * extra spaces, so "N_KW " is the team's "n_kw"; a unit in the header ("n_kw [rpm]") does not
+ * stop the match.
  */
+import { nameWithoutUnit } from "./column-names.ts";
 import type { ChannelName, ChannelRole, SpeedUnit, TimeUnit } from "./types.ts";
 import { parseSpeedUnit, parseTimeUnit } from "./units.ts";
 
@@ -21,8 +23,8 @@ export function teamChannel(
   names: readonly ChannelName[] | undefined,
 ): TeamChannel | undefined {
   if (!names || names.length === 0) return undefined;
-  const key = norm(header);
-  const hit = names.find((n) => norm(n.name) === key);
+  const keys = [norm(header), norm(nameWithoutUnit(header))];
+  const hit = names.find((n) => keys.includes(norm(n.name)));
   if (!hit) return undefined;
   const unit = hit.unit ?? "";
   if (hit.role === "time") {
