@@ -36,10 +36,11 @@ describe("the header of a stored drive log", () => {
     });
     // A remembered unit only fills in a unit the file does not give: here its units row does.
     const stated = "Rate = 5 kHz\ntime,crank,gearbox\ns,rpm,rpm\n0,800,800\n0.001,801,799\n";
-    await expect(chooseColumns({}, { unit: "rad/s" }, open(stated))).resolves.toEqual({
+    const radS = { crankUnit: "rad/s", gearboxUnit: "rad/s" } as const;
+    await expect(chooseColumns({}, radS, open(stated))).resolves.toEqual({
       source: "header",
       mapping: {},
-      skipped: { unit: "rad/s" },
+      skipped: radS,
     });
   });
   it("is null for a file without a text line", async () => {

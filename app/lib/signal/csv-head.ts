@@ -86,7 +86,7 @@ const asBytes = (chunk: string | Uint8Array): Uint8Array =>
  * ends (destroys) a Node readable. `prefix` holds the bytes read.
  */
 export async function readCsvHead(
-  chunks: AsyncIterable<string | Uint8Array>,
+  chunks: AsyncIterable<string | Uint8Array> | Iterable<string | Uint8Array>,
   options: HeaderOptions = {},
   dataLines = 0,
 ): Promise<{ head: HeadResult; prefix: Uint8Array }> {

@@ -9,8 +9,10 @@
  * is conservative: any field it is not sure of (exponent, spaces, more than 15 digits, text)
  * falls back to the careful path, and the tests hold it against papaparse + Number().
  *
- * Every problem is a value with a code, a row (1-based file line, header = 1) and a column.
- * This file drives the steps chunk by chunk: 1. read the header (ingest-header.ts); 2. scan the
+ * Every problem is a value with a code, a row (1-based file line, preamble lines counted) and a
+ * column.
+ * This file drives the steps chunk by chunk: 1. read the head — a logger's preamble, the header
+ * and a units row under it (csv-head.ts, ingest-header.ts, ingest-preamble.ts); 2. scan the
  * rows (ingest-rows.ts, with the byte scanner in ingest-scan.ts); 3. check each row
  * (ingest-row-checks.ts) and, after the last, the whole log (ingest-checks.ts: sampling,
  * length, clipping); 4. build the channels and the DriveLog (ingest-channels.ts).
