@@ -76,6 +76,20 @@ describe("listCsvChannels", () => {
     expect(r.value.map((c) => c.role)).toEqual(["time", null, null, null, null]);
   });
 
+  it("reads quoted cells as the ingest does", async () => {
+    const quoted = 'time [s],"crank [rpm]",gearbox [rpm]\n0,"800.5",790\n0.001,"801.5",791\n';
+    const r = await listCsvChannels(chunks(quoted, 7));
+    if (!r.ok) throw new Error(r.error.message);
+    expect(r.value[1]).toMatchObject({
+      name: "crank [rpm]",
+      unit: "rpm",
+      samples: 2,
+      min: 800.5,
+      max: 801.5,
+    });
+    expect(r.value[0]!.sampleRateHz).toBeCloseTo(1000, 9); // (2 − 1) / 0.001 s
+  });
+
   it("an empty file and a binary file are errors as values", async () => {
     const empty = await listCsvChannels(chunks("", 10));
     expect(empty.ok || empty.error.code).toBe("empty_file");

@@ -7,7 +7,16 @@ import { namesWithUnits, resolveColumns, unitOfName, recogniseColumn } from "./c
 import { createHeadCollector, type HeadResult } from "./csv-head.ts";
 import type { CsvHead } from "./ingest-header.ts";
 import type { IngestOptions } from "./ingest.ts";
-import { concat, MAX_LINE_BYTES, OK, scanLine, type RowScratch } from "./ingest-scan.ts";
+import { splitFields } from "./ingest-preamble.ts";
+import {
+  bytesToText,
+  concat,
+  MAX_LINE_BYTES,
+  OK,
+  parseNumberText,
+  scanLine,
+  type RowScratch,
+} from "./ingest-scan.ts";
 import { teamChannel } from "./team-channels.ts";
 import type { ChannelInfo, ChannelRole, Outcome, SignalIssue } from "./types.ts";
 import { S_PER_UNIT } from "./units.ts";
@@ -70,22 +79,24 @@ export async function listCsvChannels(
     line++;
     if (e > s && b[e - 1] === 13) e--;
     if (e === s || !head) return;
-    const f = scanLine(
-      b,
-      s,
-      e,
-      head.delimiter.charCodeAt(0),
-      head.decimal.charCodeAt(0),
-      head.decimal,
-      row,
-    );
+    const { delimiter, decimal } = head;
+    let f = scanLine(b, s, e, delimiter.charCodeAt(0), decimal.charCodeAt(0), decimal, row);
     if (f === -2)
       bad ??= {
         code: "not_text",
         message: `the file is not text: control bytes in row ${line}`,
         row: line,
       };
-    // A quoted line (-1) is rare in logger output; its cells are left out of the counts.
+    if (f === -1) {
+      // A quoted line: split carefully, as the ingest does (papaparse), then read each cell.
+      const fields = splitFields(bytesToText(b, s, e), delimiter, true);
+      f = Math.min(fields.length, row.vals.length);
+      for (let c = 0; c < f; c++) {
+        const r = parseNumberText(fields[c] ?? "", decimal);
+        row.vals[c] = r.value;
+        row.stat[c] = r.status;
+      }
+    }
     for (let c = 0; c < Math.min(f, stats.length); c++) {
       const v = row.vals[c] ?? NaN;
       if (row.stat[c] !== OK || !Number.isFinite(v)) continue;
