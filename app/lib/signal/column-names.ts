@@ -3,7 +3,7 @@
  * crank side and the gearbox side, and the unit written in the name. Teams add their own
  * names (team-channels.ts), which are applied first.
  */
-import type { ChannelName, SpeedUnit, TimeUnit } from "./types.ts";
+import type { SpeedUnit, TimeUnit } from "./types.ts";
 import { parseSpeedUnit, parseTimeUnit } from "./units.ts";
 
 export type ColumnRole = "time" | "crank" | "gearbox" | "other";
@@ -13,8 +13,6 @@ export interface ColumnGuess {
   /** Unit written in the name, if any (a speed unit for speed columns, a time unit for time). */
   speedUnit?: SpeedUnit;
   timeUnit?: TimeUnit;
-  /** The team's own channel names, applied before the built-in recognition. */
-  channelNames?: ChannelName[];
 }
 
 const CRANK_WORDS = new Set([
