@@ -58,7 +58,7 @@ class Tally {
       .join(", ");
     const single = rows.length === 1 && rows[0]!.from === rows[0]!.to;
     const more = rows.length > 5 || this.places > rows.length ? ", …" : "";
-    const where = `${single ? "row" : "rows"} ${listed}${more}; ${sec(this.fromS)} to ${sec(this.toS)}`;
+    const where = `${single ? "row" : "rows"} ${listed}${more}; ${this.fromS === this.toS ? `at ${sec(this.fromS)}` : `${sec(this.fromS)} to ${sec(this.toS)}`}`;
     const message = `${what} (${where}) ${how}`;
     return { code, message, count: this.count, rows, fromS: this.fromS, toS: this.toS };
   }
