@@ -1,6 +1,6 @@
 /**
- * Repairs of dropouts, missing rows and jitter, and sections at gaps too long to repair (issue
- * 14 §2), on analytic drive logs built here: a steady 3000 rpm crank with a sine ripple at the
+ * Repairs of dropouts, missing rows and jitter (issue 14 §2), on analytic drive logs
+ * (tests/support/ripple-csv.ts): a steady 3000 rpm crank with a sine ripple at the
  * firing order 2 (100 Hz) of 30 rpm 0-peak, the gearbox the same ripple at 3 rpm, sampled at
  * 2 kHz. The truth is the isolation of the unrepaired, clean log, which by the definition
  * isolation = 20·log10(crank / gearbox amplitude) (docs/signal-computation.md, step 9) is
@@ -10,44 +10,12 @@ import { describe, expect, it } from "vitest";
 import { analyseDriveLog } from "./analyse.ts";
 import { ingestCsv } from "./ingest.ts";
 import type { DriveLog } from "./types.ts";
+import { RIPPLE, rippleCsv } from "../../../tests/support/ripple-csv.ts";
 
-const FS = 2000;
-const RPM = 3000;
-const ORDER = 2;
-const HEADER = "time [s],crank speed [rpm],gearbox input speed [rpm]";
+const { fs: FS, rpm: RPM } = RIPPLE;
+const csv = rippleCsv;
 /** Data row i (0-based) is file row i + 2 (the header is row 1). */
 const rowOf = (i: number) => i + 2;
-
-/** Deterministic uniform numbers in [−0.5, 0.5) (a linear congruential generator). */
-function lcg(seed: number) {
-  let s = seed;
-  return () => {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    return s / 2 ** 32 - 0.5;
-  };
-}
-
-/**
- * The analytic log as CSV, `seconds` long. `jitter` moves every timestamp by up to ±jitter/2
- * of the interval (so intervals differ by up to ±jitter), the speeds taken at the moved time;
- * `edit(i, line)` may change or drop (null) data line i.
- */
-function csv(
-  seconds: number,
-  o: { jitter?: number; edit?: (i: number, line: string) => string | null } = {},
-): string {
-  const rnd = lcg(7);
-  const lines = [HEADER];
-  const w = (2 * Math.PI * RPM) / 60; // rad/s
-  for (let i = 0; i < seconds * FS; i++) {
-    const t = (i + (o.jitter ?? 0) * rnd()) / FS;
-    const ripple = Math.cos(ORDER * w * t);
-    const line = `${t.toFixed(7)},${(RPM + 30 * ripple).toFixed(4)},${(RPM + 3 * ripple).toFixed(4)}`;
-    const edited = o.edit ? o.edit(i, line) : line;
-    if (edited !== null) lines.push(edited);
-  }
-  return `${lines.join("\n")}\n`;
-}
 
 function ingestOk(text: string, options = {}) {
   const r = ingestCsv(text, options);
