@@ -9,6 +9,7 @@
 import { describe, expect, it } from "vitest";
 import { analyseDriveLog } from "./analyse.ts";
 import { ingestCsv } from "./ingest.ts";
+import { timeQuantum } from "./ingest-repairs.ts";
 import type { DriveLog } from "./types.ts";
 import { RIPPLE, rippleCsv } from "../../../tests/support/ripple-csv.ts";
 
@@ -137,6 +138,21 @@ describe.each([0.02, 0.2])("timestamps with ±%s jitter of the interval", (jitte
   });
   it("keep the isolation within 0.3 dB of the truth", () => {
     expect(Math.abs(isolationDb(ingestOk(text).value) - truth)).toBeLessThan(0.3);
+  });
+});
+
+describe("rounding is not jitter", () => {
+  it("1500 Hz written to 10 µs (intervals 660 and 670 µs, 1.5 % off) is read as written", () => {
+    // Every time is a whole multiple of the written step: the rounding of a uniform grid.
+    const lines = [RIPPLE.header];
+    for (let i = 0; i < 3000; i++) lines.push(`${(i / 1500).toFixed(5)},3000,2990`);
+    const r = ingestOk(`${lines.join("\n")}\n`);
+    expect(r.value.source.repairs).toEqual([]);
+    expect(r.value.timeS[1]).toBe(0.00067);
+  });
+  it("timeQuantum finds the written step", () => {
+    expect(timeQuantum(Float64Array.from([0, 0.00067, 0.00133, 0.002]))).toBeCloseTo(1e-5, 12);
+    expect(timeQuantum(Float64Array.from([0, 0.5, 1, 1.5]))).toBeCloseTo(0.1, 12);
   });
 });
 

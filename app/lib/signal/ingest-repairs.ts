@@ -5,9 +5,10 @@
  *   gapFactor × the nominal one) are filled by linear interpolation in time when the hole holds
  *   at most `limit` samples (default 10 ms or 20 samples, whichever is fewer); a longer hole
  *   splits the log into sections, and the samples of a long dropout are left out;
- * - intervals off the nominal one by more than 1 % (timestamps written rounded stay below that)
- *   and up to the tolerance (default 25 %) are jitter: the section is resampled onto a uniform
- *   grid. Farther off, and not a gap, the log is refused as irregular_sampling.
+ * - intervals off the nominal one by more than 1 % and by more than the step the times are
+ *   written in (rounding, timeQuantum; up to 5 %), and up to the tolerance (default 25 %), are
+ *   jitter: the section is resampled onto a uniform grid. Farther off, and not a gap, the log
+ *   is refused as irregular_sampling.
  * Nothing is allocated for a log with nothing to repair; dropouts alone are filled in place.
  * Every repair becomes a LogRepair (log.source.repairs) and a warning in one sentence.
  */
@@ -26,10 +27,32 @@ export interface RepairOptions extends CheckOptions {
 
 /** Intervals off the nominal one by at most this fraction are taken as written (rounding). */
 export const JITTER_FLOOR = 0.01;
+/** Largest step of the written times, as a fraction of the interval, still read as rounding. */
+const ROUNDING_MAX = 0.05;
 /** Row ranges kept per repair (types.ts LogRepair.rows). */
 const MAX_RANGES = 50;
 /** Splits named one by one; the rest are summed up in one more warning. */
 const MAX_SPLIT_WARNINGS = 10;
+
+/**
+ * The step the times are written in, s: the largest 10⁻ᵈ (d = 0 … 9) of which every one of the
+ * first 200 times (from the first) is a whole multiple, or 0. A time written rounded to that step
+ * makes an interval differ by up to one step; such a log is read as written, not resampled
+ * (1500 Hz written to 10 µs: intervals of 660 and 670 µs, 1.5 % off).
+ */
+export function timeQuantum(t: Float64Array): number {
+  const m = Math.min(t.length, 200);
+  for (let d = 0; d <= 9; d++) {
+    const f = 10 ** d;
+    let whole = true;
+    for (let i = 1; i < m && whole; i++) {
+      const x = (t[i]! - t[0]!) * f;
+      whole = Math.abs(x - Math.round(x)) < 1e-6 * Math.max(1, Math.abs(x)) + 1e-9;
+    }
+    if (whole) return 1 / f;
+  }
+  return 0;
+}
 
 const sec = (x: number) => `${fmt(Math.round(x * 1e4) / 1e4)} s`;
 
@@ -82,7 +105,10 @@ export function repairLog(
   const n = t.length;
   const warnings: SignalIssue[] = [];
   const nom = n >= 3 ? nominalInterval(t) : 0;
-  const floor = JITTER_FLOOR * nom;
+  // Rounding is not jitter: 1 % of the interval, or the step the times are written in up to 5 %
+  // (a coarser step is resampled: it cannot be told from jitter, and resampling it is harmless).
+  const q = n >= 3 ? Math.min(timeQuantum(t) * (1 + 1e-6), ROUNDING_MAX * nom) : 0;
+  const floor = Math.max(JITTER_FLOOR * nom, q);
   if (allFinite(st) && (n < 3 || (st.maxDt - nom <= floor && nom - st.minDt <= floor)))
     return { log, rowOf, warnings };
   const tolF = o.samplingTolerance ?? 0.25;
