@@ -16,6 +16,8 @@
  *   per cent (the Lagrange remainder f⁗(ξ)/4!·∏(τ − tᵢ) of any numerical-analysis textbook).
  */
 
+import type { DriveLog, LogRepair, LogSection } from "./types.ts";
+
 /** Fills NaN runs of x strictly inside (p, q) by linear interpolation in time (x[p], x[q] finite). */
 export function fillLinear(x: Float64Array, t: Float64Array, p: number, q: number): void {
   let left = p;
@@ -121,4 +123,73 @@ export function nearestIndex(t: Float64Array, x: number): number {
     else hi = mid;
   }
   return Math.abs(t[hi]! - x) < Math.abs(x - t[lo]!) ? hi : lo;
+}
+
+/**
+ * Applies a repair plan (ingest-repairs.ts) to `log`: new arrays only when samples are left out
+ * or resampled (dropouts alone were filled in place); the sections when more than one; the
+ * repair records. `rowOf` of the result maps a new sample to the file row nearest in time.
+ */
+export function applyPlan(
+  log: DriveLog,
+  rowOf: (i: number) => number,
+  plans: SectionPlan[],
+  nom: number,
+  gapS: number,
+  repairs: LogRepair[],
+): { log: DriveLog; rowOf: (i: number) => number } {
+  const n = log.timeS.length;
+  const kept = plans.reduce((s, x) => s + x.b - x.a, 0);
+  let out = log;
+  let outRowOf = rowOf;
+  let starts = plans.map((x) => x.a);
+  if (kept < n || plans.some((x) => x.regrid)) {
+    const extraNames = Object.keys(log.extra);
+    const channels = [
+      log.timeS,
+      log.crankRadS,
+      log.gearboxRadS,
+      ...extraNames.map((k) => log.extra[k]!),
+    ];
+    const built = rebuild(channels, plans, nom, gapS);
+    const [timeS, crankRadS, gearboxRadS, ...extras] = built.out as [
+      Float64Array,
+      Float64Array,
+      Float64Array,
+    ];
+    const oldT = log.timeS;
+    out = {
+      ...log,
+      timeS,
+      crankRadS,
+      gearboxRadS,
+      extra: Object.fromEntries(extraNames.map((k, i) => [k, extras[i]!])),
+    };
+    outRowOf = (i: number) => rowOf(nearestIndex(oldT, timeS[i] ?? 0));
+    starts = built.starts;
+  }
+  const t = out.timeS;
+  const sections: LogSection[] = starts.map((s, k) => {
+    const e = k + 1 < starts.length ? starts[k + 1]! : t.length;
+    return { startIndex: s, endIndex: e, startS: t[s]!, endS: t[e - 1]! };
+  });
+  let samples = 0;
+  let span = 0;
+  for (const s of sections) {
+    samples += s.endIndex - s.startIndex - 1;
+    span += s.endS - s.startS;
+  }
+  const multi = sections.length > 1;
+  out = {
+    ...out,
+    ...(multi ? { sections } : {}),
+    // Gaps between sections are not sampling time: the rate is the sections' own.
+    sampleRateHz: multi && span > 0 ? samples / span : out.sampleRateHz,
+    source: { ...out.source, repairs: [...(out.source.repairs ?? []), ...repairs] },
+  };
+  if (out !== log && !multi && out.timeS !== log.timeS) {
+    const last = t.length - 1;
+    out.sampleRateHz = last > 0 ? last / (t[last]! - t[0]!) : out.sampleRateHz;
+  }
+  return { log: out, rowOf: outRowOf };
 }

@@ -144,7 +144,7 @@ describe.each([0.02, 0.2])("timestamps with ±%s jitter of the interval", (jitte
 describe("rounding is not jitter", () => {
   it("1500 Hz written to 10 µs (intervals 660 and 670 µs, 1.5 % off) is read as written", () => {
     // Every time is a whole multiple of the written step: the rounding of a uniform grid.
-    const lines = [RIPPLE.header];
+    const lines: string[] = [RIPPLE.header];
     for (let i = 0; i < 3000; i++) lines.push(`${(i / 1500).toFixed(5)},3000,2990`);
     const r = ingestOk(`${lines.join("\n")}\n`);
     expect(r.value.source.repairs).toEqual([]);

@@ -14,9 +14,9 @@
  */
 import { countText, plural } from "../base/plural.ts";
 import { allFinite, nominalInterval, type CheckOptions, type Stats } from "./ingest-checks.ts";
-import { fillLinear, nearestIndex, rebuild, type SectionPlan } from "./ingest-regrid.ts";
+import { applyPlan, fillLinear, type SectionPlan } from "./ingest-regrid.ts";
 import { fmt } from "./ingest-scan.ts";
-import type { DriveLog, LogRepair, LogSection, SignalIssue } from "./types.ts";
+import type { DriveLog, LogRepair, SignalIssue } from "./types.ts";
 
 export interface RepairOptions extends CheckOptions {
   /** Longest hole filled, s (default 0.01). */
@@ -54,7 +54,10 @@ export function timeQuantum(t: Float64Array): number {
   return 0;
 }
 
-const sec = (x: number) => `${fmt(Math.round(x * 1e4) / 1e4)} s`;
+const sec = (x: number) => `${fmt(Math.round(x * 1e5) / 1e5)} s`;
+/** An interval in ms to 4 significant digits. */
+const ms = (x: number) => `${fmt(Number((x * 1000).toPrecision(4)))} ms`;
+const rowSpan = (a: number, b: number) => (a === b ? `row ${a}` : `rows ${a}–${b}`);
 
 /** One kind of repair: how many samples, where (sample-index ranges), and when. */
 class Tally {
@@ -63,12 +66,15 @@ class Tally {
   idx: { from: number; to: number }[] = [];
   fromS = Infinity;
   toS = -Infinity;
+  /** Ranges past MAX_RANGES were counted but not listed. */
+  truncated = false;
   add(count: number, fromI: number, toI: number, fromS: number, toS: number): void {
     this.count += count;
     this.places++;
     const last = this.idx[this.idx.length - 1];
     if (last && fromI <= last.to + 1) last.to = Math.max(last.to, toI);
     else if (this.idx.length < MAX_RANGES) this.idx.push({ from: fromI, to: toI });
+    else this.truncated = true;
     this.fromS = Math.min(this.fromS, fromS);
     this.toS = Math.max(this.toS, toS);
   }
@@ -80,7 +86,7 @@ class Tally {
       .map((r) => (r.from === r.to ? `${r.from}` : `${r.from}–${r.to}`))
       .join(", ");
     const single = rows.length === 1 && rows[0]!.from === rows[0]!.to;
-    const more = rows.length > 5 || this.places > rows.length ? ", …" : "";
+    const more = rows.length > 5 || this.truncated ? ", …" : "";
     const where = `${single ? "row" : "rows"} ${listed}${more}; ${this.fromS === this.toS ? `at ${sec(this.fromS)}` : `${sec(this.fromS)} to ${sec(this.toS)}`}`;
     const message = `${what} (${where}) ${how}`;
     return { code, message, count: this.count, rows, fromS: this.fromS, toS: this.toS };
@@ -114,7 +120,7 @@ export function repairLog(
   const tolF = o.samplingTolerance ?? 0.25;
   const gapS = (o.gapFactor ?? 1.5) * nom;
   const limit = Math.min(o.repairMaxSamples ?? 20, Math.floor((o.repairMaxS ?? 0.01) / nom + 1e-9));
-  const limitText = `the repair limit of ${countText(limit, "sample")} (${fmt(Math.round(limit * nom * 1e7) / 1e4)} ms)`;
+  const limitText = `the repair limit of ${countText(limit, "sample")} (${ms(limit * nom)})`;
   const names = (crank: boolean, gear: boolean) =>
     [crank ? log.source.crankColumn : "", gear ? log.source.gearboxColumn : ""]
       .filter((x) => x !== "")
@@ -192,12 +198,12 @@ export function repairLog(
     const after = `longer than ${limitText}, so the log is analysed as separate sections before and after it`;
     const message =
       dropped > 0
-        ? `${names(holeC, holeG)} ${plural(holeC && holeG ? 2 : 1, "is", "are")} empty or not finite at rows ${rowOf(a + 1)}–${rowOf(b - 1)} (${sec(t[a + 1]!)} to ${sec(t[b - 1]!)}, ${countText(dropped, "sample")}); these rows are left out, ${after}`
+        ? `${names(holeC, holeG)} ${plural(holeC && holeG ? 2 : 1, "is", "are")} empty or not finite at ${rowSpan(rowOf(a + 1), rowOf(b - 1))} (${sec(t[a + 1]!)} to ${sec(t[b - 1]!)}, ${countText(dropped, "sample")}); these rows are left out, ${after}`
         : `the time jumps from ${sec(t[a]!)} to ${sec(t[b]!)} between rows ${rowOf(a)} and ${rowOf(b)} (${countText(total, "sample")} missing), ${after}`;
     return { code: "log_split", message, row: rowOf(b) };
   }
   function leftOut(a: number, b: number, where: string, what: string): SignalIssue {
-    const message = `rows ${rowOf(a)}–${rowOf(b)} at the ${where} of the log have no value in ${what} to interpolate from on both sides and are left out`;
+    const message = `${rowSpan(rowOf(a), rowOf(b))} at the ${where} of the log ${a === b ? "has" : "have"} no value in ${what} to interpolate from on both sides and are left out`;
     return { code: "dropout_left_out", message, row: rowOf(a) };
   }
 
@@ -208,7 +214,7 @@ export function repairLog(
   if (irregularCount > 0) {
     const rows = irregular.map(rowOf);
     const list = `${plural(irregularCount, "row")} ${rows.join(", ")}${irregularCount > rows.length ? ", …" : ""}`;
-    const message = `sampling is irregular at ${countText(irregularCount, "row")} (${list}): intervals differ from ${sec(nom)} by more than ${Math.round(tolF * 100)} %, too far to resample onto a uniform grid`;
+    const message = `sampling is irregular at ${countText(irregularCount, "row")} (${list}): intervals differ from ${ms(nom)} by more than ${Math.round(tolF * 100)} %, too far to resample onto a uniform grid`;
     const error = {
       code: "irregular_sampling",
       message,
@@ -241,7 +247,7 @@ export function repairLog(
         "missing_rows_filled",
         rowOf,
         `${countText(missing.count, "missing row")} in ${countText(missing.places, "gap")} in the time`,
-        `${plural(missing.count, "was", "were")} filled by linear interpolation on the ${fmt(Math.round(nom * 1e7) / 1e4)} ms sampling grid`,
+        `${plural(missing.count, "was", "were")} filled by linear interpolation on the ${ms(nom)} sampling grid`,
       ),
     );
   if (jitter.count > 0)
@@ -249,76 +255,10 @@ export function repairLog(
       jitter.record(
         "jitter_resampled",
         rowOf,
-        `timestamps at ${countText(jitter.count, "row")} were off the ${fmt(Math.round(nom * 1e7) / 1e4)} ms sampling grid by up to ${Math.round(maxDev * 100)} %`,
+        `timestamps at ${countText(jitter.count, "row")} were off the ${ms(nom)} sampling grid by up to ${Math.round(maxDev * 100)} %`,
         `and were resampled onto a uniform grid by cubic interpolation in time`,
       ),
     );
-  return finishRepairs(log, rowOf, plans, nom, gapS, repairs, warnings);
-}
-
-/** Applies the plan: new arrays only when samples are left out or resampled; sections and records. */
-function finishRepairs(
-  log: DriveLog,
-  rowOf: (i: number) => number,
-  plans: SectionPlan[],
-  nom: number,
-  gapS: number,
-  repairs: LogRepair[],
-  warnings: SignalIssue[],
-): Repaired {
-  const n = log.timeS.length;
-  const kept = plans.reduce((s, x) => s + x.b - x.a, 0);
-  let out = log;
-  let outRowOf = rowOf;
-  let starts = plans.map((x) => x.a);
-  if (kept < n || plans.some((x) => x.regrid)) {
-    const extraNames = Object.keys(log.extra);
-    const channels = [
-      log.timeS,
-      log.crankRadS,
-      log.gearboxRadS,
-      ...extraNames.map((k) => log.extra[k]!),
-    ];
-    const built = rebuild(channels, plans, nom, gapS);
-    const [timeS, crankRadS, gearboxRadS, ...extras] = built.out as [
-      Float64Array,
-      Float64Array,
-      Float64Array,
-    ];
-    const oldT = log.timeS;
-    out = {
-      ...log,
-      timeS,
-      crankRadS,
-      gearboxRadS,
-      extra: Object.fromEntries(extraNames.map((k, i) => [k, extras[i]!])),
-    };
-    outRowOf = (i: number) => rowOf(nearestIndex(oldT, timeS[i] ?? 0));
-    starts = built.starts;
-  }
-  const t = out.timeS;
-  const sections: LogSection[] = starts.map((s, k) => {
-    const e = k + 1 < starts.length ? starts[k + 1]! : t.length;
-    return { startIndex: s, endIndex: e, startS: t[s]!, endS: t[e - 1]! };
-  });
-  let samples = 0;
-  let span = 0;
-  for (const s of sections) {
-    samples += s.endIndex - s.startIndex - 1;
-    span += s.endS - s.startS;
-  }
   for (const r of repairs) warnings.push({ code: r.code, message: r.message });
-  const multi = sections.length > 1;
-  out = {
-    ...out,
-    ...(multi ? { sections } : {}),
-    // Gaps between sections are not sampling time: the rate is the sections' own.
-    sampleRateHz: multi && span > 0 ? samples / span : out.sampleRateHz,
-    source: { ...out.source, repairs: [...(out.source.repairs ?? []), ...repairs] },
-  };
-  if (out !== log && !multi && out.timeS !== log.timeS) {
-    const last = t.length - 1;
-    out.sampleRateHz = last > 0 ? last / (t[last]! - t[0]!) : out.sampleRateHz;
-  }
-  return { log: out, rowOf: outRowOf, warnings };
+  return { ...applyPlan(log, rowOf, plans, nom, gapS, repairs), warnings };
 }
