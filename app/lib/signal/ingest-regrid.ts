@@ -52,8 +52,9 @@ export function planLength(s: SectionPlan, t: Float64Array, step: number): numbe
 /**
  * New arrays for the planned sections, back to back: `channels[0]` is time; the others are
  * interpolated. An interval longer than `gapS` (a filled gap) and its neighbours are crossed
- * linearly, everything else by 4-point cubic Lagrange on the actual times. Returns the arrays
- * and each section's start index in them.
+ * linearly, everything else by 4-point cubic Lagrange on the actual times (4 nodes around the
+ * point, shifted inwards at a section's ends). Returns the arrays and each section's start
+ * index in them.
  */
 export function rebuild(
   channels: Float64Array[],
@@ -84,7 +85,9 @@ export function rebuild(
       while (j < s.b - 2 && t[j + 1]! <= tau) j++;
       const o = at + m;
       out[0]![o] = tau;
-      if (isGap(j) || isGap(j - 1) || isGap(j + 1)) {
+      // Nodes j−1 … j+2, shifted inwards at the section's ends (one-sided there, still cubic).
+      const i0 = Math.max(s.a, Math.min(j - 1, s.b - 4));
+      if (i0 < s.a || isGap(j) || isGap(i0) || isGap(i0 + 1) || isGap(i0 + 2)) {
         const u = Math.min(1, Math.max(0, (tau - t[j]!) / (t[j + 1]! - t[j]!)));
         for (let c = 1; c < channels.length; c++) {
           const x = channels[c]!;
@@ -92,10 +95,10 @@ export function rebuild(
         }
         continue;
       }
-      lagrangeWeights(t, j - 1, tau, w);
+      lagrangeWeights(t, i0, tau, w);
       for (let c = 1; c < channels.length; c++) {
         const x = channels[c]!;
-        out[c]![o] = w[0]! * x[j - 1]! + w[1]! * x[j]! + w[2]! * x[j + 1]! + w[3]! * x[j + 2]!;
+        out[c]![o] = w[0]! * x[i0]! + w[1]! * x[i0 + 1]! + w[2]! * x[i0 + 2]! + w[3]! * x[i0 + 3]!;
       }
     }
     at += len;

@@ -139,6 +139,19 @@ describe.each([0.02, 0.2])("timestamps with ±%s jitter of the interval", (jitte
   it("keep the isolation within 0.3 dB of the truth", () => {
     expect(Math.abs(isolationDb(ingestOk(text).value) - truth)).toBeLessThan(0.3);
   });
+  it("the resampled crank matches the analytic speed at the grid times (cubic, not linear)", () => {
+    // Lagrange remainder f⁗·∏(τ − tᵢ)/4! with nodes within 1.5 intervals: under
+    // 30 rpm · (ωh)⁴ · 0.0234 = 0.007 rpm for ωh = 2π·100/2000; a line would be off by up to
+    // 30 rpm · (ωh)²/8 = 0.37 rpm. Plus 0.00005 rpm of the written 4 decimals.
+    const log = ingestOk(text).value;
+    const w = (2 * Math.PI * RPM) / 60;
+    let worst = 0;
+    for (let i = 0; i < log.timeS.length; i++) {
+      const rpm = RPM + 30 * Math.cos(2 * w * log.timeS[i]!);
+      worst = Math.max(worst, Math.abs((log.crankRadS[i]! * 60) / (2 * Math.PI) - rpm));
+    }
+    expect(worst).toBeLessThan(0.01);
+  });
 });
 
 describe("rounding is not jitter", () => {
