@@ -1,7 +1,7 @@
 /**
- * The checks of an ingested drive log that need the whole log: sampling intervals and gaps,
- * length, sampling rate against the top order, plausible speeds and clipping (ingest.ts runs
- * them after the last row). Units: s, rad/s, rad.
+ * The checks of an ingested drive log that need the whole log: sampling intervals and gaps
+ * (strict; otherwise ingest-repairs.ts), length, sampling rate against the top order and
+ * clipping. finishLog (ingest-finish.ts) runs them after the last row. Units: s, rad/s, rad.
  */
 import { fmt } from "./ingest-scan.ts";
 import type { DriveLog, SignalIssue } from "./types.ts";
@@ -178,19 +178,6 @@ export function samplingProblem(
     return { code: "irregular_sampling", message, row: irregular[0] ?? 0, column: col };
   }
   return undefined;
-}
-
-/** Sampling, length, rate and clipping checks on an ingested log (strict); rowOf maps a sample index to its file row. */
-export function checkLog(
-  log: DriveLog,
-  rowOf: (i: number) => number,
-  o: CheckOptions,
-): { error?: SignalIssue; warnings: SignalIssue[] } {
-  const st = logStats(log);
-  if (!allFinite(st)) return { error: firstNonFinite(log, rowOf), warnings: [] };
-  const error = samplingProblem(log, rowOf, o, st);
-  if (error) return { error, warnings: [] };
-  return { warnings: contentWarnings(log, rowOf, o, st) };
 }
 
 /** Length, sampling rate against the top order, and clipping: warnings only. */
