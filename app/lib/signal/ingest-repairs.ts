@@ -195,11 +195,11 @@ export function repairLog(
 
   /** Warning for a hole too long to fill, between valid samples a and b. */
   function split(a: number, b: number, dropped: number, total: number): SignalIssue {
-    const after = `longer than ${limitText}, so the log is analysed as separate sections before and after it`;
+    const longer = `longer than ${limitText}`;
     const message =
       dropped > 0
-        ? `${names(holeC, holeG)} ${plural(holeC && holeG ? 2 : 1, "is", "are")} empty or not finite at ${rowSpan(rowOf(a + 1), rowOf(b - 1))} (${sec(t[a + 1]!)} to ${sec(t[b - 1]!)}, ${countText(dropped, "sample")}); these rows are left out, ${after}`
-        : `the time jumps from ${sec(t[a]!)} to ${sec(t[b]!)} between rows ${rowOf(a)} and ${rowOf(b)} (${countText(total, "sample")} missing), ${after}`;
+        ? `${names(holeC, holeG)} ${plural(holeC && holeG ? 2 : 1, "is", "are")} empty or not finite at ${rowSpan(rowOf(a + 1), rowOf(b - 1))} (${sec(t[a + 1]!)} to ${sec(t[b - 1]!)}, ${countText(dropped, "sample")}), ${longer}: these rows are left out and the log is analysed as separate sections before and after them`
+        : `the time jumps from ${sec(t[a]!)} to ${sec(t[b]!)} between rows ${rowOf(a)} and ${rowOf(b)} (${countText(total, "sample")} missing), ${longer}: the log is analysed as separate sections before and after the gap`;
     return { code: "log_split", message, row: rowOf(b) };
   }
   function leftOut(a: number, b: number, where: string, what: string): SignalIssue {
