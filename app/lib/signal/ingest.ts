@@ -50,7 +50,11 @@ export interface Ingester {
 /** A chunked ingester; feed it with push() and call finish() once. Options as IngestOptions. */
 export function createIngester(options: IngestOptions = {}): Ingester {
   const warnings: SignalIssue[] = [];
-  const limits = { maxRpm: options.maxRpm ?? 12000, minRpm: options.minRpm ?? -20 };
+  const limits = {
+    maxRpm: options.maxRpm ?? 12000,
+    minRpm: options.minRpm ?? -20,
+    strict: options.strict === true,
+  };
   let error: SignalIssue | undefined; // a problem of the header or of the log as a whole
   let header: LogHeader | undefined;
   let channels: Channels | undefined;
