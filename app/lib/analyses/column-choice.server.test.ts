@@ -20,6 +20,29 @@ describe("the header of a stored drive log", () => {
       "gearbox input speed [rpm]",
     ]);
   });
+  it("is found behind a logger's preamble, the units row left aside (issue 14 §1)", async () => {
+    const logger =
+      "# Recorder: Kestrel DL-8\r\nRate = 5 kHz\r\n\r\nZeit;Kanal1;Kanal2;Kanal3\r\n[s];[1/min];[1/min];[-]\r\n" +
+      "0,000;800,0;800,0;3\r\n0,001;800,1;799,9;3\r\n";
+    await expect(readHeader(open(logger)())).resolves.toEqual([
+      "Zeit",
+      "Kanal1",
+      "Kanal2",
+      "Kanal3",
+    ]);
+    await expect(chooseColumns({}, remembered, open(logger))).resolves.toEqual({
+      source: "remembered",
+      mapping: remembered,
+    });
+    // A remembered unit only fills in a unit the file does not give: here its units row does.
+    const stated = "Rate = 5 kHz\ntime,crank,gearbox\ns,rpm,rpm\n0,800,800\n0.001,801,799\n";
+    const radS = { crankUnit: "rad/s", gearboxUnit: "rad/s" } as const;
+    await expect(chooseColumns({}, radS, open(stated))).resolves.toEqual({
+      source: "header",
+      mapping: {},
+      skipped: radS,
+    });
+  });
   it("is null for a file without a text line", async () => {
     await expect(readHeader(open("\n  \n")())).resolves.toBeNull();
   });

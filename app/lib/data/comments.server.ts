@@ -55,6 +55,7 @@ export function commentData(teamId: number) {
       const margin = r.settings.binRpm * RPM_MARGIN_BINS;
       const speeds = [...(r.speedTrace?.crankRpm ?? []), ...r.isolation.map((p) => p.rpm)];
       for (const s of speeds) {
+        if (s === null) continue; // a null separates two sections of a split log
         rpmMin = Math.min(rpmMin, s - margin);
         rpmMax = Math.max(rpmMax, s + margin);
       }

@@ -1,31 +1,29 @@
 import Papa from "papaparse";
-import { StringDecoder } from "node:string_decoder";
 import { blobStore } from "~/lib/infra/storage-settings.server";
 import type { Preview } from "~/lib/domain/column-mapping-schema";
+import { readCsvHead } from "~/lib/signal/csv-head";
 
 /**
- * The header and first rows of a stored drive log, for the column-mapping step. Reads only
- * until `rows + 1` lines (or 256 kB) have arrived, then stops the stream: a 1 GB file costs the
- * same as a small one.
+ * The header and first data rows of a stored drive log, for the column-mapping step. The header
+ * is found as the ingest finds it (behind a logger's preamble, its units row left out:
+ * lib/signal/csv-head.ts), so the names offered are the ones the ingest reads. Reads only the
+ * head and `rows` lines after it (at most 256 kB more), then stops the stream: a 1 GB file
+ * costs the same as a small one. A file without a header gives an empty preview.
  */
 export async function readPreview(blobKey: string, rows = 20): Promise<Preview> {
   const stream = blobStore().read(blobKey);
-  const decoder = new StringDecoder("utf8");
-  let text = "";
   try {
-    for await (const chunk of stream) {
-      text += decoder.write(chunk as Buffer);
-      const lines = text.split(/\r\n|\n|\r/).length - 1;
-      if (lines > rows + 1 || text.length > 256 * 1024) break; // leaving the loop ends the stream
-    }
+    const { head, prefix } = await readCsvHead(stream, {}, rows);
+    if (!head.ok) return { header: [], rows: [] };
+    const { headers, delimiter, dataStart } = head.value;
+    const lines = new TextDecoder()
+      .decode(prefix.subarray(dataStart))
+      .split(/\r\n|\n|\r/)
+      .filter((l) => l.trim() !== "")
+      .slice(0, rows);
+    const body = lines.map((l) => Papa.parse<string[]>(l, { delimiter }).data[0] ?? []);
+    return { header: headers, rows: body };
   } finally {
     stream.destroy();
   }
-  const lines = text
-    .split(/\r\n|\n|\r/)
-    .filter((l) => l.trim() !== "")
-    .slice(0, rows + 1);
-  const parsed = Papa.parse<string[]>(lines.join("\n"), { skipEmptyLines: true });
-  const [header = [], ...body] = parsed.data;
-  return { header: header.map((h) => h.trim()), rows: body };
 }

@@ -8,13 +8,17 @@ import { findResonance, gearboxNoiseFloor, isolationCurve } from "./isolation.ts
 import { orderCurve, orderMap, round } from "./order-curves.ts";
 import { chooseAngleGrid, integrateAngle, MAX_SAMPLES_PER_REV } from "./angle-grid.ts";
 import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
-import { trackBlocks } from "./order-tracking.ts";
+import { trackBlocks, type TrackedBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
-import { findSegments } from "./segments.ts";
+import {
+  sectionSegments,
+  sectionSpeedTrace,
+  skippedWarnings,
+  trackSections,
+} from "./section-analysis.ts";
 import { sourceBlock } from "./source-block.ts";
 import { pickSpectrumSegment, timeSpectrum } from "./time-spectrum.ts";
-import { speedTrace } from "./traces.ts";
 import { fitTwoMassModel } from "./two-mass-model.ts";
 import { countText, plural } from "../base/plural.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
@@ -132,24 +136,37 @@ export function analyseDriveLog(
       message: `order ${topOrder} reaches ${topHz.toFixed(0)} Hz at ${(maxRadS * RPM_PER_RAD_S).toFixed(0)} rpm, near or above half the ${fs.toFixed(0)} Hz sampling rate; its amplitudes there are unreliable`,
     });
   }
-  const sections = grid.lowPassHz !== null ? butterworthLowpass4(grid.lowPassHz, fs) : [];
-  const crank = sections.length ? filtfilt(log.crankRadS, sections) : log.crankRadS;
-  onProgress?.("track", 0.4);
-  const gearbox = sections.length ? filtfilt(log.gearboxRadS, sections) : log.gearboxRadS;
-  onProgress?.("track", 0.8);
-  const angle = integrateAngle(log.timeS, log.crankRadS);
-  onProgress?.("track", 1);
-  const tracked = trackBlocks({
-    timeS: log.timeS,
-    angleRad: angle,
-    crankRadS: crank,
-    gearboxRadS: gearbox,
-    grid,
-    revsPerBlock: R,
-    overlap,
-    topBin: Math.ceil(topOrder * R) + 2,
-    onProgress: (f) => onProgress?.("spectra", f),
-  });
+  const filters = grid.lowPassHz !== null ? butterworthLowpass4(grid.lowPassHz, fs) : [];
+  const trackArgs = { grid, revsPerBlock: R, overlap, topBin: Math.ceil(topOrder * R) + 2 };
+  let tracked: TrackedBlocks;
+  if (!log.sections || log.sections.length < 2) {
+    const crank = filters.length ? filtfilt(log.crankRadS, filters) : log.crankRadS;
+    onProgress?.("track", 0.4);
+    const gearbox = filters.length ? filtfilt(log.gearboxRadS, filters) : log.gearboxRadS;
+    onProgress?.("track", 0.8);
+    const angle = integrateAngle(log.timeS, log.crankRadS);
+    onProgress?.("track", 1);
+    tracked = trackBlocks({
+      timeS: log.timeS,
+      angleRad: angle,
+      crankRadS: crank,
+      gearboxRadS: gearbox,
+      ...trackArgs,
+      onProgress: (f) => onProgress?.("spectra", f),
+    });
+  } else {
+    // A log split at gaps too long to repair: each section on its own, no block across a gap.
+    onProgress?.("track", 1);
+    const bySection = trackSections(log, filters, trackArgs, (f) => onProgress?.("spectra", f));
+    warnings.push(...skippedWarnings(bySection.skipped, R));
+    if (!bySection.tracked)
+      return fail(
+        "too_few_revolutions",
+        `no section of the log holds ${R} crank revolutions (one analysis block) between its gaps`,
+        warnings,
+      );
+    tracked = bySection.tracked;
+  }
   onProgress?.("spectra", 1);
   const finest = grid.fixedSamplesPerRev ?? MAX_SAMPLES_PER_REV;
   const minValidRpm = ((2 * grid.bandHz) / finest) * 60;
@@ -168,7 +185,7 @@ export function analyseDriveLog(
   }
 
   onProgress?.("results", 0);
-  const segments = findSegments(log.timeS, log.crankRadS);
+  const segments = sectionSegments(log);
   const noise = gearboxNoiseFloor(tracked);
   const isolation = isolationCurve(tracked, q, binRpm, noise);
   const nearNoise = isolation.filter((p) => !p.aboveNoise).length;
@@ -241,7 +258,7 @@ export function analyseDriveLog(
         }
       : null,
     timeSpectrum: spectrum,
-    speedTrace: speedTrace(log.timeS, log.crankRadS, log.gearboxRadS),
+    speedTrace: sectionSpeedTrace(log),
     warnings: warnings.map(({ code, message }) => ({ code, message })),
     source: sourceBlock(log),
   };

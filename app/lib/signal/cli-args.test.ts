@@ -65,3 +65,29 @@ describe("CLI arguments", () => {
     expect(r.message).not.toContain("\n");
   });
 });
+
+// Issue 14 §2: the repair flags map to the ingest's FinishOptions (limit in ms → s).
+describe("repair flags", () => {
+  it("--strict, --repair-limit-ms and --repair-limit-samples", () => {
+    const r = parseCliArgs([
+      "log.csv",
+      "--strict",
+      "--repair-limit-ms",
+      "5",
+      "--repair-limit-samples",
+      "8",
+    ]);
+    expect(r.ok && r.value.ingest).toEqual({
+      strict: true,
+      repairMaxS: 0.005,
+      repairMaxSamples: 8,
+    });
+  });
+  it.each([
+    [["log.csv", "--repair-limit-ms", "0"], "--repair-limit-ms"],
+    [["log.csv", "--repair-limit-samples", "2.5"], "--repair-limit-samples"],
+  ])("%j is refused with a one-line message", (argv, text) => {
+    const r = parseCliArgs(argv);
+    expect(r.ok ? "" : r.message).toContain(text);
+  });
+});

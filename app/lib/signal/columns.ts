@@ -2,19 +2,12 @@
  * Header recognition: which column is time, which is the crank side and which the gearbox
  * side, and in which unit each is written — from the names alone, always overridable.
  */
+import { recogniseColumn, unitOfName } from "./column-names.ts";
+import { teamChannel } from "./team-channels.ts";
 import type { ChannelName, SignalIssue, SpeedUnit, TimeUnit } from "./types.ts";
-import { parseSpeedUnit, parseTimeUnit } from "./units.ts";
+import { unitCellText } from "./units.ts";
 
-export type ColumnRole = "time" | "crank" | "gearbox" | "other";
-
-export interface ColumnGuess {
-  role: ColumnRole;
-  /** Unit written in the name, if any (a speed unit for speed columns, a time unit for time). */
-  speedUnit?: SpeedUnit;
-  timeUnit?: TimeUnit;
-  /** The team's own channel names, applied before the built-in recognition. */
-  channelNames?: ChannelName[];
-}
+export { recogniseColumn, unitOfName, type ColumnGuess, type ColumnRole } from "./column-names.ts";
 
 /** Options that override what the header says. Column names match case- and space-insensitively. */
 export interface ColumnOptions {
@@ -26,6 +19,11 @@ export interface ColumnOptions {
   crankUnit?: SpeedUnit;
   gearboxUnit?: SpeedUnit;
   timeUnit?: TimeUnit;
+  /**
+   * The team's own channel names (a team setting): they decide a channel's role before the
+   * built-in recognition, and give its unit where the file states none. Explicit columns win.
+   */
+  channelNames?: readonly ChannelName[];
 }
 
 /** The decision ingest acts on: column indices into the header and the units to read them in. */
@@ -50,89 +48,6 @@ export interface ColumnIssue extends SignalIssue {
   candidates?: string[];
 }
 
-const CRANK_WORDS = new Set([
-  "crank",
-  "crankshaft",
-  "engine",
-  "primary",
-  "flywheel",
-  "motor",
-  "ring",
-]);
-const GEARBOX_WORDS = new Set(["gearbox", "transmission", "secondary", "trans", "gbx"]);
-const TIME_WORDS = new Set(["time", "t", "timestamp", "elapsed"]);
-// Quantities that share role words with the speed channels ("engine torque") but are not speeds.
-const NOT_SPEED_WORDS = new Set([
-  "torque",
-  "temp",
-  "temperature",
-  "pressure",
-  "angle",
-  "position",
-  "pedal",
-  "throttle",
-  "load",
-  "current",
-  "voltage",
-  "accel",
-  "acceleration",
-  "lambda",
-  "fuel",
-  "power",
-  "gear",
-  "counter",
-]);
-
-/** Lowercase words of a header name: letters and digits, split at everything else. */
-function words(name: string): string[] {
-  return name
-    .toLowerCase()
-    .split(/[^a-z0-9]+/)
-    .filter((w) => w.length > 0);
-}
-
-/** The unit written in a name: "[rpm]", "(deg/s)", "{ms}", or a suffix like "_rad_s", "_ms", " Hz". */
-function unitText(name: string): { unit: string; rest: string } | undefined {
-  const bracket = /[[({]\s*([^\])}]*)\s*[\])}]\s*$/.exec(name);
-  if (bracket) return { unit: bracket[1] ?? "", rest: name.slice(0, bracket.index) };
-  const w = name.trim().split(/[\s_]+/);
-  if (w.length >= 3) {
-    const two = `${w[w.length - 2]}/${w[w.length - 1]}`;
-    if (parseSpeedUnit(two)) return { unit: two, rest: w.slice(0, -2).join(" ") };
-  }
-  if (w.length >= 2) {
-    const last = w[w.length - 1] ?? "";
-    if (parseSpeedUnit(last) || parseTimeUnit(last))
-      return { unit: last, rest: w.slice(0, -1).join(" ") };
-  }
-  return undefined;
-}
-
-/** Guess a column's role and unit from its header name alone. */
-export function recogniseColumn(name: string): ColumnGuess {
-  const u = unitText(name);
-  const speedUnit = u ? parseSpeedUnit(u.unit) : undefined;
-  const timeUnit = u ? parseTimeUnit(u.unit) : undefined;
-  const w = words(u ? u.rest : name);
-  const phrase = ` ${w.join(" ")} `;
-  const hasUnit = u !== undefined && u.unit.trim() !== "";
-
-  if (w.some((x) => TIME_WORDS.has(x)) && !speedUnit && (timeUnit || !hasUnit)) {
-    return timeUnit ? { role: "time", timeUnit } : { role: "time" };
-  }
-  // A unit that is neither a speed nor empty (Nm, °, %, rad/s²) rules a speed out.
-  if (hasUnit && !speedUnit) return { role: "other" };
-  const gearboxSide =
-    w.some((x) => GEARBOX_WORDS.has(x)) ||
-    phrase.includes(" input shaft ") ||
-    phrase.includes(" gear box ");
-  const crankSide = !gearboxSide && w.some((x) => CRANK_WORDS.has(x));
-  if (!gearboxSide && !crankSide) return { role: "other" };
-  if (w.some((x) => NOT_SPEED_WORDS.has(x))) return { role: "other" };
-  const role: ColumnRole = gearboxSide ? "gearbox" : "crank";
-  return speedUnit ? { role, speedUnit } : { role };
-}
-
 const norm = (s: string) => s.trim().toLowerCase().replace(/\s+/g, " ");
 
 function columnIssue(
@@ -147,14 +62,33 @@ function columnIssue(
 const quoteList = (names: string[]) => names.map((n) => `"${n}"`).join(", ");
 
 /**
- * Decide the column map for a header row. Returns an issue (row 1) when a channel is missing,
- * ambiguous, or an override names no column; `assumed` lists units that had to be assumed.
+ * The names recognition reads: a header name with its units-row cell, when there is one, as a
+ * bracketed unit ("n_kw" over "[1/min]" → "n_kw [1/min]"), so both go through one recogniser.
+ */
+export function namesWithUnits(
+  headers: readonly string[],
+  units: readonly (string | null | undefined)[] = [],
+): string[] {
+  return headers.map((h, i) => {
+    const u = unitCellText(units[i] ?? "");
+    return u === "" ? h : `${h} [${u}]`;
+  });
+}
+
+/**
+ * Decide the column map for a header row (and its units row, when the file has one). Returns
+ * an issue (row 1) when a channel is missing, ambiguous, or an override names no column.
+ * Order: explicit columns, then the team's channel names, then the built-in recognition.
  */
 export function resolveColumns(
   headers: string[],
   options: ColumnOptions = {},
+  units: readonly (string | null | undefined)[] = [],
 ): { ok: true; map: ColumnMap; warnings: SignalIssue[] } | { ok: false; error: ColumnIssue } {
-  const guesses = headers.map(recogniseColumn);
+  const named = namesWithUnits(headers, units);
+  const guesses = named.map(recogniseColumn);
+  const stated = named.map(unitOfName);
+  const team = headers.map((h) => teamChannel(h, options.channelNames));
   const taken = new Set<number>();
   const warnings: SignalIssue[] = [];
   const chosen: Partial<Record<"time" | "crank" | "gearbox", number>> = {};
@@ -195,7 +129,12 @@ export function resolveColumns(
   }
   for (const role of ["time", "crank", "gearbox"] as const) {
     if (chosen[role] !== undefined) continue;
-    const candidates = guesses.flatMap((g, i) => (g.role === role && !taken.has(i) ? [i] : []));
+    // A column the team has named is decided by that name alone, never by the built-in words.
+    const byTeam = team.flatMap((c, i) => (c?.role === role && !taken.has(i) ? [i] : []));
+    const candidates =
+      byTeam.length > 0
+        ? byTeam
+        : guesses.flatMap((g, i) => (g.role === role && !taken.has(i) && !team[i] ? [i] : []));
     const label =
       role === "time" ? "time" : role === "crank" ? "crank-side speed" : "gearbox-side speed";
     if (candidates.length === 0) {
@@ -229,7 +168,7 @@ export function resolveColumns(
   const gearbox = chosen.gearbox ?? 0;
 
   const speedUnit = (index: number, explicit: SpeedUnit | undefined): SpeedUnit => {
-    const unit = explicit ?? options.unit ?? guesses[index]?.speedUnit;
+    const unit = explicit ?? options.unit ?? stated[index]?.speedUnit ?? team[index]?.speedUnit;
     if (unit) return unit;
     warnings.push({
       code: "unit_assumed",
@@ -241,7 +180,7 @@ export function resolveColumns(
   };
   const crankUnit = speedUnit(crank, options.crankUnit);
   const gearboxUnit = speedUnit(gearbox, options.gearboxUnit);
-  let timeUnit = options.timeUnit ?? guesses[time]?.timeUnit;
+  let timeUnit = options.timeUnit ?? stated[time]?.timeUnit ?? team[time]?.timeUnit;
   if (!timeUnit) {
     warnings.push({
       code: "unit_assumed",
@@ -274,13 +213,17 @@ export function resolveColumns(
  * it names is not in this header, none of it applies and the header is recognised as usual (a
  * choice made for one odd file must not break the next, ordinary one). A remembered unit goes
  * with a column the choice names; for a channel left to the header it only fills in a unit that
- * the recognised column's name does not give (the header's own unit always wins).
+ * the recognised column's name (or units row) does not give (the file's own unit always wins).
  */
-export function fitRemembered(headers: string[], remembered: ColumnOptions): ColumnOptions | null {
+export function fitRemembered(
+  headers: string[],
+  remembered: ColumnOptions,
+  units: readonly (string | null | undefined)[] = [],
+): ColumnOptions | null {
   const has = (name: string) => headers.some((h) => norm(h) === norm(name));
   const named = [remembered.timeColumn, remembered.crankColumn, remembered.gearboxColumn];
   if (named.some((n) => n !== undefined && !has(n))) return null;
-  const guesses = headers.map(recogniseColumn);
+  const guesses = namesWithUnits(headers, units).map(recogniseColumn);
   const headerUnit = (role: "time" | "crank" | "gearbox") =>
     guesses.some((g) => g.role === role && (role === "time" ? g.timeUnit : g.speedUnit));
   const fitted: ColumnOptions = {};

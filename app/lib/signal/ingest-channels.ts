@@ -75,7 +75,7 @@ export function buildDriveLog(ch: Channels, n: number, header: LogHeader): Drive
       crankUnit: m.crankUnit,
       gearboxUnit: m.gearboxUnit,
       format: "csv",
-      metadata: [],
+      metadata: header.metadata,
       repairs: [],
     },
   };

@@ -1,7 +1,7 @@
 /**
- * The checks of an ingested drive log that need the whole log: sampling intervals and gaps,
- * length, sampling rate against the top order, plausible speeds and clipping (ingest.ts runs
- * them after the last row). Units: s, rad/s, rad.
+ * The checks of an ingested drive log that need the whole log: sampling intervals and gaps
+ * (strict; otherwise ingest-repairs.ts), length, sampling rate against the top order and
+ * clipping. finishLog (ingest-finish.ts) runs them after the last row. Units: s, rad/s, rad.
  */
 import { fmt } from "./ingest-scan.ts";
 import type { DriveLog, SignalIssue } from "./types.ts";
@@ -9,7 +9,10 @@ import { S_PER_UNIT } from "./units.ts";
 import { countText, plural } from "../base/plural.ts";
 /** Limits for the checks that need the whole log (sampling, length, clipping). */
 export interface CheckOptions {
-  /** Allowed deviation of a sampling interval from the nominal one, as a fraction (default 0.1). */
+  /**
+   * Allowed deviation of a sampling interval from the nominal one, as a fraction (default 0.1
+   * when strict; 0.25 otherwise, where deviations over 1 % are resampled, ingest-repairs.ts).
+   */
   samplingTolerance?: number;
   /** An interval longer than this many nominal intervals is a gap (default 1.5). */
   gapFactor?: number;
@@ -24,7 +27,7 @@ export interface CheckOptions {
 }
 
 /** Nominal sampling interval in s: the median of up to 4001 intervals spread over the log. */
-function nominalInterval(timeS: Float64Array): number {
+export function nominalInterval(timeS: Float64Array): number {
   const n = timeS.length - 1;
   const step = Math.max(1, Math.floor(n / 4001));
   const d: number[] = [];
@@ -33,10 +36,12 @@ function nominalInterval(timeS: Float64Array): number {
   return d[Math.floor(d.length / 2)] ?? 0;
 }
 
-/** Sampling, length, rate and clipping checks on an ingested log; rowOf maps a sample index to its file row. */
 /** Running figures over the log, gathered piece by piece (see logStats). */
-interface Stats {
+export interface Stats {
+  /** Crank angle in rad; NaN when a crank value is not finite (a dropout). */
   revRad: number;
+  /** Sum of the gearbox values: not finite exactly when one of them is not (a dropout). */
+  sumG: number;
   maxC: number;
   minC: number;
   maxG: number;
@@ -54,7 +59,7 @@ function statsPiece(
   to: number,
   st: Stats,
 ): void {
-  let { revRad, maxC, minC, maxG, minG, minDt, maxDt } = st;
+  let { revRad, sumG, maxC, minC, maxG, minG, minDt, maxDt } = st;
   let tPrev = t[from - 1]!,
     cPrev = c[from - 1]!;
   for (let i = from; i < to; i++) {
@@ -65,6 +70,7 @@ function statsPiece(
     if (dt < minDt) minDt = dt;
     if (dt > maxDt) maxDt = dt;
     revRad += (ci + cPrev) * 0.5 * dt;
+    sumG += gi; // one add: the cheap way to learn whether any gearbox value is NaN or infinite
     if (ci > maxC) maxC = ci;
     if (ci < minC) minC = ci;
     if (gi > maxG) maxG = gi;
@@ -72,7 +78,7 @@ function statsPiece(
     tPrev = ti;
     cPrev = ci;
   }
-  Object.assign(st, { revRad, maxC, minC, maxG, minG, minDt, maxDt });
+  Object.assign(st, { revRad, sumG, maxC, minC, maxG, minG, minDt, maxDt });
 }
 
 /**
@@ -80,9 +86,10 @@ function statsPiece(
  * samples because a single call with a 3 M-sample loop runs long before V8 optimises it
  * (measured: ~50 ms as one loop, ~25 ms in pieces, on the bench log).
  */
-function logStats(log: DriveLog): Stats {
+export function logStats(log: DriveLog): Stats {
   const st: Stats = {
     revRad: 0,
+    sumG: 0,
     maxC: -Infinity,
     minC: Infinity,
     maxG: -Infinity,
@@ -94,6 +101,8 @@ function logStats(log: DriveLog): Stats {
   if (n > 0) {
     st.maxC = st.minC = log.crankRadS[0]!;
     st.maxG = st.minG = log.gearboxRadS[0]!;
+    st.sumG = log.gearboxRadS[0]!;
+    st.revRad = log.crankRadS[0]! * 0; // NaN when the first crank value is
   }
   for (let s = 1; s < n; s += 16384)
     statsPiece(log.timeS, log.crankRadS, log.gearboxRadS, s, Math.min(n, s + 16384), st);
@@ -110,19 +119,39 @@ function firstRunAt(values: Float64Array, max: number, need: number): number {
   return -1;
 }
 
-/** Sampling, length, rate and clipping checks on an ingested log; rowOf maps a sample index to its file row. */
-export function checkLog(
+/** True when every crank and gearbox value is finite (no dropout), read from the stats pass. */
+export function allFinite(st: Stats): boolean {
+  return Number.isFinite(st.revRad) && Number.isFinite(st.sumG);
+}
+
+/**
+ * The strict refusal of a log with a dropout (an MDF4 channel can hold NaN; a CSV refuses it
+ * row by row): names the first non-finite value as the row checks do.
+ */
+export function firstNonFinite(log: DriveLog, rowOf: (i: number) => number): SignalIssue {
+  const { crankRadS: c, gearboxRadS: g, source } = log;
+  let i = 0;
+  while (i < c.length && Number.isFinite(c[i]!) && Number.isFinite(g[i]!)) i++;
+  const crankBad = !Number.isFinite(c[i] ?? 0);
+  const column = crankBad ? source.crankColumn : source.gearboxColumn;
+  const what = crankBad ? "crank speed" : "gearbox speed";
+  const r = rowOf(i);
+  const message = `row ${r}, column "${column}": the ${what} is not a finite number`;
+  return { code: "non_finite", message, row: r, column };
+}
+
+/** The strict sampling check: the first gap, or every interval off the nominal one, is an error. */
+export function samplingProblem(
   log: DriveLog,
   rowOf: (i: number) => number,
   o: CheckOptions,
-): { error?: SignalIssue; warnings: SignalIssue[] } {
-  const warnings: SignalIssue[] = [];
+  st: Stats,
+): SignalIssue | undefined {
   const { timeS } = log;
   const n = timeS.length;
   const col = log.source.timeColumn;
   const u = log.source.timeUnit;
   const inFile = (s: number) => `${fmt(s / S_PER_UNIT[u])} ${u}`;
-  const st = logStats(log);
   const nom = n >= 3 ? nominalInterval(timeS) : 0;
   const tol = (o.samplingTolerance ?? 0.1) * nom;
   const gap = (o.gapFactor ?? 1.5) * nom;
@@ -135,7 +164,7 @@ export function checkLog(
       if (dt > gap) {
         const r = rowOf(i);
         const message = `gap in the time at row ${r}: ${inFile(timeS[i - 1]!)} to ${inFile(timeS[i]!)}, the sampling interval is ${inFile(nom)}`;
-        return { warnings, error: { code: "time_gap", message, row: r, column: col } };
+        return { code: "time_gap", message, row: r, column: col };
       }
       if (dt - nom > tol || nom - dt > tol) {
         count++;
@@ -146,11 +175,21 @@ export function checkLog(
       `${plural(count, "row")} ` + irregular.join(", ") + (count > irregular.length ? ", …" : "");
     const pct = Math.round((o.samplingTolerance ?? 0.1) * 100);
     const message = `sampling is irregular at ${countText(count, "row")} (${rows}): intervals differ from ${inFile(nom)} by more than ${pct} %`;
-    return {
-      warnings,
-      error: { code: "irregular_sampling", message, row: irregular[0] ?? 0, column: col },
-    };
+    return { code: "irregular_sampling", message, row: irregular[0] ?? 0, column: col };
   }
+  return undefined;
+}
+
+/** Length, sampling rate against the top order, and clipping: warnings only. */
+export function contentWarnings(
+  log: DriveLog,
+  rowOf: (i: number) => number,
+  o: CheckOptions,
+  st: Stats,
+): SignalIssue[] {
+  const warnings: SignalIssue[] = [];
+  const { timeS } = log;
+  const n = timeS.length;
   const durationS = n > 1 ? timeS[n - 1]! - timeS[0]! : 0;
   const revs = st.revRad / (2 * Math.PI);
   const minS = o.minDurationS ?? 2;
@@ -180,5 +219,5 @@ export function checkLog(
     const message = `column "${name}" stays at its maximum for ${need} or more samples from row ${r}; the sensor or logger may be clipping`;
     warnings.push({ code: "clipped_values", message, row: r, column: name });
   }
-  return { warnings };
+  return warnings;
 }

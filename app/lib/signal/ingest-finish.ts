@@ -1,9 +1,18 @@
 /**
  * The last step of every ingest, whatever the format (CSV in ingest.ts, MDF4 in mdf4/): the
- * whole-log checks (ingest-checks.ts) and the repairs of dropouts, short gaps and jitter, so a
- * CSV and an MDF4 file of the same samples end up as the same DriveLog with the same warnings.
+ * whole-log checks (ingest-checks.ts) and the repairs of dropouts, short gaps and jitter
+ * (ingest-repairs.ts), so a CSV and an MDF4 file of the same samples end up as the same
+ * DriveLog with the same warnings.
  */
-import { checkLog, type CheckOptions } from "./ingest-checks.ts";
+import {
+  allFinite,
+  contentWarnings,
+  firstNonFinite,
+  logStats,
+  samplingProblem,
+  type CheckOptions,
+} from "./ingest-checks.ts";
+import { repairLog } from "./ingest-repairs.ts";
 import type { DriveLog, Outcome } from "./types.ts";
 
 export interface FinishOptions extends CheckOptions {
@@ -24,7 +33,21 @@ export function finishLog(
   rowOf: (i: number) => number,
   options: FinishOptions,
 ): Outcome<DriveLog> {
-  const checked = checkLog(log, rowOf, options);
-  if (checked.error) return { ok: false, error: checked.error, warnings: checked.warnings };
-  return { ok: true, value: log, warnings: checked.warnings };
+  // One pass for the extremes, the revolutions and whether any value is NaN (ingest-checks.ts).
+  const st = logStats(log);
+  if (options.strict) {
+    // Strict: the refusals as they were before repairs existed, with the same messages.
+    const error = !allFinite(st)
+      ? firstNonFinite(log, rowOf)
+      : samplingProblem(log, rowOf, options, st);
+    if (error) return { ok: false, error, warnings: [] };
+    return { ok: true, value: log, warnings: contentWarnings(log, rowOf, options, st) };
+  }
+  const repaired = repairLog(log, rowOf, options, st);
+  if (repaired.error) return { ok: false, error: repaired.error, warnings: repaired.warnings };
+  const out = repaired.log;
+  // The stats pass again only when the samples changed (a log with nothing to repair keeps it).
+  const st2 = out === log && allFinite(st) ? st : logStats(out);
+  const warnings = [...repaired.warnings, ...contentWarnings(out, repaired.rowOf, options, st2)];
+  return { ok: true, value: out, warnings };
 }

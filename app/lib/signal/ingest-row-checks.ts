@@ -19,7 +19,16 @@ export interface RowRules {
   /** Crank and gearbox unit → rpm. */
   toRpmC: number;
   toRpmG: number;
+  /**
+   * Refuse an empty or non-finite cell (today's rule, CLI --strict). Otherwise a speed cell is a
+   * dropout, stored as NaN for ingest-repairs.ts, and a row without a time is dropped (it then
+   * counts as a missing row).
+   */
+  strict?: boolean;
 }
+
+/** rowProblem's answer for a row without a usable time when not strict: leave it out. */
+export const DROP_ROW = "drop";
 
 /** A problem with its row and column, in the shape every ingest issue has. */
 export function issue(code: string, message: string, r?: number, column?: string): SignalIssue {
@@ -44,7 +53,7 @@ export function rowProblem(
   last: boolean,
   n: number,
   prevTime: number,
-): { issue: SignalIssue; fatal: boolean } | undefined {
+): { issue: SignalIssue; fatal: boolean } | typeof DROP_ROW | undefined {
   const { map: m, headers, minRpm, maxRpm, toRpmC, toRpmG } = rules;
   const fatal = (code: string, message: string, column?: string) => ({
     issue: issue(code, message, r, column),
@@ -76,6 +85,12 @@ export function rowProblem(
       if (s === OK) continue;
       const name = headers[i] ?? "";
       const text = row.texts[i] ?? "";
+      // Not strict: a sensor dropout is repaired or splits the log later (ingest-repairs.ts);
+      // text that is not a number stays an error (a wrong column or decimal mark, not a dropout).
+      if ((s === EMPTY || s === NONFINITE) && !rules.strict) {
+        if (i === m.time) return DROP_ROW;
+        continue;
+      }
       if (s === EMPTY)
         return fatal("missing_value", `row ${r}, column "${name}": the ${what} is empty`, name);
       if (s === NONFINITE)
@@ -115,14 +130,16 @@ export function rowProblem(
   const rawG = row.vals[m.gearbox] ?? NaN;
   const rpmC = rawC * toRpmC;
   const rpmG = rawG * toRpmG;
-  const plausible = rpmC >= minRpm && rpmC <= maxRpm && rpmG >= minRpm && rpmG <= maxRpm;
+  // A dropout (NaN, only when not strict) is not a speed and so not implausible.
+  const fine = (rpm: number) => rpm !== rpm || (rpm >= minRpm && rpm <= maxRpm);
+  const plausible = fine(rpmC) && fine(rpmG);
   if (!plausible)
     for (const [raw, toRpm, i, unit] of [
       [rawC, toRpmC, m.crank, m.crankUnit],
       [rawG, toRpmG, m.gearbox, m.gearboxUnit],
     ] as const) {
       const rpm = raw * toRpm;
-      if (rpm >= minRpm && rpm <= maxRpm) continue;
+      if (fine(rpm)) continue;
       const name = headers[i] ?? "";
       const why = rpm < 0 ? "negative" : `above ${maxRpm} rpm`;
       return fatal(

@@ -8,7 +8,7 @@
 import Papa from "papaparse";
 import type { Channels } from "./ingest-channels.ts";
 import type { LogHeader } from "./ingest-header.ts";
-import { issue, rowProblem, type RowRules } from "./ingest-row-checks.ts";
+import { DROP_ROW, issue, rowProblem, type RowRules } from "./ingest-row-checks.ts";
 import {
   bytesToText,
   type Column,
@@ -42,13 +42,14 @@ export interface RowReader {
 export function createRowReader(
   header: LogHeader,
   ch: Channels,
-  limits: { minRpm: number; maxRpm: number },
+  limits: { minRpm: number; maxRpm: number; strict?: boolean },
   warnings: SignalIssue[],
 ): RowReader {
   const { headers, map, decimal, delimiter } = header;
   const { minRpm, maxRpm } = limits;
   const { t, crank, gear, extras, scaleT, radC, radG, toRpmC, toRpmG } = ch;
-  const rules: RowRules = { map, headers, decimal, minRpm, maxRpm, toRpmC, toRpmG };
+  const strict = limits.strict === true;
+  const rules: RowRules = { map, headers, decimal, minRpm, maxRpm, toRpmC, toRpmG, strict };
   const delimByte = delimiter.charCodeAt(0);
   const decByte = decimal.charCodeAt(0);
   const row: RowScratch = {
@@ -70,6 +71,10 @@ export function createRowReader(
   /** Check and store the row in `row` (f fields) read from file line r. */
   function commit(f: number, r: number, last: boolean): void {
     const problem = rowProblem(rules, row, f, r, last, n, prevTime);
+    if (problem === DROP_ROW) {
+      skipped.push(n); // counted like a blank line, so rows still map to file lines
+      return;
+    }
     if (problem) {
       if (problem.fatal) error ??= problem.issue;
       else warnings.push(problem.issue);
@@ -77,8 +82,9 @@ export function createRowReader(
     }
     const m = map;
     const rawT = row.vals[m.time] ?? NaN;
-    const rawC = row.vals[m.crank] ?? NaN;
-    const rawG = row.vals[m.gearbox] ?? NaN;
+    // A dropout (empty or non-finite cell, allowed when not strict) is stored as NaN.
+    const rawC = row.stat[m.crank] === OK ? (row.vals[m.crank] ?? NaN) : NaN;
+    const rawG = row.stat[m.gearbox] === OK ? (row.vals[m.gearbox] ?? NaN) : NaN;
     prevTime = rawT;
     t.ensure(n);
     crank.ensure(n);

@@ -9,17 +9,21 @@
  * is conservative: any field it is not sure of (exponent, spaces, more than 15 digits, text)
  * falls back to the careful path, and the tests hold it against papaparse + Number().
  *
- * Every problem is a value with a code, a row (1-based file line, header = 1) and a column.
- * This file drives the steps chunk by chunk: 1. read the header (ingest-header.ts); 2. scan the
+ * Every problem is a value with a code, a row (1-based file line, preamble lines counted) and a
+ * column.
+ * This file drives the steps chunk by chunk: 1. read the head — a logger's preamble, the header
+ * and a units row under it (csv-head.ts, ingest-header.ts, ingest-preamble.ts); 2. scan the
  * rows (ingest-rows.ts, with the byte scanner in ingest-scan.ts); 3. check each row
  * (ingest-row-checks.ts) and, after the last, the whole log (ingest-checks.ts: sampling,
  * length, clipping); 4. build the channels and the DriveLog (ingest-channels.ts).
  */
 import { buildDriveLog, createChannels, type Channels } from "./ingest-channels.ts";
 import { finishLog, type FinishOptions } from "./ingest-finish.ts";
-import { readHeader, type HeaderOptions, type LogHeader } from "./ingest-header.ts";
+import { createHeadCollector, type HeadResult } from "./csv-head.ts";
+import { resolveHead, type HeaderOptions, type LogHeader } from "./ingest-header.ts";
 import { createRowReader, type RowReader } from "./ingest-rows.ts";
-import { parseNumberText, SAMPLE_LINES } from "./ingest-scan.ts";
+import { parseNumberText } from "./ingest-scan.ts";
+import { rateMismatch } from "./stated-rate.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
 export { parseNumberText };
@@ -46,38 +50,35 @@ export interface Ingester {
 /** A chunked ingester; feed it with push() and call finish() once. Options as IngestOptions. */
 export function createIngester(options: IngestOptions = {}): Ingester {
   const warnings: SignalIssue[] = [];
-  const limits = { maxRpm: options.maxRpm ?? 12000, minRpm: options.minRpm ?? -20 };
+  const limits = {
+    maxRpm: options.maxRpm ?? 12000,
+    minRpm: options.minRpm ?? -20,
+    strict: options.strict === true,
+  };
   let error: SignalIssue | undefined; // a problem of the header or of the log as a whole
   let header: LogHeader | undefined;
   let channels: Channels | undefined;
   let reader: RowReader | undefined;
-  let head = true; // still collecting the first lines, before the header is decided
-  let headParts: Uint8Array[] = [];
-  let headBytes = 0;
-  let headLines = 0;
-  const takeHead = (): Uint8Array => {
-    const all = new Uint8Array(headBytes);
-    let at = 0;
-    for (const part of headParts) {
-      all.set(part, at);
-      at += part.length;
-    }
-    head = false;
-    headParts = [];
-    return all;
-  };
+  // The head (preamble, header, units row, first data rows) is collected until it can be
+  // decided (csv-head.ts); then the rows go straight to the row reader.
+  const collector = createHeadCollector(options);
+  let head = true;
   const failed = () => error ?? reader?.error;
 
-  function startData(prefix: Uint8Array, atEnd: boolean): void {
-    const read = readHeader(prefix, atEnd, options);
-    if (!read.ok) {
-      error = read.error;
+  function startData(read: HeadResult, atEnd: boolean): void {
+    head = false;
+    const prefix = collector.take();
+    const resolved = read.ok ? resolveHead(read.value, options) : read;
+    if (!resolved.ok) {
+      error = resolved.error;
       return;
     }
-    header = read.value;
+    header = resolved.value;
     warnings.push(...header.warnings);
     channels = createChannels(header, options.sizeHintBytes);
-    reader = createRowReader(header, channels, limits, warnings);
+    // The row reader counts file lines from the line before the data (the units row, if any).
+    const rowsFrom = { ...header, headerLine: header.lastHeadLine };
+    reader = createRowReader(rowsFrom, channels, limits, warnings);
     reader.feed(prefix.subarray(header.dataStart), atEnd);
   }
 
@@ -90,29 +91,21 @@ export function createIngester(options: IngestOptions = {}): Ingester {
         ? new TextEncoder().encode(chunk)
         : new Uint8Array(chunk.buffer, chunk.byteOffset, chunk.byteLength);
     if (head) {
-      // Pieces are kept in a list (not concatenated per push) so tiny pushes stay linear.
-      headParts.push(bytes.slice()); // a copy: the caller may reuse its buffer
-      headBytes += bytes.length;
-      for (
-        let i = bytes.indexOf(10);
-        i >= 0 && headLines <= SAMPLE_LINES;
-        i = bytes.indexOf(10, i + 1)
-      )
-        headLines++;
-      if (headLines > SAMPLE_LINES || headBytes > 1 << 16) startData(takeHead(), false);
+      const read = collector.push(bytes);
+      if (read) startData(read, false);
       return;
     }
     reader?.feed(bytes, false);
   }
 
   function finish(): Outcome<DriveLog> {
-    if (!failed() && head) startData(takeHead(), true);
+    if (!failed() && head) startData(collector.finish(), true);
     else if (!failed()) reader?.feed(new Uint8Array(0), true);
     if (!failed() && header && reader?.rows === 0)
       error = {
         code: "no_data_rows",
         message: "the file has a header but no data rows",
-        row: header.headerLine + 1,
+        row: header.lastHeadLine + 1,
       };
     const problem = failed();
     if (problem || !header || !channels || !reader)
@@ -122,10 +115,11 @@ export function createIngester(options: IngestOptions = {}): Ingester {
         warnings,
       };
     const { rows: n, skipped } = reader;
-    const firstDataLine = header.headerLine + 1;
+    const firstDataLine = header.lastHeadLine + 1;
     const rowOf = (i: number) => firstDataLine + i + skipped.filter((k) => k <= i).length;
     const finished = finishLog(buildDriveLog(channels, n, header), rowOf, options);
-    return { ...finished, warnings: [...warnings, ...finished.warnings] };
+    const stated = finished.ok ? rateMismatch(header.statedRateHz, finished.value) : [];
+    return { ...finished, warnings: [...warnings, ...finished.warnings, ...stated] };
   }
 
   return { push, finish };

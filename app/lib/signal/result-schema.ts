@@ -144,8 +144,9 @@ export const analysisResultSchema = z.object({
   speedTrace: z
     .object({
       timeS: z.array(z.number()),
-      crankRpm: z.array(z.number()),
-      gearboxRpm: z.array(z.number()),
+      /** A null value separates two sections of a log split at a gap (nothing drawn across it). */
+      crankRpm: z.array(z.number().nullable()),
+      gearboxRpm: z.array(z.number().nullable()),
       samplesPerPoint: z.int().positive(),
     })
     .nullable()

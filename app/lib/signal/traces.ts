@@ -13,9 +13,9 @@ export const TRACE_POINTS = 1500;
 export interface SpeedTrace {
   /** Bucket mid times, s. */
   timeS: number[];
-  /** Bucket mean speeds, rpm. */
-  crankRpm: number[];
-  gearboxRpm: number[];
+  /** Bucket mean speeds, rpm; null at a point that separates two sections (section-analysis.ts). */
+  crankRpm: (number | null)[];
+  gearboxRpm: (number | null)[];
   /** Samples averaged into one point (1 when the log is short enough to keep every sample). */
   samplesPerPoint: number;
 }

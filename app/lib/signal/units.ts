@@ -40,11 +40,27 @@ export function radSToRpm(radS: number): number {
 }
 
 /**
- * Read a speed unit as people write it ("rpm", "1/min", "rad/s", "rad_s", "°/s", "deg/s",
- * "Hz", "rev/s", "rps"). Returns undefined when the text is not a speed unit.
+ * A unit cell as loggers write it, without its brackets: "[1/min]" → "1/min", "(s)" → "s".
+ * "[-]", "-" and "[]" mean "no unit" and give "".
+ */
+export function unitCellText(text: string): string {
+  const t = text.trim();
+  const inner = /^[[({]\s*(.*?)\s*[\])}]$/.exec(t);
+  const bare = inner ? (inner[1] ?? "") : t;
+  return bare === "-" ? "" : bare;
+}
+
+/**
+ * Read a speed unit as people write it ("rpm", "1/min", "U/min", "rad/s", "rad_s", "°/s",
+ * "deg/s", "Hz", "rev/s", "rps"), in brackets or not ("[1/min]"). Returns undefined when the
+ * text is not a speed unit ("[-]" is no unit).
  */
 export function parseSpeedUnit(text: string): SpeedUnit | undefined {
-  const t = text.trim().toLowerCase().replace(/\s+/g, "").replace(/_/g, "/").replace(/⁻¹/g, "^-1");
+  const t = unitCellText(text)
+    .toLowerCase()
+    .replace(/\s+/g, "")
+    .replace(/_/g, "/")
+    .replace(/⁻¹/g, "^-1");
   if (
     t === "rpm" ||
     t === "1/min" ||
@@ -61,9 +77,9 @@ export function parseSpeedUnit(text: string): SpeedUnit | undefined {
   return undefined;
 }
 
-/** Read a time unit ("s", "sec", "ms", "msec"). Undefined when not a time unit. */
+/** Read a time unit ("s", "sec", "ms", "msec", also "[s]"). Undefined when not a time unit. */
 export function parseTimeUnit(text: string): TimeUnit | undefined {
-  const t = text.trim().toLowerCase();
+  const t = unitCellText(text).toLowerCase();
   if (t === "s" || t === "sec" || t === "secs" || t === "second" || t === "seconds") return "s";
   if (t === "ms" || t === "msec" || t === "millisecond" || t === "milliseconds") return "ms";
   return undefined;
