@@ -12,7 +12,6 @@
 import { Lru } from "../base/lru";
 import { blobStore } from "../infra/storage-settings.server";
 import { listChannelsOfStream } from "../signal/ingest-stream.ts";
-import type { IngestOptions } from "../signal/ingest.ts";
 import type { ChannelInfo, ChannelName, Outcome } from "../signal/types.ts";
 
 /** Lists kept: a list of a few hundred channels is some tens of kB. */
@@ -33,11 +32,7 @@ export async function storedChannels(
   if (hit) return { ok: true, value: hit, warnings: [] };
   let pending = making.get(key);
   if (!pending) {
-    // Typed through a variable: the contract puts channelNames on IngestOptions (ColumnOptions).
-    const options: IngestOptions & { channelNames?: ChannelName[] } = {
-      channelNames: channelNames.map((n) => ({ ...n })),
-    };
-    pending = listChannelsOfStream(blobStore().read(blobKey), options)
+    pending = listChannelsOfStream(blobStore().read(blobKey), { channelNames })
       .catch((e: unknown): Outcome<ChannelInfo[]> => ({
         ok: false,
         error: {
