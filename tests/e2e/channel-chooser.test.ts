@@ -1,7 +1,8 @@
 import { readFile } from "node:fs/promises";
 import { join } from "node:path";
-import type { Browser } from "playwright-core";
+import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
 import { repoRoot } from "../support/processes";
 import { baseUrl, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
@@ -20,17 +21,68 @@ afterAll(async () => {
   await browser?.close();
 });
 
+/** The analytic idle log under a logger's own names, with a fourth channel (oil, constant 85). */
+function loggerCsv(): string {
+  return analyticIdleCsv({ ...IDLE_800, durationS: 3 })
+    .split("\n")
+    .map((l, i) =>
+      l === "" ? l : i === 0 ? "Zeit;Kanal1;Kanal2;Oel" : `${l.replaceAll(",", ";")};85`,
+    )
+    .join("\n");
+}
+
+async function newVehicle(page: Page, label: string) {
+  await page.goto(`${baseUrl}/vehicles/new`);
+  await page.getByLabel("Name").fill(`Kestrel ${label} car ${tag}`);
+  await page.getByLabel("Identifier").fill(`${label}-${tag}`);
+  await page.getByLabel("Cylinders").fill("4");
+  await page.getByRole("button", { name: "Add vehicle" }).click();
+  await page.waitForURL(/\/vehicles\/\d+$/);
+}
+
 describe("the channel chooser", () => {
+  it("a CSV with a logger's own names: pick the channels by keyboard and mouse, and it is analysed", async () => {
+    const page = await signIn(browser, "engineer@twistlog.test");
+    await newVehicle(page, "CSV");
+    const name = `logger-${tag}.csv`;
+    await page
+      .locator("#upload-files")
+      .setInputFiles([{ name, mimeType: "text/csv", buffer: Buffer.from(loggerCsv()) }]);
+    await page.getByRole("button", { name: "Upload 1 file" }).click();
+    const row = page.locator("fieldset", { hasText: name });
+    await row
+      .getByRole("link", { name: `Choose the columns of ${name}` })
+      .click({ timeout: 60_000 });
+    await page.getByRole("heading", { name: "Channel chooser" }).waitFor();
+    const time = page.getByRole("radio", { name: "Time: Zeit" });
+    await time.waitFor({ timeout: 30_000 });
+    await expect(page.locator("tr[data-channel]").count()).resolves.toBe(4);
+    await page.getByLabel("Filter channels").fill("kanal");
+    await page.getByText("2 of 4 channels shown").waitFor();
+    await page.getByRole("radio", { name: "Crank: Kanal1" }).check();
+    await page.getByRole("radio", { name: "Gearbox: Kanal2" }).check();
+    await page.getByLabel("Filter channels").fill("");
+    // A role's radios are one group: the arrow keys move the pick between channels.
+    await page.getByRole("radio", { name: "Time: recognise from the file" }).check();
+    await page.keyboard.press("ArrowDown");
+    await expect(time.isChecked()).resolves.toBe(true);
+    await page.getByLabel("Crank speed unit").selectOption("rpm");
+    await page.getByLabel("Gearbox speed unit").selectOption("rpm");
+    await page.locator("[data-picked='crank']").getByText("Kanal1").waitFor();
+    await snap(page, "chooser-csv-picked");
+    await page.getByRole("button", { name: "Analyse with these channels" }).click();
+    await page.getByText(/The channels are set and remembered for this vehicle/).waitFor();
+    await page.getByRole("heading", { name: /^Analysis version/ }).waitFor({ timeout: 90_000 });
+    await page.locator("[data-source-format='csv']").waitFor();
+    await snap(page, "chooser-csv-done");
+    await page.context().close();
+  });
+
   it("an MDF4 upload: pick EngSpd and GbxInpShaftSpd, and the analysis is done", async () => {
     // Written by an independent MDF4 implementation (see tests/fixtures/mdf4/ for its origin).
     const mf4 = await readFile(join(repoRoot, "tests/fixtures/mdf4/drive-log-plain.mf4"));
     const page = await signIn(browser, "engineer@twistlog.test");
-    await page.goto(`${baseUrl}/vehicles/new`);
-    await page.getByLabel("Name").fill(`Kestrel MDF4 car ${tag}`);
-    await page.getByLabel("Identifier").fill(`MF4-${tag}`);
-    await page.getByLabel("Cylinders").fill("4");
-    await page.getByRole("button", { name: "Add vehicle" }).click();
-    await page.waitForURL(/\/vehicles\/\d+$/);
+    await newVehicle(page, "MF4");
 
     const name = `kestrel-${tag}.mf4`;
     await page
