@@ -1,7 +1,7 @@
 /**
  * The drive-log page's channels: the channel chooser when it is offered, else which columns the
  * last analysis read. Offered at once (open) when the analysis failed for a column reason, and
- * — folded — when the file holds more channels than the three roles need, so a technician can
+ * — folded — when the file holds more candidates than the three roles need, so a technician can
  * pick others. CSV and MDF4 files are chosen the same way.
  */
 import type { SubmissionResult } from "@conform-to/react";
@@ -10,6 +10,7 @@ import { ChannelChooser, ChannelChooserState, useChannels } from "./channel-choo
 import { columnsUsedText } from "./column-mapping";
 import { ErrorLine } from "./form";
 import { Card } from "./page";
+import { moreCandidatesThanRoles } from "~/lib/domain/channel-candidates";
 
 export function ChannelsStep({
   logId,
@@ -35,7 +36,7 @@ export function ChannelsStep({
       {columnsUsedText(applied)}
     </p>
   ) : null;
-  const many = (query.data?.length ?? 0) > 3;
+  const many = !!query.data && moreCandidatesThanRoles(query.data);
   if (!offer || !settled || (!failedOverColumns && !many)) return used;
   // Rendered here, not in the chooser, so the refusal shows before the channel list arrives.
   const refusal = Object.values(lastResult?.error ?? {}).flatMap((v) => v ?? []);

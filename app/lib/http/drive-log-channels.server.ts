@@ -16,6 +16,7 @@ import { metadataDetails } from "../signal/metadata-details.ts";
 import { blobStore } from "../infra/storage-settings.server";
 import { sniffFormat } from "../signal/format.ts";
 import { canChooseColumnsFor } from "../domain/column-reasons";
+import { moreCandidatesThanRoles } from "../domain/channel-candidates";
 
 type Vehicles = ReturnType<typeof vehicleData>;
 
@@ -52,7 +53,7 @@ export async function chooserOffered(teamId: number, log: DriveLogRow): Promise<
   if (log.status !== "done" && log.status !== "failed") return false;
   const { channelNames } = await teamData(teamId).ingestSettings();
   const listed = await storedChannels(log.blobKey, channelNames);
-  return listed.ok && listed.value.length > 3;
+  return listed.ok && moreCandidatesThanRoles(listed.value);
 }
 
 /** The choice as posted: the chooser's names (timeChannel, …) or the older form's (timeColumn, …). */
