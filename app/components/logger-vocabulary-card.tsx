@@ -18,6 +18,7 @@ import { Field, IntentButton, SchemaForm, SubmitButton, useSchemaForm } from "./
 import { ChoiceField } from "./form-fields";
 import { Card, EmptyState, TableHead, tableClass, tdClass } from "./page";
 
+const shortRole = { time: "time", crank: "crank", gearbox: "gearbox" } as const;
 const unitOptions = [
   { value: "", label: "As the file says" },
   ...[...TIME_UNITS, ...SPEED_UNITS].map((u) => ({ value: u, label: u })),
@@ -55,7 +56,7 @@ export function LoggerVocabularyCard({
             {names.map((c) => (
               <tr key={c.name}>
                 <td className={`${tdClass} font-mono`}>{c.name}</td>
-                <td className={tdClass}>{roleLabels[c.role]}</td>
+                <td className={tdClass}>{shortRole[c.role]}</td>
                 <td className={tdClass}>{c.unit ?? "as the file says"}</td>
                 {canEdit ? (
                   <td className={tdClass}>
@@ -85,7 +86,7 @@ function AddName({ lastResult }: { lastResult: SubmissionResult<string[]> | unde
   });
   return (
     <SchemaForm form={form} intent="add-channel-name" className="mt-4 space-y-3">
-      <div className="grid gap-3 sm:grid-cols-3">
+      <div className="grid gap-3">
         <Field label="Channel name" meta={fields.name} hint="As in the file, e.g. n_kw" />
         <ChoiceField
           label="Read as"
