@@ -30,7 +30,7 @@ function link(v: bigint, file: MdfFile, at: string): number {
   if (v < 64n || v > BigInt(file.size - HEADER))
     throw new MdfFault(
       "mdf4_bad_link",
-      `${at} links to offset ${v}, outside the file (${file.size} bytes); the file is damaged`,
+      `${at} links to offset ${v}, outside the file (${file.size} bytes); the file is truncated or damaged`,
     );
   return Number(v);
 }
