@@ -14,7 +14,7 @@ import { MdfBuilder } from "../../../../tests/support/mdf4-builder.ts";
 import { ingestMdf4File, listMdf4Channels } from "./index.ts";
 
 const fixtures = join(import.meta.dirname, "../../../../tests/fixtures/mdf4");
-const dir = mkdtempSync(join(tmpdir(), "twistlog-mdf4-bad-"));
+const dir = mkdtempSync(join(tmpdir(), "twistlog-test-badmdf-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 const fixture = (name: string) => readFileSync(join(fixtures, `${name}.mf4`));
 const PICK = { crankColumn: "EngSpd", gearboxColumn: "GbxInpShaftSpd" };

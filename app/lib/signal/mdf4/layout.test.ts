@@ -16,7 +16,7 @@ import { ingestMdf4File, listMdf4Channels } from "./index.ts";
 import { readRecords } from "./records.ts";
 import { readStructure } from "./structure.ts";
 
-const dir = mkdtempSync(join(tmpdir(), "twistlog-mdf4-layout-"));
+const dir = mkdtempSync(join(tmpdir(), "twistlog-test-layout-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 function save(name: string, b: MdfBuilder): string {
