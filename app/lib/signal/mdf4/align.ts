@@ -50,13 +50,15 @@ export class Samples {
   constructor(capacity: number) {
     this.data = new Float64Array(Math.max(16, capacity));
   }
-  push = (v: number): void => {
-    if (this.length === this.data.length) {
-      const next = new Float64Array(this.data.length * 2);
-      next.set(this.data);
+  /** Appends values[0..n). */
+  append = (values: Float64Array, n: number): void => {
+    if (this.length + n > this.data.length) {
+      const next = new Float64Array(Math.max(this.data.length * 2, this.length + n));
+      next.set(this.data.subarray(0, this.length));
       this.data = next;
     }
-    this.data[this.length++] = v;
+    this.data.set(values.subarray(0, n), this.length);
+    this.length += n;
   };
   take(): Float64Array {
     return this.length === this.data.length ? this.data : this.data.slice(0, this.length);

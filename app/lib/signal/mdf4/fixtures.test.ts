@@ -48,7 +48,7 @@ async function readAll(path: string) {
         o.channels.map((c) => ({
           group: o.group,
           channel: c.channel,
-          sink: (v: number) => void c.values.push(v),
+          sink: (v: Float64Array, n: number) => void c.values.push(...v.subarray(0, n)),
         })),
       );
       await readRecords(file, dg, wants);

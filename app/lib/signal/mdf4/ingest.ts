@@ -66,7 +66,7 @@ export async function ingestModel(
       if (store.has(r)) continue;
       const s = new Samples(await capacity(file, dg, r, model));
       store.set(r, s);
-      wants.push({ group: r.group, channel: r.channel, sink: s.push });
+      wants.push({ group: r.group, channel: r.channel, sink: s.append });
     }
     await readRecords(file, dg, wants, (done) =>
       onProgress?.(bytesTotal > 0 ? Math.min(1, (bytesBefore + done) / bytesTotal) : 1),
@@ -116,9 +116,8 @@ export async function ingestModel(
   // Scaled in place: these arrays are this ingest's own, and a second copy would double the
   // memory of a long log.
   const crankRadS = n === crankRaw.length ? crankRaw : crankRaw.slice(from, to);
-  for (let i = 0; i < n; i++) crankRadS[i]! *= radC;
-  const gearboxRadS = gearRaw;
-  for (let i = 0; i < n; i++) gearboxRadS[i]! *= radG;
+  scaleInPlace(crankRadS, radC);
+  const gearboxRadS = scaleInPlace(gearRaw, radG);
   const rowOf = (i: number) => from + i + 1;
   const implausible = checkSpeeds(
     [
@@ -196,19 +195,34 @@ function checkSpeeds(
 ): SignalIssue | undefined {
   const lo = ((o.minRpm ?? -20) * 2 * Math.PI) / 60;
   const hi = ((o.maxRpm ?? 12000) * 2 * Math.PI) / 60;
-  for (const [v, r] of channels)
-    for (let i = 0; i < v.length; i++) {
-      const x = v[i]!;
-      if (x >= lo && x <= hi) continue;
-      if (Number.isNaN(x)) continue; // an invalid sample: a dropout for the repairs
-      const rpm = (x * 60) / (2 * Math.PI);
-      const why = rpm < 0 ? "negative" : `above ${o.maxRpm ?? 12000} rpm`;
-      return {
-        code: "implausible_speed",
-        message: `record ${rowOf(i)}, channel "${r.display}": speed ${fmt(rpm)} rpm is implausible (${why})`,
-        row: rowOf(i),
-        column: r.display,
-      };
-    }
+  for (const [v, r] of channels) {
+    const i = firstOutside(v, lo, hi);
+    if (i < 0) continue;
+    const rpm = (v[i]! * 60) / (2 * Math.PI);
+    const why = rpm < 0 ? "negative" : `above ${o.maxRpm ?? 12000} rpm`;
+    return {
+      code: "implausible_speed",
+      message: `record ${rowOf(i)}, channel "${r.display}": speed ${fmt(rpm)} rpm is implausible (${why})`,
+      row: rowOf(i),
+      column: r.display,
+    };
+  }
   return undefined;
+}
+
+// Small loops of their own: V8 optimises a short function over a long array at once, where the
+// same loop inside a long function runs unoptimised for a while (see ingest-checks.ts).
+
+/** Index of the first value outside [lo, hi] (NaN is an invalid sample, left to the repairs), or −1. */
+function firstOutside(v: Float64Array, lo: number, hi: number): number {
+  for (let i = 0; i < v.length; i++) {
+    const x = v[i]!;
+    if ((x < lo || x > hi) && !Number.isNaN(x)) return i;
+  }
+  return -1;
+}
+
+function scaleInPlace(v: Float64Array, k: number): Float64Array {
+  if (k !== 1) for (let i = 0; i < v.length; i++) v[i]! *= k;
+  return v;
 }

@@ -35,7 +35,11 @@ async function values(path: string): Promise<Record<string, number[]>> {
       const wants = dg.groups.flatMap((g) =>
         g.channels.map((c) => {
           const v: number[] = (out[`${g.name}/${c.name}`] = []);
-          return { group: g, channel: c, sink: (x: number) => void v.push(x) };
+          return {
+            group: g,
+            channel: c,
+            sink: (x: Float64Array, n: number) => void v.push(...x.subarray(0, n)),
+          };
         }),
       );
       await readRecords(file, dg, wants);

@@ -36,11 +36,19 @@ export async function listModel(
       wants.push({
         group: r.group,
         channel: r.channel,
-        sink: (v) => {
-          if (s.count++ === 0) s.first = v;
-          s.last = v;
-          if (v < s.min) s.min = v;
-          if (v > s.max) s.max = v;
+        sink: (values, n) => {
+          if (n === 0) return;
+          if (s.count === 0) s.first = values[0]!;
+          s.last = values[n - 1]!;
+          s.count += n;
+          let { min, max } = s;
+          for (let i = 0; i < n; i++) {
+            const v = values[i]!;
+            if (v < min) min = v;
+            if (v > max) max = v;
+          }
+          s.min = min;
+          s.max = max;
         },
       });
     }

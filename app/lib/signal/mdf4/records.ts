@@ -12,11 +12,12 @@ import { dataChunks, dataPieces } from "./data.ts";
 import { MdfFault, type MdfFile } from "./file.ts";
 import type { Channel, ChannelGroup, DataGroup } from "./structure.ts";
 
-/** Where the decoded values of one channel go. */
+/** Where the decoded values of one channel go: `n` values at a time, in record order. */
 export interface Want {
   group: ChannelGroup;
   channel: Channel;
-  sink: (value: number) => void;
+  /** Called once per piece of data; `values` is reused after the call returns. */
+  sink: (values: Float64Array, n: number) => void;
 }
 
 type Reader = (dv: DataView, at: number, index: number) => number;
@@ -74,16 +75,59 @@ function half(h: number): number {
   return s * 2 ** (e - 15) * (1 + f / 1024);
 }
 
+interface Column {
+  ch: Channel;
+  read: Reader;
+  apply?: (x: number) => number;
+  /** -1: always valid; -2: never valid (cn_flags bit 0); else the invalidation bit's position. */
+  inval: number;
+  sink: (values: Float64Array, n: number) => void;
+}
+
 interface Decoder {
   size: number;
   vlsd: boolean;
   count: number;
-  channels: {
-    read: Reader;
-    apply?: (x: number) => number;
-    inval: number;
-    sink: (v: number) => void;
-  }[];
+  columns: Column[];
+  /** Record starts (after the id) in the current piece, and how many. */
+  pos: Int32Array;
+  n: number;
+}
+
+/**
+ * One channel's values at the record starts `pos[0..n)`, into `out`. The common layouts get a
+ * loop of their own (one DataView call each, which V8 inlines); the rest go through the
+ * channel's reader. Column by column, not record by record, keeps every loop monomorphic:
+ * measured on the bench file, 4× faster than one reader call per value.
+ */
+function decodeColumn(
+  dv: DataView,
+  pos: Int32Array,
+  n: number,
+  c: Column,
+  first: number,
+  out: Float64Array,
+): void {
+  const ch = c.ch;
+  const o = ch.byteOffset;
+  const le = ch.dataType % 2 === 0;
+  const plain = ch.bitOffset === 0 && (ch.type === 0 || ch.type === 2 || ch.type === 4);
+  if (plain && ch.dataType >= 4 && ch.bitCount === 64)
+    for (let i = 0; i < n; i++) out[i] = dv.getFloat64(pos[i]! + o, le);
+  else if (plain && ch.dataType >= 4 && ch.bitCount === 32)
+    for (let i = 0; i < n; i++) out[i] = dv.getFloat32(pos[i]! + o, le);
+  else if (plain && ch.dataType < 2 && ch.bitCount === 16)
+    for (let i = 0; i < n; i++) out[i] = dv.getUint16(pos[i]! + o, le);
+  else if (plain && ch.dataType >= 2 && ch.dataType < 4 && ch.bitCount === 16)
+    for (let i = 0; i < n; i++) out[i] = dv.getInt16(pos[i]! + o, le);
+  else for (let i = 0; i < n; i++) out[i] = c.read(dv, pos[i]!, first + i);
+  if (c.apply) for (let i = 0; i < n; i++) out[i] = c.apply(out[i]!);
+  if (c.inval === -2) out.fill(NaN, 0, n);
+  else if (c.inval >= 0) {
+    const byte = c.inval >> 3;
+    const bit = c.inval & 7;
+    for (let i = 0; i < n; i++) if ((dv.getUint8(pos[i]! + byte) >> bit) & 1) out[i] = NaN;
+  }
 }
 
 /**
@@ -101,7 +145,8 @@ export async function readRecords(
   const decoders = new Map<number, Decoder>();
   const byGroup = new Map<ChannelGroup, Decoder>();
   for (const g of dg.groups) {
-    const d: Decoder = { size: g.dataBytes + g.invalBytes, vlsd: g.vlsd, count: 0, channels: [] };
+    const size = g.dataBytes + g.invalBytes;
+    const d: Decoder = { size, vlsd: g.vlsd, count: 0, columns: [], pos: new Int32Array(0), n: 0 };
     decoders.set(g.recordId, d);
     byGroup.set(g, d);
   }
@@ -109,16 +154,16 @@ export async function readRecords(
     const d = byGroup.get(w.group);
     if (!d) continue;
     const c = w.channel;
-    // -1: always valid; -2: never valid (cn_flags bit 0); else the invalidation bit's position.
     const inval = c.flags & 1 ? -2 : c.flags & 2 ? w.group.dataBytes * 8 + c.invalBitPos : -1;
-    d.channels.push({ read: makeReader(c), apply: c.conversion.apply, inval, sink: w.sink });
+    d.columns.push({ ch: c, read: makeReader(c), apply: c.conversion.apply, inval, sink: w.sink });
   }
   const idSize = dg.recIdSize;
-  const only = idSize === 0 ? dg.groups[0] : undefined;
+  const only = idSize === 0 ? byGroup.get(dg.groups[0]!) : undefined;
   const { pieces, total } = await dataPieces(file, dg.data, where);
   let carry = new Uint8Array(0);
   let skip = 0; // bytes of a variable-length record still to pass over
   let done = 0;
+  let out = new Float64Array(0);
   for await (const chunk of dataChunks(file, pieces)) {
     done += chunk.length;
     let buf = chunk;
@@ -128,15 +173,24 @@ export async function readRecords(
       buf.set(chunk, carry.length);
     }
     const dv = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
+    for (const d of byGroup.values()) {
+      d.n = 0;
+      const most = Math.floor(buf.length / Math.max(1, d.size + idSize)) + 1;
+      if (d.columns.length > 0 && d.pos.length < most) d.pos = new Int32Array(most);
+    }
     let pos = Math.min(skip, buf.length);
     skip -= pos;
-    for (;;) {
-      let d: Decoder | undefined;
-      if (only) d = byGroup.get(only);
-      else {
+    if (only) {
+      if (only.size === 0) break; // records of no bytes: nothing to read
+      const n = Math.floor((buf.length - pos) / only.size);
+      if (only.columns.length > 0) for (let i = 0; i < n; i++) only.pos[i] = pos + i * only.size;
+      only.n = n;
+      pos += n * only.size;
+    } else
+      for (;;) {
         if (pos + idSize > buf.length) break;
         const id = recordId(dv, pos, idSize);
-        d = decoders.get(id);
+        const d = decoders.get(id);
         if (!d)
           throw new MdfFault(
             "mdf4_bad_record",
@@ -151,22 +205,19 @@ export async function readRecords(
           skip = len - here;
           continue;
         }
+        if (pos + idSize + d.size > buf.length) break;
+        if (d.columns.length > 0) d.pos[d.n] = pos + idSize;
+        d.n++;
+        pos += idSize + d.size;
       }
-      if (!d || pos + idSize + d.size > buf.length) break;
-      const at = pos + idSize;
-      for (const c of d.channels) {
-        let v: number;
-        if (c.inval === -2) v = NaN;
-        else if (c.inval >= 0 && (buf[at + (c.inval >> 3)]! >> (c.inval & 7)) & 1) v = NaN;
-        else {
-          v = c.read(dv, at, d.count);
-          if (c.apply) v = c.apply(v);
-        }
-        c.sink(v);
+    for (const d of byGroup.values()) {
+      if (d.n === 0) continue;
+      if (out.length < d.n) out = new Float64Array(d.n);
+      for (const c of d.columns) {
+        decodeColumn(dv, d.pos, d.n, c, d.count, out);
+        c.sink(out, d.n);
       }
-      d.count++;
-      pos = at + d.size;
-      if (only && d.size === 0) break; // records of no bytes: nothing to step over
+      d.count += d.n;
     }
     carry = buf.slice(pos);
     onBytes?.(done, total);
