@@ -30,10 +30,22 @@ try {
   const bytes = statSync(file).size;
   const rssBeforeMB = process.resourceUsage().maxRSS / 1024;
   const starts = new Map<PipelineStage, number>();
+  const cpuAt = new Map<PipelineStage, number>(); // CPU ms used when each stage starts
+  const rssAt = new Map<PipelineStage, number>(); // resident MB when each stage starts
+  const cpuMs = () => {
+    const u = process.cpuUsage();
+    return (u.user + u.system) / 1000;
+  };
   const t1 = performance.now();
+  const cpu1 = cpuMs();
   const outcome = await analyseSource({ source: file, ingest: {}, analysis: {} }, (stage) => {
-    if (!starts.has(stage)) starts.set(stage, performance.now());
+    if (!starts.has(stage)) {
+      starts.set(stage, performance.now());
+      cpuAt.set(stage, cpuMs());
+      rssAt.set(stage, process.memoryUsage.rss() / 2 ** 20);
+    }
   });
+  const cpu2 = cpuMs();
   const t2 = performance.now();
   if (!outcome.ok) throw new Error(`${outcome.error.code}: ${outcome.error.message}`);
   const peakMB = process.resourceUsage().maxRSS / 1024;
@@ -46,9 +58,13 @@ try {
   console.log(
     `  read    ${(parseS * 1000).toFixed(0).padStart(6)} ms   ${(bytes / 1e6 / parseS).toFixed(0)} MB/s, ${(rows / parseS / 1e6).toFixed(2)} M records/s`,
   );
+  const readCpu = (cpuAt.get("track") ?? cpu2) - (cpuAt.get("parse") ?? cpu1);
+  console.log(
+    `          ${readCpu.toFixed(0).padStart(6)} ms CPU (all threads; the wall time above counts a busy machine too)`,
+  );
   console.log(`  total   ${(totalS * 1000).toFixed(0).padStart(6)} ms   (read and analysis)`);
   console.log(
-    `peak RSS: ${peakMB.toFixed(0)} MB (${rssBeforeMB.toFixed(0)} MB before the analysis)`,
+    `peak RSS: ${peakMB.toFixed(0)} MB (${rssBeforeMB.toFixed(0)} MB before the analysis, ${rssAt.get("track")?.toFixed(0) ?? "?"} MB once the file is read)`,
   );
   console.log(`warnings: ${outcome.value.result.warnings.map((w) => w.code).join(", ") || "none"}`);
 } finally {

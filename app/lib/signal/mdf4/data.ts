@@ -134,13 +134,19 @@ async function dzPiece(file: MdfFile, at: number, length: number, links: number)
   };
 }
 
-/** The data bytes of `pieces`, in order, in chunks of at most 1 MiB (a DZ block: whole). */
+/**
+ * The data bytes of `pieces`, in order, in chunks of at most 1 MiB (a DZ block: whole). A DT
+ * chunk lives in one buffer reused for the next: the consumer copies what it keeps. (A fresh
+ * buffer per chunk would wait for a collection while counting in the resident size.)
+ */
 export async function* dataChunks(file: MdfFile, pieces: Piece[]): AsyncGenerator<Uint8Array> {
+  let buf: Uint8Array | undefined;
   for (const p of pieces) {
     if (p.kind === "dt") {
       for (let done = 0; done < p.length; done += CHUNK) {
         const n = Math.min(CHUNK, p.length - done);
-        yield await file.read(p.start + done, n, `DT block at offset ${p.offset}`);
+        buf ??= new Uint8Array(CHUNK);
+        yield await file.readInto(buf, p.start + done, n, `DT block at offset ${p.offset}`);
       }
       continue;
     }

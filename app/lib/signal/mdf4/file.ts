@@ -67,6 +67,27 @@ export class MdfFile {
     return buf;
   }
 
+  /** `length` bytes at `offset` into `target` from 0 (a buffer the caller reuses); faults as read. */
+  async readInto(
+    target: Uint8Array,
+    offset: number,
+    length: number,
+    what: string,
+  ): Promise<Uint8Array> {
+    if (offset < 0 || offset + length > this.size || length > target.length)
+      throw new MdfFault(
+        "mdf4_truncated",
+        `${what} runs past the end of the file; the file is truncated or damaged`,
+      );
+    let got = 0;
+    while (got < length) {
+      const { bytesRead } = await this.fh.read(target, got, length - got, offset + got);
+      if (bytesRead === 0) throw new MdfFault("mdf4_truncated", `${what}: the file ended early`);
+      got += bytesRead;
+    }
+    return target.subarray(0, length);
+  }
+
   private async page(index: number): Promise<Uint8Array> {
     const hit = this.pages.get(index);
     if (hit) {

@@ -164,13 +164,18 @@ export async function readRecords(
   let skip = 0; // bytes of a variable-length record still to pass over
   let done = 0;
   let out = new Float64Array(0);
+  let work = new Uint8Array(0);
   for await (const chunk of dataChunks(file, pieces)) {
     done += chunk.length;
     let buf = chunk;
     if (carry.length > 0) {
-      buf = new Uint8Array(carry.length + chunk.length);
-      buf.set(carry);
-      buf.set(chunk, carry.length);
+      // The end of the last piece (less than one record) goes in front of this one, in a
+      // buffer kept from piece to piece.
+      const need = carry.length + chunk.length;
+      if (work.length < need) work = new Uint8Array(need);
+      work.set(carry);
+      work.set(chunk, carry.length);
+      buf = work.subarray(0, need);
     }
     const dv = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
     for (const d of byGroup.values()) {
