@@ -115,8 +115,6 @@ export function chooseChannels(refs: ChannelRef[], options: IngestOptions): Pick
     crankColumn: picked.crank?.display,
     gearboxColumn: picked.gearbox?.display,
     timeUnit: "s",
-    crankUnit: "rpm",
-    gearboxUnit: "rpm",
   });
   if (!resolved.ok) {
     const e = resolved.error;
@@ -130,9 +128,18 @@ export function chooseChannels(refs: ChannelRef[], options: IngestOptions): Pick
           : e.message.replace(`"${SENTINEL}", `, "");
     return issue(e.code, message, names, { role, candidates });
   }
-  const crank = speeds[resolved.map.crank - 1]!;
-  const gearbox = speeds[resolved.map.gearbox - 1]!;
-  return withTime(refs, crank, gearbox, options, names);
+  const { map } = resolved;
+  const crank = speeds[map.crank - 1]!;
+  const gearbox = speeds[map.gearbox - 1]!;
+  // A unit the recognition read from the name ("crank [rpm]") or the team's names give, unless
+  // it only assumed rpm: the last resort after the file's own unit.
+  const assumed = (r: ChannelRef) =>
+    resolved.warnings.some((w) => w.code === "unit_assumed" && w.column === r.display);
+  const named = {
+    crank: assumed(crank) ? undefined : map.crankUnit,
+    gearbox: assumed(gearbox) ? undefined : map.gearboxUnit,
+  };
+  return withTime(refs, crank, gearbox, options, names, named);
 }
 
 function withTime(
@@ -141,6 +148,7 @@ function withTime(
   gearbox: ChannelRef,
   options: IngestOptions,
   names: string[],
+  named: { crank?: SpeedUnit; gearbox?: SpeedUnit },
 ): Picked {
   const master = refs.find((r) => r.group === crank.group && r.channel === crank.group.master);
   if (!master || (master.channel.syncType !== 1 && master.channel.syncType !== 0))
@@ -181,7 +189,11 @@ function withTime(
       { role: "time", column: master.display },
     );
   const speedUnit = (r: ChannelRef, set: SpeedUnit | undefined, role: "crank" | "gearbox") => {
-    const unit = set ?? options.unit ?? parseSpeedUnit(r.channel.unit);
+    const unit =
+      set ??
+      options.unit ??
+      parseSpeedUnit(r.channel.unit) ??
+      (r.channel.unit ? undefined : named[role]);
     if (unit) return unit;
     const said = r.channel.unit
       ? `is in "${r.channel.unit}", which is not a speed unit Twistlog knows`

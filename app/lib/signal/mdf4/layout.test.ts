@@ -285,4 +285,42 @@ describe("MDF4 unsorted groups and virtual masters", () => {
     expect(r.value.crankRadS[0]).toBeCloseTo((1000 * 2 * Math.PI) / 60, 9);
     expect(r.value.source.timeColumn).toBe("t");
   });
+
+  it("a speed channel without a unit: the unit in its name, else an error asking for it", async () => {
+    const file = (crankName: string) => {
+      const b = new MdfBuilder();
+      const g = b.cn({
+        name: "gearbox speed",
+        unit: "rad/s",
+        dataType: 4,
+        byteOffset: 12,
+        bitCount: 32,
+      });
+      const c = b.cn({ next: g, name: crankName, dataType: 4, byteOffset: 8, bitCount: 32 });
+      const t = b.cn({
+        next: c,
+        name: "t",
+        unit: "s",
+        type: 2,
+        sync: 1,
+        dataType: 4,
+        byteOffset: 0,
+        bitCount: 64,
+      });
+      const data = Buffer.alloc(16 * 3000);
+      for (let i = 0; i < 3000; i++) {
+        data.writeDoubleLE(i / 1000, 16 * i);
+        data.writeFloatLE(900, 16 * i + 8);
+        data.writeFloatLE(94, 16 * i + 12);
+      }
+      b.setHd(0, b.dg(b.cg({ cnFirst: t, cycles: 3000, dataBytes: 16 }), b.dt(data)));
+      return save(`${crankName}.mf4`, b);
+    };
+    const bare = await ingestMdf4File(file("engine speed"));
+    expect(!bare.ok && bare.error.code).toBe("unknown_unit");
+    expect(!bare.ok && bare.error.message).toContain('"engine speed" has no unit');
+    const named = await ingestMdf4File(file("engine speed [rpm]"));
+    expect(named.ok && named.value.source.crankUnit).toBe("rpm");
+    expect(named.ok && named.value.source.gearboxUnit).toBe("rad/s");
+  });
 });
