@@ -6,8 +6,8 @@
 import { finishLog } from "../ingest-finish.ts";
 import type { IngestOptions } from "../ingest.ts";
 import { fmt } from "../ingest-scan.ts";
-import type { DriveLog, Outcome, SignalIssue } from "../types.ts";
-import { RAD_S_PER_UNIT, S_PER_UNIT } from "../units.ts";
+import type { DriveLog, Outcome, SignalIssue, TimeUnit } from "../types.ts";
+import { parseTimeUnit, RAD_S_PER_UNIT, S_PER_UNIT } from "../units.ts";
 import { firstNotIncreasing, interpolateOnto, Samples, within } from "./align.ts";
 import { channelRefs, chooseChannels, type ChannelRef } from "./choose.ts";
 import { dataPieces } from "./data.ts";
@@ -22,11 +22,9 @@ const fail = (error: SignalIssue, warnings: SignalIssue[]): Outcome<DriveLog> =>
 });
 
 /** Records a group can hold: its cycle count, but never more than its data have room for. */
-async function capacity(file: MdfFile, dg: DataGroup, ref: ChannelRef, model: MdfModel) {
-  const { total } = await dataPieces(file, dg.data, `DG block at offset ${dg.offset}`);
-  const bound = Math.floor(
-    total / Math.max(1, dg.recIdSize + ref.group.dataBytes + ref.group.invalBytes),
-  );
+function capacity(dataBytes: number, dg: DataGroup, ref: ChannelRef, model: MdfModel): number {
+  const record = Math.max(1, dg.recIdSize + ref.group.dataBytes + ref.group.invalBytes);
+  const bound = Math.floor(dataBytes / record);
   return model.unfinished ? bound : Math.min(ref.group.cycles, bound);
 }
 
@@ -57,36 +55,42 @@ export async function ingestModel(
     gMaster ?? all.find((r) => r.group === c.gearbox.group && r.channel === r.group.master)!;
   if (!gMaster) refs.push(gTime);
   const dgs = [...new Set(refs.map((r) => r.dg))];
-  let bytesTotal = 0;
-  for (const dg of dgs) bytesTotal += (await dataPieces(file, dg.data, "")).total;
+  const sizes = new Map<DataGroup, number>();
+  for (const dg of dgs)
+    sizes.set(dg, (await dataPieces(file, dg.data, `DG block at offset ${dg.offset}`)).total);
+  const bytesTotal = [...sizes.values()].reduce((a, b) => a + b, 0);
   let bytesBefore = 0;
   for (const dg of dgs) {
     const wants: Want[] = [];
     for (const r of refs.filter((x) => x.dg === dg)) {
       if (store.has(r)) continue;
-      const s = new Samples(await capacity(file, dg, r, model));
+      const s = new Samples(capacity(sizes.get(dg) ?? 0, dg, r, model));
       store.set(r, s);
       wants.push({ group: r.group, channel: r.channel, sink: s.append });
     }
     await readRecords(file, dg, wants, (done) =>
       onProgress?.(bytesTotal > 0 ? Math.min(1, (bytesBefore + done) / bytesTotal) : 1),
     );
-    bytesBefore += (await dataPieces(file, dg.data, "")).total;
+    bytesBefore += sizes.get(dg) ?? 0;
   }
   const values = (r: ChannelRef) => store.get(r)!.take();
-  const tScale = S_PER_UNIT[c.timeUnit];
-  const toS = (t: Float64Array) => (tScale === 1 ? t : t.map((x) => x * tScale));
-  const tC = toS(values(c.time));
+  const toS = (t: Float64Array, unit: TimeUnit) =>
+    unit === "s" ? t : t.map((x) => x * S_PER_UNIT[unit]);
+  const tC = toS(values(c.time), c.timeUnit);
   const crankRaw = values(c.crank);
   const bad = firstNotIncreasing(tC);
-  if (bad >= 0) return fail(notIncreasing(c.time, tC, bad, c.timeUnit), warnings);
+  if (bad >= 0) return fail(notIncreasing(c.time, tC, bad), warnings);
   let from = 0;
   let to = tC.length;
   let gearRaw = values(c.gearbox);
   if (!gMaster) {
-    const tG = toS(values(gTime));
+    // The gearbox group's master in its own unit when it states one, else as the crank's.
+    const tG = toS(
+      values(gTime),
+      options.timeUnit ?? parseTimeUnit(gTime.channel.unit) ?? c.timeUnit,
+    );
     const badG = firstNotIncreasing(tG);
-    if (badG >= 0) return fail(notIncreasing(gTime, tG, badG, c.timeUnit), warnings);
+    if (badG >= 0) return fail(notIncreasing(gTime, tG, badG), warnings);
     const same = tG.length === tC.length && tG.every((x, i) => x === tC[i]);
     if (!same) {
       ({ from, to } = within(tC, tG[0] ?? Infinity, tG[tG.length - 1] ?? -Infinity));
@@ -157,7 +161,7 @@ export async function ingestModel(
   return { ...finished, warnings: [...warnings, ...finished.warnings] };
 }
 
-function notIncreasing(r: ChannelRef, t: Float64Array, i: number, unit: string): SignalIssue {
+function notIncreasing(r: ChannelRef, t: Float64Array, i: number): SignalIssue {
   const what = t[i] === t[i - 1] ? "repeats" : "goes backwards";
   return {
     code: "time_not_increasing",
