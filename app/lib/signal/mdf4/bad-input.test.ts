@@ -127,6 +127,50 @@ describe("bad MDF4 input gives a clear error with the block's offset", () => {
     expect(r.ok && r.value.source.rows).toBe(7999);
   });
 
+  it("an unfinalised file's last DT block may claim too much: read to the end of the file", async () => {
+    const file = (unfinished: boolean) => {
+      const b = new MdfBuilder(unfinished);
+      const t = b.cn({
+        name: "t",
+        unit: "s",
+        type: 2,
+        sync: 1,
+        dataType: 4,
+        byteOffset: 0,
+        bitCount: 64,
+      });
+      const data = Buffer.alloc(8 * 100);
+      for (let i = 0; i < 100; i++) data.writeDoubleLE(i / 100, 8 * i);
+      const dg = b.dg(b.cg({ cnFirst: t, cycles: 0, dataBytes: 8 }), 0);
+      b.setHd(0, dg);
+      const dt = b.dt(data);
+      const bytes = b.bytes();
+      bytes.writeBigUInt64LE(BigInt(dt), dg + 24 + 16);
+      bytes.writeBigUInt64LE(1n << 32n, dt + 8); // the length a logger leaves before finalising
+      return save(bytes);
+    };
+    const open = await listMdf4Channels(file(true));
+    // Cycle count 0 (never updated): the 100 records written are found in the data.
+    expect(open.ok && open.value[0]?.samples).toBe(100);
+    expect(open.ok && open.warnings[0]?.message).toContain("not finalised");
+    const closed = await listMdf4Channels(file(false));
+    expect(!closed.ok && closed.error.code).toBe("mdf4_truncated");
+    // A finalised file's cycle count rules: 100 records written, 60 declared, 60 read.
+    const b = new MdfBuilder();
+    const t = b.cn({
+      name: "t",
+      unit: "s",
+      type: 2,
+      sync: 1,
+      dataType: 4,
+      byteOffset: 0,
+      bitCount: 64,
+    });
+    b.setHd(0, b.dg(b.cg({ cnFirst: t, cycles: 60, dataBytes: 8 }), b.dt(Buffer.alloc(800))));
+    const padded = await listMdf4Channels(save(b.bytes()));
+    expect(padded.ok && padded.value[0]?.samples).toBe(60);
+  });
+
   it("not MDF 4 at all, or MDF 3", async () => {
     const v3 = Buffer.from(fixture("types"));
     v3.writeUInt16LE(330, 28);

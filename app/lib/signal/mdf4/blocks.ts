@@ -41,6 +41,7 @@ export async function readHeader(
   offset: number,
   ids: readonly string[],
   from: string,
+  toFileEnd = false,
 ): Promise<{ id: string; length: number; linkCount: number }> {
   const h = await file.read(offset, HEADER, `the block at offset ${offset} (linked from ${from})`);
   const dv = new DataView(h.buffer, h.byteOffset, h.byteLength);
@@ -58,6 +59,8 @@ export async function readHeader(
       "mdf4_bad_length",
       `${name} claims ${linkCount} links but is only ${length} bytes long`,
     );
+  if (toFileEnd && BigInt(offset) + length > BigInt(file.size))
+    return { id, length: file.size - offset, linkCount: Number(linkCount) };
   if (BigInt(offset) + length > BigInt(file.size))
     throw new MdfFault(
       "mdf4_truncated",

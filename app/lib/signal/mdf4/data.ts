@@ -46,7 +46,8 @@ async function collect(
   out: Piece[],
   depth: number,
 ): Promise<void> {
-  const h = await readHeader(file, at, [...DATA_IDS, "##DV", "##DI", "##LD", "##SD", "##RD"], from);
+  const ids = [...DATA_IDS, "##DV", "##DI", "##LD", "##SD", "##RD"];
+  const h = await readHeader(file, at, ids, from, file.unfinished);
   const name = `${h.id.slice(2)} block at offset ${at}`;
   if (!DATA_IDS.includes(h.id))
     throw new MdfFault(
@@ -54,6 +55,8 @@ async function collect(
       `${name}: ${h.id.slice(2)} data (linked from ${from}) cannot be read; save the file with plain record data`,
     );
   if (h.id === "##DT") {
+    if (h.length < 24 + 8 * h.linkCount)
+      throw new MdfFault("mdf4_truncated", `${name} is cut off inside its header`);
     out.push({
       kind: "dt",
       offset: at,

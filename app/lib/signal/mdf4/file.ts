@@ -22,6 +22,12 @@ const PAGES = 16; // 1 MiB of cache at most
 export const MAX_READ = 1 << 26;
 
 export class MdfFile {
+  /**
+   * The file starts "UnFinMF ": its logger stopped before finalising it, so the last DT block
+   * may claim a length past the end of the file (the standard's unfinalised-file flags; from
+   * memory). Set by readStructure; the data reader then reads that block to the file's end.
+   */
+  unfinished = false;
   private pages = new Map<number, Uint8Array>();
   private constructor(
     private fh: FileHandle,

@@ -88,6 +88,8 @@ interface Decoder {
   size: number;
   vlsd: boolean;
   count: number;
+  /** Records to keep: the cycle count, or all the data hold in an unfinalised file. */
+  limit: number;
   columns: Column[];
   /** Record starts (after the id) in the current piece, and how many. */
   pos: Int32Array;
@@ -146,7 +148,16 @@ export async function readRecords(
   const byGroup = new Map<ChannelGroup, Decoder>();
   for (const g of dg.groups) {
     const size = g.dataBytes + g.invalBytes;
-    const d: Decoder = { size, vlsd: g.vlsd, count: 0, columns: [], pos: new Int32Array(0), n: 0 };
+    const limit = file.unfinished ? Infinity : g.cycles;
+    const d: Decoder = {
+      size,
+      vlsd: g.vlsd,
+      count: 0,
+      limit,
+      columns: [],
+      pos: new Int32Array(0),
+      n: 0,
+    };
     decoders.set(g.recordId, d);
     byGroup.set(g, d);
   }
@@ -216,13 +227,15 @@ export async function readRecords(
         pos += idSize + d.size;
       }
     for (const d of byGroup.values()) {
-      if (d.n === 0) continue;
-      if (out.length < d.n) out = new Float64Array(d.n);
+      // Records past the cycle count (a block padded by its writer) are not samples.
+      const n = Math.min(d.n, d.limit - d.count);
+      if (n <= 0) continue;
+      if (out.length < n) out = new Float64Array(n);
       for (const c of d.columns) {
-        decodeColumn(dv, d.pos, d.n, c, d.count, out);
-        c.sink(out, d.n);
+        decodeColumn(dv, d.pos, n, c, d.count, out);
+        c.sink(out, n);
       }
-      d.count += d.n;
+      d.count += n;
     }
     carry = buf.slice(pos);
     onBytes?.(done, total);

@@ -82,6 +82,7 @@ export async function readStructure(file: MdfFile): Promise<MdfModel> {
     );
   const notes: string[] = [];
   const unfinished = fileId === "UnFinMF ";
+  file.unfinished = unfinished;
   if (unfinished)
     notes.push("the file was not finalised by its logger; sample counts are taken from the data");
   const hd = await readBlock(file, 64, ["##HD"], "the identification block");
