@@ -2,7 +2,8 @@
  * One drive log, three files: the independent MDF4 reference file drive-log-plain.mf4 (crank
  * speed at 2 kHz, gearbox speed at 1 kHz, each group with its own time master), and CSVs written
  * here from the values the independent reader found in it (drive-log-plain.expected.json) at the
- * gearbox's 1 kHz — plain, and with `;` and decimal commas. The isolation at the firing order
+ * gearbox's 1 kHz — plain, with `;` and decimal commas, and as a logger exports it (a preamble of
+ * recorder metadata, logger channel names, a units row, `;` and decimal commas). The isolation at the firing order
  * agrees within 0.1 dB, as it must where the slower rate still covers the firing order: linear
  * interpolation weights a frequency f sampled at fs by sinc²(f/fs) (its triangular kernel's
  * transform; e.g. Oppenheim & Schafer, Discrete-Time Signal Processing, on interpolation — from
@@ -39,6 +40,21 @@ function csv(sep: string, comma: boolean): string {
   return `${lines.join("\n")}\n`;
 }
 
+/** The same samples as a logger export: preamble, its own names, a units row, `;` and 12,5. */
+function loggerExport(): string {
+  const num = (x: number) => String(x).replace(".", ",");
+  const lines = [
+    "# Recorder: Kestrel bench logger",
+    "Rate = 1 kHz",
+    "Comment: KST-D4 slow ramp",
+    "",
+    "t;n_kw;n_ge",
+    "[s];[1/min];[1/min]",
+  ];
+  for (let k = 0; k < tG.length; k++) lines.push([tG[k]!, nE[2 * k]!, nG[k]!].map(num).join(";"));
+  return `${lines.join("\n")}\n`;
+}
+
 function isolation(ingested: Outcome<DriveLog>) {
   expect(ingested.ok).toBe(true);
   if (!ingested.ok) return [];
@@ -58,6 +74,15 @@ describe("the same drive log as MDF4 (two rates) and as CSV", () => {
     const plain = isolation(ingestCsv(csv(",", false)));
     const comma = isolation(ingestCsv(csv(";", true)));
     expect(comma).toEqual(plain);
+    const logger = isolation(
+      ingestCsv(loggerExport(), {
+        channelNames: [
+          { name: "n_kw", role: "crank" },
+          { name: "n_ge", role: "gearbox" },
+        ],
+      }),
+    );
+    expect(logger).toEqual(plain);
     const firingOrder = 2; // four cylinders, four strokes
     let compared = 0;
     for (const p of plain) {
