@@ -49,21 +49,18 @@ function transmissibility(r: number, zeta: number): number {
   return Math.sqrt(num / ((1 - r * r) ** 2 + (2 * zeta * r) ** 2));
 }
 
-/** Write the log as CSV ("time [s]", "crank speed [rpm]", "gearbox input speed [rpm]"). Returns bytes and rows. */
-export function writeBenchLog(path: string, o: BenchLogOptions): { bytes: number; rows: number } {
-  const fd = openSync(path, "w");
+/** The log's samples in order: time in s, crank and gearbox-input speed in rpm. */
+export function* benchSamples(o: BenchLogOptions): Generator<[number, number, number]> {
   const rows = Math.round(o.durationS * o.sampleRateHz);
   const dt = 1 / o.sampleRateHz;
   const naturalHz = 15;
   const zeta = 0.12;
-  let bytes = 0;
   let thetaRad = 0;
   let seed = 12345;
   const noise = () => {
     seed = (seed * 1103515245 + 12345) & 0x7fffffff;
     return seed / 0x7fffffff - 0.5;
   };
-  let buf = "time [s],crank speed [rpm],gearbox input speed [rpm]\n";
   for (let i = 0; i < rows; i++) {
     const t = i * dt;
     const rpm = profileRpm(t);
@@ -76,7 +73,19 @@ export function writeBenchLog(path: string, o: BenchLogOptions): { bytes: number
       rpm +
       ampRpm * transmissibility(r, zeta) * Math.sin(o.order * thetaRad - phase) +
       0.2 * noise();
+    yield [t, crank, gear];
+  }
+}
+
+/** Write the log as CSV ("time [s]", "crank speed [rpm]", "gearbox input speed [rpm]"). Returns bytes and rows. */
+export function writeBenchLog(path: string, o: BenchLogOptions): { bytes: number; rows: number } {
+  const fd = openSync(path, "w");
+  let bytes = 0;
+  let rows = 0;
+  let buf = "time [s],crank speed [rpm],gearbox input speed [rpm]\n";
+  for (const [t, crank, gear] of benchSamples(o)) {
     buf += `${t.toFixed(6)},${crank.toFixed(4)},${gear.toFixed(4)}\n`;
+    rows++;
     if (buf.length > 1 << 20) {
       bytes += writeSync(fd, buf);
       buf = "";

@@ -3,12 +3,14 @@
  * chunk by chunk into createIngester, so a large log never sits in memory as text.
  */
 import { createReadStream } from "node:fs";
-import { open, stat } from "node:fs/promises";
+import { mkdtemp, open, rm, stat } from "node:fs/promises";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import type { Readable } from "node:stream";
 import { listCsvChannels } from "./csv-channels.ts";
 import { sniffFormat } from "./format.ts";
 import { createIngester, type IngestOptions } from "./ingest.ts";
-import { listMdf4Channels } from "./mdf4/index.ts";
+import { ingestMdf4File, listMdf4Channels } from "./mdf4/index.ts";
 import type { ChannelInfo, DriveLog, Outcome } from "./types.ts";
 
 /**
@@ -23,16 +25,85 @@ function failed(code: "read_failed" | "file_not_found", message: string): Outcom
 /** Report progress as the fraction (0–1) of bytes read, when the total is known. */
 export type ByteProgress = (fraction: number) => void;
 
-/** Ingest from any readable of bytes or strings. A stream error becomes an `read_failed` value. */
+type Chunks = Readable | AsyncIterable<string | Uint8Array>;
+
+/**
+ * The first chunks of a readable (at least 8 bytes, unless it ends first), their format told by
+ * content, and the whole stream again (those chunks, then the rest) for the reader that takes it.
+ */
+async function sniffStream(readable: Chunks) {
+  const it = (readable as AsyncIterable<string | Uint8Array>)[Symbol.asyncIterator]();
+  const head: (string | Uint8Array)[] = [];
+  let bytes = 0;
+  let ended = false;
+  while (bytes < 8) {
+    const next = await it.next();
+    if (next.done) {
+      ended = true;
+      break;
+    }
+    head.push(next.value);
+    bytes += next.value.length;
+  }
+  const first = head.map((c) => (typeof c === "string" ? Buffer.from(c) : c));
+  const format = sniffFormat(Buffer.concat(first).subarray(0, 8));
+  async function* all(): AsyncGenerator<string | Uint8Array> {
+    yield* head;
+    if (ended) return;
+    for (let next = await it.next(); !next.done; next = await it.next()) yield next.value;
+  }
+  return { format, chunks: all() };
+}
+
+/**
+ * MDF4 needs random access, and the server's stored files are compressed streams: the stream
+ * is written to a temporary file (in os.tmpdir(), removed afterwards, also on error) and read
+ * from there.
+ */
+async function spooled<T>(
+  chunks: AsyncIterable<string | Uint8Array>,
+  read: (path: string) => Promise<Outcome<T>>,
+): Promise<Outcome<T>> {
+  let dir: string | undefined;
+  try {
+    dir = await mkdtemp(join(tmpdir(), "twistlog-mdf4-"));
+    const path = join(dir, "log.mf4");
+    const fh = await open(path, "w");
+    try {
+      for await (const chunk of chunks)
+        await fh.write(typeof chunk === "string" ? Buffer.from(chunk) : chunk);
+    } finally {
+      await fh.close();
+    }
+    return await read(path);
+  } catch (e) {
+    const message = e instanceof Error ? e.message : String(e);
+    return {
+      ok: false,
+      error: { code: "read_failed", message: `the file could not be read: ${message}` },
+      warnings: [],
+    };
+  } finally {
+    if (dir) await rm(dir, { recursive: true, force: true }).catch(() => undefined);
+  }
+}
+
+/**
+ * Ingest from any readable of bytes or strings: CSV or MDF4, told by content (MDF4 through a
+ * temporary file). A stream error becomes a `read_failed` value.
+ */
 export async function ingestStream(
-  readable: Readable | AsyncIterable<string | Uint8Array>,
+  readable: Chunks,
   options: IngestOptions = {},
   onProgress?: ByteProgress,
 ): Promise<Outcome<DriveLog>> {
   const ingester = createIngester(options);
   let bytes = 0;
   try {
-    for await (const chunk of readable as AsyncIterable<string | Uint8Array>) {
+    const { format, chunks } = await sniffStream(readable);
+    if (format === "mdf4")
+      return await spooled(chunks, (path) => ingestMdf4File(path, options, onProgress));
+    for await (const chunk of chunks) {
       ingester.push(chunk);
       bytes += chunk.length;
       if (onProgress && options.sizeHintBytes)
@@ -65,6 +136,8 @@ export async function ingestFile(
     }
     return failed("read_failed", `cannot open ${path} (${code ?? "error"})`);
   }
+  const format = await headFormat(path).catch(() => "csv" as const); // the CSV read reports it
+  if (format === "mdf4") return ingestMdf4File(path, options, onProgress);
   // One buffer, read into again and again: a stream would allocate a new one per chunk, and
   // those wait for a collection while counting in the resident size (measured on the bench log).
   const all = { sizeHintBytes: size, ...options };
@@ -98,14 +171,9 @@ export async function listChannelsOfFile(
   path: string,
   options: IngestOptions = {},
 ): Promise<Outcome<ChannelInfo[]>> {
-  const head = Buffer.alloc(8);
+  let format;
   try {
-    const fh = await open(path, "r");
-    try {
-      await fh.read(head, 0, 8, 0);
-    } finally {
-      await fh.close();
-    }
+    format = await headFormat(path);
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
     const error =
@@ -114,18 +182,40 @@ export async function listChannelsOfFile(
         : { code: "read_failed", message: `cannot open ${path} (${code ?? "error"})` };
     return { ok: false, error, warnings: [] };
   }
-  if (sniffFormat(head) === "mdf4") return listMdf4Channels(path, options);
+  if (format === "mdf4") return listMdf4Channels(path, options);
   return listCsvChannels(createReadStream(path), options);
+}
+
+/** The format of the file at `path`, told by its first 8 bytes (throws what open throws). */
+async function headFormat(path: string) {
+  const head = Buffer.alloc(8);
+  const fh = await open(path, "r");
+  try {
+    await fh.read(head, 0, 8, 0);
+  } finally {
+    await fh.close();
+  }
+  return sniffFormat(head);
 }
 
 /**
  * The channel list of a drive log read from a readable (the server's stored file): CSV in one
- * streaming pass; MDF4 needs random access, so it is spooled to a temporary file first (STUB:
- * MDF4 lands with the reader).
+ * streaming pass; MDF4 needs random access, so it is spooled to a temporary file first.
  */
 export async function listChannelsOfStream(
-  readable: Readable | AsyncIterable<string | Uint8Array>,
+  readable: Chunks,
   options: IngestOptions = {},
 ): Promise<Outcome<ChannelInfo[]>> {
-  return listCsvChannels(readable as AsyncIterable<string | Uint8Array>, options);
+  try {
+    const { format, chunks } = await sniffStream(readable);
+    if (format === "mdf4") return await spooled(chunks, (path) => listMdf4Channels(path, options));
+    return await listCsvChannels(chunks, options);
+  } catch (e) {
+    const message = e instanceof Error ? e.message : String(e);
+    return {
+      ok: false,
+      error: { code: "read_failed", message: `the file could not be read: ${message}` },
+      warnings: [],
+    };
+  }
 }
