@@ -42,6 +42,22 @@ describe("analyse --list-channels", () => {
     expect(rows.find((l) => l.startsWith("oil temp"))).toMatch(/\s-$/);
   });
 
+  it("an ASAM MDF4 file: every channel with its group, rate and sample count", () => {
+    // Reference: tests/fixtures/mdf4/drive-log-plain.expected.json, written by an independent
+    // reader — group "Engine" of 8000 samples with EngSpd in rpm, a time master every 0.5 ms
+    // (2 kHz); group "Gearbox" of 4000 samples with GbxInpShaftSpd, every 1 ms (1 kHz).
+    const r = run(join(ROOT, "tests/fixtures/mdf4/drive-log-plain.mf4"), "--list-channels");
+    expect(r.stderr).toBe("");
+    expect(r.code).toBe(0);
+    const rows = r.stdout.trimEnd().split("\n");
+    expect(rows.find((l) => l.startsWith("EngSpd "))).toMatch(
+      /^EngSpd\s+rpm\s+Engine\s+2000\s+8000\s/,
+    );
+    expect(rows.find((l) => l.startsWith("GbxInpShaftSpd "))).toMatch(
+      /^GbxInpShaftSpd\s+rpm\s+Gearbox\s+1000\s+4000\s/,
+    );
+  });
+
   it("a missing file: one stderr line, exit 1, nothing on stdout", () => {
     const r = run(join(dir, "nope.csv"), "--list-channels");
     expect(r.code).toBe(1);
