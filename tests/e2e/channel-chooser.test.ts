@@ -1,6 +1,6 @@
 import { readFile } from "node:fs/promises";
 import { join } from "node:path";
-import type { Browser, Page } from "playwright-core";
+import type { Browser, Locator, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
 import { repoRoot } from "../support/processes";
@@ -29,6 +29,12 @@ function loggerCsv(): string {
       l === "" ? l : i === 0 ? "Zeit;Kanal1;Kanal2;Oel" : `${l.replaceAll(",", ";")};85`,
     )
     .join("\n");
+}
+
+/** One part of the page, for looking at it closely (SCREENSHOT_DIR only, not a check). */
+async function snapPart(locator: Locator, name: string) {
+  const dir = process.env.SCREENSHOT_DIR;
+  if (dir) await locator.screenshot({ path: `${dir}/${name}.png` });
 }
 
 async function newVehicle(page: Page, label: string) {
@@ -72,6 +78,7 @@ describe("the channel chooser", () => {
     await page.getByLabel("Gearbox speed unit").selectOption("rpm");
     await page.locator("[data-picked='crank']").getByText("Kanal1").waitFor();
     await snap(page, "chooser-csv-picked");
+    await snapPart(page.locator("section[aria-labelledby='mapping-title']"), "chooser-csv-card");
     await page.getByRole("button", { name: "Analyse with these channels" }).click();
     await page.getByText(/The channels are set and remembered for this vehicle/).waitFor();
     await page.getByRole("heading", { name: /^Analysis version/ }).waitFor({ timeout: 90_000 });
@@ -102,7 +109,7 @@ describe("the channel chooser", () => {
 
     await page.getByRole("heading", { name: "Channel chooser" }).waitFor();
     // Folded when the first analysis read the file fine: open it.
-    const fold = page.locator("#mapping summary");
+    const fold = page.locator("section[aria-labelledby='mapping-title'] summary");
     if (await fold.count()) await fold.click();
     const crank = page.getByRole("radio", { name: "Crank: EngSpd" });
     await crank.waitFor({ timeout: 30_000 });
@@ -124,6 +131,8 @@ describe("the channel chooser", () => {
     await page.locator("[data-source-format='mdf4']").waitFor();
     await page.getByText("the crank side from “EngSpd”", { exact: false }).waitFor();
     await snap(page, "chooser-mdf4-done");
+    await snapPart(page.locator("section[aria-labelledby='file-details-title']"), "file-details");
+    await snapPart(page.locator("[data-source-format='mdf4']"), "source-panel-mdf4");
     await page.context().close();
   });
 
