@@ -306,5 +306,24 @@ describe("an ASAM MDF4 upload", () => {
       format: "mdf4",
       channels: { crank: "EngSpd", gearbox: "GbxInpShaftSpd" },
     });
+
+    // The file's header names a start time and a comment: offered once as the test details.
+    const path = `/vehicles/${vehicle.id}/logs/${id}`;
+    const viewer = await HttpClient.signedIn(server.url, team.accounts.viewer.email, TEST_PASSWORD);
+    await viewer.get(path);
+    expect((await viewer.post(path, { intent: "use-file-details" })).status).toBe(403);
+    const technician = await HttpClient.signedIn(
+      server.url,
+      team.accounts.technician.email,
+      TEST_PASSWORD,
+    );
+    expect((await technician.get(path)).html).toContain("Use the file&#x27;s date and comment");
+    expect((await technician.post(path, { intent: "use-file-details" })).status).toBe(200);
+    const filled = await vehicleData(team.id).log(id);
+    expect(filled.testDate).toMatch(/^\d{4}-\d{2}-\d{2}$/);
+    expect(filled.notes).not.toBe("");
+    // Filled now: nothing is offered, and a second post changes nothing (409).
+    expect((await technician.get(path)).html).not.toContain("Use the file&#x27;s");
+    expect((await technician.post(path, { intent: "use-file-details" })).status).toBe(409);
   });
 });
