@@ -21,8 +21,11 @@ export function PickedSpeeds({ channels, picks }: { channels: ChannelInfo[]; pic
       ? [p.channel.min, p.channel.max]
       : [],
   );
-  const lo = Math.min(0, ...known);
-  const hi = Math.max(lo + 1, ...known);
+  // The scale spans the picked ranges (5 % margin), so two close speeds are told apart; a
+  // speed read in the wrong unit (rad/s as rpm) still stands far off the other.
+  const span = known.length ? Math.max(...known) - Math.min(...known) : 1;
+  const lo = known.length ? Math.min(...known) - 0.05 * (span || 1) : 0;
+  const hi = known.length ? Math.max(...known) + 0.05 * (span || 1) : 1;
   const x = (v: number) => 4 + ((v - lo) / (hi - lo)) * 292;
   return (
     <section aria-labelledby="picked-title" className="rounded-md bg-neutral-50 p-3">
@@ -47,7 +50,7 @@ export function PickedSpeeds({ channels, picks }: { channels: ChannelInfo[]; pic
             </dd>
             <dd className="text-neutral-600 tabular-nums">
               {p.channel
-                ? `${figure(p.channel.sampleRateHz, "Hz")}, ${p.channel.samples} samples`
+                ? `${p.channel.sampleRateHz === null ? "rate not stated" : figure(p.channel.sampleRateHz, "Hz")}, ${p.channel.samples} samples`
                 : ""}
             </dd>
           </div>
