@@ -55,7 +55,7 @@ export function LoggerVocabularyCard({
           <tbody>
             {names.map((c) => (
               <tr key={c.name}>
-                <td className={`${tdClass} font-mono`}>{c.name}</td>
+                <td className={`${tdClass} font-mono break-all`}>{c.name}</td>
                 <td className={tdClass}>{shortRole[c.role]}</td>
                 <td className={tdClass}>{c.unit ?? "as the file says"}</td>
                 {canEdit ? (
