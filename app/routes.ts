@@ -48,6 +48,7 @@ export default [
     route("vehicles/:vehicleId/logs", "routes/api.v1.vehicle-logs.ts"),
     route("logs/:logId", "routes/api.v1.log.ts"),
     route("logs/:logId/result", "routes/api.v1.log-result.ts"),
+    route("logs/:logId/channels", "routes/api.v1.log-channels.ts"),
     // Share links (issue 7)
     route("logs/:logId/shares", "routes/api.v1.log-shares.ts"),
     route("shares", "routes/api.v1.shares.ts"),

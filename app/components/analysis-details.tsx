@@ -11,7 +11,14 @@ import { countText } from "~/lib/base/plural";
 import { tableClass, tdClass, Tile, thClass } from "./page";
 
 /** The settings and the isolation curve as a table: below the charts, for tracing every figure. */
-export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
+export function AnalysisDetails({
+  s,
+  team,
+}: {
+  s: AnalysisSummary;
+  /** The team's channel names and strict flag this version read with; null for older versions. */
+  team?: { channelNames: { name: string; role: string; unit?: string }[]; strict: boolean } | null;
+}) {
   // The same range, by the same rule, as the isolation curve's text alternative.
   const range = isolationRangeText(
     s.curve.map((p) => p.dB),
@@ -39,6 +46,20 @@ export function AnalysisDetails({ s }: { s: AnalysisSummary }) {
           <dd>
             {secondsText(s.durationS)} at {sampleRateText(s.sampleRateHz)}
           </dd>
+          {team ? (
+            <>
+              <dt className="text-neutral-600">Team channel names</dt>
+              <dd data-team-channel-names={team.channelNames.length}>
+                {team.channelNames.length
+                  ? team.channelNames
+                      .map((c) => `${c.name} → ${c.role}${c.unit ? ` (${c.unit})` : ""}`)
+                      .join(", ")
+                  : "none"}
+              </dd>
+              <dt className="text-neutral-600">Imperfect logs</dt>
+              <dd>{team.strict ? "refused (strict)" : "repaired"}</dd>
+            </>
+          ) : null}
         </dl>
       </Tile>
       <details

@@ -1,36 +1,15 @@
-import type { SubmissionResult } from "@conform-to/react";
 import type { AppliedMapping, IngestMapping } from "~/lib/domain/drive-log-terms";
-import { mappingSchema, speedUnits, type Preview } from "~/lib/domain/column-mapping-schema";
-import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
-import { ChoiceField } from "./form-fields";
+import type { Preview } from "~/lib/domain/column-mapping-schema";
 import { Card, tableClass, tdClass, thClass } from "./page";
 
-export { mappingSchema, type Preview } from "~/lib/domain/column-mapping-schema";
+// What the drive-log page says about a file's columns: the first rows of a CSV whose columns
+// could not be read (beside the channel chooser, channels-step.tsx) and which columns the last
+// analysis read.
 
-// The column-mapping step of a drive log whose columns could not be read: a preview of the
-// file's first rows and a choice of columns and units, remembered for the vehicle's next uploads
-// (where they fit the file: app/lib/analyses/column-choice.server.ts).
-
-export function ColumnMapping({
-  preview,
-  current,
-  lastResult,
-}: {
-  preview: Preview;
-  current: Record<string, string>;
-  lastResult: SubmissionResult<string[]> | null | undefined;
-}) {
-  const [form, fields] = useSchemaForm("mapping", mappingSchema, lastResult, current);
-  const columnOptions = [
-    { value: "", label: "Recognise from the header" },
-    ...preview.header.map((h) => ({ value: h, label: h })),
-  ];
-  const unitOptions = [
-    { value: "", label: "From the header" },
-    ...speedUnits.map((u) => ({ value: u, label: u })),
-  ];
+/** The first rows of a CSV file as text, so the columns can be told apart by their values. */
+export function FilePreview({ preview }: { preview: Preview }) {
   return (
-    <div className="space-y-5">
+    <Card title="The file's first rows" id="file-rows">
       <div className="max-h-80 overflow-auto rounded-md border border-neutral-200">
         <table className={`${tableClass} font-mono text-xs`}>
           <caption className="px-3 py-2 text-left font-sans text-sm text-neutral-600">
@@ -58,38 +37,7 @@ export function ColumnMapping({
           </tbody>
         </table>
       </div>
-      <SchemaForm form={form} intent="map" className="space-y-4">
-        <div className="grid gap-4 sm:grid-cols-3">
-          <ChoiceField label="Time column" meta={fields.timeColumn} options={columnOptions} />
-          <ChoiceField
-            label="Crank-side speed column"
-            meta={fields.crankColumn}
-            options={columnOptions}
-          />
-          <ChoiceField
-            label="Gearbox-input speed column"
-            meta={fields.gearboxColumn}
-            options={columnOptions}
-          />
-          <ChoiceField
-            label="Time unit"
-            meta={fields.timeUnit}
-            options={[
-              { value: "", label: "From the header" },
-              { value: "s", label: "s" },
-              { value: "ms", label: "ms" },
-            ]}
-          />
-          <ChoiceField label="Crank speed unit" meta={fields.crankUnit} options={unitOptions} />
-          <ChoiceField label="Gearbox speed unit" meta={fields.gearboxUnit} options={unitOptions} />
-        </div>
-        <p className="text-sm text-neutral-600">
-          The choice is remembered for this vehicle: its next uploads use it when their files have
-          these columns, and are recognised from the header otherwise.
-        </p>
-        <SubmitButton>Use these columns and analyse again</SubmitButton>
-      </SchemaForm>
-    </div>
+    </Card>
   );
 }
 
@@ -121,49 +69,4 @@ export function columnsUsedText(applied: AppliedMapping): string {
     ? ` This vehicle's remembered choice (${mappingText(applied.skipped)}) was left out: this file does not have its columns.`
     : "";
   return `The last analysis recognised the columns from the header.${skipped}`;
-}
-
-/** The form's starting values: the columns the last analysis really used. */
-export function mappingDefaults(applied: AppliedMapping | null): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const [k, v] of Object.entries(applied?.mapping ?? {}))
-    if (typeof v === "string") out[k] = v;
-  return out;
-}
-
-/**
- * The drive-log page's columns: the mapping step when it is offered (the file could not be read
- * over its columns and the user may choose), else which columns the last analysis read.
- */
-export function ColumnsStep({
-  offer,
-  preview,
-  applied,
-  lastResult,
-}: {
-  offer: boolean;
-  preview: Preview | null;
-  applied: AppliedMapping | null;
-  lastResult: SubmissionResult<string[]> | null | undefined;
-}) {
-  if (preview && offer)
-    return (
-      <Card title="Choose the columns" id="mapping">
-        {applied ? (
-          <p className="mb-4 text-sm text-neutral-700" data-columns-used={applied.source}>
-            {columnsUsedText(applied)}
-          </p>
-        ) : null}
-        <ColumnMapping
-          preview={preview}
-          current={mappingDefaults(applied)}
-          lastResult={lastResult}
-        />
-      </Card>
-    );
-  return applied ? (
-    <p className="text-sm text-neutral-600" data-columns-used={applied.source}>
-      {columnsUsedText(applied)}
-    </p>
-  ) : null;
 }

@@ -1,16 +1,9 @@
 import type { LogError } from "~/lib/domain/drive-log-terms";
+import { canChooseColumnsFor, MAPPING_CODES } from "~/lib/domain/column-reasons";
 
-/** Error codes about the header, for which the drive-log page offers the column-mapping step. */
-export const MAPPING_CODES = new Set(["missing_channel", "ambiguous_columns", "unknown_column"]);
-
-/**
- * True when another choice of columns or units may fix the failure, so the drive-log page offers
- * the column-mapping step: a header problem, or a problem in one column's values (text in a
- * speed column, a speed out of range because its unit was read wrongly, …).
- */
-export function canChooseColumns(e: LogError): boolean {
-  return MAPPING_CODES.has(e.code) || (e.column !== undefined && e.column !== null);
-}
+export { MAPPING_CODES };
+/** The drive-log page offers the channel chooser for this failure (domain/column-reasons.ts). */
+export const canChooseColumns = canChooseColumnsFor;
 
 /** "Row 4, column 'crank speed [rpm]': …" — the signal core's message with where it happened. */
 export function errorText(e: LogError): string {
@@ -37,9 +30,9 @@ export function Failure({ error }: { error: LogError }) {
       </p>
       <p className="mt-2 text-sm text-red-800">
         {header
-          ? "Choose the columns below and it is analysed again; the raw file is kept."
+          ? "Pick the channels in the channel chooser below and it is analysed again; the raw file is kept."
           : canChooseColumns(error)
-            ? "The raw file is kept. If a column or its unit was read wrongly, choose them below; otherwise fix the file and upload it again."
+            ? "The raw file is kept. If a channel or its unit was read wrongly, pick them in the channel chooser below; otherwise fix the file and upload it again."
             : "The raw file is kept: fix the file and upload it again, or ask an engineer to re-analyse it with other settings."}
       </p>
     </section>

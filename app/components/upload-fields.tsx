@@ -125,7 +125,7 @@ export function PlainUpload({ damperVariant }: { damperVariant: string }) {
       <input type="hidden" name="intent" value="upload" />
       <div>
         <label htmlFor="plain-files" className="block text-sm font-medium text-neutral-800">
-          Drive log files (CSV)
+          Drive log files (CSV or ASAM MDF4)
         </label>
         <input
           id="plain-files"
@@ -133,7 +133,7 @@ export function PlainUpload({ damperVariant }: { damperVariant: string }) {
           type="file"
           multiple
           required
-          accept=".csv,.txt,.tsv,text/csv,text/plain"
+          accept=".csv,.txt,.tsv,.mf4,.mdf,text/csv,text/plain"
           className="mt-1 block w-full text-sm"
         />
       </div>

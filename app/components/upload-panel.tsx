@@ -93,7 +93,7 @@ function EnhancedUpload({
           dragging ? "border-indigo-600 bg-indigo-50" : "border-neutral-300 bg-neutral-50"
         }`}
       >
-        <p className="text-sm text-neutral-700">Drop drive log files (CSV) here, or</p>
+        <p className="text-sm text-neutral-700">Drop drive log files (CSV or ASAM MDF4) here, or</p>
         <label
           htmlFor="upload-files"
           className="mt-2 inline-flex cursor-pointer rounded-md border border-neutral-300 bg-white px-3 py-1.5 text-sm font-medium text-neutral-800 hover:bg-neutral-50 has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-offset-2 has-[:focus-visible]:outline-indigo-600"
@@ -104,7 +104,7 @@ function EnhancedUpload({
             id="upload-files"
             type="file"
             multiple
-            accept=".csv,.txt,.tsv,text/csv,text/plain"
+            accept=".csv,.txt,.tsv,.mf4,.mdf,text/csv,text/plain"
             className="sr-only"
             onChange={(e) => {
               if (e.target.files) void add(e.target.files);

@@ -19,8 +19,10 @@ export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => 
 });
 
 /**
- * POST /api/v1/vehicles/:vehicleId/logs (multipart: `file`, optional `condition`, `gear`,
- * `damperVariant`, `testDate`, `notes`; technician and up) → 202 { log: { id, status, duplicateOf } }.
+ * POST /api/v1/vehicles/:vehicleId/logs (multipart: `file` — CSV text or ASAM MDF4 — optional
+ * `condition`, `gear`, `damperVariant`, `testDate`, `notes`, and the channel choice `timeChannel`,
+ * `crankChannel`, `gearboxChannel`, `crankUnit`, `gearboxUnit`; technician and up)
+ * → 202 { log: { id, status, duplicateOf } }.
  */
 export const action = apiRoute(async ({ request, params }: Route.ActionArgs) => {
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use GET or POST.");

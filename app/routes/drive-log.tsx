@@ -3,7 +3,10 @@ import { data, useActionData, useLoaderData } from "react-router";
 import { AnalysisDetails } from "~/components/analysis-details";
 import { AnalysisSection } from "~/components/analysis-section";
 import { AnalysisVersions } from "~/components/analysis-versions";
-import { ColumnsStep, mappingSchema } from "~/components/column-mapping";
+import { ChannelsStep } from "~/components/channels-step";
+import { FilePreview } from "~/components/column-mapping";
+import { FileDetailsOffer } from "~/components/file-details-offer";
+import { SourcePanel } from "~/components/source-panel";
 import { DriveLogCharts } from "~/components/charts";
 import { canChooseColumns, Failure } from "~/components/log-failure";
 import { Breadcrumb } from "~/components/breadcrumb";
@@ -16,11 +19,18 @@ import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
 import { SharePanel } from "~/components/share-panel";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
 import { queueAnalysis } from "~/lib/analyses/requests.server";
+import {
+  chooseChannels,
+  fileDetailsOffer,
+  storedFormat,
+  useFileDetails,
+} from "~/lib/http/drive-log-channels.server";
+import { channelChoiceSchema, choiceMapping } from "~/lib/domain/channel-names";
 import { analysisParam } from "~/lib/http/analysis-param";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { logLabel } from "~/lib/data/curves.server";
-import { conditionLabels, type IngestMapping } from "~/lib/domain/drive-log-terms";
+import { conditionLabels } from "~/lib/domain/drive-log-terms";
 import { summarise } from "~/lib/domain/analysis-summary";
 import { idParam } from "~/lib/http/params";
 import { atLeast } from "~/lib/domain/roles";
@@ -32,7 +42,7 @@ import { readPreview } from "../lib/data/drive-log-preview.server";
 import type { Route } from "./+types/drive-log";
 import { requireAccess } from "~/lib/http/access.server";
 import { pageRoute } from "~/lib/http/edge.server";
-import { Conflict, Invalid, NotFound } from "~/lib/domain/errors";
+import { Invalid, NotFound } from "~/lib/domain/errors";
 
 export const meta = ({ data }: Route.MetaArgs) => [
   { title: `${data?.log.fileName ?? "Drive log"} · Twistlog` },
@@ -84,7 +94,12 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
     .slice(0, 12)
     .map((l) => ({ id: l.id, label: logLabel(l), fileName: l.fileName }));
   const error = log.status === "failed" ? log.error : null;
-  const mapping = error && canChooseColumns(error) ? await readPreview(log.blobKey) : null;
+  const overColumns = !!error && canChooseColumns(error);
+  // The first rows as text, beside the chooser, for a CSV whose columns failed.
+  const mapping =
+    overColumns && (await storedFormat(log.blobKey)) === "csv"
+      ? await readPreview(log.blobKey)
+      : null;
   const applied = await vehicles.appliedColumns(log.id);
   return {
     role: team.role,
@@ -125,7 +140,10 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
     shownId: analysis?.id,
     others,
     preview: mapping,
+    overColumns,
     applied,
+    source: result?.source ?? null,
+    fileDetails: fileDetailsOffer(result?.source, log),
   };
 });
 
@@ -135,38 +153,13 @@ export const action = pageRoute(async ({ request, params }: Route.ActionArgs) =>
   const intent = form.get("intent");
   if (intent === "map") {
     // Fixing the columns of an upload is the technician's own job (docs/architecture.md §2).
-    const { vehicles, vehicle, log } = await load(request, params, "technician");
-    // Only the page's offer may be taken: a log that failed over its columns. Otherwise a post
-    // would overwrite the vehicle's remembered columns from a log that read fine.
-    if (!(log.status === "failed" && log.error && canChooseColumns(log.error)))
-      throw new Conflict(
-        "The columns can be chosen only for a drive log that could not be read because of its columns; this one is not in that state, so nothing was changed.",
-      );
-    const submission = parseWithZod(form, { schema: mappingSchema });
-    if (submission.status !== "success") return data({ map: submission.reply() }, { status: 400 });
-    const { intent: _, ...mapping } = submission.value;
-    const { header } = await readPreview(log.blobKey, 0);
-    const fieldErrors: Record<string, string[]> = {};
-    const chosen = new Map<string, string>();
-    for (const key of ["timeColumn", "crankColumn", "gearboxColumn"] as const) {
-      const name = mapping[key];
-      if (name === undefined) continue;
-      if (!header.includes(name)) fieldErrors[key] = [`The file has no column “${name}”.`];
-      else if (chosen.has(name))
-        fieldErrors[key] = [`“${name}” is already the ${chosen.get(name)}.`];
-      else chosen.set(name, key.replace("Column", " column"));
-    }
-    if (Object.keys(fieldErrors).length)
-      return data({ map: submission.reply({ fieldErrors }) }, { status: 400 });
-    const clean = Object.fromEntries(
-      Object.entries(mapping).filter(([, v]) => v !== undefined),
-    ) as IngestMapping;
-    await vehicles.rememberMapping(vehicle.id, clean);
-    await queueAnalysis(await vehicles.reanalysisJob(log.id, {}, clean));
-    return {
-      notice:
-        "The columns are set and remembered for this vehicle; the drive log is being analysed again.",
-    };
+    const { team, vehicles, vehicle, log } = await load(request, params, "technician");
+    return chooseChannels(team.id, vehicles, vehicle, log, form);
+  }
+  if (intent === "use-file-details") {
+    // Whoever uploads drive logs (technicians and up) fills in their test details.
+    const { vehicles, log } = await load(request, params, "technician");
+    return useFileDetails(vehicles, log);
   }
   if (intent !== "reanalyse") throw new Invalid("Unknown action.");
   const { vehicles, log } = await load(request, params, "engineer");
@@ -174,7 +167,14 @@ export const action = pageRoute(async ({ request, params }: Route.ActionArgs) =>
   if (submission.status !== "success")
     return data({ reanalyse: submission.reply() }, { status: 400 });
   const { intent: _, ...overrides } = submission.value;
-  await queueAnalysis(await vehicles.reanalysisJob(log.id, overrides));
+  // Optional channels (timeChannel, crankChannel, gearboxChannel, crankUnit, gearboxUnit).
+  const choice = channelChoiceSchema.safeParse(Object.fromEntries(form));
+  if (!choice.success) {
+    const issue = choice.error.issues[0]!;
+    throw new Invalid(`${issue.path.join(".")}: ${issue.message}`);
+  }
+  const channels = choiceMapping(choice.data) ?? undefined;
+  await queueAnalysis(await vehicles.reanalysisJob(log.id, overrides, channels));
   return { notice: "A new analysis version is queued; the earlier ones are kept." };
 });
 
@@ -191,7 +191,10 @@ export default function DriveLogPage() {
     shownId,
     others,
     preview,
+    overColumns,
     applied,
+    source,
+    fileDetails,
   } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const progress = useLiveStatus(log);
@@ -223,12 +226,18 @@ export default function DriveLogPage() {
       </p>
       {notice ? <Notice>{notice}</Notice> : null}
       {log.status === "failed" && log.error ? <Failure error={log.error} /> : null}
-      <ColumnsStep
+      {!earlier && atLeast(role, "technician") ? <FileDetailsOffer {...fileDetails} /> : null}
+      <ChannelsStep
+        logId={log.id}
         offer={!earlier && atLeast(role, "technician")}
-        preview={preview}
+        failedOverColumns={overColumns}
+        settled={!isActive(progress.log.status)}
         applied={applied}
         lastResult={result && "map" in result ? result.map : undefined}
       />
+      {preview && overColumns && !earlier && atLeast(role, "technician") ? (
+        <FilePreview preview={preview} />
+      ) : null}
       {isActive(progress.log.status) && !summary ? (
         <p className="text-sm text-neutral-600">
           The analysis summary appears here when the analysis has finished.
@@ -258,7 +267,8 @@ export default function DriveLogPage() {
           }}
         />
       ) : null}
-      {summary ? <AnalysisDetails s={summary} /> : null}
+      {summary ? <AnalysisDetails s={summary} team={shown?.team ?? null} /> : null}
+      {source ? <SourcePanel source={source} /> : null}
       {atLeast(role, "engineer") && !earlier ? (
         <SharePanel endpoint={`/vehicles/${vehicle.id}/logs/${log.id}/share`} />
       ) : null}

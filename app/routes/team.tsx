@@ -4,6 +4,8 @@ import { z } from "zod";
 import { Field, SelectField, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
 import { Card, Notice, PageHeader } from "~/components/page";
 import { Invitations, MembersCard, RolesCard, UnitsCard } from "~/components/team-cards";
+import { LoggerVocabularyCard } from "~/components/logger-vocabulary-card";
+import { ingestSettingsAction } from "~/lib/http/team-ingest.server";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -35,6 +37,7 @@ export const loader = pageRoute(async ({ request }: Route.LoaderArgs) => {
     me: { userId: user.id, role: team.role },
     team: await scoped.team(),
     members: await scoped.members(),
+    ingest: await scoped.ingestSettings(),
     invitations: admin ? await scoped.openInvitations() : [],
   };
 });
@@ -44,6 +47,8 @@ export const action = pageRoute(async ({ request, context }: Route.ActionArgs) =
   await assertCsrf(request, form);
   const intent = form.get("intent");
   const ip = clientIp(context);
+  const ingest = await ingestSettingsAction(request, form, ip);
+  if (ingest) return ingest;
 
   if (intent === "set-units") {
     // Display settings belong to the people who analyse: engineers and admins.
@@ -104,7 +109,7 @@ export const action = pageRoute(async ({ request, context }: Route.ActionArgs) =
 });
 
 export default function Team() {
-  const { me, team, members, invitations } = useLoaderData<typeof loader>();
+  const { me, team, members, invitations, ingest } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const admin = atLeast(me.role, "admin");
   return (
@@ -129,6 +134,11 @@ export default function Team() {
             />
           ) : null}
           <UnitsCard unit={team.amplitudeUnit} canEdit={atLeast(me.role, "engineer")} />
+          <LoggerVocabularyCard
+            settings={ingest}
+            canEdit={atLeast(me.role, "engineer")}
+            lastResult={result && "channelName" in result ? result.channelName : undefined}
+          />
           <RolesCard />
         </div>
       </div>

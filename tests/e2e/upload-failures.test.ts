@@ -93,7 +93,7 @@ describe("the upload list", () => {
     );
     await fix.click();
     await page.waitForURL(/\/logs\/\d+#mapping-title$/);
-    await page.getByRole("heading", { name: "Choose the columns" }).waitFor();
+    await page.getByRole("heading", { name: "Channel chooser" }).waitFor();
     await page.getByText("The last analysis recognised the columns from the header.").waitFor();
     await snap(page, "upload-fix-columns");
 

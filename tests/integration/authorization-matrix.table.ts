@@ -246,6 +246,15 @@ export const matrix: Record<string, Row> = {
       get("page", log, team("viewer"), 200, { shows: true }),
       // The log is done, so the column choice is refused after the role check (409, §10).
       post("form", log, "map", () => withIntent("map"), team("technician"), 409),
+      // The demo log's file names no date or comment, so there is nothing to take (409).
+      post(
+        "form",
+        log,
+        "use-file-details",
+        () => withIntent("use-file-details"),
+        team("technician"),
+        409,
+      ),
       post(
         "form",
         log,
@@ -285,6 +294,31 @@ export const matrix: Record<string, Row> = {
         () => "/team",
         "set-units",
         () => withIntent("set-units", { unit: "furlongs" }),
+        team("engineer", false),
+        400,
+      ),
+      // The Logger vocabulary (lib/http/team-ingest.server.ts): refused values change nothing.
+      post(
+        "form",
+        () => "/team",
+        "add-channel-name",
+        () => withIntent("add-channel-name", { name: "n_kw", role: "wheel" }),
+        team("engineer", false),
+        400,
+      ),
+      post(
+        "form",
+        () => "/team",
+        "remove-channel-name",
+        () => withIntent("remove-channel-name", { name: "not in the list" }),
+        team("engineer", false),
+        400,
+      ),
+      post(
+        "form",
+        () => "/team",
+        "set-strict",
+        () => withIntent("set-strict", { strict: "maybe" }),
         team("engineer", false),
         400,
       ),
@@ -615,6 +649,12 @@ export const matrix: Record<string, Row> = {
     probes: [
       ...api((w) => [get(w, (fx) => `/api/v1/logs/${fx.home.logIds[0]}/result`, team("viewer"))]),
       noAction("api-bearer", (fx) => `/api/v1/logs/${fx.home.logIds[0]}/result`),
+    ],
+  },
+  "routes/api.v1.log-channels.ts": {
+    probes: [
+      ...api((w) => [get(w, (fx) => `/api/v1/logs/${fx.home.logIds[0]}/channels`, team("viewer"))]),
+      noAction("api-bearer", (fx) => `/api/v1/logs/${fx.home.logIds[0]}/channels`),
     ],
   },
   "routes/api.v1.log-shares.ts": {

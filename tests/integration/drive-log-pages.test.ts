@@ -320,7 +320,7 @@ describe("the drive-log page", () => {
 
     const path = `/vehicles/${vehicle.id}/logs/${id}`;
     const page = await technician.get(path);
-    expect(page.html).toContain("Choose the columns");
+    expect(page.html).toContain("Channel chooser");
     expect(page.html).toContain("shaft b [rpm]");
     expect(page.html).toContain("The first 20 rows of the file");
 

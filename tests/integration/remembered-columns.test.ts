@@ -85,7 +85,7 @@ describe("a remembered column choice", () => {
     expect(await finished(odd)).toBe("failed");
     const path = `/vehicles/${vehicleId}/logs/${odd}`;
     const page = await technician.get(path);
-    expect(page.html).toContain("Choose the columns");
+    expect(page.html).toContain("Channel chooser");
     const mapped = await technician.post(path, {
       intent: "map",
       timeColumn: "Zeit",
@@ -132,7 +132,7 @@ describe("a remembered column choice", () => {
     const before = (await vehicleData(team.id).vehicle(vehicleId)).columnMapping;
     const versions = (await vehicleData(team.id).versions(done)).length;
     const path = `/vehicles/${vehicleId}/logs/${done}`;
-    expect((await technician.get(path)).html).not.toContain("Choose the columns");
+    expect((await technician.get(path)).html).not.toContain("Channel chooser");
     // Columns that exist in the file (so only the log's state can refuse it), swapped around.
     const posted = await technician.post(path, {
       intent: "map",
@@ -158,16 +158,12 @@ describe("a remembered column choice", () => {
     });
     const page = await technician.get(`/vehicles/${vehicleId}/logs/${bad}`);
     expect(page.html).toContain('data-columns-used="remembered"');
-    // Each select starts at the column used, not at "Recognise from the header".
-    for (const [field, column] of [
-      ["timeColumn", "Zeit"],
-      ["crankColumn", "Kanal1"],
-      ["gearboxColumn", "Kanal2"],
-    ]) {
-      const select = new RegExp(`<select[^>]*name="${field}"[^>]*>(.*?)</select>`, "s").exec(
-        page.html,
-      )?.[1];
-      expect(select).toMatch(new RegExp(`<option value="${column}" selected="">`));
-    }
+    // The channel chooser starts from the columns that run used (initialPicks, unit-tested in
+    // tests/unit/channel-picks.test.ts), which the page hands it as `applied`.
+    expect(await vehicleData(team.id).appliedColumns(bad)).toMatchObject({
+      source: "remembered",
+      mapping: { timeColumn: "Zeit", crankColumn: "Kanal1", gearboxColumn: "Kanal2" },
+    });
+    expect(page.html).toContain("Channel chooser");
   });
 });

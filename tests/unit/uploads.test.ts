@@ -55,6 +55,34 @@ describe("streaming uploads (busboy → storage)", () => {
     await expect(attempt).rejects.toMatchObject({ status: 422, code: "not_text" });
   });
 
+  it("takes an ASAM MDF4 file (binary, told by its file id) and keeps it byte for byte", async () => {
+    // ASAM MDF 4.2 identification block: file id "MDF     ", format id "4.20    ", program id,
+    // then reserved NUL bytes — binary, so only the file id lets it through.
+    const id = new Uint8Array(64);
+    id.set(new TextEncoder().encode("MDF     4.20    Kestrel "), 0);
+    const got = await receiveUpload(multipart({ file: { name: "run.mf4", bytes: id } }), {
+      store,
+      maxBytes: 1024,
+    });
+    expect(got.files).toHaveLength(1);
+    expect(got.files[0]!.stored.sizeBytes).toBe(64);
+    expect(got.files[0]!.stored.key).toBe(createHash("sha256").update(id).digest("hex"));
+  });
+
+  it("names both accepted formats when it refuses another binary file", async () => {
+    // "MDF " then NUL bytes: not the 8-byte file id, so it is read as a would-be CSV with NULs.
+    const bytes = new Uint8Array([0x4d, 0x44, 0x46, 0x20, 0, 0, 0, 0, 0, 0]);
+    const attempt = receiveUpload(multipart({ file: { name: "odd.bin", bytes } }), {
+      store,
+      maxBytes: 1024,
+    });
+    await expect(attempt).rejects.toMatchObject({
+      status: 422,
+      code: "not_text",
+      message: expect.stringMatching(/CSV text or as ASAM MDF4/),
+    });
+  });
+
   it("refuses a file over the limit with 413 and names the limit", async () => {
     const big = "t,crank,gearbox\n" + "0.001,800,800\n".repeat(200);
     const attempt = receiveUpload(multipart({ file: { name: "big.csv", bytes: big } }), {

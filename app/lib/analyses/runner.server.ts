@@ -25,6 +25,7 @@ import {
   type ClaimedJob,
 } from "./queue.server";
 import { saveAnalysis, type BeforeCommit } from "./save.server";
+import { ingestOptionsFor } from "./settings";
 import type { AnalysisTask, AnalysisTaskOutcome } from "./tasks";
 
 export interface RunnerOptions {
@@ -164,7 +165,7 @@ async function runClaimedJob(
       store,
       blobKey: log.blobKey,
       sizeBytes: log.sizeBytes,
-      ingest: applied.mapping,
+      ingest: ingestOptionsFor(job.settings, applied),
       analysis: job.settings.analysis,
       progress: channel.port1,
     };

@@ -49,6 +49,12 @@ export async function saveAnalysis(
           ...result.settings,
           mapping: job.settings.applied?.mapping ?? job.settings.ingest,
           mappingSource: job.settings.applied?.source ?? "chosen",
+          ...(job.settings.team
+            ? {
+                teamChannelNames: job.settings.team.channelNames,
+                strictIngest: job.settings.team.strict,
+              }
+            : {}),
         },
         firingOrder: result.firingOrder,
         isolationMinDb: dBs.length ? Math.min(...dBs) : null,

@@ -5,6 +5,7 @@
 import type { AnalysisOptions } from "../signal/index.ts";
 import type { AppliedMapping, IngestMapping } from "../domain/drive-log-terms";
 import type { vehicles } from "../infra/db/schema-drive-logs";
+import type { TeamIngestSettings } from "../domain/channel-names";
 
 export interface JobSettings {
   analysis: AnalysisOptions;
@@ -14,6 +15,11 @@ export interface JobSettings {
   remembered?: IngestMapping | null;
   /** What the run really used, written when it starts (shown on the drive-log page). */
   applied?: AppliedMapping;
+  /**
+   * The team's channel names and strict flag as they stood when the job was queued: a later
+   * change of the team setting does not change what this run read (absent in older jobs).
+   */
+  team?: TeamIngestSettings;
 }
 
 /** Settings a re-analysis may change (issue: order override, block length, bin width). */
@@ -34,6 +40,7 @@ export function jobSettingsFor(
   vehicle: VehicleSettings,
   chosen: IngestMapping | null,
   overrides: AnalysisOverrides = {},
+  team?: TeamIngestSettings,
 ): JobSettings {
   const analysis: AnalysisOptions = {
     cylinders: vehicle.cylinders,
@@ -42,7 +49,19 @@ export function jobSettingsFor(
     ...(vehicle.firingOrderOverride ? { firingOrder: vehicle.firingOrderOverride } : {}),
     ...Object.fromEntries(Object.entries(overrides).filter(([, v]) => v !== undefined)),
   };
+  const frozen = team
+    ? { team: { channelNames: team.channelNames.map((c) => ({ ...c })), strict: team.strict } }
+    : {};
   return chosen
-    ? { analysis, ingest: chosen, remembered: null }
-    : { analysis, ingest: {}, remembered: vehicle.columnMapping };
+    ? { analysis, ingest: chosen, remembered: null, ...frozen }
+    : { analysis, ingest: {}, remembered: vehicle.columnMapping, ...frozen };
+}
+
+/** The ingest options a job's worker gets: the applied columns plus the frozen team settings. */
+export function ingestOptionsFor(settings: JobSettings, applied: AppliedMapping) {
+  return {
+    ...applied.mapping,
+    ...(settings.team?.channelNames.length ? { channelNames: settings.team.channelNames } : {}),
+    ...(settings.team?.strict ? { strict: true } : {}),
+  };
 }

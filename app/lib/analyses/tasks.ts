@@ -13,6 +13,7 @@ export interface AnalysisTask {
   store: BlobStoreDescription;
   blobKey: string;
   sizeBytes: number;
+  /** The applied columns plus the team's channel names and strict flag (settings.ts ingestOptionsFor). */
   ingest: IngestOptions;
   analysis: AnalysisOptions;
   /** Receives { stage, progress } (0–1 overall) while the analysis runs. */

@@ -8,21 +8,28 @@ import { enqueueAnalysis } from "../analyses/queue.server";
 import { wakeRunners } from "../analyses/runner.server";
 import { jobSettingsFor } from "../analyses/settings";
 import { db } from "../infra/db.server";
+import type { IngestMapping } from "../domain/drive-log-terms";
+import { teamData } from "./team-data.server";
 import { vehicleData, type DriveLogRow } from "./vehicles.server";
 
-type AddLogsArgs = Parameters<ReturnType<typeof vehicleData>["addLogs"]>[0];
+type AddLogsArgs = Parameters<ReturnType<typeof vehicleData>["addLogs"]>[0] & {
+  /** Channels chosen with the upload (timeChannel, …): this drive log's chosen mapping. */
+  mapping?: IngestMapping | null;
+};
 /** A recorded drive log: its row as committed (status queued) and the earlier log of the same bytes. */
 type Added = { id: number; duplicateOf: number | null; log: DriveLogRow };
 
 /** Records the files as drive logs of `args.vehicle` and queues their analyses. */
 export async function recordDriveLogs(teamId: number, args: AddLogsArgs): Promise<Added[]> {
+  // Read once, before the transaction: every job of this upload freezes the same team settings.
+  const team = await teamData(teamId).ingestSettings();
   const added = await db.transaction(async (tx) => {
     const rows = await vehicleData(teamId).addLogs(args, tx);
     for (const { id } of rows) {
       await enqueueAnalysis(tx, {
         teamId,
         driveLogId: id,
-        settings: jobSettingsFor(args.vehicle, null),
+        settings: jobSettingsFor(args.vehicle, args.mapping ?? null, {}, team),
       });
     }
     return rows;

@@ -3,6 +3,8 @@ import { invitations, memberships, teams, users, type Role } from "~/lib/infra/d
 import { teamAuditChoices, teamAuditLog, type AuditFilter } from "./audit.server";
 import { db } from "../infra/db.server";
 import { NotFound } from "../domain/errors";
+import { readChannelNames, type TeamIngestSettings } from "../domain/channel-names";
+import type { ChannelName } from "../signal/types";
 
 /** What a member row shows: the membership with its user. */
 const memberColumns = {
@@ -34,6 +36,25 @@ export function teamData(teamId: number) {
 
     setAmplitudeUnit(unit: "rpm" | "rad/s") {
       return db.update(teams).set({ amplitudeUnit: unit }).where(eq(teams.id, teamId));
+    },
+
+    /** The team's channel names and strict flag, as every analysis job gets them. */
+    async ingestSettings(): Promise<TeamIngestSettings> {
+      const [row] = await db
+        .select({ channelNames: teams.channelNames, strict: teams.strictIngest })
+        .from(teams)
+        .where(eq(teams.id, teamId));
+      if (!row) throw new NotFound("Team not found.");
+      return { channelNames: readChannelNames(row.channelNames), strict: row.strict };
+    },
+
+    /** Replaces the list (already checked with channelNamesSchema by the caller). */
+    setChannelNames(list: ChannelName[]) {
+      return db.update(teams).set({ channelNames: list }).where(eq(teams.id, teamId));
+    },
+
+    setStrictIngest(strict: boolean) {
+      return db.update(teams).set({ strictIngest: strict }).where(eq(teams.id, teamId));
     },
 
     members() {

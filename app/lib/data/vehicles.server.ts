@@ -7,6 +7,7 @@ import { jobSettingsFor, type AnalysisOverrides, type JobSettings } from "../ana
 import { db } from "../infra/db.server";
 import type { AppliedMapping, IngestMapping } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";
+import { teamData } from "./team-data.server";
 import type { StoredBlob } from "../infra/storage.server";
 import type { LogMetadata, VehicleInput } from "../domain/vehicle-schema";
 
@@ -19,6 +20,11 @@ export type { AnalysisOverrides, StoredAnalysis };
 const versionSettings = z.looseObject({
   revsPerBlock: z.number().optional(),
   binRpm: z.number().optional(),
+  // The team's channel names and strict flag the run read with (absent before issue 14).
+  teamChannelNames: z
+    .array(z.object({ name: z.string(), role: z.string(), unit: z.string().optional() }))
+    .optional(),
+  strictIngest: z.boolean().optional(),
 });
 
 /**
@@ -53,8 +59,8 @@ export function vehicleData(teamId: number) {
     return { vehicle: v, log: l };
   }
 
-  /** The columns the drive log's last finished run read (and where they came from), or null. */
-  async function appliedColumns(logId: number): Promise<AppliedMapping | null> {
+  /** The settings of the drive log's last finished job, or null. */
+  async function lastJobSettings(logId: number): Promise<JobSettings | null> {
     const [job] = await db
       .select({ settings: analysisJobs.settings })
       .from(analysisJobs)
@@ -67,8 +73,13 @@ export function vehicleData(teamId: number) {
       )
       .orderBy(desc(analysisJobs.id))
       .limit(1);
-    if (!job) return null;
-    const settings = job.settings as unknown as JobSettings;
+    return job ? (job.settings as unknown as JobSettings) : null;
+  }
+
+  /** The columns the drive log's last finished run read (and where they came from), or null. */
+  async function appliedColumns(logId: number): Promise<AppliedMapping | null> {
+    const settings = await lastJobSettings(logId);
+    if (!settings) return null;
     if (settings.applied) return settings.applied;
     // Jobs queued before the choice was recorded ran with `ingest` as it stood.
     const mapping = settings.ingest ?? {};
@@ -291,10 +302,41 @@ export function vehicleData(teamId: number) {
       const v = await vehicle(row.vehicleId);
       const last = mapping ? null : await appliedColumns(row.id);
       const chosen = mapping ?? (last?.source === "chosen" ? last.mapping : null);
-      return { teamId, driveLogId: row.id, settings: jobSettingsFor(v, chosen, overrides) };
+      // A re-analysis reads with the team's channel names as they are now (and records them).
+      const team = await teamData(teamId).ingestSettings();
+      return { teamId, driveLogId: row.id, settings: jobSettingsFor(v, chosen, overrides, team) };
     },
 
     appliedColumns,
+
+    /**
+     * Takes the file's own date and comment as the drive log's test date and notes, each only
+     * where it is still empty (checked in the update itself, so a concurrent edit is never
+     * overwritten). Returns which of the two were set.
+     */
+    async fillTestDetails(logId: number, details: { testDate?: string; notes?: string }) {
+      const row = await log(logId);
+      const set: { date: boolean; notes: boolean } = { date: false, notes: false };
+      if (details.testDate) {
+        const [r] = await db
+          .update(driveLogs)
+          .set({ testDate: details.testDate })
+          .where(
+            and(eq(driveLogs.id, row.id), eq(driveLogs.teamId, teamId), isNull(driveLogs.testDate)),
+          );
+        set.date = r.affectedRows > 0;
+      }
+      if (details.notes) {
+        const [r] = await db
+          .update(driveLogs)
+          .set({ notes: details.notes.slice(0, 5000) })
+          .where(
+            and(eq(driveLogs.id, row.id), eq(driveLogs.teamId, teamId), eq(driveLogs.notes, "")),
+          );
+        set.notes = r.affectedRows > 0;
+      }
+      return set;
+    },
 
     /** A drive log's analysis versions, newest first, with the settings each was made with. */
     async versions(logId: number) {
@@ -316,6 +358,13 @@ export function vehicleData(teamId: number) {
           ...v,
           revsPerBlock: known.success ? (known.data.revsPerBlock ?? null) : null,
           binRpm: known.success ? (known.data.binRpm ?? null) : null,
+          team:
+            known.success && known.data.strictIngest !== undefined
+              ? {
+                  channelNames: known.data.teamChannelNames ?? [],
+                  strict: known.data.strictIngest,
+                }
+              : null,
         };
       });
     },

@@ -52,8 +52,8 @@ export async function recordUploads(request: Request, options: UploadOptions) {
     maxFiles: options.maxFiles,
     beforeFirstFile: options.beforeFirstFile,
     afterReceive: options.afterReceive,
-    record: (files, metadata) =>
-      recordDriveLogs(teamId, { vehicle, files, metadata, uploadedBy: userId }),
+    record: (files, metadata, mapping) =>
+      recordDriveLogs(teamId, { vehicle, files, metadata, mapping, uploadedBy: userId }),
   });
   return { teamId, vehicle, added };
 }

@@ -8,7 +8,10 @@ import { Readable, Transform } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import type { ReadableStream as NodeReadableStream } from "node:stream/web";
 import { logMetadataSchema, type LogMetadata } from "../domain/vehicle-schema";
+import { channelChoiceSchema, choiceMapping } from "../domain/channel-names";
+import type { IngestMapping } from "../domain/drive-log-terms";
 import { databaseUnavailable } from "../infra/db-errors.server";
+import { sniffFormat } from "../signal/format.ts";
 import {
   BlobTooLargeError,
   formatBytes,
@@ -55,7 +58,12 @@ export async function recordUpload<T>(
   request: Request,
   options: Parameters<typeof receiveUpload>[1] & {
     afterReceive?: (fields: Record<string, string>) => Promise<void>;
-    record: (files: ReceivedFile[], metadata: LogMetadata) => Promise<T>;
+    /** `mapping`: the channels chosen with the upload (timeChannel, …), or null. */
+    record: (
+      files: ReceivedFile[],
+      metadata: LogMetadata,
+      mapping: IngestMapping | null,
+    ) => Promise<T>;
   },
 ): Promise<T> {
   const received = await receiveUpload(request, options);
@@ -80,7 +88,18 @@ export async function recordUpload<T>(
         metadata.error.issues.map((i) => i.message).join(" "),
       );
     }
-    const result = await options.record(files, metadata.data).catch((error: unknown) => {
+    const choice = channelChoiceSchema.safeParse(received.fields);
+    if (!choice.success) {
+      const issue = choice.error.issues[0];
+      throw new UploadError(
+        400,
+        "invalid_channel_choice",
+        `${issue?.path.join(".") || "field"}: ${issue?.message ?? "invalid"}`,
+        choice.error.issues.map((i) => `${i.path.join(".")}: ${i.message}`).join(" "),
+      );
+    }
+    const mapping = choiceMapping(choice.data);
+    const result = await options.record(files, metadata.data, mapping).catch((error: unknown) => {
       if (databaseUnavailable(error))
         throw new UploadError(503, "database_unavailable", DB_UNAVAILABLE_MESSAGE);
       throw error;
@@ -321,34 +340,43 @@ export async function discardReceived(
 }
 
 /**
- * Passes bytes through, refusing a file that is not text: a NUL byte in the first 64 kB
- * (binary formats have them; CSV never does) or no line break in them (no header row).
+ * Passes bytes through, refusing a file that is neither CSV text nor ASAM MDF4. MDF4 is told by
+ * its first 8 bytes (sniffFormat: the identification block's file id) and passes whole; any
+ * other file must be text: no NUL byte in the first 64 kB (binary formats have them; CSV never
+ * does) and a line break in them (a header row).
  */
 function textCheck(fileName: string): Transform {
   let seen = 0;
   let sawNewline = false;
+  let head = Buffer.alloc(0); // the first bytes, until there are 8 to sniff
+  let mdf4: boolean | undefined;
+  const notText = () =>
+    new UploadError(
+      422,
+      "not_text",
+      `${fileName} is neither CSV text nor an ASAM MDF4 file: upload the drive log as CSV text or as ASAM MDF4 (.mf4).`,
+    );
   return new Transform({
     transform(chunk: Buffer, _enc, done) {
+      if (mdf4 === undefined) {
+        head = Buffer.concat([head, chunk.subarray(0, 8 - head.length)]);
+        if (head.length < 8) {
+          // Too short to tell yet: a NUL already rules out text, else wait for more.
+          if (head.includes(0)) return done(notText());
+        } else mdf4 = sniffFormat(head) === "mdf4";
+      }
+      if (mdf4) return done(null, chunk);
       if (seen < SNIFF_BYTES) {
-        const head = chunk.subarray(0, SNIFF_BYTES - seen);
-        if (head.includes(0)) {
-          done(
-            new UploadError(
-              422,
-              "not_text",
-              `${fileName} is not a text file: upload the drive log as CSV.`,
-            ),
-          );
-          return;
-        }
-        if (head.includes(10) || head.includes(13)) sawNewline = true;
-        seen += head.length;
+        const part = chunk.subarray(0, SNIFF_BYTES - seen);
+        if (part.includes(0)) return done(notText());
+        if (part.includes(10) || part.includes(13)) sawNewline = true;
+        seen += part.length;
         if (seen >= SNIFF_BYTES && !sawNewline) {
           done(
             new UploadError(
               422,
               "no_header_row",
-              `${fileName} has no line break in its first 64 kB: it does not look like a CSV file with a header row.`,
+              `${fileName} has no line break in its first 64 kB: it does not look like a CSV file with a header row (nor like an ASAM MDF4 file).`,
             ),
           );
           return;

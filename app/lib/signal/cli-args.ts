@@ -14,19 +14,24 @@ export interface CliCommand {
   analysis: AnalysisOptions;
   json: boolean;
   help: boolean;
+  /** --list-channels: print the file's channel table instead of analysing it. */
+  listChannels?: boolean;
 }
 
 export const USAGE = `usage: npm run -s analyse -- FILE [--cylinders N] [--stroke 4|2] [--order Q]
        [--time COL] [--crank COL] [--gearbox COL] [--unit rpm|rad/s|deg/s|rev/s]
        [--crank-unit U] [--gearbox-unit U] [--time-unit s|ms] [--rattle-limit RAD_PER_S2]
        [--bin-rpm N] [--strict] [--repair-limit-ms MS] [--repair-limit-samples N] [--json]
+       npm run -s analyse -- FILE --list-channels [--time COL] [--crank COL] [--gearbox COL]
 
 Reads a CSV drive log (time, crank-side and gearbox-side angular velocity), tracks the
 orders against the crank, and prints the isolation at the firing order, the damper
 resonance and the idle rattle check. --json prints the full result document instead.
 Short dropouts and gaps (up to --repair-limit-ms, default 10, and --repair-limit-samples,
 default 20, whichever is fewer) are filled, jitter is resampled, longer gaps split the log
-into sections; every repair is listed as a warning. --strict refuses such a log instead.`;
+into sections; every repair is listed as a warning. --strict refuses such a log instead.
+--list-channels prints every channel of the file (CSV or ASAM MDF4): name, unit, group, rate,
+samples, range and the role it is recognised as, then exits.`;
 
 const OPTIONS = {
   cylinders: { type: "string" },
@@ -45,6 +50,7 @@ const OPTIONS = {
   "repair-limit-ms": { type: "string" },
   "repair-limit-samples": { type: "string" },
   json: { type: "boolean" },
+  "list-channels": { type: "boolean" },
   help: { type: "boolean", short: "h" },
 } as const;
 
@@ -162,6 +168,7 @@ export function parseCliArgs(argv: string[]): Parsed {
       analysis,
       json: v.json === true,
       help: false,
+      ...(v["list-channels"] === true ? { listChannels: true } : {}),
     },
   };
 }

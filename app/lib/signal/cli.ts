@@ -5,7 +5,9 @@
  * flag exits 2. Never a stack trace. Progress goes to stderr only when stderr is a terminal.
  */
 import { pathToFileURL } from "node:url";
+import { channelTable } from "./channel-table.ts";
 import { parseCliArgs, USAGE } from "./cli-args.ts";
+import { listChannelsOfFile } from "./ingest-stream.ts";
 import { analyseSource, type FileAnalysis, type PipelineStage } from "./pipeline.ts";
 import type { SignalIssue } from "./types.ts";
 
@@ -107,6 +109,15 @@ export async function main(
     return 0;
   }
   const cmd = args.value;
+  if (cmd.listChannels) {
+    const listed = await listChannelsOfFile(cmd.file, cmd.ingest);
+    if (!listed.ok) {
+      err.write(`${describeIssue(cmd.file, listed.error)}\n`);
+      return 1;
+    }
+    out.write(`${channelTable(listed.value)}\n`);
+    return 0;
+  }
   const progress = err === process.stderr ? terminalProgress() : undefined;
   const outcome = await analyseSource({ ...cmd, source: cmd.file }, progress);
   if (progress) err.write("\r\x1b[K");

@@ -1,4 +1,13 @@
-import { index, mysqlEnum, mysqlTable, uniqueIndex, varchar } from "drizzle-orm/mysql-core";
+import {
+  boolean,
+  index,
+  json,
+  mysqlEnum,
+  mysqlTable,
+  uniqueIndex,
+  varchar,
+} from "drizzle-orm/mysql-core";
+import type { ChannelName } from "../../signal/types";
 import { ROLES, type Role } from "../../domain/roles";
 import { at, createdAt, id, ref } from "./columns";
 
@@ -17,6 +26,10 @@ export const teams = mysqlTable(
     slug: varchar("slug", { length: 64 }).notNull(),
     // How angular-velocity amplitudes are shown to this team (stored values are rad/s).
     amplitudeUnit: mysqlEnum("amplitude_unit", ["rpm", "rad/s"]).notNull().default("rpm"),
+    // The team's own logger channel names (app/lib/domain/channel-names.ts); null: none yet.
+    channelNames: json("channel_names").$type<ChannelName[]>(),
+    // Refuse logs with dropouts, gaps or jitter instead of repairing them (issue 14).
+    strictIngest: boolean("strict_ingest").notNull().default(false),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex("teams_slug_unique").on(t.slug)],
