@@ -53,13 +53,13 @@ function mappingText(m: IngestMapping): string {
     !m.gearboxColumn && m.gearboxUnit ? `the gearbox side in ${m.gearboxUnit}` : null,
   ].filter((p): p is string => p !== null);
   const named = [m.timeColumn, m.crankColumn, m.gearboxColumn].filter(Boolean).length;
-  const rest = named < 3 ? "; the rest from the header" : "";
+  const rest = named < 3 ? "; the rest recognised from the file" : "";
   return parts.length > 1
     ? `${parts.slice(0, -1).join(", ")} and ${parts[parts.length - 1]}${rest}`
     : `${parts[0] ?? ""}${rest}`;
 }
 
-/** Which columns the last analysis read, and whether they came from the header or a choice. */
+/** Which columns the last analysis read, and whether they were recognised or chosen. */
 export function columnsUsedText(applied: AppliedMapping): string {
   if (applied.source === "chosen")
     return `The last analysis read the columns chosen for this drive log: ${mappingText(applied.mapping)}.`;
@@ -68,5 +68,5 @@ export function columnsUsedText(applied: AppliedMapping): string {
   const skipped = applied.skipped
     ? ` This vehicle's remembered choice (${mappingText(applied.skipped)}) was left out: this file does not have its columns.`
     : "";
-  return `The last analysis recognised the columns from the header.${skipped}`;
+  return `The last analysis recognised the channels by their names in the file.${skipped}`;
 }

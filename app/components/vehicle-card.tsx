@@ -109,7 +109,7 @@ function Item({
 /** "time: t [ms] (ms), crank: … (rpm), gearbox: …" — only the parts that were chosen. */
 export function mappingText(m: IngestMapping): string {
   const part = (name: string, column?: string, unit?: string) =>
-    column || unit ? `${name}: ${column ?? "from the header"}${unit ? ` (${unit})` : ""}` : null;
+    column || unit ? `${name}: ${column ?? "recognised"}${unit ? ` (${unit})` : ""}` : null;
   return [
     part("time", m.timeColumn, m.timeUnit),
     part("crank", m.crankColumn, m.crankUnit),

@@ -83,9 +83,14 @@ describe("repair flags", () => {
       repairMaxSamples: 8,
     });
   });
+  it("--header-row picks the header's file line", () => {
+    const r = parseCliArgs(["log.csv", "--header-row", "7"]);
+    expect(r.ok && r.value.ingest).toEqual({ headerRow: 7 });
+  });
   it.each([
     [["log.csv", "--repair-limit-ms", "0"], "--repair-limit-ms"],
     [["log.csv", "--repair-limit-samples", "2.5"], "--repair-limit-samples"],
+    [["log.csv", "--header-row", "0"], "--header-row"],
   ])("%j is refused with a one-line message", (argv, text) => {
     const r = parseCliArgs(argv);
     expect(r.ok ? "" : r.message).toContain(text);

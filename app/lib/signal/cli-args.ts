@@ -21,15 +21,18 @@ export interface CliCommand {
 export const USAGE = `usage: npm run -s analyse -- FILE [--cylinders N] [--stroke 4|2] [--order Q]
        [--time COL] [--crank COL] [--gearbox COL] [--unit rpm|rad/s|deg/s|rev/s]
        [--crank-unit U] [--gearbox-unit U] [--time-unit s|ms] [--rattle-limit RAD_PER_S2]
-       [--bin-rpm N] [--strict] [--repair-limit-ms MS] [--repair-limit-samples N] [--json]
+       [--bin-rpm N] [--strict] [--repair-limit-ms MS] [--repair-limit-samples N]
+       [--header-row N] [--json]
        npm run -s analyse -- FILE --list-channels [--time COL] [--crank COL] [--gearbox COL]
 
-Reads a CSV drive log (time, crank-side and gearbox-side angular velocity), tracks the
-orders against the crank, and prints the isolation at the firing order, the damper
+Reads a drive log — CSV text or ASAM MDF4, told by its content — (time, crank-side and
+gearbox-side angular velocity), tracks the orders against the crank, and prints the isolation at the firing order, the damper
 resonance and the idle rattle check. --json prints the full result document instead.
 Short dropouts and gaps (up to --repair-limit-ms, default 10, and --repair-limit-samples,
 default 20, whichever is fewer) are filled, jitter is resampled, longer gaps split the log
 into sections; every repair is listed as a warning. --strict refuses such a log instead.
+A CSV's header row is found behind any recorder preamble; --header-row N (the file line)
+picks it instead.
 --list-channels prints every channel of the file (CSV or ASAM MDF4): name, unit, group, rate,
 samples, range and the role it is recognised as, then exits.`;
 
@@ -49,6 +52,7 @@ const OPTIONS = {
   strict: { type: "boolean" },
   "repair-limit-ms": { type: "string" },
   "repair-limit-samples": { type: "string" },
+  "header-row": { type: "string" },
   json: { type: "boolean" },
   "list-channels": { type: "boolean" },
   help: { type: "boolean", short: "h" },
@@ -105,6 +109,7 @@ export function parseCliArgs(argv: string[]): Parsed {
   const binRpm = positive("bin-rpm", v["bin-rpm"]);
   const repairMs = positive("repair-limit-ms", v["repair-limit-ms"]);
   const repairSamples = positive("repair-limit-samples", v["repair-limit-samples"], true);
+  const headerRow = positive("header-row", v["header-row"], true);
   const unit = speedUnit("unit", v.unit);
   const crankUnit = speedUnit("crank-unit", v["crank-unit"]);
   const gearboxUnit = speedUnit("gearbox-unit", v["gearbox-unit"]);
@@ -127,6 +132,7 @@ export function parseCliArgs(argv: string[]): Parsed {
     binRpm,
     repairMs,
     repairSamples,
+    headerRow,
     unit,
     crankUnit,
     gearboxUnit,
@@ -154,6 +160,7 @@ export function parseCliArgs(argv: string[]): Parsed {
   if (v.strict === true) ingest.strict = true;
   if (typeof repairMs === "number") ingest.repairMaxS = repairMs / 1000;
   if (typeof repairSamples === "number") ingest.repairMaxSamples = repairSamples;
+  if (typeof headerRow === "number") ingest.headerRow = headerRow;
   const analysis: AnalysisOptions = {};
   if (typeof cylinders === "number") analysis.cylinders = cylinders;
   if (stroke === 2 || stroke === 4) analysis.stroke = stroke;
