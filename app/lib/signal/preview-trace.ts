@@ -61,8 +61,8 @@ export function speedPreview(log: DriveLog, buckets = PREVIEW_BUCKETS): SpeedPre
       }
       const c = extremes(crankRadS, a, b);
       const g = extremes(gearboxRadS, a, b);
-      const cOrder = c[0] <= c[1] ? c : [c[1], c[0]];
-      const gOrder = g[0] <= g[1] ? g : [g[1], g[0]];
+      const cOrder: [number, number] = c[0] <= c[1] ? c : [c[1], c[0]];
+      const gOrder: [number, number] = g[0] <= g[1] ? g : [g[1], g[0]];
       out.timeS.push(round(timeS[a]!, 4), round(timeS[b - 1]!, 4));
       out.crankRpm.push(rpm(crankRadS[cOrder[0]]!), rpm(crankRadS[cOrder[1]]!));
       out.gearboxRpm.push(rpm(gearboxRadS[gOrder[0]]!), rpm(gearboxRadS[gOrder[1]]!));
