@@ -115,7 +115,6 @@ export function ChannelChooser({
         onPick={(role, name) => setPicks({ ...picks, [role]: name })}
       />
       <PickedSpeeds channels={channels} picks={picks} />
-      <SpeedPreview url={previewUrl(vehicleId, logId, picks, units)} />
       <div className="grid gap-4 sm:grid-cols-2">
         {(["crank", "gearbox"] as const).map((role) => (
           <div key={role}>
@@ -139,6 +138,8 @@ export function ChannelChooser({
           </div>
         ))}
       </div>
+      {/* After the units: the chart shows the speeds read in them. */}
+      <SpeedPreview url={previewUrl(vehicleId, logId, picks, units)} />
       <p className="text-sm text-neutral-600">
         The choice is remembered for this vehicle: its next uploads use it when their files have
         these channels, and are recognised from the file otherwise.

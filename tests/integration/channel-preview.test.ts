@@ -28,7 +28,7 @@ beforeAll(async () => {
   ]);
   token = (
     await createApiToken({
-      userId: team.accounts.technician.id,
+      userId: team.accounts.engineer.id,
       teamId: team.id,
       name: "preview test",
       expiresAt: null,
