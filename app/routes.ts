@@ -36,6 +36,10 @@ export default [
   route("vehicles/:vehicleId/logs/:logId/file", "routes/drive-log.file.ts"),
   // Chart data (JSON) for the drive-log and rattle-check pages, fetched with TanStack Query.
   route("vehicles/:vehicleId/logs/:logId/charts.json", "routes/drive-log.charts.ts"),
+  route(
+    "vehicles/:vehicleId/logs/:logId/channel-preview.json",
+    "routes/drive-log.channel-preview.ts",
+  ),
   route("vehicles/:vehicleId/logs/:logId/result.csv", "routes/drive-log.result-csv.ts"),
   // Isolation and firing-order curves of several drive logs, for overlays.
   route("vehicles/:vehicleId/curves.json", "routes/vehicle.curves.ts"),

@@ -2,7 +2,8 @@
  * The "Channel chooser" of a drive log: every channel of the file (CSV columns or MDF4
  * channels alike, from GET /api/v1/logs/:logId/channels) with unit, group, rate, count and
  * range, a filter box, one radio per role and row (the recognised roles preselected), the
- * units of the speeds, and the picked speeds' ranges and rates side by side. It posts the
+ * units of the speeds, the picked speeds' ranges and rates side by side and a small chart of
+ * them against time (read with the picks and units, so it changes with them). It posts the
  * page's `map` intent; the choice is remembered for the vehicle (column-choice.server.ts).
  */
 import { useQuery } from "@tanstack/react-query";
@@ -17,6 +18,7 @@ import { inputClass } from "./form-fields";
 import { ChannelRows } from "./channel-rows";
 import { initialPicks, type Picks } from "./channel-picks";
 import { PickedSpeeds } from "./picked-speeds";
+import { SpeedPreview } from "./charts/speed-preview";
 
 /** The file's channel list, fetched once per page (it is cached on the server too). */
 export function useChannels(logId: number, enabled: boolean) {
@@ -40,15 +42,39 @@ export function useChannels(logId: number, enabled: boolean) {
   });
 }
 
+/** The preview's URL: the drive log's channel-preview.json with the picks and units. */
+function previewUrl(vehicleId: number, logId: number, picks: Picks, units: Units): string {
+  const q = new URLSearchParams();
+  for (const [key, value] of [
+    ["time", picks.time],
+    ["crank", picks.crank],
+    ["gearbox", picks.gearbox],
+    ["crankUnit", units.crank],
+    ["gearboxUnit", units.gearbox],
+  ] as const)
+    if (value) q.set(key, value);
+  return `/vehicles/${vehicleId}/logs/${logId}/channel-preview.json?${q}`;
+}
+
+type Units = { crank: string; gearbox: string };
+
 export function ChannelChooser({
+  vehicleId,
+  logId,
   channels,
   applied,
 }: {
+  vehicleId: number;
+  logId: number;
   channels: ChannelInfo[];
   applied: AppliedMapping | null;
 }) {
   const [filter, setFilter] = useState("");
   const [picks, setPicks] = useState<Picks>(() => initialPicks(channels, applied));
+  const [units, setUnits] = useState<Units>(() => ({
+    crank: applied?.mapping.crankUnit ?? "",
+    gearbox: applied?.mapping.gearboxUnit ?? "",
+  }));
   const shown = useMemo(() => {
     const words = filter.trim().toLowerCase().split(/\s+/).filter(Boolean);
     return channels.filter((c) => {
@@ -56,7 +82,6 @@ export function ChannelChooser({
       return words.every((w) => text.includes(w));
     });
   }, [channels, filter]);
-  const unitDefault = (u: string | undefined) => u ?? "";
   return (
     <Form method="post" className="space-y-4" aria-describedby="chooser-help">
       <CsrfInput />
@@ -99,7 +124,8 @@ export function ChannelChooser({
             <select
               id={`${role}-unit`}
               name={`${role}Unit`}
-              defaultValue={unitDefault(applied?.mapping[`${role}Unit`])}
+              value={units[role]}
+              onChange={(e) => setUnits({ ...units, [role]: e.target.value })}
               className={`mt-1 ${inputClass}`}
             >
               <option value="">As the file says</option>
@@ -112,6 +138,8 @@ export function ChannelChooser({
           </div>
         ))}
       </div>
+      {/* After the units: the chart shows the speeds read in them. */}
+      <SpeedPreview url={previewUrl(vehicleId, logId, picks, units)} />
       <p className="text-sm text-neutral-600">
         The choice is remembered for this vehicle: its next uploads use it when their files have
         these channels, and are recognised from the file otherwise.

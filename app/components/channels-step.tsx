@@ -13,6 +13,7 @@ import { Card } from "./page";
 import { moreCandidatesThanRoles } from "~/lib/domain/channel-candidates";
 
 export function ChannelsStep({
+  vehicleId,
   logId,
   offer,
   failedOverColumns,
@@ -20,6 +21,7 @@ export function ChannelsStep({
   applied,
   lastResult,
 }: {
+  vehicleId: number;
   logId: number;
   /** The user may choose (technician and up, on the latest version). */
   offer: boolean;
@@ -44,7 +46,14 @@ export function ChannelsStep({
     <>
       {refusal.length ? <ErrorLine message={refusal.join(" ")} /> : null}
       <ChannelChooserState query={query}>
-        {(channels) => <ChannelChooser channels={channels} applied={applied} />}
+        {(channels) => (
+          <ChannelChooser
+            vehicleId={vehicleId}
+            logId={logId}
+            channels={channels}
+            applied={applied}
+          />
+        )}
       </ChannelChooserState>
     </>
   );

@@ -1,14 +1,15 @@
 /**
- * The chooser's preview of the picked speeds: their ranges drawn on one shared scale, with rate
- * and sample count beside, so a swapped or wrongly scaled channel (a gearbox at 0–5, a crank in
- * rad/s read as rpm) shows before the analysis runs. Ranges and rates only: no trace is read.
+ * The chooser's list of the picked speeds: name, range as the file states it, rate and sample
+ * count, so a swapped or wrongly scaled channel (a gearbox at 0–5, a crank in rad/s read as rpm)
+ * shows before the analysis runs. The chart of them against time is SpeedPreview (charts/).
  */
 import type { ChannelInfo } from "~/lib/signal/types";
 import { figure, rangeText, type Picks } from "./channel-rows";
 
 const BARS = [
-  { role: "crank", label: "Crank-side speed", colour: "#4338ca" },
-  { role: "gearbox", label: "Gearbox-input speed", colour: "#0f766e" },
+  // The chart's meaning colours (docs/ui.md), a shade darker for text contrast.
+  { role: "crank", label: "Crank-side speed", colour: "text-amber-800" },
+  { role: "gearbox", label: "Gearbox-input speed", colour: "text-teal-800" },
 ] as const;
 
 export function PickedSpeeds({ channels, picks }: { channels: ChannelInfo[]; picks: Picks }) {
@@ -16,17 +17,6 @@ export function PickedSpeeds({ channels, picks }: { channels: ChannelInfo[]; pic
     ...b,
     channel: channels.find((c) => c.name === picks[b.role]) ?? null,
   }));
-  const known = picked.flatMap((p) =>
-    p.channel && p.channel.min !== null && p.channel.max !== null
-      ? [p.channel.min, p.channel.max]
-      : [],
-  );
-  // The scale spans the picked ranges (5 % margin), so two close speeds are told apart; a
-  // speed read in the wrong unit (rad/s as rpm) still stands far off the other.
-  const span = known.length ? Math.max(...known) - Math.min(...known) : 1;
-  const lo = known.length ? Math.min(...known) - 0.05 * (span || 1) : 0;
-  const hi = known.length ? Math.max(...known) + 0.05 * (span || 1) : 1;
-  const x = (v: number) => 4 + ((v - lo) / (hi - lo)) * 292;
   return (
     <section aria-labelledby="picked-title" className="rounded-md bg-neutral-50 p-3">
       <h3 id="picked-title" className="text-sm font-semibold text-neutral-900">
@@ -35,9 +25,7 @@ export function PickedSpeeds({ channels, picks }: { channels: ChannelInfo[]; pic
       <dl className="mt-2 grid gap-2 text-sm sm:grid-cols-[auto_1fr_auto]">
         {picked.map((p) => (
           <div key={p.role} className="contents" data-picked={p.role}>
-            <dt className="font-medium" style={{ color: p.colour }}>
-              {p.label}
-            </dt>
+            <dt className={`font-medium ${p.colour}`}>{p.label}</dt>
             <dd>
               {p.channel ? (
                 <>
@@ -56,31 +44,6 @@ export function PickedSpeeds({ channels, picks }: { channels: ChannelInfo[]; pic
           </div>
         ))}
       </dl>
-      {known.length ? (
-        // Decorative: the same ranges are in the text above.
-        <svg viewBox="0 0 300 44" className="mt-2 h-11 w-full max-w-md" aria-hidden="true">
-          <line x1="4" x2="296" y1="40" y2="40" stroke="#a3a3a3" />
-          <text x="4" y="38" fontSize="8" fill="#525252">
-            {figure(lo)}
-          </text>
-          <text x="296" y="38" fontSize="8" fill="#525252" textAnchor="end">
-            {figure(hi)}
-          </text>
-          {picked.map((p, i) =>
-            p.channel && p.channel.min !== null && p.channel.max !== null ? (
-              <rect
-                key={p.role}
-                x={x(p.channel.min)}
-                width={Math.max(2, x(p.channel.max) - x(p.channel.min))}
-                y={4 + i * 14}
-                height="10"
-                rx="2"
-                fill={p.colour}
-              />
-            ) : null,
-          )}
-        </svg>
-      ) : null}
     </section>
   );
 }

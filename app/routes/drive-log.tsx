@@ -228,6 +228,7 @@ export default function DriveLogPage() {
       {log.status === "failed" && log.error ? <Failure error={log.error} /> : null}
       {!earlier && atLeast(role, "technician") ? <FileDetailsOffer {...fileDetails} /> : null}
       <ChannelsStep
+        vehicleId={vehicle.id}
         logId={log.id}
         offer={!earlier && atLeast(role, "technician")}
         failedOverColumns={overColumns}

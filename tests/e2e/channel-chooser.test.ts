@@ -122,7 +122,30 @@ describe("the channel chooser", () => {
     await expect(crank.isChecked()).resolves.toBe(true);
     await page.locator("[data-picked='crank']").getByText("EngSpd").waitFor();
     await page.locator("[data-picked='gearbox']").getByText("GbxInpShaftSpd").waitFor();
+    // The small chart of the picks, drawn from them: a canvas and a text alternative with both
+    // ranges. The fixture's independent reader (tests/fixtures/mdf4/drive-log-plain.expected.json)
+    // found EngSpd 782.5–1417.75 rpm and GbxInpShaftSpd 799.65–1400.01 rpm over 0–4 s.
+    const chart = page.locator("[data-chart='speed-preview'][data-status='ready']");
+    await chart.locator("canvas").waitFor({ timeout: 30_000 });
+    const alt = await chart.locator("p.sr-only").textContent();
+    expect(alt).toMatch(
+      /Crank side 78[23]–1,?418 rpm, gearbox input 800–1,?400 rpm over 0\.0–4\.0 s/,
+    );
+    await expect(chart.getByRole("img").getAttribute("aria-describedby")).resolves.toBeTruthy();
     await snap(page, "chooser-mdf4-picked");
+    await snapPart(page.locator("section[aria-labelledby='mapping-title']"), "chooser-mdf4-card");
+    // A pick that is not a speed: the reader's message under the chart, the form still sendable.
+    await page.getByRole("radio", { name: "Crank: AccPedlPosn" }).check();
+    await page
+      .locator("[data-speed-preview='error']")
+      .getByText(/AccPedlPosn.*not a speed unit/)
+      .waitFor();
+    await snapPart(page.locator("[data-speed-preview]"), "chooser-mdf4-preview-error");
+    await crank.check();
+    await chart.waitFor();
+    await expect(
+      page.getByRole("button", { name: "Analyse with these channels" }).isEnabled(),
+    ).resolves.toBe(true);
 
     await page.getByRole("button", { name: "Analyse with these channels" }).click();
     await page.getByText(/The channels are set and remembered for this vehicle/).waitFor();

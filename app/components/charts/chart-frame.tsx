@@ -109,6 +109,7 @@ const HEIGHTS: Record<number, string> = {
   260: "h-[260px]",
   300: "h-[300px]",
   340: "h-[340px]",
+  200: "h-[200px]",
 };
 function heightClass(height: number): string {
   const cls = HEIGHTS[height];

@@ -1,7 +1,7 @@
 /** TanStack Query hooks for the charts' JSON (resource routes; the session cookie is enough). */
 import { useQuery } from "@tanstack/react-query";
 import { ChartFetchError } from "./chart-frame";
-import type { ChartsResponse, CurvesResponse } from "./types";
+import type { ChartsResponse, CurvesResponse, SpeedPreviewResponse } from "./types";
 
 async function getJson<T>(url: string, revalidate = false): Promise<T> {
   const response = await fetch(url, {
@@ -46,6 +46,16 @@ export function useCurvesQuery(url: string) {
   return useQuery({
     queryKey: ["curves", url],
     queryFn: () => getJson<CurvesResponse>(url),
+    retry,
+  });
+}
+
+/** The channel chooser's preview of the picked speeds; the URL carries the picks and units. */
+export function useSpeedPreviewQuery(url: string) {
+  return useQuery({
+    queryKey: ["channel-preview", url],
+    queryFn: () => getJson<SpeedPreviewResponse>(url),
+    staleTime: Infinity,
     retry,
   });
 }

@@ -43,3 +43,10 @@ export interface TargetBand {
 }
 
 export type { CurveSet, CurvesResponse } from "~/lib/domain/curves";
+
+/** GET …/logs/:logId/channel-preview.json: the picked speeds, decimated; null separates sections. */
+export interface SpeedPreviewResponse {
+  timeS: number[];
+  crankRpm: (number | null)[];
+  gearboxRpm: (number | null)[];
+}

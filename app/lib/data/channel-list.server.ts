@@ -9,47 +9,41 @@
  * entry can never be wrong for its key; and a restart costs one more read per file, not a
  * migration. Requests for the same list while it is being made share the one read.
  */
-import { Lru } from "../base/lru";
+import { sharedCache } from "../base/shared-cache";
 import { blobStore } from "../infra/storage-settings.server";
 import { listChannelsOfStream } from "../signal/ingest-stream.ts";
 import type { ChannelInfo, ChannelName, Outcome } from "../signal/types.ts";
 
-/** Lists kept: a list of a few hundred channels is some tens of kB. */
-const cache = new Lru<string, ChannelInfo[]>(64);
-const making = new Map<string, Promise<Outcome<ChannelInfo[]>>>();
+/** Lists kept: a list of a few hundred channels is some tens of kB. Failures are not kept. */
+const lists = sharedCache<Outcome<ChannelInfo[]>>(64, (o) => o.ok);
 
-function keyOf(blobKey: string, names: readonly ChannelName[]): string {
-  return `${blobKey}|${JSON.stringify(names.map((n) => [n.name, n.role, n.unit ?? ""]))}`;
+/** The part of a cache key the team's channel names make (they decide roles and units). */
+export function namesKey(names: readonly ChannelName[]): string {
+  return JSON.stringify(names.map((n) => [n.name, n.role, n.unit ?? ""]));
+}
+
+/** A thrown read error as the `read_failed` value every caller shows. */
+export function readFailed<T>(e: unknown): Outcome<T> {
+  return {
+    ok: false,
+    error: {
+      code: "read_failed",
+      message: `the file could not be read: ${e instanceof Error ? e.message : String(e)}`,
+    },
+    warnings: [],
+  };
 }
 
 /** The channels of the stored file `blobKey`, with roles from `channelNames` then the built-in names. */
-export async function storedChannels(
+export function storedChannels(
   blobKey: string,
   channelNames: readonly ChannelName[],
 ): Promise<Outcome<ChannelInfo[]>> {
-  const key = keyOf(blobKey, channelNames);
-  const hit = cache.get(key);
-  if (hit) return { ok: true, value: hit, warnings: [] };
-  let pending = making.get(key);
-  if (!pending) {
-    pending = listChannelsOfStream(blobStore().read(blobKey), { channelNames })
-      .catch((e: unknown): Outcome<ChannelInfo[]> => ({
-        ok: false,
-        error: {
-          code: "read_failed",
-          message: `the file could not be read: ${e instanceof Error ? e.message : String(e)}`,
-        },
-        warnings: [],
-      }))
-      .then((outcome) => {
-        // Failures are not kept: a storage hiccup must not stick.
-        if (outcome.ok) cache.set(key, outcome.value);
-        return outcome;
-      })
-      .finally(() => making.delete(key));
-    making.set(key, pending);
-  }
-  return pending;
+  return lists(`${blobKey}|${namesKey(channelNames)}`, () =>
+    listChannelsOfStream(blobStore().read(blobKey), { channelNames }).catch(
+      readFailed<ChannelInfo[]>,
+    ),
+  );
 }
 
 /** The public shape of one channel (`GET /api/v1/logs/:logId/channels`): exactly these fields. */
