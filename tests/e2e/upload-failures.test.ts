@@ -94,7 +94,9 @@ describe("the upload list", () => {
     await fix.click();
     await page.waitForURL(/\/logs\/\d+#mapping-title$/);
     await page.getByRole("heading", { name: "Channel chooser" }).waitFor();
-    await page.getByText("The last analysis recognised the channels by their names in the file.").waitFor();
+    await page
+      .getByText("The last analysis recognised the channels by their names in the file.")
+      .waitFor();
     await snap(page, "upload-fix-columns");
 
     await page.goto(baseUrl + vehiclePath);

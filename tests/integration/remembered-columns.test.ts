@@ -108,7 +108,9 @@ describe("a remembered column choice", () => {
     expect(await finished(plain)).toBe("done");
     expect(Math.abs((await isolationAt800(plain)) - expectedIsolationDb(idle))).toBeLessThan(0.3);
     const plainPage = await technician.get(`/vehicles/${vehicleId}/logs/${plain}`);
-    expect(plainPage.html).toContain("The last analysis recognised the channels by their names in the file.");
+    expect(plainPage.html).toContain(
+      "The last analysis recognised the channels by their names in the file.",
+    );
     expect(plainPage.html).toContain("left out: this file does not have its columns");
     expect(await vehicleData(team.id).appliedColumns(plain)).toMatchObject({
       source: "header",
