@@ -1,24 +1,11 @@
-import { spawnSync } from "node:child_process";
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { fileURLToPath } from "node:url";
-import { afterAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { cliTempDir, runCli } from "../../../tests/support/cli-process.ts";
 
 // `--list-channels` as a user runs it (cli.test.ts style): a node process with tsx, a temp file.
-const CLI = fileURLToPath(new URL("./cli.ts", import.meta.url));
-const ROOT = fileURLToPath(new URL("../../..", import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), "twistlog-cli-channels-"));
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function run(...args: string[]) {
-  const r = spawnSync(process.execPath, ["--import", "tsx", CLI, ...args], {
-    cwd: ROOT,
-    encoding: "utf8",
-    timeout: 60_000,
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const dir = cliTempDir("twistlog-cli-channels-");
+const run = runCli;
 
 // 1000 rows at 2 kHz (t = i/2000 s); the crank ramps 1000 + i rpm (min 1000, max 1999 by
 // construction), the gearbox holds 900 rpm, a temperature column is not a speed.
@@ -46,7 +33,7 @@ describe("analyse --list-channels", () => {
     // Reference: tests/fixtures/mdf4/drive-log-plain.expected.json, written by an independent
     // reader — group "Engine" of 8000 samples with EngSpd in rpm, a time master every 0.5 ms
     // (2 kHz); group "Gearbox" of 4000 samples with GbxInpShaftSpd, every 1 ms (1 kHz).
-    const r = run(join(ROOT, "tests/fixtures/mdf4/drive-log-plain.mf4"), "--list-channels");
+    const r = run("tests/fixtures/mdf4/drive-log-plain.mf4", "--list-channels"); // the CLI runs in the repository root;
     expect(r.stderr).toBe("");
     expect(r.code).toBe(0);
     const rows = r.stdout.trimEnd().split("\n");

@@ -1,27 +1,14 @@
-import { spawnSync } from "node:child_process";
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { fileURLToPath } from "node:url";
-import { afterAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { cliTempDir, runCli } from "../../../tests/support/cli-process.ts";
 
 // The issue's failing case as a user ran it (issue 14 §1): a logger export with "# Recorder: …",
 // "Rate = 5 kHz", a blank line, `t;n_kw;n_ge;gear`, `[s];[1/min];[1/min];[-]` and `;` data with
 // a decimal comma, through the CLI in its own node process. The data are analytic: 1500 rpm with
 // an order-2 ripple of 10 rpm (crank) and 3 rpm (gearbox), 5 kHz, 6 s.
-const CLI = fileURLToPath(new URL("./cli.ts", import.meta.url));
-const ROOT = fileURLToPath(new URL("../../..", import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), "twistlog-cli-export-"));
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function run(...args: string[]) {
-  const r = spawnSync(process.execPath, ["--import", "tsx", CLI, ...args], {
-    cwd: ROOT,
-    encoding: "utf8",
-    timeout: 60_000,
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const dir = cliTempDir("twistlog-cli-export-");
+const run = runCli;
 
 const FS = 5000;
 const w = (1500 * 2 * Math.PI) / 60;

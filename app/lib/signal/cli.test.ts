@@ -1,25 +1,12 @@
-import { spawnSync } from "node:child_process";
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { fileURLToPath } from "node:url";
-import { afterAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
+import { cliTempDir, runCli } from "../../../tests/support/cli-process.ts";
 import { analysisResultSchema } from "./result-schema.ts";
 
 // The CLI as a user runs it: a separate node process with the tsx loader, on temp files.
-const CLI = fileURLToPath(new URL("./cli.ts", import.meta.url));
-const ROOT = fileURLToPath(new URL("../../..", import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), "twistlog-cli-"));
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function run(...args: string[]) {
-  const r = spawnSync(process.execPath, ["--import", "tsx", CLI, ...args], {
-    cwd: ROOT,
-    encoding: "utf8",
-    timeout: 60_000,
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const dir = cliTempDir("twistlog-cli-");
+const run = runCli;
 
 /** An analytic log: 1500 rpm with an order-2 fluctuation (10 rpm crank, 3 rpm gearbox), 2 kHz, 8 s. */
 function goodLog(): string {
