@@ -567,6 +567,12 @@ export const matrix: Record<string, Row> = {
       get("json", (fx) => `${log(fx)}/charts.json`, team("viewer")),
     ],
   },
+  "routes/drive-log.channel-preview.ts": {
+    probes: [
+      noAction("json", (fx) => `${log(fx)}/channel-preview.json`),
+      get("json", (fx) => `${log(fx)}/channel-preview.json`, team("viewer")),
+    ],
+  },
   "routes/drive-log.result-csv.ts": {
     probes: [
       noAction("json", (fx) => `${log(fx)}/result.csv`),

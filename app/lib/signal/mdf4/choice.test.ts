@@ -13,14 +13,19 @@ import { ingestMdf4File, listMdf4Channels } from "./index.ts";
 const dir = mkdtempSync(join(tmpdir(), "twistlog-test-choice-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-/** Two groups ("A" at 1 kHz, "B" at 500 Hz), each with a master "t" and a channel "speed". */
+/**
+ * Two groups ("A" at 1 kHz, "B" at 500 Hz), each with a master "t" and a speed channel named
+ * "speed" unless `speedNames` says otherwise.
+ */
 function twoGroups(
   name: string,
   tweak: (i: number, t: number, rpm: number) => [number, number] = (_i, t, rpm) => [t, rpm],
+  speedNames: [string, string] = ["speed", "speed"],
 ) {
   const b = new MdfBuilder();
   const group = (label: string, rateHz: number, n: number, next: number) => {
-    const s = b.cn({ name: "speed", unit: "rpm", dataType: 4, byteOffset: 8, bitCount: 32 });
+    const speedName = label === "A" ? speedNames[0] : speedNames[1];
+    const s = b.cn({ name: speedName, unit: "rpm", dataType: 4, byteOffset: 8, bitCount: 32 });
     const t = b.cn({
       next: s,
       name: "t",
@@ -47,6 +52,18 @@ function twoGroups(
 }
 
 describe("picking MDF4 channels", () => {
+  it("a recognised crank without a gearbox: its group's master is listed as time", async () => {
+    const path = twoGroups("crank-only.mf4", undefined, ["crank speed", "shaft b"]);
+    const list = await listMdf4Channels(path);
+    const roles = list.ok ? list.value.map((c) => [c.name, c.role]) : [];
+    expect(roles).toEqual([
+      ["A/t", "time"],
+      ["crank speed", "crank"],
+      ["B/t", null],
+      ["shaft b", null],
+    ]);
+  });
+
   const path = twoGroups("same-names.mf4");
 
   it("a name in two groups is shown and picked as group/name", async () => {

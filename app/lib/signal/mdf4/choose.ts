@@ -232,5 +232,9 @@ export function rolesOf(refs: ChannelRef[], options: IngestOptions): Map<Channel
     const hits = refs.filter((r) => !r.master && recogniseColumn(r.display).role === role);
     if (hits.length === 1) roles.set(hits[0]!, role);
   }
+  // Time is always the master of the crank's group (the ingest reads it so), once a crank is known.
+  const crank = [...roles].find(([, role]) => role === "crank")?.[0];
+  const master = crank && refs.find((r) => r.master && r.group === crank.group);
+  if (master) roles.set(master, "time");
   return roles;
 }
