@@ -60,16 +60,7 @@ export function writeBenchMdf4(path: string, o: BenchLogOptions): { bytes: numbe
     byteOffset: 8,
     bitCount: 32,
   });
-  const time = b.cn({
-    next: crank,
-    name: "time",
-    unit: "s",
-    type: 2,
-    sync: 1,
-    dataType: 4,
-    byteOffset: 0,
-    bitCount: 64,
-  });
+  const time = b.timeMaster(crank, "time");
   const blocks: number[] = [];
   for (let at = 0; at < data.length; at += BLOCK) blocks.push(b.dt(data.subarray(at, at + BLOCK)));
   const cg = b.cg({ cnFirst: time, name: "Kestrel logger", cycles: rows, dataBytes: RECORD });

@@ -112,6 +112,20 @@ export class MdfBuilder {
     return this.block("##CN", [o.next ?? 0, 0, name, 0, o.cc ?? 0, 0, unit, comment], d);
   }
 
+  /** The usual time master: float64 seconds at byte 0 of each record, then channel `next`. */
+  timeMaster(next = 0, name = "t"): number {
+    return this.cn({
+      next,
+      name,
+      unit: "s",
+      type: 2,
+      sync: 1,
+      dataType: 4,
+      byteOffset: 0,
+      bitCount: 64,
+    });
+  }
+
   cc(type: number, vals: number[], unit = ""): number {
     const d = Buffer.alloc(24 + 8 * vals.length);
     d.writeUInt8(type, 0);

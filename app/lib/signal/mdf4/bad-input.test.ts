@@ -42,15 +42,7 @@ describe("bad MDF4 input gives a clear error with the block's offset", () => {
     expect(e.message).toContain("truncated");
     // Structure first, data last (as loggers write): the cut falls inside the DT block.
     const b = new MdfBuilder();
-    const t = b.cn({
-      name: "t",
-      unit: "s",
-      type: 2,
-      sync: 1,
-      dataType: 4,
-      byteOffset: 0,
-      bitCount: 64,
-    });
+    const t = b.timeMaster();
     const dg = b.dg(b.cg({ cnFirst: t, cycles: 1000, dataBytes: 8 }), 0);
     b.setHd(0, dg);
     const dt = b.dt(Buffer.alloc(8000));
@@ -87,15 +79,7 @@ describe("bad MDF4 input gives a clear error with the block's offset", () => {
 
   it("a zip bomb: a DZ block that inflates far beyond its declared size is refused", async () => {
     const b = new MdfBuilder();
-    const t = b.cn({
-      name: "t",
-      unit: "s",
-      type: 2,
-      sync: 1,
-      dataType: 4,
-      byteOffset: 0,
-      bitCount: 64,
-    });
+    const t = b.timeMaster();
     // 32 MiB of zeros pack into about 32 kB; the block declares 800 bytes (100 records).
     const bomb = deflateSync(Buffer.alloc(1 << 25), { level: 9 });
     const dz = b.dz(new Uint8Array(0), 0, bomb, 800);
@@ -130,15 +114,7 @@ describe("bad MDF4 input gives a clear error with the block's offset", () => {
   it("an unfinalised file's last DT block may claim too much: read to the end of the file", async () => {
     const file = (unfinished: boolean) => {
       const b = new MdfBuilder(unfinished);
-      const t = b.cn({
-        name: "t",
-        unit: "s",
-        type: 2,
-        sync: 1,
-        dataType: 4,
-        byteOffset: 0,
-        bitCount: 64,
-      });
+      const t = b.timeMaster();
       const data = Buffer.alloc(8 * 100);
       for (let i = 0; i < 100; i++) data.writeDoubleLE(i / 100, 8 * i);
       const dg = b.dg(b.cg({ cnFirst: t, cycles: 0, dataBytes: 8 }), 0);
@@ -157,15 +133,7 @@ describe("bad MDF4 input gives a clear error with the block's offset", () => {
     expect(!closed.ok && closed.error.code).toBe("mdf4_truncated");
     // A finalised file's cycle count rules: 100 records written, 60 declared, 60 read.
     const b = new MdfBuilder();
-    const t = b.cn({
-      name: "t",
-      unit: "s",
-      type: 2,
-      sync: 1,
-      dataType: 4,
-      byteOffset: 0,
-      bitCount: 64,
-    });
+    const t = b.timeMaster();
     b.setHd(0, b.dg(b.cg({ cnFirst: t, cycles: 60, dataBytes: 8 }), b.dt(Buffer.alloc(800))));
     const padded = await listMdf4Channels(save(b.bytes()));
     expect(padded.ok && padded.value[0]?.samples).toBe(60);

@@ -26,16 +26,7 @@ function twoGroups(
   const group = (label: string, rateHz: number, n: number, next: number) => {
     const speedName = label === "A" ? speedNames[0] : speedNames[1];
     const s = b.cn({ name: speedName, unit: "rpm", dataType: 4, byteOffset: 8, bitCount: 32 });
-    const t = b.cn({
-      next: s,
-      name: "t",
-      unit: "s",
-      type: 2,
-      sync: 1,
-      dataType: 4,
-      byteOffset: 0,
-      bitCount: 64,
-    });
+    const t = b.timeMaster(s);
     const data = Buffer.alloc(12 * n);
     for (let i = 0; i < n; i++) {
       const [ti, v] = label === "A" ? tweak(i, i / rateHz, 1000) : [i / rateHz, 990];

@@ -77,16 +77,7 @@ describe("MDF4 value layouts and conversions", () => {
   next = b.cn({ next, name: "u12be", dataType: 1, byteOffset: 10, bitOffset: 4, bitCount: 12 });
   next = b.cn({ next, name: "i12", dataType: 2, byteOffset: 8, bitOffset: 4, bitCount: 12 });
   next = b.cn({ next, name: "u12", dataType: 0, byteOffset: 8, bitOffset: 4, bitCount: 12 });
-  next = b.cn({
-    next,
-    name: "t",
-    unit: "s",
-    type: 2,
-    sync: 1,
-    dataType: 4,
-    byteOffset: 0,
-    bitCount: 64,
-  });
+  next = b.timeMaster(next);
   const f64 = (x: number) => [...Buffer.from(new Float64Array([x]).buffer)];
   const i64 = (x: bigint) => {
     const z = Buffer.alloc(8);
@@ -184,27 +175,9 @@ describe("MDF4 unsorted groups and virtual masters", () => {
   it("2-byte record ids interleave two groups; a variable-length group's records are passed over", async () => {
     const b = new MdfBuilder();
     const cA = b.cn({ name: "n_a", dataType: 0, byteOffset: 8, bitCount: 16 });
-    const tA = b.cn({
-      next: cA,
-      name: "t",
-      unit: "s",
-      type: 2,
-      sync: 1,
-      dataType: 4,
-      byteOffset: 0,
-      bitCount: 64,
-    });
+    const tA = b.timeMaster(cA);
     const cC = b.cn({ name: "x_c", dataType: 4, byteOffset: 8, bitCount: 32 });
-    const tC = b.cn({
-      next: cC,
-      name: "t",
-      unit: "s",
-      type: 2,
-      sync: 1,
-      dataType: 4,
-      byteOffset: 0,
-      bitCount: 64,
-    });
+    const tC = b.timeMaster(cC);
     const gC = b.cg({ cnFirst: tC, name: "C", recordId: 3, cycles: 2, dataBytes: 12 });
     const gB = b.cg({
       cnFirst: 0,
@@ -297,16 +270,7 @@ describe("MDF4 unsorted groups and virtual masters", () => {
         bitCount: 32,
       });
       const c = b.cn({ next: g, name: crankName, dataType: 4, byteOffset: 8, bitCount: 32 });
-      const t = b.cn({
-        next: c,
-        name: "t",
-        unit: "s",
-        type: 2,
-        sync: 1,
-        dataType: 4,
-        byteOffset: 0,
-        bitCount: 64,
-      });
+      const t = b.timeMaster(c);
       const data = Buffer.alloc(16 * 3000);
       for (let i = 0; i < 3000; i++) {
         data.writeDoubleLE(i / 1000, 16 * i);
