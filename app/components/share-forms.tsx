@@ -1,6 +1,7 @@
 /** The share panel's two forms (./share-panel): make a link, and send one by e-mail. */
 import { useEffect, useRef, useState } from "react";
 import { useFetcher } from "react-router";
+import type { z } from "zod";
 import {
   createShareSchema,
   emailShareSchema,
@@ -49,21 +50,30 @@ function RawCheckbox({ id }: { id: string }) {
   );
 }
 
-export function CreateForm({
-  endpoint,
-  hidden,
-  onDone,
-}: {
+/** What both share forms are given: where they post, their hidden fields, and what ends them. */
+interface ShareFormProps {
   endpoint: string;
   hidden: React.ReactNode;
   onDone: () => void;
-}) {
+}
+
+/** A share form's fetcher, its last reply and its fields (expiry preset to the default days). */
+function useShareForm<S extends z.ZodType<unknown, Record<string, unknown>>>(
+  id: string,
+  schema: S,
+  onDone: () => void,
+) {
   const fetcher = useFetcher<ShareReply>();
   const reply = fetcher.data;
-  const [form, fields] = useSchemaForm("share-create", createShareSchema, reply?.result, {
+  const [form, fields] = useSchemaForm(id, schema, reply?.result, {
     expiresInDays: String(SHARE_DEFAULT_DAYS),
   });
   useOnReply(fetcher, onDone);
+  return { fetcher, reply, form, fields };
+}
+
+export function CreateForm({ endpoint, hidden, onDone }: ShareFormProps) {
+  const { fetcher, reply, form, fields } = useShareForm("share-create", createShareSchema, onDone);
   const created = fetcher.state === "idle" ? reply?.created : undefined;
   return (
     <div className="space-y-4">
@@ -143,21 +153,8 @@ function CreatedLink({ created }: { created: { url: string; expiresAt: string } 
   );
 }
 
-export function EmailForm({
-  endpoint,
-  hidden,
-  onDone,
-}: {
-  endpoint: string;
-  hidden: React.ReactNode;
-  onDone: () => void;
-}) {
-  const fetcher = useFetcher<ShareReply>();
-  const reply = fetcher.data;
-  const [form, fields] = useSchemaForm("share-email", emailShareSchema, reply?.result, {
-    expiresInDays: String(SHARE_DEFAULT_DAYS),
-  });
-  useOnReply(fetcher, onDone);
+export function EmailForm({ endpoint, hidden, onDone }: ShareFormProps) {
+  const { fetcher, reply, form, fields } = useShareForm("share-email", emailShareSchema, onDone);
   return (
     <SchemaForm
       fetcher={fetcher}
