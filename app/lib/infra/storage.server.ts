@@ -110,7 +110,13 @@ export function localBlobStore(root: string): BlobStore {
       });
       // Level 1: measured on a 30 MB drive log, 94 MB/s for a ratio of 2.65, against 19 MB/s
       // and 3.09 at gzip's default 6 — the upload would wait for the compressor.
-      const written = pipeline(source, meter, createGzip({ level: 1 }), createWriteStream(tmp));
+      const sink = createWriteStream(tmp);
+      // The file is opened asynchronously: a source that fails at once rejects the pipeline
+      // before the open is done, and removing tmp then would leave the file the open creates
+      // afterwards (seen as an orphan in tmp/ after a refused upload). So tmp is removed only
+      // once the sink has closed, which a destroyed write stream always reports.
+      const closed = new Promise<void>((resolve) => sink.once("close", () => resolve()));
+      const written = pipeline(source, meter, createGzip({ level: 1 }), sink);
       try {
         await written;
         const key = hash.digest("hex");
@@ -132,6 +138,7 @@ export function localBlobStore(root: string): BlobStore {
         const { size, mtime } = await stat(target);
         return { key, sizeBytes, storedBytes: size, created, modifiedAt: mtime };
       } finally {
+        await closed;
         await rm(tmp, { force: true });
       }
     },
