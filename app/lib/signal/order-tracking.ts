@@ -30,6 +30,11 @@ export interface TrackedBlocks {
   /** 0-peak angular-velocity amplitude in rad/s, block-major: [block·binsPerBlock + bin]. */
   crankAmp: Float64Array;
   gearboxAmp: Float64Array;
+  /**
+   * |C − G| per block at the firing-order bin: the complex crank and gearbox 0-peak amplitudes'
+   * difference, rad/s (twist.ts turns it into degrees). Absent unless asked for (`firingBin`).
+   */
+  twistRadS?: Float64Array;
   /** Blocks dropped because they ran too slowly for an alias-free grid. */
   droppedSlowBlocks: number;
   /** Coarsest and finest samples per revolution used. */

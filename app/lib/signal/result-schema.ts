@@ -39,6 +39,72 @@ export const analysisSettingsSchema = z.object({
   detrend: z.enum(["mean", "linear"]).optional(),
 });
 
+/** One engine start or stop (events.ts). Speeds rpm, times s, angles degrees. */
+export const transientEventSchema = z.object({
+  kind: z.enum(["start", "stop"]),
+  startS: z.number(),
+  endS: z.number(),
+  /** Engine speed of least isolation inside the event; null when the order was not resolved. */
+  resonanceRpm: z.number().positive().nullable(),
+  /** Largest amplification through the damper in the event, dB (−isolation, positive = amplified). */
+  peakAmplificationDb: z.number().nullable(),
+  /** Time the engine speed spent within ±10 % of resonanceRpm, s. */
+  timeNearResonanceS: z.number().nonnegative().nullable(),
+  /** Largest |dω/dt| of the gearbox input in the event, rad/s². */
+  peakGearboxAngAccelRadS2: z.number().nonnegative(),
+  /** Peak-to-peak relative angle primary − secondary in the event (drift removed), degrees. */
+  twistPeakToPeakDeg: z.number().nonnegative(),
+});
+
+export const transientSchema = z.object({
+  /** A segment whose engine speed changes faster than this is measured by the filter, rpm/s. */
+  slewThresholdRpmS: z.number().positive(),
+  filter: z.object({
+    method: z.literal("vold-kalman-2"),
+    poles: z.int().min(1).max(3),
+    /** Half-power bandwidth, one side of the order line, in orders (× shaft rate). */
+    bandwidthOrders: z.number().positive(),
+    /** Its floor when the shaft is slow, Hz. */
+    minBandwidthHz: z.number().positive(),
+  }),
+  /** Stretches measured by the filter: engine starts, stops and fast run-ups or coast-downs. */
+  spans: z.array(
+    z.object({ kind: z.enum(["start", "stop", "fast"]), startS: z.number(), endS: z.number() }),
+  ),
+  /** Lowest engine speed at which the firing order was resolved (the isolation curve's low end), rpm. */
+  lowestResolvedRpm: z.number().positive().nullable(),
+  /** Why the curve stops there, one sentence; null when the log reaches no lower. */
+  unresolvedReason: z.string().nullable(),
+  /** Adaptive blocks over the filter's spans: fewer revolutions at low speed and high slew. */
+  blocks: z.array(
+    z.object({
+      startS: z.number(),
+      endS: z.number(),
+      rpm: z.number().positive(),
+      revs: z.number().positive(),
+      /** 1/revs, orders. */
+      orderResolution: z.number().positive(),
+      /** Firing-order 0-peak amplitudes, rad/s. */
+      crankRadS: z.number().nonnegative(),
+      gearboxRadS: z.number().nonnegative(),
+    }),
+  ),
+});
+
+export const twistSchema = z.object({
+  /** Firing-order twist amplitude (0-peak, degrees) per engine-speed bin. */
+  curve: z.array(
+    z.object({
+      rpm: z.number(),
+      deg: z.number().nonnegative(),
+      blocks: z.int().positive(),
+      method: z.enum(["blocks", "filter"]),
+    }),
+  ),
+  /** How the slow drift of ∫(ω_crank − ω_gearbox)dt was removed: a zero-phase high-pass, Hz. */
+  driftCutoffHz: z.number().positive(),
+});
+
 export const analysisResultSchema = z.object({
   firingOrder: z.number().positive(),
   sampleRateHz: z.number().positive(),
@@ -51,6 +117,12 @@ export const analysisResultSchema = z.object({
       dB: z.number(),
       blocks: z.int().positive(),
       aboveNoise: z.boolean(),
+      /**
+       * How the bin was measured: "blocks" (computed order tracking, fixed revolutions per block)
+       * or "filter" (the Vold–Kalman order filter on start, stop and fast segments; `blocks` then
+       * counts the filter's samples in the bin ÷ one block's worth). Absent before issue 15.
+       */
+      method: z.enum(["blocks", "filter"]).optional(),
     }),
   ),
   orderCurves: z.array(
@@ -153,6 +225,19 @@ export const analysisResultSchema = z.object({
     .default(null),
   warnings: z.array(z.object({ code: z.string(), message: z.string() })),
   /**
+   * Transients (issue 15): the segments the order filter measured instead of the blocks, the
+   * filter's settings, and down to which engine speed the firing order could be resolved.
+   * Absent in results stored before it existed.
+   */
+  transient: transientSchema.optional(),
+  /** Engine starts and stops found in the log, with the damper's figures in each (issue 15). */
+  events: z.array(transientEventSchema).optional(),
+  /**
+   * Twist between the damper's primary and secondary side (issue 15): the firing-order twist
+   * amplitude against engine speed, and how the relative angle's drift was removed.
+   */
+  twist: twistSchema.nullable().optional(),
+  /**
    * Where the numbers came from (issue 14): the file's format, the channels read, the file's own
    * metadata, every repair made to the samples and the sections analysed. Absent in results
    * stored before it existed.
@@ -183,3 +268,6 @@ export const analysisResultSchema = z.object({
 
 export type AnalysisResult = z.infer<typeof analysisResultSchema>;
 export type AnalysisSettings = z.infer<typeof analysisSettingsSchema>;
+export type TransientEvent = z.infer<typeof transientEventSchema>;
+export type TransientInfo = z.infer<typeof transientSchema>;
+export type TwistBlock = z.infer<typeof twistSchema>;

@@ -54,6 +54,8 @@ export const vehicles = mysqlTable(
     secondaryInertiaKgM2: double("secondary_inertia_kg_m2"),
     springRateNmPerDeg: double("spring_rate_nm_per_deg"),
     rattleLimitRadS2: double("rattle_limit_rad_s2").notNull().default(500),
+    /** Spring travel between the damper's end stops (stop to stop), degrees; null: not known. */
+    damperTravelLimitDeg: double("damper_travel_limit_deg"),
     /** The column mapping chosen for this vehicle's logs, reused for its next uploads. */
     columnMapping: json("column_mapping").$type<IngestMapping>(),
     notes: text("notes").notNull(),
@@ -144,6 +146,12 @@ export const analyses = mysqlTable(
     resonanceDb: double("resonance_db"),
     rattleVerdict: mysqlEnum("rattle_verdict", ["ok", "over-limit"]),
     idleAngAccelRadS2: double("idle_ang_accel_rad_s2"),
+    /** The two-mass model fit (result.model) and the start/stop events' largest peak amplification (dB), for the trend. */
+    modelNaturalHz: double("model_natural_hz"),
+    modelDampingRatio: double("model_damping_ratio"),
+    eventPeakDb: double("event_peak_db"),
+    /** The events' largest peak-to-peak twist, deg (result.events). */
+    eventTwistPpDeg: double("event_twist_pp_deg"),
     warnings: json("warnings").$type<{ code: string; message: string }[]>().notNull(),
     /** gzip of the result JSON, served as it is on every read. */
     resultGz: mediumBlob("result_gz").notNull(),

@@ -42,6 +42,10 @@ export const targets = mysqlTable(
     minDb: double("min_db"),
     /** Rattle targets: the maximum gearbox-input angular acceleration, rad/s². */
     maxRadS2: double("max_rad_s2"),
+    /** Start-stop targets: the largest peak amplification through the resonance, dB. */
+    maxDb: double("max_db"),
+    /** Twist-margin targets: the least margin of the start/stop twist to the travel limit, deg. */
+    minMarginDeg: double("min_margin_deg"),
     conditions: json("conditions").$type<LogCondition[]>().notNull(),
     gears: json("gears").$type<number[]>().notNull(),
     createdBy: ref("created_by").references(() => users.id, { onDelete: "set null" }),

@@ -1,5 +1,6 @@
 import {
   boolean,
+  smallint,
   index,
   json,
   mysqlEnum,
@@ -30,6 +31,8 @@ export const teams = mysqlTable(
     channelNames: json("channel_names").$type<ChannelName[]>(),
     // Refuse logs with dropouts, gaps or jitter instead of repairing them (issue 14).
     strictIngest: boolean("strict_ingest").notNull().default(false),
+    // The engine speed at which the damper-health trend reads the isolation, rpm (issue 15).
+    trendReferenceRpm: smallint("trend_reference_rpm", { unsigned: true }).notNull().default(1500),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex("teams_slug_unique").on(t.slug)],

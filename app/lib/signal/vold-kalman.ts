@@ -1,0 +1,230 @@
+/**
+ * Vold–Kalman order filter, second generation (Vold & Leuridan, SAE 931288, 1993; Vold, Mains &
+ * Blough, SAE 972007, 1997; J. Tůma, "Setting the passband width in the Vold–Kalman order
+ * tracking filter", ICSV12, 2005).
+ *
+ * The measured signal y(t) is modelled as one order's complex envelope x(t) riding on the order's
+ * phase: y_i = x_i·e^{jθ_i} + (its conjugate) + ε_i, θ_i = order · crank angle. The envelope is
+ * smooth: its p-th difference (the structural equation, p "poles") is small, ∇^p x_i = η_i.
+ * The least-squares solution of both equations, with weight r_i on the structural one,
+ *
+ *     (I + Aᵀ W A) x = e^{−jθ} ⊙ y,   W = diag(r_i²),  A the p-th difference matrix,
+ *
+ * is a zero-phase low-pass of the demodulated signal: a symmetric positive-definite band matrix
+ * of half-width p, solved here by banded Cholesky in O(n·p²). Only the order's own term is
+ * modelled (the conjugate at −2·f lies far outside the passband), so a real tone
+ * A·cos(θ + φ) reads x = (A/2)·e^{jφ}: 0-peak amplitude 2|x|, phase arg x.
+ *
+ * Passband (Tůma 2005, eq. 8): a component Δf from the order's frequency passes with
+ *     |H(Δf)| = 1 / (1 + r² · (2 − 2·cos(2πΔf/fs))^p),
+ * so the half-power (−3 dB) bandwidth Δf₃ (one side of the order line) sets
+ *     r² = (√2 − 1) / (2 − 2·cos(2πΔf₃/fs))^p.
+ * Here Δf₃ follows the shaft: `bandwidthOrders` · shaft rate (a constant bandwidth in orders, so
+ * a start through 200 rpm and a pull to 6000 rpm keep the same order selectivity), never below
+ * `minBandwidthHz`; or a fixed `bandwidthHz`. The weight is set per structural row.
+ *
+ * The filter removes nothing but what lies outside its passband: a speed channel's mean (order
+ * 0) sits `order` orders away and is rejected by |H| there, but a large mean against a small
+ * fluctuation leaks; callers remove the slow trend first (`voldKalmanLowpass` with θ = 0 is that
+ * trend). The first and last ~1/Δf₃ seconds are the filter's ends (no data beyond them).
+ */
+
+export interface VoldKalmanOptions {
+  /** Half-power bandwidth, one side of the order line, in orders (× shaft rate). Default 0.2. */
+  bandwidthOrders?: number;
+  /** A fixed half-power bandwidth in Hz instead (overrides bandwidthOrders). */
+  bandwidthHz?: number;
+  /** Least bandwidth when the shaft is slow or stands still, Hz. Default 0.3. */
+  minBandwidthHz?: number;
+  /** Poles of the structural equation (order of the difference), 1–3. Default 2. */
+  poles?: 1 | 2 | 3;
+}
+
+export const VOLD_KALMAN_DEFAULTS = {
+  bandwidthOrders: 0.2,
+  minBandwidthHz: 0.3,
+  poles: 2,
+} as const;
+
+/** The order's complex envelope per sample: x = re + j·im, 0-peak amplitude 2|x|, phase arg x. */
+export interface OrderEnvelope {
+  re: Float64Array;
+  im: Float64Array;
+  /** 0-peak amplitude of the order at each sample, in the unit of the signal. */
+  amplitude: Float64Array;
+}
+
+/** Structural-equation weight r² for a half-power bandwidth `bandwidthHz` (Tůma 2005, eq. 8). */
+export function weightSquaredForBandwidth(
+  bandwidthHz: number,
+  sampleRateHz: number,
+  poles: number,
+): number {
+  const c = 2 - 2 * Math.cos((2 * Math.PI * bandwidthHz) / sampleRateHz);
+  return (Math.SQRT2 - 1) / c ** poles;
+}
+
+/** |H| of the filter for a component `offsetHz` from the order line, at weight r². */
+export function passbandGain(
+  offsetHz: number,
+  weightSquared: number,
+  sampleRateHz: number,
+  poles: number,
+): number {
+  const c = 2 - 2 * Math.cos((2 * Math.PI * offsetHz) / sampleRateHz);
+  return 1 / (1 + weightSquared * c ** poles);
+}
+
+/** Alternating binomial coefficients: the p-th difference stencil. */
+function stencil(p: number): number[] {
+  return p === 1 ? [1, -1] : p === 2 ? [1, -2, 1] : [1, -3, 3, -1];
+}
+
+/**
+ * Solves (I + AᵀWA)·x = b for two right-hand sides at once (banded Cholesky, half-width p).
+ * `w2[k]` is the weight r² of structural row k (k = 0 … n−p−1). Overwrites `b1` and `b2`.
+ */
+function solveBanded(w2: Float64Array, p: number, b1: Float64Array, b2: Float64Array): void {
+  const n = b1.length;
+  const c = stencil(p);
+  const wdt = p + 1;
+  // band[i·wdt + m] = M[i][i − m], m = 0 … p
+  const band = new Float64Array(n * wdt);
+  for (let i = 0; i < n; i++) band[i * wdt] = 1;
+  for (let k = 0; k + p < n; k++) {
+    const w = w2[k]!;
+    for (let a = 0; a <= p; a++)
+      for (let b = 0; b <= a; b++) {
+        const at = (k + a) * wdt + (a - b);
+        band[at] = band[at]! + w * c[a]! * c[b]!;
+      }
+  }
+  // In place: band becomes L (lower Cholesky factor) in the same layout.
+  for (let i = 0; i < n; i++) {
+    for (let m = Math.min(p, i); m >= 1; m--) {
+      const j = i - m;
+      let s = band[i * wdt + m]!;
+      for (let k = Math.max(0, i - p); k < j; k++) {
+        if (j - k > p) continue;
+        s -= band[i * wdt + (i - k)]! * band[j * wdt + (j - k)]!;
+      }
+      band[i * wdt + m] = s / band[j * wdt]!;
+    }
+    let s = band[i * wdt]!;
+    for (let m = 1; m <= Math.min(p, i); m++) s -= band[i * wdt + m]! ** 2;
+    band[i * wdt] = Math.sqrt(s);
+  }
+  for (let i = 0; i < n; i++) {
+    let s1 = b1[i]!;
+    let s2 = b2[i]!;
+    for (let m = 1; m <= Math.min(p, i); m++) {
+      const l = band[i * wdt + m]!;
+      s1 -= l * b1[i - m]!;
+      s2 -= l * b2[i - m]!;
+    }
+    const d = band[i * wdt]!;
+    b1[i] = s1 / d;
+    b2[i] = s2 / d;
+  }
+  for (let i = n - 1; i >= 0; i--) {
+    let s1 = b1[i]!;
+    let s2 = b2[i]!;
+    for (let m = 1; m <= p && i + m < n; m++) {
+      const l = band[(i + m) * wdt + m]!;
+      s1 -= l * b1[i + m]!;
+      s2 -= l * b2[i + m]!;
+    }
+    const d = band[i * wdt]!;
+    b1[i] = s1 / d;
+    b2[i] = s2 / d;
+  }
+}
+
+/** Per-row weights r² from the options and the shaft rate (rad/s) at each sample. */
+function rowWeights(
+  shaftRadS: Float64Array,
+  sampleRateHz: number,
+  o: Required<Pick<VoldKalmanOptions, "bandwidthOrders" | "minBandwidthHz" | "poles">> &
+    Pick<VoldKalmanOptions, "bandwidthHz">,
+): Float64Array {
+  const n = shaftRadS.length;
+  const p = o.poles;
+  const w2 = new Float64Array(Math.max(0, n - p));
+  const fixed =
+    o.bandwidthHz !== undefined ? weightSquaredForBandwidth(o.bandwidthHz, sampleRateHz, p) : 0;
+  for (let k = 0; k < w2.length; k++) {
+    if (o.bandwidthHz !== undefined) {
+      w2[k] = fixed;
+      continue;
+    }
+    // The stencil's middle sample sets the row's bandwidth.
+    const shaftHz = Math.abs(shaftRadS[k + (p >> 1)]!) / (2 * Math.PI);
+    const bw = Math.max(o.minBandwidthHz, o.bandwidthOrders * shaftHz);
+    w2[k] = weightSquaredForBandwidth(Math.min(bw, 0.45 * sampleRateHz), sampleRateHz, p);
+  }
+  return w2;
+}
+
+function resolve(options: VoldKalmanOptions) {
+  const o = {
+    bandwidthOrders: options.bandwidthOrders ?? VOLD_KALMAN_DEFAULTS.bandwidthOrders,
+    minBandwidthHz: options.minBandwidthHz ?? VOLD_KALMAN_DEFAULTS.minBandwidthHz,
+    poles: options.poles ?? VOLD_KALMAN_DEFAULTS.poles,
+    bandwidthHz: options.bandwidthHz,
+  };
+  if (![1, 2, 3].includes(o.poles)) throw new RangeError("poles must be 1, 2 or 3");
+  if (!(o.bandwidthOrders > 0) || !(o.minBandwidthHz > 0))
+    throw new RangeError("the bandwidth must be positive");
+  if (o.bandwidthHz !== undefined && !(o.bandwidthHz > 0))
+    throw new RangeError("the bandwidth must be positive");
+  return o;
+}
+
+/**
+ * One order's envelope from `signal` (any unit; speeds in rad/s here). `angleRad` is the crank
+ * angle at each sample (rad, from `integrateAngle`), `shaftRadS` the crank speed that sets the
+ * bandwidth (rad/s), `order` in orders per crank revolution. Arrays of one length, uniform
+ * sampling at `sampleRateHz`. Throws RangeError on bad options (callers validate first).
+ */
+export function voldKalmanOrder(args: {
+  signal: Float64Array;
+  angleRad: Float64Array;
+  shaftRadS: Float64Array;
+  order: number;
+  sampleRateHz: number;
+  options?: VoldKalmanOptions;
+}): OrderEnvelope {
+  const { signal, angleRad, order } = args;
+  const o = resolve(args.options ?? {});
+  const n = signal.length;
+  const re = new Float64Array(n);
+  const im = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const th = order * angleRad[i]!;
+    re[i] = signal[i]! * Math.cos(th);
+    im[i] = -signal[i]! * Math.sin(th);
+  }
+  if (n > o.poles) solveBanded(rowWeights(args.shaftRadS, args.sampleRateHz, o), o.poles, re, im);
+  const amplitude = new Float64Array(n);
+  for (let i = 0; i < n; i++) amplitude[i] = 2 * Math.hypot(re[i]!, im[i]!);
+  return { re, im, amplitude };
+}
+
+/**
+ * The same smoother without demodulation: a zero-phase low-pass of `signal` whose half-power
+ * frequency follows the shaft like the order filter's bandwidth (θ = 0). Used to take a speed
+ * channel's slow trend (its mean speed) out before an order is extracted.
+ */
+export function voldKalmanLowpass(args: {
+  signal: Float64Array;
+  shaftRadS: Float64Array;
+  sampleRateHz: number;
+  options?: VoldKalmanOptions;
+}): Float64Array {
+  const o = resolve(args.options ?? {});
+  const out = Float64Array.from(args.signal);
+  const spare = new Float64Array(out.length);
+  if (out.length > o.poles)
+    solveBanded(rowWeights(args.shaftRadS, args.sampleRateHz, o), o.poles, out, spare);
+  return out;
+}
