@@ -11,7 +11,8 @@
  *     (I + Aᵀ W A) x = e^{−jθ} ⊙ y,   W = diag(r_i²),  A the p-th difference matrix,
  *
  * is a zero-phase low-pass of the demodulated signal: a symmetric positive-definite band matrix
- * of half-width p, solved here by banded Cholesky in O(n·p²). Only the order's own term is
+ * of half-width p, solved here as the least-squares problem it came from (Givens rotations,
+ * O(n·p²); see `solveBanded` for why not Cholesky). Only the order's own term is
  * modelled (the conjugate at −2·f lies far outside the passband), so a real tone
  * A·cos(θ + φ) reads x = (A/2)·e^{jφ}: 0-peak amplitude 2|x|, phase arg x.
  *
@@ -54,14 +55,22 @@ export interface OrderEnvelope {
   amplitude: Float64Array;
 }
 
+/**
+ * |1 − e^{−jω}|² = 2 − 2·cos ω at ω = 2πf/fs, written 4·sin²(ω/2): the same value without the
+ * cancellation of 2 − 2·cos ω near 1 (relative error 1e-6 at 0.1 Hz and 50 kHz otherwise).
+ */
+function differenceGain(hz: number, sampleRateHz: number): number {
+  const s = Math.sin((Math.PI * hz) / sampleRateHz);
+  return 4 * s * s;
+}
+
 /** Structural-equation weight r² for a half-power bandwidth `bandwidthHz` (Tůma 2005, eq. 8). */
 export function weightSquaredForBandwidth(
   bandwidthHz: number,
   sampleRateHz: number,
   poles: number,
 ): number {
-  const c = 2 - 2 * Math.cos((2 * Math.PI * bandwidthHz) / sampleRateHz);
-  return (Math.SQRT2 - 1) / c ** poles;
+  return (Math.SQRT2 - 1) / differenceGain(bandwidthHz, sampleRateHz) ** poles;
 }
 
 /** |H| of the filter for a component `offsetHz` from the order line, at weight r². */
@@ -71,8 +80,7 @@ export function passbandGain(
   sampleRateHz: number,
   poles: number,
 ): number {
-  const c = 2 - 2 * Math.cos((2 * Math.PI * offsetHz) / sampleRateHz);
-  return 1 / (1 + weightSquared * c ** poles);
+  return 1 / (1 + weightSquared * differenceGain(offsetHz, sampleRateHz) ** poles);
 }
 
 /** Alternating binomial coefficients: the p-th difference stencil. */
@@ -81,62 +89,82 @@ function stencil(p: number): number[] {
 }
 
 /**
- * Solves (I + AᵀWA)·x = b for two right-hand sides at once (banded Cholesky, half-width p).
+ * Solves (I + AᵀWA)·x = b for two right-hand sides at once as the least-squares problem
+ * [I; √W·A]·x ≈ [b; 0], by Givens rotations row by row into a banded upper-triangular R
+ * (half-width p), then back substitution: O(n·p²). Why not Cholesky of I + AᵀWA: forming that
+ * matrix adds 1 to entries of about 6·r², so at r² ≳ 1e12 (0.3 Hz at 5 kHz) the identity is
+ * lost to rounding and the envelope came out 1 % (r² = 2e13) to 100 % (r² = 1e15) wrong; the
+ * rotations work on √W·A (entries ~r) and keep 1e-8 at r² = 1e19 (docs/order-filter.md).
  * `w2[k]` is the weight r² of structural row k (k = 0 … n−p−1). Overwrites `b1` and `b2`.
  */
 function solveBanded(w2: Float64Array, p: number, b1: Float64Array, b2: Float64Array): void {
   const n = b1.length;
   const c = stencil(p);
-  const wdt = p + 1;
-  // band[i·wdt + m] = M[i][i − m], m = 0 … p
-  const band = new Float64Array(n * wdt);
-  for (let i = 0; i < n; i++) band[i * wdt] = 1;
-  for (let k = 0; k + p < n; k++) {
-    const w = w2[k]!;
-    for (let a = 0; a <= p; a++)
-      for (let b = 0; b <= a; b++) {
-        const at = (k + a) * wdt + (a - b);
-        band[at] = band[at]! + w * c[a]! * c[b]!;
+  const wd = p + 1;
+  const R = new Float64Array(n * wd);
+  const v = new Float64Array(wd);
+  const e1 = new Float64Array(n);
+  const e2 = new Float64Array(n);
+  let filled = 0;
+  for (let k = 0; k < n; k++) {
+    for (let row = 0; row < 2; row++) {
+      let t1: number, t2: number;
+      if (row === 0) {
+        v.fill(0);
+        v[0] = 1;
+        t1 = b1[k]!;
+        t2 = b2[k]!;
+      } else {
+        if (k + p >= n) break;
+        const r = Math.sqrt(w2[k]!);
+        for (let m = 0; m <= p; m++) v[m] = r * c[m]!;
+        t1 = 0;
+        t2 = 0;
       }
-  }
-  // In place: band becomes L (lower Cholesky factor) in the same layout.
-  for (let i = 0; i < n; i++) {
-    for (let m = Math.min(p, i); m >= 1; m--) {
-      const j = i - m;
-      let s = band[i * wdt + m]!;
-      for (let k = Math.max(0, i - p); k < j; k++) {
-        if (j - k > p) continue;
-        s -= band[i * wdt + (i - k)]! * band[j * wdt + (j - k)]!;
+      const last = Math.min(k + p, n - 1);
+      for (let j = k; j <= last; j++) {
+        const at = j * wd;
+        if (j >= filled) {
+          for (let m = 0; m <= p; m++) R[at + m] = v[m]!;
+          e1[j] = t1;
+          e2[j] = t2;
+          filled = j + 1;
+          break;
+        }
+        const a = R[at]!;
+        const bb = v[0]!;
+        if (bb !== 0) {
+          const h = Math.sqrt(a * a + bb * bb);
+          const cs = a / h;
+          const sn = bb / h;
+          R[at] = h;
+          for (let m = 1; m <= p; m++) {
+            const rj = R[at + m]!;
+            const vm = v[m]!;
+            R[at + m] = cs * rj + sn * vm;
+            v[m - 1] = cs * vm - sn * rj;
+          }
+          const d1 = e1[j]!;
+          const d2 = e2[j]!;
+          e1[j] = cs * d1 + sn * t1;
+          t1 = cs * t1 - sn * d1;
+          e2[j] = cs * d2 + sn * t2;
+          t2 = cs * t2 - sn * d2;
+        } else for (let m = 1; m <= p; m++) v[m - 1] = v[m]!;
+        v[p] = 0;
       }
-      band[i * wdt + m] = s / band[j * wdt]!;
     }
-    let s = band[i * wdt]!;
-    for (let m = 1; m <= Math.min(p, i); m++) s -= band[i * wdt + m]! ** 2;
-    band[i * wdt] = Math.sqrt(s);
   }
-  for (let i = 0; i < n; i++) {
-    let s1 = b1[i]!;
-    let s2 = b2[i]!;
-    for (let m = 1; m <= Math.min(p, i); m++) {
-      const l = band[i * wdt + m]!;
-      s1 -= l * b1[i - m]!;
-      s2 -= l * b2[i - m]!;
+  for (let j = n - 1; j >= 0; j--) {
+    const at = j * wd;
+    let s1 = e1[j]!;
+    let s2 = e2[j]!;
+    for (let m = 1; m <= p && j + m < n; m++) {
+      s1 -= R[at + m]! * b1[j + m]!;
+      s2 -= R[at + m]! * b2[j + m]!;
     }
-    const d = band[i * wdt]!;
-    b1[i] = s1 / d;
-    b2[i] = s2 / d;
-  }
-  for (let i = n - 1; i >= 0; i--) {
-    let s1 = b1[i]!;
-    let s2 = b2[i]!;
-    for (let m = 1; m <= p && i + m < n; m++) {
-      const l = band[(i + m) * wdt + m]!;
-      s1 -= l * b1[i + m]!;
-      s2 -= l * b2[i + m]!;
-    }
-    const d = band[i * wdt]!;
-    b1[i] = s1 / d;
-    b2[i] = s2 / d;
+    b1[j] = s1 / R[at]!;
+    b2[j] = s2 / R[at]!;
   }
 }
 
