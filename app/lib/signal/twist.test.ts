@@ -191,7 +191,7 @@ describe("relative angle of a start (drift removal)", () => {
     expect(Math.abs(raw(start(2000, 1.0005)) / raw(start(2000, 1)) - 1)).toBeGreaterThan(0.05);
   });
 
-  it("a static wind-up (constant twist under load) is invisible: the result is the same with or without it", () => {
+  it("no static part: the relative angle at idle averages to 0 whatever the spring's wind-up under load (speed sensors cannot see it)", () => {
     // A constant offset of θ_rel has no speed difference at all: the two speed logs are identical.
     const s = start(2000, 1);
     const rel = relativeTwistDeg({
