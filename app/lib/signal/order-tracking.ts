@@ -58,6 +58,11 @@ export function trackBlocks(args: {
   topBin: number;
   /** What each block loses before the window; "linear" (the default) except for comparisons. */
   detrend?: Detrend;
+  /**
+   * The firing order's bin (q·R, < topBin + 1): fills `twistRadS` per block. Without it nothing
+   * more is computed than the amplitudes.
+   */
+  firingBin?: number;
   onProgress?: (fraction: number) => void;
 }): TrackedBlocks {
   const { timeS, angleRad, crankRadS, gearboxRadS, revsPerBlock: R } = args;
@@ -71,6 +76,10 @@ export function trackBlocks(args: {
   const blockRadS = new Float64Array(maxBlocks);
   const blockStartS = new Float64Array(maxBlocks);
   const blockEndS = new Float64Array(maxBlocks);
+  const fb = args.firingBin;
+  if (fb !== undefined && !(Number.isInteger(fb) && fb > 0 && fb < bins))
+    throw new RangeError(`firingBin must be a whole number from 1 to ${bins - 1}, got ${fb}`);
+  const twist = fb !== undefined ? new Float64Array(maxBlocks) : null;
   const plans = new Map<number, ReturnType<typeof createPairAmplitudePlan>>();
   let bufC = new Float64Array(0);
   let bufG = new Float64Array(0);
@@ -142,6 +151,7 @@ export function trackBlocks(args: {
     plan.amplitudes(bufC, bufG, ampC, ampG, bins - 1);
     crankAmp.set(ampC.subarray(0, bins), kept * bins);
     gearboxAmp.set(ampG.subarray(0, bins), kept * bins);
+    if (twist) twist[kept] = plan.difference(fb!);
     blockRadS[kept] = (2 * Math.PI * R) / Math.max(endS - startS, 1e-12);
     blockStartS[kept] = startS;
     blockEndS[kept] = endS;
@@ -160,6 +170,7 @@ export function trackBlocks(args: {
     blockEndS: blockEndS.subarray(0, kept),
     crankAmp: crankAmp.subarray(0, kept * bins),
     gearboxAmp: gearboxAmp.subarray(0, kept * bins),
+    ...(twist ? { twistRadS: twist.subarray(0, kept) } : {}),
     droppedSlowBlocks: dropped,
     samplesPerRevRange: kept > 0 ? [sLo, sHi] : [0, 0],
   };

@@ -241,6 +241,12 @@ export interface PairAmplitudePlan {
     outY: Float64Array,
     maxBin?: number,
   ): void;
+  /**
+   * |X_k − Y_k| of the last `amplitudes` call, 0-peak in the input unit: the complex difference
+   * of both signals at bin k (k ≤ that call's maxBin). Twist between crank and gearbox needs the
+   * phase between them, which the amplitudes alone have lost.
+   */
+  difference(k: number): number;
 }
 
 export function createPairAmplitudePlan(
@@ -293,6 +299,16 @@ export function createPairAmplitudePlan(
         outX[k] = Math.sqrt((a + c) * (a + c) + (b - d) * (b - d)) * scale;
         outY[k] = Math.sqrt((a - c) * (a - c) + (b + d) * (b + d)) * scale;
       }
+    },
+    difference(k) {
+      // X_k − Y_k = ((a + c) − (b + d)) + j((b − d) − (c − a)), scaled like the amplitudes.
+      const m = k === 0 ? 0 : size - k;
+      const a = spec[2 * k]!;
+      const b = spec[2 * k + 1]!;
+      const c = spec[2 * m]!;
+      const d = spec[2 * m + 1]!;
+      const scale = (k === 0 || k === half ? 0.5 : 1) / s1;
+      return Math.hypot(a + c - b - d, b - d - c + a) * scale;
     },
   };
 }

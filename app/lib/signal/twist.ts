@@ -8,7 +8,8 @@
  * half-power frequency, `driftCutoffHz`, subtracted), which also removes what a speed pair can
  * never show: the static twist under load (the spring's mean wind-up carrying the torque) and
  * anything slower than the cut-off. What stays is the oscillating twist: the firing-order swing
- * and the resonance swing at start and stop.
+ * and the resonance swing at start and stop. A travel margin from it is a margin of swing about an
+ * unknown mean position (docs/order-filter.md §3): it cannot prove the end stops are clear under load.
  *
  * Firing-order twist amplitude: the order's complex 0-peak speed amplitudes C (crank) and G
  * (gearbox), rad/s, at order frequency f, give the relative angle amplitude |C − G| / (2πf) rad
@@ -84,8 +85,8 @@ export interface TwistPoint {
 
 /**
  * Firing-order twist amplitude per rpm bin from the tracked blocks' complex spectra at the
- * firing order (power-averaged over the bin's blocks like the order curves). Empty until the
- * blocks carry the complex difference (TrackedBlocks.twistRadS).
+ * firing order (power-averaged over the bin's blocks like the order curves). Empty unless the
+ * blocks carry the complex difference (TrackedBlocks.twistRadS: trackBlocks with `firingBin`).
  */
 export function twistCurve(tracked: TrackedBlocks, order: number, binRpm: number): TwistPoint[] {
   const diff = tracked.twistRadS;
