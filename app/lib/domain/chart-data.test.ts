@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { chartData, endStopMargin, MAP_ROWS, unresolvedBelow } from "./chart-data";
+import { chartData, endStopMargin, eventNames, MAP_ROWS, unresolvedBelow } from "./chart-data";
 import type { AnalysisResult } from "../signal/result-schema";
 
 // A constructed result whose chart data is known by hand. The isolation model check uses the
@@ -221,5 +221,14 @@ describe("chart data", () => {
     expect(endStopMargin(26.5, 30)).toEqual({ marginDeg: 3.5, warn: false });
     expect(endStopMargin(27, 30)).toEqual({ marginDeg: 3, warn: true });
     expect(endStopMargin(32, 30)).toEqual({ marginDeg: -2, warn: true });
+  });
+
+  it("names events by kind, numbered only when a kind repeats", () => {
+    expect(eventNames([{ kind: "start" }, { kind: "stop" }])).toEqual(["Start", "Stop"]);
+    expect(eventNames([{ kind: "start" }, { kind: "stop" }, { kind: "start" }])).toEqual([
+      "Start 1",
+      "Stop",
+      "Start 2",
+    ]);
   });
 });

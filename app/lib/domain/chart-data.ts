@@ -272,3 +272,18 @@ export function endStopMargin(
   const marginDeg = travelLimitDeg - twistPeakToPeakDeg;
   return { marginDeg, warn: marginDeg <= END_STOP_WARNING_SHARE * travelLimitDeg };
 }
+
+/**
+ * The names of the events, the same in the table, on the speed trace and in text alternatives:
+ * "Start" and "Stop", numbered in time order ("Start 2") when a log holds more than one of a kind.
+ */
+export function eventNames(events: readonly { kind: "start" | "stop" }[]): string[] {
+  const total = { start: 0, stop: 0 };
+  for (const e of events) total[e.kind] += 1;
+  const seen = { start: 0, stop: 0 };
+  return events.map((e) => {
+    seen[e.kind] += 1;
+    const name = e.kind === "start" ? "Start" : "Stop";
+    return total[e.kind] > 1 ? `${name} ${seen[e.kind]}` : name;
+  });
+}
