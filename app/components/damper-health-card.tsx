@@ -137,20 +137,22 @@ function Variant({
       ) : (
         <p className="text-sm text-neutral-700">No change beyond the thresholds.</p>
       )}
-      <div className="grid gap-3 sm:grid-cols-2 xl:grid-cols-4">
-        {qs.map((q) => (
-          <TrendMultiple
-            key={q.key}
-            variant={v}
-            quantity={q.key}
-            thresholds={trend.thresholds}
-            title={q.title}
-            axisLabel={q.axis}
-            describe={q.text}
-          />
-        ))}
-      </div>
-      <details className="text-sm">
+      {v.points.length < 2 ? null : (
+        <div className="grid gap-3 sm:grid-cols-2 xl:grid-cols-4">
+          {qs.map((q) => (
+            <TrendMultiple
+              key={q.key}
+              variant={v}
+              quantity={q.key}
+              thresholds={trend.thresholds}
+              title={q.title}
+              axisLabel={q.axis}
+              describe={q.text}
+            />
+          ))}
+        </div>
+      )}
+      <details className="text-sm" open={v.points.length < 2 || undefined}>
         <summary className="cursor-pointer font-medium text-indigo-700">
           Figures of damper variant {v.damperVariant} as a table
         </summary>

@@ -141,7 +141,7 @@ function EventRow({
       <th scope="row" className={`${tdClass} font-medium text-neutral-900`}>
         {name}
       </th>
-      <td className={tdClass}>
+      <td className={`${tdClass} whitespace-nowrap`}>
         {secondsNumber(e.startS)}–{secondsNumber(e.endS)}
       </td>
       <td className={tdClass}>

@@ -40,6 +40,7 @@ export const TrendMultiple = memo(function TrendMultiple({
   describe: (value: number | null) => string;
 }) {
   const [readout, setReadout] = useState("");
+  const none = variant.points.every((p) => p[quantity] === null);
   const series = useMemo(
     () => trendSeries(variant, quantity, thresholds),
     [variant, quantity, thresholds],
@@ -51,7 +52,11 @@ export const TrendMultiple = memo(function TrendMultiple({
       scales: {
         x: {
           time: true,
-          range: (_u, min, max) => (min === max ? [min - 7 * DAY, max + 7 * DAY] : [min, max]),
+          // Room either side so the first and last points (and a flag) are not cut at the edge.
+          range: (_u, min, max) => {
+            const pad = Math.max(2 * DAY, (max - min) * 0.06);
+            return [min - pad, max + pad];
+          },
         },
         y: {
           range: (_u, min, max) => {
@@ -105,13 +110,19 @@ export const TrendMultiple = memo(function TrendMultiple({
       className="min-w-0 rounded-md border border-neutral-200 p-3"
     >
       <figcaption className="text-sm font-medium text-neutral-800">{title}</figcaption>
-      <div className="mt-2 h-40">
-        <Plot
-          height={160}
-          options={options}
-          data={data}
-          label={`${title} of damper variant ${variant.damperVariant} against test date; the figures are in the table below.`}
-        />
+      <div className="mt-2 h-[200px]">
+        {none ? (
+          <p className="flex h-full items-center justify-center rounded-md border border-dashed border-neutral-300 px-4 text-center text-xs text-neutral-600">
+            No drive log of this variant has this figure yet.
+          </p>
+        ) : (
+          <Plot
+            height={200}
+            options={options}
+            data={data}
+            label={`${title} of damper variant ${variant.damperVariant} against test date; the figures are in the table below.`}
+          />
+        )}
       </div>
       <p className="mt-1 min-h-4 text-xs text-neutral-700 tabular-nums" aria-hidden="true">
         {readout}
