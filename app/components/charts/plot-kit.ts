@@ -284,3 +284,20 @@ export function drawEventPennants(
   }
   ctx.restore();
 }
+
+/** The stretches the order filter measured: a thin bar along the foot of a time plot. */
+export function drawFilterSpans(u: uPlot, spans: readonly { startS: number; endS: number }[]) {
+  const { ctx, bbox } = u;
+  const s = px(u);
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(bbox.left, bbox.top, bbox.width, bbox.height);
+  ctx.clip();
+  ctx.fillStyle = COLOURS.event;
+  for (const span of spans) {
+    const x0 = u.valToPos(span.startS, "x", true);
+    const x1 = u.valToPos(span.endS, "x", true);
+    ctx.fillRect(x0, bbox.top + bbox.height - 4 * s, Math.max(s, x1 - x0), 4 * s);
+  }
+  ctx.restore();
+}

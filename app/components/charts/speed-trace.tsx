@@ -14,6 +14,7 @@ import {
   cursor,
   drawEventPennants,
   drawEventTints,
+  drawFilterSpans,
   drawXBands,
   drawXMarkers,
   fromZeroWithHeadroom,
@@ -54,6 +55,7 @@ export const SpeedTrace = memo(function SpeedTrace({
     const names = eventNames(list);
     return list.map((e, i) => ({ ...e, label: names[i]! }));
   }, [charts]);
+  const spans = useMemo(() => charts?.transient?.spans ?? [], [charts]);
 
   const data = useMemo<uPlot.AlignedData>(
     () => (trace ? [trace.timeS, trace.crankRpm, trace.gearboxRpm] : [[]]),
@@ -83,6 +85,7 @@ export const SpeedTrace = memo(function SpeedTrace({
         draw: [
           (u) => drawXBands(u, bands, true),
           (u) => drawEventPennants(u, events),
+          (u) => drawFilterSpans(u, spans),
           (u) => drawXMarkers(u, timeMarkers),
         ],
         setCursor: [
@@ -99,7 +102,7 @@ export const SpeedTrace = memo(function SpeedTrace({
         ],
       },
     };
-  }, [charts, trace, timeMarkers, events]);
+  }, [charts, trace, timeMarkers, events, spans]);
 
   // A new chart (order, unit, data) or row starts without a stale reading.
   useEffect(() => setReadout(""), [options]);
@@ -115,6 +118,16 @@ export const SpeedTrace = memo(function SpeedTrace({
             shape: "pennant" as const,
             label: "Engine start or stop (flag points into the event; tinted while it lasts)",
             colour: COLOURS.event,
+          },
+        ]
+      : []),
+    ...(spans.length
+      ? [
+          {
+            kind: "line" as const,
+            label: "Measured by the order filter (bar at the foot)",
+            colour: COLOURS.event,
+            width: 4,
           },
         ]
       : []),
