@@ -1,12 +1,15 @@
 import type { AnalysisSummary } from "~/lib/domain/analysis-summary";
 import type { TargetVerdict } from "~/lib/domain/targets";
+import type { TransientEvent } from "~/lib/signal/result-schema";
 import { AnalysisSummaryView } from "./analysis-summary";
 import { EarlierVersionNote, type VersionRow } from "./analysis-versions";
 import { When } from "./page";
+import { StartStopTable } from "./start-stop-table";
 
 /**
  * The drive-log page's "Analysis" section: which version is shown (and a note when it is an
- * earlier one, or when a newer analysis is running), then the verdict strip.
+ * earlier one, or when a newer analysis is running), then the verdict strip and, when the drive
+ * log holds engine starts or stops (or is a start-stop test), the "Starts and stops" panel.
  */
 export function AnalysisSection({
   summary,
@@ -17,6 +20,7 @@ export function AnalysisSection({
   logHref,
   rattleHref,
   running,
+  startStop,
 }: {
   summary: AnalysisSummary;
   verdicts: TargetVerdict[] | null;
@@ -28,6 +32,13 @@ export function AnalysisSection({
   rattleHref: string;
   /** A new analysis of the drive log is queued or running. */
   running: boolean;
+  /** Events of the version shown; null before events were found. */
+  startStop?: {
+    events: TransientEvent[] | null;
+    show: boolean;
+    travelLimitDeg: number | null;
+    editHref?: string;
+  };
 }) {
   return (
     <section aria-labelledby="analysis-title" className="space-y-4">
@@ -52,6 +63,13 @@ export function AnalysisSection({
         targets={verdicts}
         rattleHref={summary.rattle && !earlier ? rattleHref : undefined}
       />
+      {startStop?.show ? (
+        <StartStopTable
+          events={startStop.events}
+          travelLimitDeg={startStop.travelLimitDeg}
+          editHref={startStop.editHref}
+        />
+      ) : null}
     </section>
   );
 }

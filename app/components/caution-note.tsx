@@ -30,3 +30,14 @@ export function VerdictCaution() {
     </aside>
   );
 }
+
+/** Beside the starts and stops: repeated starts on a vehicle are road or workshop work. */
+export function StartStopCaution() {
+  return (
+    <aside aria-label="About start and stop tests" className={box}>
+      Engine start and stop tests are run on a vehicle that is secured, in a closed area, by trained
+      staff; a damper that reaches its end stops can be damaged, so confirm a figure on the vehicle
+      before repeating the test. Local codes and licensed practice come first.
+    </aside>
+  );
+}

@@ -127,6 +127,12 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
       error,
     },
     summary: result ? summarise(result, vehicle.idleRpm) : null,
+    // The "Starts and stops" panel: the version's events and the vehicle's end-stop limit.
+    startStop: {
+      events: result ? (result.events ?? null) : null,
+      show: !!result && ((result.events?.length ?? 0) > 0 || log.condition === "start-stop"),
+      travelLimitDeg: vehicle.damperTravelLimitDeg ?? null,
+    },
     verdicts,
     bands,
     current: result
@@ -195,6 +201,7 @@ export default function DriveLogPage() {
     applied,
     source,
     fileDetails,
+    startStop,
   } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const progress = useLiveStatus(log);
@@ -254,6 +261,10 @@ export default function DriveLogPage() {
           logHref={logHref}
           rattleHref={`${logHref}/rattle`}
           running={isActive(progress.log.status)}
+          startStop={{
+            ...startStop,
+            editHref: atLeast(role, "engineer") ? `/vehicles/${vehicle.id}/edit` : undefined,
+          }}
         />
       ) : null}
       {summary ? (

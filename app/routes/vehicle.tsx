@@ -10,6 +10,7 @@ import {
 } from "react-router";
 import { VerdictCaution } from "~/components/caution-note";
 import { Breadcrumb } from "~/components/breadcrumb";
+import { DamperHealthCard } from "~/components/damper-health-card";
 import { GeneralErrorBoundary } from "~/components/error-boundary";
 import { DriveLogTable, TABLE_PARAMS, type DriveLogTableRow } from "~/components/drive-log-table";
 import { LatestCurves, useCurvesRefresh } from "~/components/latest-curves";
@@ -33,6 +34,7 @@ import { targetSchema } from "~/lib/domain/target-schema";
 import { limitText, marginText, scopeText } from "~/lib/domain/target-text";
 import { targetData, toTarget } from "~/lib/data/targets.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
+import { loadVehicleTrend } from "~/lib/data/trend.server";
 import type { Route } from "./+types/vehicle";
 import { uploadFromForm } from "../lib/http/form-upload.server";
 import { requireAccess } from "~/lib/http/access.server";
@@ -54,9 +56,10 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
     const ids = search.getAll("logs").filter((s) => /^\d{1,15}$/.test(s));
     throw redirect(`/vehicles/${vehicle.id}/compare?logs=${ids.join(",")}`);
   }
-  const [logs, targetRows] = await Promise.all([
+  const [logs, targetRows, trend] = await Promise.all([
     vehicles.logsWithSummary(vehicle.id),
     targets.list(vehicle.id),
+    loadVehicleTrend(team.id, vehicle.id),
   ]);
   const idle = logs.filter((l) => l.latestAnalysisId !== null && l.idleAngAccelRadS2 !== null);
   const [verdicts, idleFigures] = await Promise.all([
@@ -127,6 +130,7 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
     logs: rows,
     targets: summaries,
     analysedLogs: verdicts.size,
+    trend,
     // After a form upload without JavaScript: ?uploaded=12,13&dup=13-7 (log 13 repeats log 7).
     uploaded: (search.get("uploaded") ?? "")
       .split(",")
@@ -260,7 +264,7 @@ export const action = pageRoute(async ({ request, params, context }: Route.Actio
 });
 
 export default function VehiclePage() {
-  const { role, vehicle, logs, targets, analysedLogs, uploaded, duplicates, notice } =
+  const { role, vehicle, logs, targets, analysedLogs, trend, uploaded, duplicates, notice } =
     useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const revalidator = useRevalidator();
@@ -302,6 +306,7 @@ export default function VehiclePage() {
         />
         <LatestCurves vehicle={vehicle} analysedLogs={analysedLogs} />
       </div>
+      <DamperHealthCard trend={trend} vehicleId={vehicle.id} />
       <Card title="Drive logs" id="drive-logs">
         <DriveLogTable
           vehicleId={vehicle.id}

@@ -7,12 +7,14 @@ import { OrderMaps } from "./order-map";
 import { OrderSpectrum } from "./order-spectrum";
 import { useChartsQuery } from "./queries";
 import { SpeedTrace } from "./speed-trace";
+import { TwistCurve } from "./twist-curve";
 import type { ChartMarker, ExportContext, TargetBand } from "./types";
 import { useChartCursor } from "./use-chart-cursor";
 
 /**
  * The drive-log page's charts, in the order of docs/ui.md: speed trace; order curves | isolation
- * curve sharing one engine-speed cursor; the order maps; the order spectrum at the cursor.
+ * curve, then the twist curve, sharing one engine-speed cursor; the order maps; the order
+ * spectrum at the cursor.
  */
 export function DriveLogCharts({
   chartsUrl,
@@ -75,6 +77,12 @@ export function DriveLogCharts({
             fileSuffix={suffix}
           />
         </div>
+        <TwistCurve
+          charts={charts}
+          syncKey={cursor.syncKey}
+          onCursorRpm={cursor.setRpm}
+          fileSuffix={suffix}
+        />
         <OrderMaps charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
         <OrderSpectrum charts={charts} cursorRpm={cursor.rpm} fileSuffix={suffix} />
       </ChartExportContext.Provider>

@@ -8,4 +8,5 @@ export { OrderCurves } from "./order-curves";
 export { IsolationCurve } from "./isolation-curve";
 export { OrderMaps } from "./order-map";
 export { OrderSpectrum } from "./order-spectrum";
+export { TwistCurve } from "./twist-curve";
 export type { ChartMarker, ChartsResponse, CurveSet, CurvesResponse, TargetBand } from "./types";

@@ -1,7 +1,7 @@
 import { countText } from "~/lib/base/plural";
 import { memo, useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
-import type { ChartData } from "~/lib/domain/chart-data";
+import { unresolvedBelow, type ChartData } from "~/lib/domain/chart-data";
 import {
   dbText,
   isolationRangeText,
@@ -50,6 +50,7 @@ export const IsolationCurve = memo(function IsolationCurve({
   const iso = charts?.isolation ?? null;
   const resonance = charts?.resonance ?? null;
   const model = charts?.model ?? null;
+  const unresolved = unresolvedBelow(charts?.transient ?? null);
 
   const data = useMemo<uPlot.AlignedData>(() => {
     if (!iso) return [[]];
@@ -100,8 +101,9 @@ export const IsolationCurve = memo(function IsolationCurve({
             const dB = iso.dB[i]!;
             const predicted = iso.modelDb?.[i];
             const target = bands.find((b) => rpm >= b.rpmFrom && rpm <= b.rpmTo);
+            const how = iso.method[i] === "filter" ? " · measured by the order filter" : "";
             setReadout(
-              `${rpmText(rpm)} · ${iso.aboveNoise[i] ? `isolation ${dbText(dB)}` : `isolation at least ${dbText(dB)} (gearbox input at the noise floor)`}${predicted !== undefined ? ` · model ${dbText(predicted)}` : ""}${target ? ` · target ${target.name}: at least ${dbText(target.minDb)}, ${dB >= target.minDb ? "met" : iso.aboveNoise[i] ? "not met" : "not shown (lower bound)"}` : ""}`,
+              `${rpmText(rpm)}${how} · ${iso.aboveNoise[i] ? `isolation ${dbText(dB)}` : `isolation at least ${dbText(dB)} (gearbox input at the noise floor)`}${predicted !== undefined ? ` · model ${dbText(predicted)}` : ""}${target ? ` · target ${target.name}: at least ${dbText(target.minDb)}, ${dB >= target.minDb ? "met" : iso.aboveNoise[i] ? "not met" : "not shown (lower bound)"}` : ""}`,
             );
           },
         ],
@@ -110,6 +112,7 @@ export const IsolationCurve = memo(function IsolationCurve({
   }, [iso, charts, bands, resonance, syncKey, rpmMarkers]);
 
   const hasLowerBounds = iso?.aboveNoise.some((a) => !a) ?? false;
+  const filtered = iso?.method.filter((m) => m === "filter").length ?? 0;
   // A new chart (order, unit, data) or row starts without a stale reading.
   useEffect(() => setReadout(""), [options]);
 
@@ -121,6 +124,16 @@ export const IsolationCurve = memo(function IsolationCurve({
             kind: "point" as const,
             shape: "caret" as const,
             label: "Lower bound: gearbox input at the noise floor, isolation at least this",
+            colour: COLOURS.isolation,
+          },
+        ]
+      : []),
+    ...(filtered
+      ? [
+          {
+            kind: "point" as const,
+            shape: "square" as const,
+            label: "Measured by the order filter (engine start, stop or fast change)",
             colour: COLOURS.isolation,
           },
         ]
@@ -166,7 +179,7 @@ export const IsolationCurve = memo(function IsolationCurve({
   if (charts && iso && iso.rpm.length) {
     const range = isolationRangeText(iso.dB, iso.aboveNoise);
     const lower = iso.aboveNoise.filter((a) => !a).length;
-    summary = `Isolation at order ${charts.firingOrder} over ${rpmRangeText(iso.rpm[0], iso.rpm[iso.rpm.length - 1])}: ${range ?? "—"}${lower < iso.rpm.length ? " above the noise floor" : ""}; ${lower} of ${countText(iso.rpm.length, "point")} ${lower === 1 ? "is a lower bound" : "are lower bounds"}. ${resonance ? `Damper resonance at ${rpmText(resonance.rpm)}, ${dbText(resonance.isolationDb)}.` : "No damper resonance in this drive log."}${bands.length ? ` Targets: ${bands.map((b) => `${b.name} at least ${dbText(b.minDb)} over ${rpmRangeText(b.rpmFrom, b.rpmTo)}`).join("; ")}.` : ""}`;
+    summary = `Isolation at order ${charts.firingOrder} over ${rpmRangeText(iso.rpm[0], iso.rpm[iso.rpm.length - 1])}: ${range ?? "—"}${lower < iso.rpm.length ? " above the noise floor" : ""}; ${lower} of ${countText(iso.rpm.length, "point")} ${lower === 1 ? "is a lower bound" : "are lower bounds"}.${filtered ? ` ${countText(filtered, "point")} measured by the order filter.` : ""}${unresolved ? ` ${unresolvedText(unresolved)}` : ""} ${resonance ? `Damper resonance at ${rpmText(resonance.rpm)}, ${dbText(resonance.isolationDb)}.` : "No damper resonance in this drive log."}${bands.length ? ` Targets: ${bands.map((b) => `${b.name} at least ${dbText(b.minDb)} over ${rpmRangeText(b.rpmFrom, b.rpmTo)}`).join("; ")}.` : ""}`;
   }
 
   return (
@@ -176,9 +189,18 @@ export const IsolationCurve = memo(function IsolationCurve({
       height={ENGINE_SPEED_CHART_HEIGHT}
       status={status}
       note={
-        charts
-          ? `At the firing order (${charts.firingOrder}): 20·log10(crank / gearbox-input amplitude). Above 0 dB the damper attenuates; below it amplifies.`
-          : "At the firing order: 20·log10(crank / gearbox-input amplitude)."
+        charts ? (
+          <>
+            {`At the firing order (${charts.firingOrder}): 20·log10(crank / gearbox-input amplitude). Above 0 dB the damper attenuates; below it amplifies.`}
+            {unresolved ? (
+              <span data-note="unresolved" className="mt-1 block text-neutral-800">
+                {unresolvedText(unresolved)}
+              </span>
+            ) : null}
+          </>
+        ) : (
+          "At the firing order: 20·log10(crank / gearbox-input amplitude)."
+        )
       }
       emptyMessage="No engine-speed bin has enough blocks for the isolation curve. A longer drive log, or re-analysing with a wider engine-speed bin, gives one."
       legend={legend}
@@ -197,8 +219,15 @@ export const IsolationCurve = memo(function IsolationCurve({
               `isolation order ${charts.firingOrder} (dB)`,
               "above noise",
               ...(iso.modelDb ? ["two-mass model isolation (dB)"] : []),
+              "measured by",
             ],
-            columnsToRows([iso.rpm, iso.dB, iso.aboveNoise, ...(iso.modelDb ? [iso.modelDb] : [])]),
+            columnsToRows([
+              iso.rpm,
+              iso.dB,
+              iso.aboveNoise,
+              ...(iso.modelDb ? [iso.modelDb] : []),
+              iso.method,
+            ]),
           ),
           fileSuffix,
         )
@@ -218,3 +247,9 @@ export const IsolationCurve = memo(function IsolationCurve({
     </ChartFrame>
   );
 });
+
+/** "Not resolved below 250 rpm." and the analysis' own sentence why. */
+function unresolvedText(u: { rpm: number; reason: string }): string {
+  const reason = u.reason.trim();
+  return `Not resolved below ${rpmText(u.rpm)}. ${reason}${/[.!?]$/.test(reason) ? "" : "."}`;
+}

@@ -8,6 +8,7 @@ import {
   type LabelBox,
 } from "./isolation-layers";
 import type { TargetBand } from "./types";
+import type { MeasureMethod } from "~/lib/domain/chart-data";
 
 // A stand-in for uPlot with a 2D context that records every call, in order, so the test sees what
 // is painted over what (a canvas paints later calls over earlier ones: HTML Living Standard,
@@ -50,6 +51,7 @@ describe("the isolation curve's target labels", () => {
       dB: [18, 19, 18.5, 19],
       aboveNoise: [true, true, false, true],
       modelDb: null,
+      method: ["filter", "blocks", "blocks", "blocks"] as MeasureMethod[],
     };
     const band: TargetBand = {
       id: 1,
@@ -66,6 +68,10 @@ describe("the isolation curve's target labels", () => {
     const lastPoint = ops.findLastIndex((o) => o.op === "arc");
     expect(lastPoint, "points are drawn").toBeGreaterThanOrEqual(0);
     expect(label, "label after the last point").toBeGreaterThan(lastPoint);
+    // The one point measured by the order filter gets its square, also under the label.
+    const squares = ops.flatMap((o, i) => (o.op === "strokeRect" ? [i] : []));
+    expect(squares.length, "one filter square").toBe(1);
+    expect(label, "label after the filter square").toBeGreaterThan(squares[0]!);
 
     // The box right before the text, in the label colour's backdrop, covers the text's extent.
     const box = ops.slice(0, label).findLast((o) => o.op === "fillRect")!;

@@ -7,7 +7,7 @@ import type uPlot from "uplot";
 import type { ChartData } from "~/lib/domain/chart-data";
 import { dbText, rpmText } from "~/lib/domain/format";
 import { COLOURS, FONT_FAMILY } from "./palette";
-import { drawXMarkers, drawYLine, px } from "./plot-kit";
+import { drawFilterMarks, drawXMarkers, drawYLine, px } from "./plot-kit";
 import type { TargetBand } from "./types";
 
 type Iso = ChartData["isolation"];
@@ -32,6 +32,14 @@ export function isolationLayers(
     (u) => drawLowerBounds(u, iso),
     (u) => drawBelowTarget(u, iso, bands),
     (u) => resonance && drawResonance(u, resonance),
+    (u) =>
+      drawFilterMarks(
+        u,
+        iso.rpm,
+        iso.dB,
+        iso.method.map((m) => m === "filter"),
+        COLOURS.isolation,
+      ),
     (u) => drawXMarkers(u, markers),
     (u) => drawTargetLabels(u, iso, bands),
   ];

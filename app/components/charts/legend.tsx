@@ -8,7 +8,7 @@ export type LegendEntry =
       kind: "point";
       label: string;
       colour: string;
-      shape?: "circle" | "ring" | "diamond" | "caret";
+      shape?: "circle" | "ring" | "diamond" | "caret" | "square" | "pennant";
     };
 
 const W = 22;
@@ -64,6 +64,20 @@ function PointShape({ shape, colour }: { shape: string; colour: string }) {
         <path d={`M${cx - 3} ${cy - 3} L${cx} ${cy - 6} L${cx + 3} ${cy - 3}`} />
       </g>
     );
+  if (shape === "square")
+    return (
+      <g fill="none" stroke={colour} strokeWidth={1.5}>
+        <rect x={cx - 4.5} y={cy - 4.5} width={9} height={9} />
+        <circle cx={cx} cy={cy} r={2} fill={colour} stroke="none" />
+      </g>
+    );
+  if (shape === "pennant")
+    return (
+      <g fill={colour} stroke={colour} strokeWidth={1.5}>
+        <line x1={cx - 4} x2={cx - 4} y1={1} y2={H - 1} />
+        <path d={`M${cx - 4} 1 L${cx + 6} 4 L${cx - 4} 7 Z`} stroke="none" />
+      </g>
+    );
   if (shape === "ring")
     return <circle cx={cx} cy={cy} r={3.5} fill="white" stroke={colour} strokeWidth={1.5} />;
   return <circle cx={cx} cy={cy} r={3.5} fill={colour} />;
@@ -117,6 +131,20 @@ export function paintSwatch(
       ctx.lineTo(cx + 5 * s, cy);
       ctx.lineTo(cx, y + (H - 1) * s);
       ctx.lineTo(cx - 5 * s, cy);
+      ctx.closePath();
+      ctx.fill();
+    } else if (entry.shape === "square") {
+      ctx.strokeRect(cx - 4.5 * s, cy - 4.5 * s, 9 * s, 9 * s);
+      ctx.arc(cx, cy, 2 * s, 0, 2 * Math.PI);
+      ctx.fill();
+    } else if (entry.shape === "pennant") {
+      ctx.moveTo(cx - 4 * s, y + s);
+      ctx.lineTo(cx - 4 * s, y + (H - 1) * s);
+      ctx.stroke();
+      ctx.beginPath();
+      ctx.moveTo(cx - 4 * s, y + s);
+      ctx.lineTo(cx + 6 * s, y + 4 * s);
+      ctx.lineTo(cx - 4 * s, y + 7 * s);
       ctx.closePath();
       ctx.fill();
     } else if (entry.shape === "ring" || entry.shape === "caret") {

@@ -17,6 +17,10 @@ export const COLOURS = {
   marker: "oklch(37.1% 0 0)", // neutral-700
   bandA: "oklch(97% 0 0)", // neutral-100
   bandB: "oklch(98.5% 0 0)", // neutral-50
+  // Issue 15, our own choices: engine starts and stops (fuchsia-700), the twist angle (sky-700).
+  event: "oklch(51.8% 0.253 323.949)",
+  eventFill: "oklch(51.8% 0.253 323.949 / 0.07)",
+  twist: "oklch(50% 0.134 242.749)",
 } as const;
 
 /**

@@ -194,3 +194,110 @@ export const fromZero: uPlot.Range.Function = (_u, _min, max) => [
   0,
   max != null && Number.isFinite(max) && max > 0 ? max * 1.08 : 1,
 ];
+
+/**
+ * Points measured by the order filter (start, stop and fast segments) get a hollow square around
+ * their dot, so they read apart from the blocks' points without a second colour.
+ */
+export function drawFilterMarks(
+  u: uPlot,
+  xs: readonly number[],
+  ys: readonly (number | null)[],
+  filtered: readonly boolean[],
+  stroke: string,
+) {
+  const { ctx } = u;
+  const s = px(u);
+  ctx.save();
+  ctx.strokeStyle = stroke;
+  ctx.lineWidth = 1.5 * s;
+  xs.forEach((x, i) => {
+    const y = ys[i];
+    if (!filtered[i] || y === null || y === undefined) return;
+    const cx = u.valToPos(x, "x", true);
+    const cy = u.valToPos(y, "y", true);
+    ctx.strokeRect(cx - 5 * s, cy - 5 * s, 10 * s, 10 * s);
+  });
+  ctx.restore();
+}
+
+/**
+ * Engine starts and stops on a time axis: a light tint over each event and, near the top, a
+ * pennant (a small flag on a staff: pointing right for a start, left for a stop) with its name.
+ */
+export function drawEventTints(u: uPlot, events: readonly { startS: number; endS: number }[]) {
+  const { ctx, bbox } = u;
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(bbox.left, bbox.top, bbox.width, bbox.height);
+  ctx.clip();
+  ctx.fillStyle = COLOURS.eventFill;
+  for (const e of events) {
+    const x0 = u.valToPos(e.startS, "x", true);
+    const x1 = u.valToPos(e.endS, "x", true);
+    ctx.fillRect(x0, bbox.top, Math.max(1, x1 - x0), bbox.height);
+  }
+  ctx.restore();
+}
+
+export function drawEventPennants(
+  u: uPlot,
+  events: readonly { kind: "start" | "stop"; startS: number; endS: number; label: string }[],
+) {
+  const { ctx, bbox } = u;
+  const s = px(u);
+  const min = u.scales.x!.min!;
+  const max = u.scales.x!.max!;
+  ctx.save();
+  ctx.font = `500 ${11 * s}px ${FONT_FAMILY}`;
+  ctx.textBaseline = "middle";
+  for (const e of events) {
+    const at = e.kind === "start" ? e.startS : e.endS;
+    if (at < min || at > max) continue;
+    const x = u.valToPos(at, "x", true);
+    const top = bbox.top + 20 * s;
+    const dir = e.kind === "start" ? 1 : -1;
+    ctx.strokeStyle = COLOURS.event;
+    ctx.fillStyle = COLOURS.event;
+    ctx.lineWidth = 1.5 * s;
+    ctx.beginPath();
+    ctx.moveTo(x, top);
+    ctx.lineTo(x, top + 22 * s);
+    ctx.stroke();
+    ctx.beginPath();
+    ctx.moveTo(x, top);
+    ctx.lineTo(x + dir * 10 * s, top + 4 * s);
+    ctx.lineTo(x, top + 8 * s);
+    ctx.closePath();
+    ctx.fill();
+    const w = ctx.measureText(e.label).width;
+    // The name on the pennant's side, unless that side has no room for it.
+    let side = dir;
+    if (side > 0 && x + 14 * s + w > bbox.left + bbox.width) side = -1;
+    if (side < 0 && x - 14 * s - w < bbox.left) side = 1;
+    ctx.textAlign = side > 0 ? "left" : "right";
+    ctx.fillStyle = "rgba(255,255,255,0.85)";
+    const tx = x + side * 13 * s;
+    ctx.fillRect(side > 0 ? tx - 2 * s : tx - w - 2 * s, top - 3 * s, w + 4 * s, 14 * s);
+    ctx.fillStyle = COLOURS.event;
+    ctx.fillText(e.label, tx, top + 4 * s);
+  }
+  ctx.restore();
+}
+
+/** The stretches the order filter measured: a thin bar along the foot of a time plot. */
+export function drawFilterSpans(u: uPlot, spans: readonly { startS: number; endS: number }[]) {
+  const { ctx, bbox } = u;
+  const s = px(u);
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(bbox.left, bbox.top, bbox.width, bbox.height);
+  ctx.clip();
+  ctx.fillStyle = COLOURS.event;
+  for (const span of spans) {
+    const x0 = u.valToPos(span.startS, "x", true);
+    const x1 = u.valToPos(span.endS, "x", true);
+    ctx.fillRect(x0, bbox.top + bbox.height - 4 * s, Math.max(s, x1 - x0), 4 * s);
+  }
+  ctx.restore();
+}

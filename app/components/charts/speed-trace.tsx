@@ -1,7 +1,7 @@
 import { memo, useEffect, useMemo, useState } from "react";
 import type uPlot from "uplot";
 import { rpmRangeText, rpmText, secondsNumber, secondsText } from "~/lib/domain/format";
-import type { ChartData } from "~/lib/domain/chart-data";
+import { eventNames, type ChartData } from "~/lib/domain/chart-data";
 import { extent } from "./chart-math";
 import { ChartFrame } from "./chart-frame";
 import { buildCsv, columnsToRows } from "./csv";
@@ -12,6 +12,9 @@ import { FramePlot, usePlotPng } from "./frame-plot";
 import type { PlotOptions } from "./plot";
 import {
   cursor,
+  drawEventPennants,
+  drawEventTints,
+  drawFilterSpans,
   drawXBands,
   drawXMarkers,
   fromZeroWithHeadroom,
@@ -47,6 +50,12 @@ export const SpeedTrace = memo(function SpeedTrace({
   const { onPlot, png } = usePlotPng();
   const [readout, setReadout] = useState("");
   const timeMarkers = useTimeMarkers(markers);
+  const events = useMemo(() => {
+    const list = charts?.events ?? [];
+    const names = eventNames(list);
+    return list.map((e, i) => ({ ...e, label: names[i]! }));
+  }, [charts]);
+  const spans = useMemo(() => charts?.transient?.spans ?? [], [charts]);
 
   const data = useMemo<uPlot.AlignedData>(
     () => (trace ? [trace.timeS, trace.crankRpm, trace.gearboxRpm] : [[]]),
@@ -72,23 +81,28 @@ export const SpeedTrace = memo(function SpeedTrace({
       legend: { show: false },
       cursor: cursor(),
       hooks: {
-        drawClear: [(u) => drawXBands(u, bands, false)],
-        draw: [(u) => drawXBands(u, bands, true), (u) => drawXMarkers(u, timeMarkers)],
+        drawClear: [(u) => drawXBands(u, bands, false), (u) => drawEventTints(u, events)],
+        draw: [
+          (u) => drawXBands(u, bands, true),
+          (u) => drawEventPennants(u, events),
+          (u) => drawFilterSpans(u, spans),
+          (u) => drawXMarkers(u, timeMarkers),
+        ],
         setCursor: [
           (u) => {
             const i = u.cursor.idx;
             if (i == null) return;
-            const seg = charts.segments.find(
-              (s) => trace.timeS[i]! >= s.startS && trace.timeS[i]! < s.endS,
-            );
+            const t = trace.timeS[i]!;
+            const seg = charts.segments.find((s) => t >= s.startS && t < s.endS);
+            const event = events.find((e) => t >= e.startS && t <= e.endS);
             setReadout(
-              `${secondsText(trace.timeS[i])} · crank ${rpmText(trace.crankRpm[i])} · gearbox input ${rpmText(trace.gearboxRpm[i])}${seg ? ` · ${SEGMENT_NAMES[seg.kind]}` : ""}`,
+              `${secondsText(t)} · crank ${rpmText(trace.crankRpm[i])} · gearbox input ${rpmText(trace.gearboxRpm[i])}${seg ? ` · ${SEGMENT_NAMES[seg.kind]}` : ""}${event ? ` · ${event.label.toLowerCase()} (engine ${event.kind})` : ""}`,
             );
           },
         ],
       },
     };
-  }, [charts, trace, timeMarkers]);
+  }, [charts, trace, timeMarkers, events, spans]);
 
   // A new chart (order, unit, data) or row starts without a stale reading.
   useEffect(() => setReadout(""), [options]);
@@ -97,6 +111,26 @@ export const SpeedTrace = memo(function SpeedTrace({
     { kind: "line", label: "Crank", colour: COLOURS.crank },
     { kind: "line", label: "Gearbox input", colour: COLOURS.gearbox, dash: [6, 3] },
     { kind: "area", label: "Operating segment (labelled)", colour: COLOURS.bandA },
+    ...(events.length
+      ? [
+          {
+            kind: "point" as const,
+            shape: "pennant" as const,
+            label: "Engine start or stop (flag points into the event; tinted while it lasts)",
+            colour: COLOURS.event,
+          },
+        ]
+      : []),
+    ...(spans.length
+      ? [
+          {
+            kind: "line" as const,
+            label: "Measured by the order filter (bar at the foot)",
+            colour: COLOURS.event,
+            width: 4,
+          },
+        ]
+      : []),
     ...commentLegend(timeMarkers),
   ];
 
@@ -109,7 +143,13 @@ export const SpeedTrace = memo(function SpeedTrace({
             (s) =>
               `${SEGMENT_NAMES[s.kind]} ${secondsNumber(s.startS)}–${secondsText(s.endS)} at ${rpmText(s.meanRpm)}`,
           )
-          .join("; ")}.`
+          .join("; ")}.${
+          events.length
+            ? ` Engine starts and stops: ${events
+                .map((e) => `${e.label} ${secondsNumber(e.startS)}–${secondsText(e.endS)}`)
+                .join("; ")}.`
+            : ""
+        }`
       : undefined;
 
   return (

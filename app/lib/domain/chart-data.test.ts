@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { chartData, MAP_ROWS } from "./chart-data";
+import { chartData, endStopMargin, eventNames, MAP_ROWS, unresolvedBelow } from "./chart-data";
 import type { AnalysisResult } from "../signal/result-schema";
 
 // A constructed result whose chart data is known by hand. The isolation model check uses the
@@ -139,5 +139,96 @@ describe("chart data", () => {
     expect(c.orderMapByTime.timeS.length).toBeLessThanOrEqual(MAP_ROWS);
     // Equal rows stay equal after averaging.
     expect(c.orderMap.crankRpm.every((r) => r[4] === 2)).toBe(true);
+  });
+
+  it("passes events, the twist curve and the filter's spans through; null for older results", () => {
+    const start = {
+      kind: "start" as const,
+      startS: 0.5,
+      endS: 6.5,
+      resonanceRpm: 390,
+      peakAmplificationDb: 10.9,
+      timeNearResonanceS: 1.2,
+      peakGearboxAngAccelRadS2: 850,
+      twistPeakToPeakDeg: 14.2,
+    };
+    const c = chartData(
+      result({
+        isolation: [
+          { rpm: 400, dB: -10.9, blocks: 6, aboveNoise: true, method: "filter" },
+          { rpm: 1000, dB: 12.4, blocks: 3, aboveNoise: true, method: "blocks" },
+        ],
+        events: [start],
+        twist: {
+          curve: [
+            { rpm: 400, deg: 2.5, blocks: 6, method: "filter" },
+            { rpm: 1000, deg: 0.4, blocks: 3, method: "blocks" },
+          ],
+          driftCutoffHz: 0.5,
+        },
+        transient: {
+          slewThresholdRpmS: 300,
+          filter: { method: "vold-kalman-2", poles: 2, bandwidthOrders: 0.25, minBandwidthHz: 1 },
+          spans: [{ kind: "start", startS: 0.5, endS: 6.5 }],
+          lowestResolvedRpm: 250,
+          unresolvedReason:
+            "Below 250 rpm the firing order is under the filter's lowest bandwidth.",
+          blocks: [
+            {
+              startS: 1,
+              endS: 1.5,
+              rpm: 300,
+              revs: 2,
+              orderResolution: 0.5,
+              crankRadS: 3,
+              gearboxRadS: 6,
+            },
+          ],
+        },
+      }),
+    );
+    expect(c.isolation.method).toEqual(["filter", "blocks"]);
+    expect(c.events).toEqual([start]);
+    expect(c.twist).toEqual({
+      rpm: [400, 1000],
+      deg: [2.5, 0.4],
+      blocks: [6, 3],
+      method: ["filter", "blocks"],
+      driftCutoffHz: 0.5,
+    });
+    // The per-block list stays in the result JSON: the charts need only the spans.
+    expect(c.transient).not.toHaveProperty("blocks");
+    expect(c.transient!.spans).toEqual([{ kind: "start", startS: 0.5, endS: 6.5 }]);
+    expect(unresolvedBelow(c.transient)).toEqual({
+      rpm: 250,
+      reason: "Below 250 rpm the firing order is under the filter's lowest bandwidth.",
+    });
+
+    const old = chartData(result());
+    expect(old.isolation.method).toEqual(["blocks", "blocks"]);
+    expect([old.events, old.twist, old.transient, unresolvedBelow(old.transient)]).toEqual([
+      null,
+      null,
+      null,
+      null,
+    ]);
+  });
+
+  // "A warning when a start/stop event comes within 10 % of it" (issue 15): with a 30° limit the
+  // warning starts at 27° peak-to-peak (margin 3° = 10 % of 30°), worked out by hand.
+  it("gives the end-stop margin to the travel limit and warns within 10 % of it", () => {
+    expect(endStopMargin(20, 30)).toEqual({ marginDeg: 10, warn: false });
+    expect(endStopMargin(26.5, 30)).toEqual({ marginDeg: 3.5, warn: false });
+    expect(endStopMargin(27, 30)).toEqual({ marginDeg: 3, warn: true });
+    expect(endStopMargin(32, 30)).toEqual({ marginDeg: -2, warn: true });
+  });
+
+  it("names events by kind, numbered only when a kind repeats", () => {
+    expect(eventNames([{ kind: "start" }, { kind: "stop" }])).toEqual(["Start", "Stop"]);
+    expect(eventNames([{ kind: "start" }, { kind: "stop" }, { kind: "start" }])).toEqual([
+      "Start 1",
+      "Stop",
+      "Start 2",
+    ]);
   });
 });

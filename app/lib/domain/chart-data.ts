@@ -8,10 +8,12 @@
  * Units: engine speed rpm; amplitudes 0-peak angular-velocity amplitude in rpm; isolation dB;
  * time s; angular acceleration rad/s². Conversions for display are in chart-units.ts.
  */
-import type { AnalysisResult } from "../signal/result-schema";
+import type { AnalysisResult, TransientEvent } from "../signal/result-schema";
 import { modelIsolationDb } from "../signal/two-mass-model";
 
 export type SegmentKind = AnalysisResult["segments"][number]["kind"];
+/** How an engine-speed bin was measured: computed order tracking, or the Vold–Kalman filter. */
+export type MeasureMethod = "blocks" | "filter";
 
 export interface ChartData {
   firingOrder: number;
@@ -28,7 +30,14 @@ export interface ChartData {
    * `modelDb`: the fitted two-mass model's predicted isolation at the same engine speeds, dB
    * (−20·log10 T(r), two-mass-model.ts); null when no model was fitted.
    */
-  isolation: { rpm: number[]; dB: number[]; aboveNoise: boolean[]; modelDb: number[] | null };
+  isolation: {
+    rpm: number[];
+    dB: number[];
+    aboveNoise: boolean[];
+    modelDb: number[] | null;
+    /** Per point; "blocks" for results stored before the order filter existed. */
+    method: MeasureMethod[];
+  };
   resonance: AnalysisResult["resonance"];
   model: AnalysisResult["model"];
   /**
@@ -67,6 +76,18 @@ export interface ChartData {
     firingOrderTrace: { timeS: number[]; crankRpm: number[]; gearboxRpm: number[] };
   };
   warnings: AnalysisResult["warnings"];
+  /** Engine starts and stops; null for results stored before events were found. */
+  events: TransientEvent[] | null;
+  /** Firing-order twist amplitude (0-peak, degrees) against engine speed; null without one. */
+  twist: null | {
+    rpm: number[];
+    deg: number[];
+    blocks: number[];
+    method: MeasureMethod[];
+    driftCutoffHz: number;
+  };
+  /** What the order filter measured (its spans, settings, lowest resolved speed); null before it. */
+  transient: null | Omit<NonNullable<AnalysisResult["transient"]>, "blocks">;
 }
 
 /** At most this many engine-speed rows in the order map. */
@@ -166,6 +187,7 @@ export function chartData(result: AnalysisResult): ChartData {
       rpm: result.isolation.map((p) => p.rpm),
       dB: result.isolation.map((p) => p.dB),
       aboveNoise: result.isolation.map((p) => p.aboveNoise),
+      method: result.isolation.map((p) => p.method ?? "blocks"),
       modelDb: result.model
         ? result.isolation.map(
             (p) =>
@@ -193,5 +215,75 @@ export function chartData(result: AnalysisResult): ChartData {
     orderMapByTime: byTime,
     idle,
     warnings: result.warnings,
+    ...transientCharts(result),
   };
+}
+
+/** The issue-15 fields: events, twist curve, filter spans (the per-block list stays in the result). */
+function transientCharts(
+  result: AnalysisResult,
+): Pick<ChartData, "events" | "twist" | "transient"> {
+  const twist = result.twist ?? null;
+  const transient = result.transient ?? null;
+  return {
+    events: result.events ?? null,
+    twist: twist && {
+      rpm: twist.curve.map((p) => p.rpm),
+      deg: twist.curve.map((p) => p.deg),
+      blocks: twist.curve.map((p) => p.blocks),
+      method: twist.curve.map((p) => p.method),
+      driftCutoffHz: twist.driftCutoffHz,
+    },
+    transient: transient && {
+      slewThresholdRpmS: transient.slewThresholdRpmS,
+      filter: transient.filter,
+      spans: transient.spans,
+      lowestResolvedRpm: transient.lowestResolvedRpm,
+      unresolvedReason: transient.unresolvedReason,
+    },
+  };
+}
+
+/**
+ * Where the isolation curve stops: the lowest engine speed at which the firing order was
+ * resolved and why it stops there; null when the result does not say (or the log goes no lower).
+ */
+export function unresolvedBelow(
+  transient: ChartData["transient"],
+): { rpm: number; reason: string } | null {
+  if (!transient || transient.lowestResolvedRpm === null || !transient.unresolvedReason)
+    return null;
+  return { rpm: transient.lowestResolvedRpm, reason: transient.unresolvedReason };
+}
+
+/** An event comes "within 10 %" of the damper's travel limit (issue 15): margin ≤ 10 % of it. */
+export const END_STOP_WARNING_SHARE = 0.1;
+
+/**
+ * The end-stop margin of one start or stop: travel limit − the event's peak-to-peak twist, in
+ * degrees. The whole peak-to-peak swing is taken from one side because the speed sensors cannot
+ * show where the rest position lies (the static twist under load is removed with the drift), so
+ * the margin is on the safe side. `warn` when the margin is at most 10 % of the limit (or gone).
+ */
+export function endStopMargin(
+  twistPeakToPeakDeg: number,
+  travelLimitDeg: number,
+): { marginDeg: number; warn: boolean } {
+  const marginDeg = travelLimitDeg - twistPeakToPeakDeg;
+  return { marginDeg, warn: marginDeg <= END_STOP_WARNING_SHARE * travelLimitDeg };
+}
+
+/**
+ * The names of the events, the same in the table, on the speed trace and in text alternatives:
+ * "Start" and "Stop", numbered in time order ("Start 2") when a log holds more than one of a kind.
+ */
+export function eventNames(events: readonly { kind: "start" | "stop" }[]): string[] {
+  const total = { start: 0, stop: 0 };
+  for (const e of events) total[e.kind] += 1;
+  const seen = { start: 0, stop: 0 };
+  return events.map((e) => {
+    seen[e.kind] += 1;
+    const name = e.kind === "start" ? "Start" : "Stop";
+    return total[e.kind] > 1 ? `${name} ${seen[e.kind]}` : name;
+  });
 }

@@ -16,6 +16,7 @@
  * | damping ratio (no unit)                          | 3 decimals                              | 0.118      |
  * | order                                            | up to 2 decimals, no trailing zeros     | 2, 1.5     |
  * | share, %                                         | whole number                            | 42 %       |
+ * | angle (twist, travel, margin), °                 | 1 decimal, no space before °            | 14.2°      |
  *
  * Negative numbers carry a true minus sign (U+2212); a value that is not a finite number is "—".
  * The rules are ours (documented here and in DEVELOPERS.md), chosen near the resolution the
@@ -87,6 +88,8 @@ export const secondsText = (x: number | null | undefined) => `${secondsNumber(x)
 export const frequencyText = (hz: number | null | undefined) => `${fixed(hz, 2)} Hz`;
 export const sampleRateText = (hz: number | null | undefined) => `${fixed(hz, 0)} Hz`;
 export const dampingRatioText = (x: number | null | undefined) => fixed(x, 3);
+export const degreesNumber = (x: number | null | undefined) => fixed(x, 1);
+export const degreesText = (x: number | null | undefined) => `${degreesNumber(x)}°`;
 export const percentText = (share: number | null | undefined) =>
   `${fixed(share === null || share === undefined ? share : share * 100, 0)} %`;
 
