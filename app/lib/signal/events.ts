@@ -98,7 +98,12 @@ function peakAngAccel(
 
 /** Peak-to-peak θ_rel in the span; the drift high-pass runs over the span ± 4 of its periods. */
 function eventTwist(
-  args: { timeS: Float64Array; crankRadS: Float64Array; gearboxRadS: Float64Array; sampleRateHz: number },
+  args: {
+    timeS: Float64Array;
+    crankRadS: Float64Array;
+    gearboxRadS: Float64Array;
+    sampleRateHz: number;
+  },
   m: SpanMeasure,
 ): number {
   const n = args.timeS.length;

@@ -95,6 +95,7 @@ export function findFastSpans(args: {
   const rpm = new Float64Array(frames);
   const fast = new Uint8Array(frames);
   const at = new Int32Array(frames + 1);
+  const frameRpm = frameMeans(timeS, args.angleRad, frames, FRAME_S);
   let i = 0;
   let hintA = 0;
   let hintB = 0;
@@ -114,7 +115,10 @@ export function findFastSpans(args: {
     if (Number.isNaN(n2)) n2 = n1;
     const mean = toRpm(b.theta - a.theta, b.t - a.t);
     rpm[f] = Number.isFinite(mean) ? mean : 0;
-    fast[f] = rpm[f]! >= STANDSTILL_RPM && 2 * Math.abs(n2 - n1) > MAX_SPEED_CHANGE_PER_BLOCK * rpm[f]! ? 1 : 0;
+    fast[f] =
+      frameRpm[f]! >= STANDSTILL_RPM && 2 * Math.abs(n2 - n1) > MAX_SPEED_CHANGE_PER_BLOCK * rpm[f]!
+        ? 1
+        : 0;
   }
   at[frames] = n;
   // Runs of fast frames, joined across short gaps.
@@ -143,6 +147,21 @@ export function findFastSpans(args: {
   });
 }
 
+/** Mean crank speed of each frame from the angle it turns, rpm (standstill: 0). */
+function frameMeans(timeS: Float64Array, angleRad: Float64Array, frames: number, frameS: number) {
+  const out = new Float64Array(frames);
+  const n = timeS.length;
+  let i = 0;
+  for (let f = 0; f < frames; f++) {
+    const start = i;
+    const end = timeS[0]! + (f + 1) * frameS;
+    while (i < n - 1 && timeS[i + 1]! <= end) i++;
+    const dt = timeS[i]! - timeS[start]!;
+    out[f] = dt > 0 ? ((angleRad[i]! - angleRad[start]!) / dt) * RPM_PER_RAD_S : 0;
+  }
+  return out;
+}
+
 /** Start, stop or fast (rule at the top) for frames [a, b) of block-mean speeds `rpm`. */
 function spanKind(rpm: Float64Array, a: number, b: number, idle: number): SpanKind {
   const running = 0.6 * idle;
@@ -158,9 +177,23 @@ function spanKind(rpm: Float64Array, a: number, b: number, idle: number): SpanKi
     }
     return false;
   };
-  if (first < cranking && last >= running && crossing((v) => v < cranking, (v) => v >= running))
+  if (
+    first < cranking &&
+    last >= running &&
+    crossing(
+      (v) => v < cranking,
+      (v) => v >= running,
+    )
+  )
     return "start";
-  if (first >= running && last < cranking && crossing((v) => v >= running, (v) => v < cranking))
+  if (
+    first >= running &&
+    last < cranking &&
+    crossing(
+      (v) => v >= running,
+      (v) => v < cranking,
+    )
+  )
     return "stop";
   return "fast";
 }
@@ -230,15 +263,31 @@ export function measureSpan(args: {
     minBandwidthHz: TRANSIENT_FILTER.minBandwidthHz,
     poles: TRANSIENT_FILTER.poles,
   };
-  const cTrend = voldKalmanLowpass({ signal: c, shaftRadS: c, sampleRateHz: fs, options: trendOpts });
-  const gTrend = voldKalmanLowpass({ signal: g, shaftRadS: c, sampleRateHz: fs, options: trendOpts });
+  const cTrend = voldKalmanLowpass({
+    signal: c,
+    shaftRadS: c,
+    sampleRateHz: fs,
+    options: trendOpts,
+  });
+  const gTrend = voldKalmanLowpass({
+    signal: g,
+    shaftRadS: c,
+    sampleRateHz: fs,
+    options: trendOpts,
+  });
   const cRes = new Float64Array(c.length);
   const gRes = new Float64Array(c.length);
   for (let k = 0; k < c.length; k++) {
     cRes[k] = c[k]! - cTrend[k]!;
     gRes[k] = g[k]! - gTrend[k]!;
   }
-  const orderArgs = { angleRad: th, shaftRadS: cTrend, order: q, sampleRateHz: fs, options: TRANSIENT_FILTER };
+  const orderArgs = {
+    angleRad: th,
+    shaftRadS: cTrend,
+    order: q,
+    sampleRateHz: fs,
+    options: TRANSIENT_FILTER,
+  };
   const ce = voldKalmanOrder({ signal: cRes, ...orderArgs });
   const ge = voldKalmanOrder({ signal: gRes, ...orderArgs });
   const len = span.endIndex - span.startIndex;
