@@ -148,12 +148,14 @@ export function analyseDriveLog(
     ...(withTransients ? { firingBin: orderBin(q, R) } : {}),
   };
   let tracked: TrackedBlocks;
+  let wholeAngle: Float64Array | undefined; // kept for the transients (one section only)
   if (!log.sections || log.sections.length < 2) {
     const crank = filters.length ? filtfilt(log.crankRadS, filters) : log.crankRadS;
     onProgress?.("track", 0.4);
     const gearbox = filters.length ? filtfilt(log.gearboxRadS, filters) : log.gearboxRadS;
     onProgress?.("track", 0.8);
     const angle = integrateAngle(log.timeS, log.crankRadS);
+    if (withTransients) wholeAngle = angle;
     onProgress?.("track", 1);
     tracked = trackBlocks({
       timeS: log.timeS,
@@ -197,7 +199,17 @@ export function analyseDriveLog(
   const segments = sectionSegments(log);
   // Transients: fast spans measured by the order filter, their blocks left out of the curve.
   const part = withTransients
-    ? transientResult({ log, filters, grid, tracked, segments, order: q, revsPerBlock: R, binRpm })
+    ? transientResult({
+        log,
+        angleRad: wholeAngle,
+        filters,
+        grid,
+        tracked,
+        segments,
+        order: q,
+        revsPerBlock: R,
+        binRpm,
+      })
     : null;
   const isolation = part
     ? part.isolation

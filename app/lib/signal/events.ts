@@ -41,7 +41,7 @@ export function transientEvents(args: {
     let near = 0;
     if (res)
       for (let j = 0; j < m.rpm.length; j++)
-        if (Math.abs(m.rpm[j]! - res.rpm) <= NEAR_RESONANCE * res.rpm) near++;
+        if (Math.abs(m.rpm[j]! - res.rpm) <= NEAR_RESONANCE * res.rpm) near += m.stride;
     out.push({
       kind,
       startS: r3(m.span.startS),

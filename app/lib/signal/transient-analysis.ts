@@ -44,6 +44,8 @@ export interface TransientPart {
 
 export function analyseTransients(args: {
   log: DriveLog;
+  /** The whole log's crank angle when it has one section (saves integrating it again). */
+  angleRad?: Float64Array;
   filters: readonly Biquad[];
   grid: AngleGrid;
   order: number;
@@ -58,7 +60,10 @@ export function analyseTransients(args: {
     const crankRadS = log.crankRadS.subarray(s.startIndex, s.endIndex);
     const gearboxRadS = log.gearboxRadS.subarray(s.startIndex, s.endIndex);
     if (timeS.length < 4) continue;
-    const angleRad = integrateAngle(timeS, crankRadS);
+    const angleRad =
+      args.angleRad && timeS.length === log.timeS.length
+        ? args.angleRad
+        : integrateAngle(timeS, crankRadS);
     const spans = findFastSpans({
       timeS,
       angleRad,
@@ -155,6 +160,7 @@ function idleOf(segments: readonly Segment[]): number | null {
  */
 export function transientResult(args: {
   log: DriveLog;
+  angleRad?: Float64Array;
   filters: readonly Biquad[];
   grid: AngleGrid;
   tracked: TrackedBlocks;

@@ -23,7 +23,9 @@ interface Bin {
   g2: number;
   noise2: number;
   twist2: number;
+  /** Log samples in the bin (stored samples × stride), and stored samples. */
   n: number;
+  k: number;
 }
 
 function binSamples(measures: readonly SpanMeasure[], order: number, binRpm: number) {
@@ -33,14 +35,15 @@ function binSamples(measures: readonly SpanMeasure[], order: number, binRpm: num
       if (m.unresolved[j]) continue;
       const rpm = m.rpm[j]!;
       const key = Math.round(rpm / binRpm) * binRpm;
-      const e = bins.get(key) ?? { c2: 0, g2: 0, noise2: 0, twist2: 0, n: 0 };
+      const e = bins.get(key) ?? { c2: 0, g2: 0, noise2: 0, twist2: 0, n: 0, k: 0 };
       const c = { re: m.cRe[j]!, im: m.cIm[j]! };
       const g = { re: m.gRe[j]!, im: m.gIm[j]! };
       e.c2 += c.re * c.re + c.im * c.im;
       e.g2 += g.re * g.re + g.im * g.im;
       e.noise2 += m.noiseRadS[j]! ** 2;
       e.twist2 += twistAmplitudeDeg(c, g, (order * rpm) / 60) ** 2;
-      e.n++;
+      e.n += m.stride;
+      e.k++;
       bins.set(key, e);
     }
   }
@@ -76,7 +79,7 @@ export function filterTwist(
 ): (TwistPoint & { method: Method })[] {
   return binSamples(measures, args.order, args.binRpm).map(([rpm, e]) => ({
     rpm,
-    deg: round(Math.sqrt(e.twist2 / e.n), 4),
+    deg: round(Math.sqrt(e.twist2 / e.k), 4),
     blocks: blocksOf(e.n, rpm, args.sampleRateHz, args.revsPerBlock),
     method: "filter" as const,
   }));

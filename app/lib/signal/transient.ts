@@ -47,6 +47,8 @@ export const MAX_CHANGE_PER_FIRING = 0.15;
 /** Below this block-mean speed the engine stands (no slew, no order), rpm. */
 export const STANDSTILL_RPM = 20;
 const FRAME_S = 0.05;
+/** The filter's output is kept at about this rate (at least 10× its widest bandwidth in use), Hz. */
+const MEASURE_RATE_HZ = 500;
 const MERGE_GAP_S = 0.5;
 const CROSSING_S = 3;
 
@@ -201,6 +203,8 @@ function spanKind(rpm: Float64Array, a: number, b: number, idle: number): SpanKi
 /** The firing order measured by the filter over one span, sample by sample (rad/s, rpm). */
 export interface SpanMeasure {
   span: FastSpan;
+  /** Stored every `stride`-th sample of the span (the envelopes are smooth far below fs). */
+  stride: number;
   /** Crank speed of each sample's slow trend, rpm. */
   rpm: Float64Array;
   /** Complex 0-peak firing-order amplitudes, rad/s, same phase reference on both channels. */
@@ -230,8 +234,8 @@ const ENBW = enbwFactor(TRANSIENT_FILTER.poles);
 
 /**
  * Measures the firing order over `span` of one stretch of log (arrays of the stretch; `angleRad`
- * its crank angle). The filter runs over the span widened by a margin (3 bandwidth periods, at
- * most 10 s) so only the stretch's own ends are the filter's ends. Each channel's slow trend
+ * its crank angle). The filter runs over the span widened by a margin (2 periods of the trend's
+ * bandwidth, at most 3 s) so only the stretch's own ends are the filter's ends. Each channel's slow trend
  * (the smoother at 0.1 × q orders) is removed first, then the order is extracted at
  * TRANSIENT_FILTER's bandwidth. The gearbox noise is what remains of the gearbox signal after the
  * trend and the extracted order, spread evenly up to fs/2 and taken through the filter's band.
@@ -252,7 +256,10 @@ export function measureSpan(args: {
       TRANSIENT_FILTER.minBandwidthHz,
       (TRANSIENT_FILTER.bandwidthOrders * Math.abs(radS)) / (2 * Math.PI),
     );
-  const margin = (i: number) => Math.ceil(fs * Math.min(10, 3 / bwAt(crankRadS[i]!)));
+  // Two periods of the (narrower) trend bandwidth: the smoother's memory has died out by then.
+  const trendBw = (radS: number) =>
+    Math.max(TRANSIENT_FILTER.minBandwidthHz, (0.1 * q * Math.abs(radS)) / (2 * Math.PI));
+  const margin = (i: number) => Math.ceil(fs * Math.min(3, 2 / trendBw(crankRadS[i]!)));
   const a = Math.max(0, span.startIndex - margin(span.startIndex));
   const b = Math.min(n, span.endIndex + margin(Math.max(span.startIndex, span.endIndex - 1)));
   const c = crankRadS.subarray(a, b);
@@ -290,9 +297,11 @@ export function measureSpan(args: {
   };
   const ce = voldKalmanOrder({ signal: cRes, ...orderArgs });
   const ge = voldKalmanOrder({ signal: gRes, ...orderArgs });
-  const len = span.endIndex - span.startIndex;
+  const stride = Math.max(1, Math.floor(fs / MEASURE_RATE_HZ));
+  const len = Math.ceil((span.endIndex - span.startIndex) / stride);
   const out: SpanMeasure = {
     span,
+    stride,
     rpm: new Float64Array(len),
     cRe: new Float64Array(len),
     cIm: new Float64Array(len),
@@ -304,7 +313,7 @@ export function measureSpan(args: {
   const tFirst = timeS[0]!;
   const tLast = timeS[n - 1]!;
   for (let j = 0; j < len; j++) {
-    const k = span.startIndex + j - a;
+    const k = span.startIndex + j * stride - a;
     const w = cTrend[k]!;
     const bw = bwAt(w);
     out.rpm[j] = w * RPM_PER_RAD_S;
@@ -313,7 +322,7 @@ export function measureSpan(args: {
     out.cIm[j] = 2 * ce.im[k]!;
     out.gRe[j] = 2 * ge.re[k]!;
     out.gIm[j] = 2 * ge.im[k]!;
-    const t = timeS[span.startIndex + j]!;
+    const t = timeS[span.startIndex + j * stride]!;
     const orderHz = (q * Math.abs(w)) / (2 * Math.PI);
     const k0 = Math.max(0, k - 1);
     const k1 = Math.min(c.length - 1, k + 1);
@@ -328,7 +337,7 @@ export function measureSpan(args: {
   const r2: number[] = [];
   for (let j = 0; j < len; j += 1 + (len >> 15)) {
     if (out.unresolved[j]) continue;
-    const k = span.startIndex + j - a;
+    const k = span.startIndex + j * stride - a;
     const ph = q * th[k]!;
     const r = gRes[k]! - 2 * (ge.re[k]! * Math.cos(ph) - ge.im[k]! * Math.sin(ph));
     r2.push(r * r);
