@@ -180,6 +180,14 @@ describe("engine stop 800 → 200 rpm in 3 s through a damper resonance at 445 r
   });
 });
 
+it("transients: false gives the blocks-only result (no transient, events or twist; every bin from the blocks)", () => {
+  const v = run(log(stopRpm, 12), { transients: false });
+  expect(v.transient).toBeUndefined();
+  expect(v.events).toBeUndefined();
+  expect(v.twist).toBeUndefined();
+  expect(v.isolation.every((p) => p.method === "blocks")).toBe(true);
+});
+
 describe("engine start: cranking at 250 rpm, 250 → 900 rpm in 2.6 s, settling at 800 rpm", () => {
   const v = run(log(startRpm, 12));
 
@@ -245,6 +253,7 @@ describe("fast run-up 1000 → 6000 rpm in 5 s against a slow one (50 rpm/s) of 
     const filterBins = fast.value.isolation.filter((p) => p.method === "filter");
     expect(Math.min(...filterBins.map((p) => p.rpm))).toBeLessThanOrEqual(1100);
     expect(Math.max(...filterBins.map((p) => p.rpm))).toBeGreaterThan(2500);
+    expect(fast.value.events).toEqual([]);
     if (!slow.ok) throw new Error(slow.error.message);
     expect(slow.value.transient!.spans).toHaveLength(0);
   });
