@@ -127,7 +127,7 @@ export function unresolvedReason(
   let best = 1;
   for (let c = 2; c <= 4; c++) if (counts[c]! > counts[best]!) best = c;
   if (counts[best] === 0) return null;
-  const at = `below ${lowestRpm - binRpm} rpm`;
+  const at = `below ${lowestRpm - binRpm / 2} rpm`;
   switch (best) {
     case 1:
       return `${at} the firing order's frequency is within ${RESOLVE_RATIO} times the order filter's bandwidth, too close to the speed's own slow changes to be told apart`;

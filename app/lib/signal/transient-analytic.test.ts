@@ -188,6 +188,26 @@ it("transients: false gives the blocks-only result (no transient, events or twis
   expect(v.isolation.every((p) => p.method === "blocks")).toBe(true);
 });
 
+it("a log split into sections: the stop is found in its own section, times in the log's terms", () => {
+  const l = log(stopRpm, 12);
+  // Two sections with the cut in the idle (ingest-repairs.ts splits at a gap too long to repair).
+  const cut = 3 * FS;
+  l.sections = [
+    { startIndex: 0, endIndex: cut, startS: 0, endS: l.timeS[cut - 1]! },
+    {
+      startIndex: cut,
+      endIndex: l.timeS.length,
+      startS: l.timeS[cut]!,
+      endS: l.timeS[l.timeS.length - 1]!,
+    },
+  ];
+  const v = run(l);
+  const stops = v.events!.filter((e) => e.kind === "stop");
+  expect(stops).toHaveLength(1);
+  expect(Math.abs(stops[0]!.startS - 6)).toBeLessThan(0.3);
+  expect(Math.abs(stops[0]!.resonanceRpm! / PEAK_RPM - 1)).toBeLessThan(0.05);
+});
+
 describe("engine start: cranking at 250 rpm, 250 → 900 rpm in 2.6 s, settling at 800 rpm", () => {
   const v = run(log(startRpm, 12));
 
