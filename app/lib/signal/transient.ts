@@ -18,6 +18,7 @@
  */
 import { indexAtAngle } from "./angle-grid.ts";
 import { RPM_PER_RAD_S } from "./firing-order.ts";
+import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
 import {
   passbandGain,
   voldKalmanLowpass,
@@ -49,6 +50,8 @@ export const STANDSTILL_RPM = 20;
 const FRAME_S = 0.05;
 /** The filter's output is kept at about this rate (at least 10× its widest bandwidth in use), Hz. */
 const MEASURE_RATE_HZ = 500;
+/** The filter runs at no less than this many times the order's highest frequency in a span. */
+const DECIMATE_RATIO = 10;
 const MERGE_GAP_S = 0.5;
 const CROSSING_S = 3;
 
@@ -260,11 +263,28 @@ export function measureSpan(args: {
   const trendBw = (radS: number) =>
     Math.max(TRANSIENT_FILTER.minBandwidthHz, (0.1 * q * Math.abs(radS)) / (2 * Math.PI));
   const margin = (i: number) => Math.ceil(fs * Math.min(3, 2 / trendBw(crankRadS[i]!)));
-  const a = Math.max(0, span.startIndex - margin(span.startIndex));
+  const aWanted = Math.max(0, span.startIndex - margin(span.startIndex));
   const b = Math.min(n, span.endIndex + margin(Math.max(span.startIndex, span.endIndex - 1)));
-  const c = crankRadS.subarray(a, b);
-  const g = gearboxRadS.subarray(a, b);
-  const th = angleRad.subarray(a, b);
+  // Decimation by D (anti-alias: zero-phase 4th-order Butterworth at 0.4 × the new rate) so the
+  // new rate is at least DECIMATE_RATIO × the order's highest frequency in the range: the
+  // filter's cost then follows the order, not the logger's rate.
+  let top = 0;
+  for (let i = aWanted; i < b; i++) top = Math.max(top, Math.abs(crankRadS[i]!));
+  const topOrderHz = Math.max(1, (q * top) / (2 * Math.PI));
+  const D = Math.max(1, Math.floor(fs / (DECIMATE_RATIO * topOrderHz)));
+  const a = span.startIndex - D * Math.floor((span.startIndex - aWanted) / D);
+  const fsd = fs / D;
+  const lp = D > 1 ? butterworthLowpass4((0.4 * fs) / D, fs) : [];
+  const pick = (x: Float64Array, filter: boolean) => {
+    const y = filter && lp.length ? filtfilt(x.subarray(a, b), lp) : x.subarray(a, b);
+    if (D === 1) return y;
+    const out = new Float64Array(Math.ceil((b - a) / D));
+    for (let k = 0; k < out.length; k++) out[k] = y[k * D]!;
+    return out;
+  };
+  const c = pick(crankRadS, true);
+  const g = pick(gearboxRadS, true);
+  const th = pick(angleRad, false);
   const trendOpts = {
     bandwidthOrders: 0.1 * q,
     minBandwidthHz: TRANSIENT_FILTER.minBandwidthHz,
@@ -273,13 +293,13 @@ export function measureSpan(args: {
   const cTrend = voldKalmanLowpass({
     signal: c,
     shaftRadS: c,
-    sampleRateHz: fs,
+    sampleRateHz: fsd,
     options: trendOpts,
   });
   const gTrend = voldKalmanLowpass({
     signal: g,
     shaftRadS: c,
-    sampleRateHz: fs,
+    sampleRateHz: fsd,
     options: trendOpts,
   });
   const cRes = new Float64Array(c.length);
@@ -292,12 +312,13 @@ export function measureSpan(args: {
     angleRad: th,
     shaftRadS: cTrend,
     order: q,
-    sampleRateHz: fs,
+    sampleRateHz: fsd,
     options: TRANSIENT_FILTER,
   };
   const ce = voldKalmanOrder({ signal: cRes, ...orderArgs });
   const ge = voldKalmanOrder({ signal: gRes, ...orderArgs });
-  const stride = Math.max(1, Math.floor(fs / MEASURE_RATE_HZ));
+  const strideD = Math.max(1, Math.floor(fsd / MEASURE_RATE_HZ));
+  const stride = strideD * D;
   const len = Math.ceil((span.endIndex - span.startIndex) / stride);
   const out: SpanMeasure = {
     span,
@@ -313,7 +334,7 @@ export function measureSpan(args: {
   const tFirst = timeS[0]!;
   const tLast = timeS[n - 1]!;
   for (let j = 0; j < len; j++) {
-    const k = span.startIndex + j * stride - a;
+    const k = (span.startIndex - a) / D + j * strideD;
     const w = cTrend[k]!;
     const bw = bwAt(w);
     out.rpm[j] = w * RPM_PER_RAD_S;
@@ -326,7 +347,7 @@ export function measureSpan(args: {
     const orderHz = (q * Math.abs(w)) / (2 * Math.PI);
     const k0 = Math.max(0, k - 1);
     const k1 = Math.min(c.length - 1, k + 1);
-    const slew = Math.abs(cTrend[k1]! - cTrend[k0]!) * (fs / Math.max(1, k1 - k0));
+    const slew = Math.abs(cTrend[k1]! - cTrend[k0]!) * (fsd / Math.max(1, k1 - k0));
     if (orderHz < RESOLVE_RATIO * bw) out.unresolved[j] = 1;
     else if (slew > MAX_CHANGE_PER_FIRING * Math.abs(w) * orderHz) out.unresolved[j] = 3;
     else if (t - tFirst < 1 / bw || tLast - t < 1 / bw) out.unresolved[j] = 2;
@@ -337,7 +358,7 @@ export function measureSpan(args: {
   const r2: number[] = [];
   for (let j = 0; j < len; j += 1 + (len >> 15)) {
     if (out.unresolved[j]) continue;
-    const k = span.startIndex + j * stride - a;
+    const k = (span.startIndex - a) / D + j * strideD;
     const ph = q * th[k]!;
     const r = gRes[k]! - 2 * (ge.re[k]! * Math.cos(ph) - ge.im[k]! * Math.sin(ph));
     r2.push(r * r);
@@ -346,7 +367,7 @@ export function measureSpan(args: {
   const sigma = Math.sqrt((r2[r2.length >> 1] ?? 0) / 0.455);
   for (let j = 0; j < len; j++) {
     const bw = bwAt(out.rpm[j]! / RPM_PER_RAD_S);
-    out.noiseRadS[j] = 2 * sigma * Math.sqrt((ENBW * bw) / fs);
+    out.noiseRadS[j] = 2 * sigma * Math.sqrt((ENBW * bw) / fsd);
   }
   return out;
 }
