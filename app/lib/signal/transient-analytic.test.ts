@@ -141,7 +141,7 @@ describe("engine stop 800 → 200 rpm in 3 s through a damper resonance at 445 r
     expect(v.transient!.unresolvedReason).toMatch(/below \d+ rpm/);
   });
 
-  it("the stop event: its span, time near resonance (from the profile) and peak gearbox acceleration (analytic derivative)", () => {
+  it("the stop event: its span, time near resonance (the profile's, ±0.02 s) and peak gearbox acceleration (the analytic derivative, ±5 %)", () => {
     const stops = v.events!.filter((e) => e.kind === "stop");
     expect(stops).toHaveLength(1);
     const ev = stops[0]!;
@@ -211,7 +211,7 @@ it("a log split into sections: the stop is found in its own section, times in th
 describe("engine start: cranking at 250 rpm, 250 → 900 rpm in 2.6 s, settling at 800 rpm", () => {
   const v = run(log(startRpm, 12));
 
-  it("resonance within 5 % of the formula's peak (Harris ch. 30), and the start event", () => {
+  it("resonance within 5 % of the formula's peak (Harris ch. 30), and the start event: time near resonance (the profile's, ±0.02 s), peak gearbox acceleration (the analytic derivative, ±5 %)", () => {
     expect(v.resonance).not.toBeNull();
     expect(Math.abs(v.resonance!.rpm / PEAK_RPM - 1)).toBeLessThan(0.05);
     const starts = v.events!.filter((e) => e.kind === "start");
