@@ -15,7 +15,7 @@
 import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
 import { NOISE_MARGIN } from "./isolation.ts";
 import type { TransientEvent } from "./result-schema.ts";
-import type { SpanMeasure } from "./transient.ts";
+import type { SpanMeasure } from "./span-measure.ts";
 import { peakToPeak, relativeTwistDeg, TWIST_DRIFT_CUTOFF_HZ } from "./twist.ts";
 
 /** Half-width of the band around resonanceRpm counted as "near resonance", fraction. */

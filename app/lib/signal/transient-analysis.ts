@@ -26,11 +26,10 @@ import {
   SLEW_REFERENCE_RPM,
   slewLimitRpmS,
   TRANSIENT_FILTER,
-  measureSpan,
   RESOLVE_RATIO,
   STANDSTILL_RPM,
-  type SpanMeasure,
 } from "./transient.ts";
+import { measureSpan, type SpanMeasure } from "./span-measure.ts";
 import { blocksOutside, filterIsolation, filterTwist, mergeByRpm } from "./transient-curves.ts";
 import { TWIST_DRIFT_CUTOFF_HZ, twistCurve } from "./twist.ts";
 import type { DriveLog } from "./types.ts";

@@ -13,7 +13,7 @@
 import { NOISE_MARGIN, type IsolationPoint } from "./isolation.ts";
 import { round } from "./order-curves.ts";
 import type { TrackedBlocks } from "./order-tracking.ts";
-import type { SpanMeasure } from "./transient.ts";
+import type { SpanMeasure } from "./span-measure.ts";
 import { twistAmplitudeDeg, type TwistPoint } from "./twist.ts";
 
 export type Method = "blocks" | "filter";

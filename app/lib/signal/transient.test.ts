@@ -5,7 +5,8 @@
 import { describe, expect, it } from "vitest";
 import { integrateAngle } from "./angle-grid.ts";
 import type { TrackedBlocks } from "./order-tracking.ts";
-import { filterGainAt, findFastSpans, slewLimitRpmS, TRANSIENT_FILTER } from "./transient.ts";
+import { filterGainAt } from "./span-measure.ts";
+import { findFastSpans, slewLimitRpmS, TRANSIENT_FILTER } from "./transient.ts";
 import { blocksOutside, mergeByRpm } from "./transient-curves.ts";
 
 const RAD_PER_RPM = (2 * Math.PI) / 60;
