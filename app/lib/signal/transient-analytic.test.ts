@@ -186,6 +186,8 @@ it("transients: false gives the blocks-only result (no transient, events or twis
   expect(v.events).toBeUndefined();
   expect(v.twist).toBeUndefined();
   expect(v.isolation.every((p) => p.method === "blocks")).toBe(true);
+  const bad = analyseDriveLog(log(stopRpm, 12), { transients: "yes" as never });
+  expect(!bad.ok && bad.error.code).toBe("invalid_option");
 });
 
 it("a log split into sections: the stop is found in its own section, times in the log's terms", () => {
