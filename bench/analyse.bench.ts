@@ -4,6 +4,10 @@
  * function the CLI calls) and prints rows/s, MB/s, wall time per stage and peak RSS.
  * Goal on the 2-core reference machine: whole analysis < 1.5 s, peak RSS < 270 MB.
  *
+ * Then the same analysis with the transient path off (AnalysisOptions.transients = false: no
+ * order filter, events or twist) and the ratio of the two analysis times (track + spectra +
+ * results, parse excluded), so the fast path is seen not to slow the steady one.
+ *
  * BENCH_FILE=path reuses an existing log (for profiling with node --cpu-prof).
  */
 import { execFileSync } from "node:child_process";
@@ -88,6 +92,31 @@ try {
     `peak RSS: ${peakMB.toFixed(0)} MB (goal < ${GOAL_RSS_MB} MB: ${peakMB < GOAL_RSS_MB ? "met" : "NOT met"}; ${rssBeforeMB.toFixed(0)} MB before the analysis)`,
   );
   console.log(`warnings: ${outcome.value.result.warnings.map((w) => w.code).join(", ") || "none"}`);
+  const transient = outcome.value.result.transient;
+  console.log(
+    `transients: ${transient?.spans.length ?? 0} fast spans, ${outcome.value.result.events?.length ?? 0} events`,
+  );
+
+  // The analysis alone (from the first stage after parse to the end), transients on and off.
+  const analysisMs = async (analysis: { transients?: boolean }) => {
+    let from = 0;
+    const t = performance.now();
+    const out = await analyseSource({ source: file, ingest: {}, analysis }, (stage) => {
+      if (stage !== "parse" && from === 0) from = performance.now();
+    });
+    if (!out.ok) throw new Error(`${out.error.code}: ${out.error.message}`);
+    return performance.now() - (from || t);
+  };
+  // Interleaved, best of two each: the machine may be shared, so single runs vary.
+  let on = Infinity;
+  let off = Infinity;
+  for (let k = 0; k < 2; k++) {
+    off = Math.min(off, await analysisMs({ transients: false }));
+    on = Math.min(on, await analysisMs({}));
+  }
+  console.log(
+    `analysis without parse: transients on ${on.toFixed(0)} ms, off ${off.toFixed(0)} ms, on/off ${(on / off).toFixed(2)}`,
+  );
 } finally {
   if (dir) rmSync(dir, { recursive: true, force: true });
 }

@@ -23,6 +23,8 @@ interface Synth {
   zeta: number;
   noiseRpm?: number;
   gearboxFixed?: boolean;
+  /** Speed-scale error of the gearbox sensor (1.0005 reads 0.05 % high). Default 1. */
+  gearboxScale?: number;
 }
 
 export function synthLog(p: Synth): DriveLog {
@@ -45,7 +47,10 @@ export function synthLog(p: Synth): DriveLog {
     const a = p.ampRpm * RAD_PER_RPM;
     const crankAmp = p.gearboxFixed ? a / h.magnitude : a;
     crank[i] = w + crankAmp * Math.cos(p.order * theta) + noise();
-    gear[i] = w + crankAmp * h.magnitude * Math.cos(p.order * theta + h.phaseRad) + noise();
+    gear[i] =
+      (p.gearboxScale ?? 1) *
+        (w + crankAmp * h.magnitude * Math.cos(p.order * theta + h.phaseRad)) +
+      noise();
   }
   return {
     timeS,

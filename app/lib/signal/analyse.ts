@@ -5,7 +5,7 @@
 import { resolveOptions, type AnalysisOptions } from "./analysis-options.ts";
 import { RPM_PER_RAD_S } from "./firing-order.ts";
 import { findResonance, gearboxNoiseFloor, isolationCurve } from "./isolation.ts";
-import { orderCurve, orderMap, round } from "./order-curves.ts";
+import { orderBin, orderCurve, orderMap, round } from "./order-curves.ts";
 import { chooseAngleGrid, integrateAngle, MAX_SAMPLES_PER_REV } from "./angle-grid.ts";
 import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
 import { trackBlocks, type TrackedBlocks } from "./order-tracking.ts";
@@ -20,6 +20,7 @@ import {
 import { sourceBlock } from "./source-block.ts";
 import { pickSpectrumSegment, timeSpectrum } from "./time-spectrum.ts";
 import { fitTwoMassModel } from "./two-mass-model.ts";
+import { transientResult } from "./transient-analysis.ts";
 import { countText, plural } from "../base/plural.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
@@ -90,6 +91,7 @@ export function analyseDriveLog(
   if (!resolved.ok) return fail("invalid_option", resolved.message);
   const { cylinders, stroke, firingOrder: q, orders, topOrder } = resolved.value;
   const { revsPerBlock: R, overlap, binRpm, rattleLimitRadS2: limit } = resolved.value;
+  const withTransients = resolved.value.transients;
 
   const n = log.timeS.length;
   if (n < 2 || log.crankRadS.length !== n || log.gearboxRadS.length !== n)
@@ -137,14 +139,23 @@ export function analyseDriveLog(
     });
   }
   const filters = grid.lowPassHz !== null ? butterworthLowpass4(grid.lowPassHz, fs) : [];
-  const trackArgs = { grid, revsPerBlock: R, overlap, topBin: Math.ceil(topOrder * R) + 2 };
+  const trackArgs = {
+    grid,
+    revsPerBlock: R,
+    overlap,
+    topBin: Math.ceil(topOrder * R) + 2,
+    // The block twist |C − G| at the firing order (order-tracking.ts), for result.twist.
+    ...(withTransients ? { firingBin: orderBin(q, R) } : {}),
+  };
   let tracked: TrackedBlocks;
+  let wholeAngle: Float64Array | undefined; // kept for the transients (one section only)
   if (!log.sections || log.sections.length < 2) {
     const crank = filters.length ? filtfilt(log.crankRadS, filters) : log.crankRadS;
     onProgress?.("track", 0.4);
     const gearbox = filters.length ? filtfilt(log.gearboxRadS, filters) : log.gearboxRadS;
     onProgress?.("track", 0.8);
     const angle = integrateAngle(log.timeS, log.crankRadS);
+    if (withTransients) wholeAngle = angle;
     onProgress?.("track", 1);
     tracked = trackBlocks({
       timeS: log.timeS,
@@ -186,8 +197,23 @@ export function analyseDriveLog(
 
   onProgress?.("results", 0);
   const segments = sectionSegments(log);
-  const noise = gearboxNoiseFloor(tracked);
-  const isolation = isolationCurve(tracked, q, binRpm, noise);
+  // Transients: fast spans measured by the order filter, their blocks left out of the curve.
+  const part = withTransients
+    ? transientResult({
+        log,
+        angleRad: wholeAngle,
+        filters,
+        grid,
+        tracked,
+        segments,
+        order: q,
+        revsPerBlock: R,
+        binRpm,
+      })
+    : null;
+  const isolation = part
+    ? part.isolation
+    : isolationCurve(tracked, q, binRpm, gearboxNoiseFloor(tracked));
   const nearNoise = isolation.filter((p) => !p.aboveNoise).length;
   if (nearNoise > 0)
     warnings.push({
@@ -259,6 +285,7 @@ export function analyseDriveLog(
       : null,
     timeSpectrum: spectrum,
     speedTrace: sectionSpeedTrace(log),
+    ...(part ? { transient: part.transient, events: part.events, twist: part.twist } : {}),
     warnings: warnings.map(({ code, message }) => ({ code, message })),
     source: sourceBlock(log),
   };

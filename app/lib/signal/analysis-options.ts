@@ -24,6 +24,12 @@ export interface AnalysisOptions {
   rattleLimitRadS2?: number;
   /** Extra orders for order curves (beside 0.5, 1, firing order, 2× firing order). */
   orders?: number[];
+  /**
+   * Measure start, stop and fast spans with the order filter and report events and twist
+   * (docs/signal-computation.md, "Transients"). Default true; false gives the blocks-only result
+   * (no `transient`, `events`, `twist`), e.g. to time the steady path alone.
+   */
+  transients?: boolean;
 }
 
 export const DEFAULTS = {
@@ -51,6 +57,7 @@ export interface ResolvedOptions {
   orders: number[];
   /** max(TOP_ORDER_FACTOR · q, the highest of `orders`): the order map and curves stop here. */
   topOrder: number;
+  transients: boolean;
 }
 
 type Resolved = { ok: true; value: ResolvedOptions } | { ok: false; message: string };
@@ -83,6 +90,8 @@ export function resolveOptions(o: AnalysisOptions): Resolved {
   if (!isPositive(binRpm)) return invalid(`rpm bin width must be a positive number, got ${binRpm}`);
   if (!isPositive(limit))
     return invalid(`rattle limit must be a positive number of rad/s², got ${limit}`);
+  if (o.transients !== undefined && typeof o.transients !== "boolean")
+    return invalid(`transients must be true or false, got ${String(o.transients)}`);
   for (const q of o.orders ?? [])
     if (!isPositive(q)) return invalid(`orders must be positive numbers, got ${q}`);
   const firingOrder = effectiveFiringOrder(cylinders, stroke, o.firingOrder)!;
@@ -112,6 +121,7 @@ export function resolveOptions(o: AnalysisOptions): Resolved {
       rattleLimitRadS2: limit,
       orders,
       topOrder,
+      transients: o.transients ?? true,
     },
   };
 }

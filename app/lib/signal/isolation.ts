@@ -43,6 +43,8 @@ export interface IsolationPoint {
   blocks: number;
   /** False when the gearbox amplitude is within NOISE_MARGIN of its noise floor (dB is then a lower bound). */
   aboveNoise: boolean;
+  /** "blocks" (fixed blocks) or "filter" (the order filter over fast spans, transient-curves.ts). */
+  method?: "blocks" | "filter";
 }
 
 /** Isolation per rpm bin at `order` (dB), with the noise check. Bins with a zero amplitude are left out. */
@@ -76,6 +78,7 @@ export function isolationCurve(
       dB: round(20 * Math.log10(c / g), 2),
       blocks: curve.blocks[i]!,
       aboveNoise: !(g < NOISE_MARGIN * floor),
+      method: "blocks",
     });
   });
   return out;

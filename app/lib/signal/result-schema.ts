@@ -59,6 +59,13 @@ export const transientEventSchema = z.object({
 export const transientSchema = z.object({
   /** A segment whose engine speed changes faster than this is measured by the filter, rpm/s. */
   slewThresholdRpmS: z.number().positive(),
+  /**
+   * The slew rule is |dn/dt| > maxSpeedChangePerBlock · n² / (60 · revsPerBlock): speed-dependent;
+   * slewThresholdRpmS is its value at this engine speed, rpm. Optional (added with the rule).
+   */
+  slewReferenceRpm: z.number().positive().optional(),
+  /** Largest speed change within one fixed block before a span is fast, fraction (0.05). */
+  maxSpeedChangePerBlock: z.number().positive().optional(),
   filter: z.object({
     method: z.literal("vold-kalman-2"),
     poles: z.int().min(1).max(3),

@@ -29,7 +29,14 @@ export function sectionsOf(log: DriveLog): LogSection[] {
 export function trackSections(
   log: DriveLog,
   filters: readonly Biquad[],
-  args: { grid: AngleGrid; revsPerBlock: number; overlap: number; topBin: number },
+  args: {
+    grid: AngleGrid;
+    revsPerBlock: number;
+    overlap: number;
+    topBin: number;
+    /** Firing-order bin for the block twist (order-tracking.ts); absent: no twist. */
+    firingBin?: number;
+  },
   onProgress?: (fraction: number) => void,
 ): { tracked: TrackedBlocks | null; skipped: LogSection[] } {
   const parts = sectionsOf(log);
@@ -71,6 +78,7 @@ export function mergeTracked(parts: TrackedBlocks[], template: TrackedBlocks): T
     blockEndS: new Float64Array(count),
     crankAmp: new Float64Array(count * bins),
     gearboxAmp: new Float64Array(count * bins),
+    twistRadS: template.twistRadS ? new Float64Array(count) : undefined,
     droppedSlowBlocks: 0,
     samplesPerRevRange: [0, 0],
   };
@@ -83,6 +91,7 @@ export function mergeTracked(parts: TrackedBlocks[], template: TrackedBlocks): T
     out.blockEndS.set(p.blockEndS, at);
     out.crankAmp.set(p.crankAmp, at * bins);
     out.gearboxAmp.set(p.gearboxAmp, at * bins);
+    if (out.twistRadS && p.twistRadS) out.twistRadS.set(p.twistRadS, at);
     out.droppedSlowBlocks += p.droppedSlowBlocks;
     if (p.blockCount > 0) {
       lo = Math.min(lo, p.samplesPerRevRange[0]);

@@ -1,0 +1,225 @@
+/**
+ * The transient part of the analysis (docs/signal-computation.md, "Transients"), section by
+ * section like the blocks (section-analysis.ts): fast spans (transient.ts), the order filter over
+ * each, the start and stop events (events.ts) and the adaptive blocks (adaptive-blocks.ts).
+ * Indices and times come back in the whole log's terms.
+ */
+import { adaptiveBlocks, type AdaptiveBlock } from "./adaptive-blocks.ts";
+import { integrateAngle, type AngleGrid } from "./angle-grid.ts";
+import { transientEvents } from "./events.ts";
+import {
+  gearboxNoiseFloor,
+  isolationCurve,
+  NOISE_MARGIN,
+  type IsolationPoint,
+} from "./isolation.ts";
+import { filtfilt, type Biquad } from "./lowpass.ts";
+import { round } from "./order-curves.ts";
+import type { TrackedBlocks } from "./order-tracking.ts";
+import type { TransientEvent, TransientInfo, TwistBlock } from "./result-schema.ts";
+import type { Segment } from "./segments.ts";
+import { sectionsOf } from "./section-analysis.ts";
+import {
+  findFastSpans,
+  MAX_CHANGE_PER_FIRING,
+  MAX_SPEED_CHANGE_PER_BLOCK,
+  SLEW_REFERENCE_RPM,
+  slewLimitRpmS,
+  TRANSIENT_FILTER,
+  RESOLVE_RATIO,
+  STANDSTILL_RPM,
+} from "./transient.ts";
+import { measureSpan, type SpanMeasure } from "./span-measure.ts";
+import { blocksOutside, filterIsolation, filterTwist, mergeByRpm } from "./transient-curves.ts";
+import { TWIST_DRIFT_CUTOFF_HZ, twistCurve } from "./twist.ts";
+import type { DriveLog } from "./types.ts";
+
+export interface TransientPart {
+  /** Spans with times in the log's terms (indices relative to their section). */
+  measures: SpanMeasure[];
+  events: TransientEvent[];
+  blocks: AdaptiveBlock[];
+}
+
+export function analyseTransients(args: {
+  log: DriveLog;
+  /** The whole log's crank angle when it has one section (saves integrating it again). */
+  angleRad?: Float64Array;
+  filters: readonly Biquad[];
+  grid: AngleGrid;
+  order: number;
+  revsPerBlock: number;
+  idleRpm: number | null;
+}): TransientPart {
+  const { log, order: q } = args;
+  const fs = log.sampleRateHz;
+  const out: TransientPart = { measures: [], events: [], blocks: [] };
+  for (const s of sectionsOf(log)) {
+    const timeS = log.timeS.subarray(s.startIndex, s.endIndex);
+    const crankRadS = log.crankRadS.subarray(s.startIndex, s.endIndex);
+    const gearboxRadS = log.gearboxRadS.subarray(s.startIndex, s.endIndex);
+    if (timeS.length < 4) continue;
+    const angleRad =
+      args.angleRad && timeS.length === log.timeS.length
+        ? args.angleRad
+        : integrateAngle(timeS, crankRadS);
+    const spans = findFastSpans({
+      timeS,
+      angleRad,
+      revsPerBlock: args.revsPerBlock,
+      idleRpm: args.idleRpm,
+    });
+    const measures = spans.map((span) =>
+      measureSpan({ timeS, angleRad, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, span }),
+    );
+    out.measures.push(...measures);
+    out.events.push(
+      ...transientEvents({ timeS, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, measures }),
+    );
+    for (const span of spans) {
+      // The adaptive blocks read the same low-passed channels as the fixed blocks.
+      const pad = Math.ceil(0.5 * fs);
+      const a = Math.max(0, span.startIndex - pad);
+      const b = Math.min(timeS.length, span.endIndex + pad);
+      const lp = (x: Float64Array) => (args.filters.length ? filtfilt(x, args.filters) : x);
+      out.blocks.push(
+        ...adaptiveBlocks({
+          timeS: timeS.subarray(a, b),
+          angleRad: angleRad.subarray(a, b),
+          crankRadS: lp(crankRadS.subarray(a, b)),
+          gearboxRadS: lp(gearboxRadS.subarray(a, b)),
+          grid: args.grid,
+          order: q,
+          spans: [{ startIndex: span.startIndex - a, endIndex: span.endIndex - a }],
+          maxRevs: args.revsPerBlock,
+        }),
+      );
+    }
+  }
+  return out;
+}
+
+/**
+ * Why the isolation curve stops at `lowestRpm`: the commonest reason among the filter's samples
+ * in the bin below it (above standstill). Null when the filter has no samples there (the log
+ * reaches no lower, or only the blocks measured it).
+ */
+export function unresolvedReason(
+  measures: readonly SpanMeasure[],
+  lowestRpm: number | null,
+  binRpm: number,
+): string | null {
+  if (lowestRpm === null) return null;
+  const below = lowestRpm - binRpm / 2;
+  const counts = [0, 0, 0, 0, 0];
+  for (const m of measures)
+    for (let j = 0; j < m.rpm.length; j++) {
+      const rpm = m.rpm[j]!;
+      if (rpm >= below || rpm < Math.max(STANDSTILL_RPM, below - binRpm)) continue;
+      let code = m.unresolved[j]!;
+      if (code === 0) {
+        const g = Math.hypot(m.gRe[j]!, m.gIm[j]!);
+        code = g < NOISE_MARGIN * m.noiseRadS[j]! ? 4 : 0;
+      }
+      counts[code]!++;
+    }
+  let best = 1;
+  for (let c = 2; c <= 4; c++) if (counts[c]! > counts[best]!) best = c;
+  if (counts[best] === 0) return null;
+  const at = `below ${lowestRpm - binRpm / 2} rpm`;
+  switch (best) {
+    case 1:
+      return `${at} the firing order's frequency is within ${RESOLVE_RATIO} times the order filter's bandwidth, too close to the speed's own slow changes to be told apart`;
+    case 2:
+      return `${at} the log starts or ends within the order filter's settling time, so the firing order cannot be read there`;
+    case 3:
+      return `${at} the engine speed changes by more than ${MAX_CHANGE_PER_FIRING * 100} % within one firing period, too fast for the order filter`;
+    default:
+      return `${at} the gearbox firing-order amplitude is within the sensor noise`;
+  }
+}
+
+/** Lowest bin above the noise, rpm; null when none is. */
+export function lowestResolved(points: readonly IsolationPoint[]): number | null {
+  const measured = points.filter((p) => p.aboveNoise);
+  return measured.length ? Math.min(...measured.map((p) => p.rpm)) : null;
+}
+
+/** Idle speed for the span kinds: the longest idle segment's mean, or null. */
+function idleOf(segments: readonly Segment[]): number | null {
+  const idle = segments
+    .filter((s) => s.kind === "idle")
+    .sort((a, b) => b.endS - b.startS - (a.endS - a.startS));
+  return idle[0]?.meanRpm ?? null;
+}
+
+/**
+ * Everything the result takes from the transients: the merged isolation curve (blocks outside
+ * the fast spans, the filter inside; transient-curves.ts), `transient`, `events` and `twist`.
+ */
+export function transientResult(args: {
+  log: DriveLog;
+  angleRad?: Float64Array;
+  filters: readonly Biquad[];
+  grid: AngleGrid;
+  tracked: TrackedBlocks;
+  segments: readonly Segment[];
+  order: number;
+  revsPerBlock: number;
+  binRpm: number;
+}): {
+  isolation: IsolationPoint[];
+  transient: TransientInfo;
+  events: TransientEvent[];
+  twist: TwistBlock;
+} {
+  const { order: q, binRpm, revsPerBlock: R } = args;
+  const part = analyseTransients({ ...args, idleRpm: idleOf(args.segments) });
+  const spans = part.measures.map((m) => m.span);
+  const steady = blocksOutside(args.tracked, spans);
+  const binArgs = { order: q, binRpm, sampleRateHz: args.log.sampleRateHz, revsPerBlock: R };
+  const isolation = mergeByRpm(
+    isolationCurve(steady, q, binRpm, gearboxNoiseFloor(steady)),
+    filterIsolation(part.measures, binArgs),
+  );
+  const lowest = lowestResolved(isolation);
+  const r3 = (x: number) => round(x, 3);
+  return {
+    isolation,
+    transient: {
+      slewThresholdRpmS: round(slewLimitRpmS(SLEW_REFERENCE_RPM, R), 1),
+      slewReferenceRpm: SLEW_REFERENCE_RPM,
+      maxSpeedChangePerBlock: MAX_SPEED_CHANGE_PER_BLOCK,
+      filter: {
+        method: "vold-kalman-2",
+        poles: TRANSIENT_FILTER.poles,
+        bandwidthOrders: TRANSIENT_FILTER.bandwidthOrders,
+        minBandwidthHz: TRANSIENT_FILTER.minBandwidthHz,
+      },
+      spans: spans.map((s) => ({ kind: s.kind, startS: r3(s.startS), endS: r3(s.endS) })),
+      lowestResolvedRpm: lowest,
+      unresolvedReason: unresolvedReason(part.measures, lowest, binRpm),
+      blocks: part.blocks.map((b) => ({
+        startS: r3(b.startS),
+        endS: r3(b.endS),
+        rpm: round(b.rpm, 1),
+        revs: b.revs,
+        orderResolution: round(b.orderResolution, 4),
+        crankRadS: round(b.crankRadS, 5),
+        gearboxRadS: round(b.gearboxRadS, 5),
+      })),
+    },
+    events: part.events,
+    twist: {
+      curve: mergeByRpm(
+        twistCurve(steady, q, binRpm).map((p) => ({
+          ...p,
+          deg: round(p.deg, 4),
+          method: "blocks" as const,
+        })),
+        filterTwist(part.measures, binArgs),
+      ),
+      driftCutoffHz: TWIST_DRIFT_CUTOFF_HZ,
+    },
+  };
+}
