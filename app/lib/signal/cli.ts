@@ -66,6 +66,19 @@ export function summarise(file: string, { result: r, log }: FileAnalysis): strin
     lines.push(
       `  two-mass model fit: natural frequency ${f1(r.model.naturalFrequencyHz)} Hz (${f0(r.model.resonanceRpm)} rpm at order ${r.firingOrder}), damping ratio ${r.model.dampingRatio.toFixed(3)}`,
     );
+  for (const e of r.events ?? []) {
+    const res =
+      e.resonanceRpm === null
+        ? "resonance not resolved"
+        : `resonance ${f0(e.resonanceRpm)} rpm, peak amplification ${f1(e.peakAmplificationDb ?? 0)} dB, ${(e.timeNearResonanceS ?? 0).toFixed(2)} s within ±10 % of it`;
+    lines.push(
+      `  engine ${e.kind} ${e.startS.toFixed(1)}–${e.endS.toFixed(1)} s: ${res}; gearbox angular acceleration peak ${f0(e.peakGearboxAngAccelRadS2)} rad/s², twist ${f1(e.twistPeakToPeakDeg)}° peak to peak`,
+    );
+  }
+  if (r.transient?.lowestResolvedRpm)
+    lines.push(
+      `  firing order resolved down to ${f0(r.transient.lowestResolvedRpm)} rpm${r.transient.unresolvedReason ? ` (${r.transient.unresolvedReason})` : ""}`,
+    );
   if (r.idle) {
     const i = r.idle;
     lines.push(
@@ -73,7 +86,7 @@ export function summarise(file: string, { result: r, log }: FileAnalysis): strin
     );
   } else lines.push("  rattle check: no idle segment in this log");
   for (const w of r.warnings) lines.push(`  warning: ${w.message} [${w.code}]`);
-  if (r.idle || r.resonance) {
+  if (r.idle || r.resonance || (r.events ?? []).length > 0) {
     lines.push(
       "  caution: verdicts come from a recording; road tests belong on a closed course with trained staff, and damper or clutch work is licensed workshop work.",
     );
