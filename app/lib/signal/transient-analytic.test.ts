@@ -7,7 +7,7 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyseDriveLog } from "./analyse.ts";
-import { synthLog } from "./analyse.test.ts";
+import { synthLog } from "../../../tests/support/synth-log.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
 import { transferFunction, transmissibility } from "./two-mass-model.ts";
 import type { DriveLog } from "./types.ts";
