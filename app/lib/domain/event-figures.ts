@@ -13,6 +13,8 @@ export interface EventFigure {
   /** dB, positive = amplified; null when the firing order was not resolved in the event. */
   peakAmplificationDb: number | null;
   twistPeakToPeakDeg: number;
+  /** Engine speed of least isolation in the event, rpm; null when not resolved. */
+  resonanceRpm: number | null;
 }
 
 export interface LargestEventFigures {
