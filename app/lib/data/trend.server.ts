@@ -9,25 +9,14 @@ import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-driv
 import { transientFiguresOf } from "../analyses/transient-figures.server";
 import { db } from "../infra/db.server";
 import { NotFound } from "../domain/errors";
-import { vehicleTrend, type TrendLogInput, type VehicleTrend } from "../domain/trend";
+import {
+  isolationNear,
+  vehicleTrend,
+  type TrendLogInput,
+  type VehicleTrend,
+} from "../domain/trend";
 import { teamData } from "./team-data.server";
 import { vehicleData } from "./vehicles.server";
-
-/** The isolation bin nearest `rpm` within one bin width, measured above the noise floor; null if none. */
-export function isolationNear(
-  points: readonly { rpm: number; dB: number; aboveNoise: boolean }[],
-  rpm: number,
-  binRpm: number,
-): number | null {
-  let best: { rpm: number; dB: number } | null = null;
-  for (const p of points) {
-    if (!p.aboveNoise || Math.abs(p.rpm - rpm) > binRpm + 1e-9) continue;
-    const d = Math.abs(p.rpm - rpm);
-    // Ties (the reference halfway between two bins) go to the lower bin, so the answer is stable.
-    if (!best || d < Math.abs(best.rpm - rpm) - 1e-9) best = p;
-  }
-  return best ? best.dB : null;
-}
 
 /** The vehicle's trend, or null when the vehicle is not the team's. */
 export async function loadVehicleTrend(

@@ -1,5 +1,11 @@
 import { describe, expect, it } from "vitest";
-import { DEFAULT_TREND_THRESHOLDS, trendDateText, vehicleTrend, type TrendLogInput } from "./trend";
+import {
+  DEFAULT_TREND_THRESHOLDS,
+  isolationNear,
+  trendDateText,
+  vehicleTrend,
+  type TrendLogInput,
+} from "./trend";
 
 // The trend's rules are Twistlog's product rule (docs/trend.md); every expected number below is
 // computed by hand from the inputs.
@@ -149,5 +155,23 @@ describe("vehicleTrend (docs/trend.md)", () => {
   it("writes dates as day, month and year", () => {
     expect(trendDateText("2026-11-04")).toBe("4 Nov 2026");
     expect(trendDateText("2027-01-31")).toBe("31 Jan 2027");
+  });
+});
+
+describe("isolationNear (docs/trend.md: the nearest measured bin within one bin width)", () => {
+  const bins = [
+    { rpm: 1450, dB: 10, aboveNoise: true },
+    { rpm: 1500, dB: 11, aboveNoise: false },
+    { rpm: 1550, dB: 12, aboveNoise: true },
+  ];
+  it("skips a bin within the noise floor and takes the nearest measured one", () => {
+    // 1500 is a lower bound; 1450 and 1550 are both 50 rpm away: the lower one, 10 dB.
+    expect(isolationNear(bins, 1500, 50)).toBe(10);
+    expect(isolationNear(bins, 1540, 50)).toBe(12);
+  });
+  it("answers null when no measured bin lies within one bin width", () => {
+    expect(isolationNear(bins, 1620, 50)).toBe(null); // 1550 is 70 rpm away
+    expect(isolationNear(bins, 1600, 50)).toBe(12); // exactly one bin width: still counted
+    expect(isolationNear([], 1500, 50)).toBe(null);
   });
 });

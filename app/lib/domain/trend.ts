@@ -125,6 +125,22 @@ const QUANTITY: Record<
   },
 };
 
+/** The isolation bin nearest `rpm` within one bin width, measured above the noise floor; null if none. */
+export function isolationNear(
+  points: readonly { rpm: number; dB: number; aboveNoise: boolean }[],
+  rpm: number,
+  binRpm: number,
+): number | null {
+  let best: { rpm: number; dB: number } | null = null;
+  for (const p of points) {
+    if (!p.aboveNoise || Math.abs(p.rpm - rpm) > binRpm + 1e-9) continue;
+    const d = Math.abs(p.rpm - rpm);
+    // Ties (the reference halfway between two bins) go to the lower bin, so the answer is stable.
+    if (!best || d < Math.abs(best.rpm - rpm) - 1e-9) best = p;
+  }
+  return best ? best.dB : null;
+}
+
 const MONTHS = "Jan Feb Mar Apr May Jun Jul Aug Sep Oct Nov Dec".split(" ");
 
 /** "2026-11-04" → "4 Nov 2026". */
