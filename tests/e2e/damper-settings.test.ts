@@ -9,6 +9,7 @@ import { signIn, snap } from "./sign-in";
 
 let browser: Browser;
 const tag = Date.now().toString(36).toUpperCase();
+let vehiclePath = "";
 
 beforeAll(async () => {
   browser = await launchBrowser();
@@ -65,8 +66,30 @@ describe("damper settings in the browser", () => {
     await travel.fill("58");
     await page.getByRole("button", { name: "Add vehicle" }).click();
     await page.waitForURL(/\/vehicles\/\d+$/);
+    vehiclePath = new URL(page.url()).pathname;
     await page.getByText("travel limit 58° stop to stop").waitFor();
     await snap(page, "travel-limit-shown");
+    await page.context().close();
+  });
+
+  it("an engineer adds a start/stop target: the form shows its own field and refuses it empty", async () => {
+    const page = await signIn(browser, "engineer@twistlog.test");
+    expect(vehiclePath).not.toBe("");
+    await page.goto(baseUrl + vehiclePath);
+    await page.getByText("Add a target").click();
+    const form = page.locator("#target-new");
+    await form.getByLabel("Name").fill("Start/stop peak");
+    await form.getByLabel("What it limits").selectOption("start-stop");
+    const maxDb = form.getByLabel(/Maximum peak amplification/);
+    await expect(form.getByLabel(/Minimum isolation/).count()).resolves.toBe(0);
+    await form.getByRole("button", { name: "Add target" }).click();
+    await expect(maxDb.getAttribute("aria-invalid")).resolves.toBe("true");
+    await form.getByText("Enter the maximum peak amplification in dB.").waitFor();
+    await maxDb.fill("8");
+    await form.getByRole("button", { name: "Add target" }).click();
+    await page.getByText("The target “Start/stop peak” is added").waitFor();
+    await page.getByText("peak amplification at engine start and stop at most 8.0 dB").waitFor();
+    await snap(page, "start-stop-target");
     await page.context().close();
   });
 });
