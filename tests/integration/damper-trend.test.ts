@@ -219,6 +219,23 @@ describe("GET /api/v1/vehicles/:vehicleId/trend", () => {
       baselineDate: "2026-11-04",
     });
     expect(Math.abs(v.flags[0]!.change - 15)).toBeLessThan(1.5);
+    // The trend read the fit from the analyses row, which saving filled from the result's model.
+    for (const [i, id] of logIds.entries()) {
+      const r = await api.viewer(`/api/v1/logs/${id}/result`);
+      const { model } = (await r.json()) as {
+        model: { naturalFrequencyHz: number; dampingRatio: number };
+      };
+      const [row] = await db
+        .select({
+          hz: analyses.modelNaturalHz,
+          zeta: analyses.modelDampingRatio,
+          peak: analyses.eventPeakDb,
+        })
+        .from(analyses)
+        .where(eq(analyses.id, v.points[i]!.analysisId));
+      expect(row).toEqual({ hz: model.naturalFrequencyHz, zeta: model.dampingRatio, peak: null });
+      expect(v.points[i]!.naturalFrequencyHz).toBe(model.naturalFrequencyHz);
+    }
     expect(v.flags[0]!.message).toMatch(/^natural frequency up 1[4-6] % since 4 Nov 2026$/);
   });
 
