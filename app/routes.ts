@@ -50,6 +50,7 @@ export default [
     route("vehicles", "routes/api.v1.vehicles.ts"),
     route("vehicles/:vehicleId", "routes/api.v1.vehicle.ts"),
     route("vehicles/:vehicleId/logs", "routes/api.v1.vehicle-logs.ts"),
+    route("vehicles/:vehicleId/trend", "routes/api.v1.vehicle-trend.ts"),
     route("logs/:logId", "routes/api.v1.log.ts"),
     route("logs/:logId/result", "routes/api.v1.log-result.ts"),
     route("logs/:logId/channels", "routes/api.v1.log-channels.ts"),

@@ -16,6 +16,8 @@ type TargetFormFields = {
   rpmTo: string;
   minDb: string;
   maxRadS2: string;
+  maxDb: string;
+  minMarginDeg: string;
   conditions: string[];
   gears: string;
 };
@@ -32,6 +34,8 @@ function defaults(t?: Target): Record<string, string | string[]> {
     rpmTo: s(t.rpmTo),
     minDb: s(t.minDb),
     maxRadS2: s(t.maxRadS2),
+    maxDb: s(t.maxDb),
+    minMarginDeg: s(t.minMarginDeg),
     conditions: t.conditions,
     gears: t.gears.map(gearCode).join(" "),
   };
@@ -43,11 +47,14 @@ export function TargetForm({
   target,
   reply,
   rattleLimitRadS2,
+  damperTravelLimitDeg,
 }: {
   id: string;
   target?: Target;
   reply: SubmissionResult<string[]> | null;
   rattleLimitRadS2: number;
+  /** The vehicle's travel limit, for the twist-margin hint; undefined: not known to the page. */
+  damperTravelLimitDeg?: number | null;
 }) {
   const [form, fields] = useSchemaForm(
     id,
@@ -59,6 +66,14 @@ export function TargetForm({
   const kind = (fields.kind.value as string | undefined) ?? target?.kind ?? "isolation";
   const showIsolation = !hydrated || kind === "isolation";
   const showRattle = !hydrated || kind === "rattle";
+  const showStartStop = !hydrated || kind === "start-stop";
+  const showTwist = !hydrated || kind === "twist-margin";
+  const travel =
+    damperTravelLimitDeg === undefined
+      ? "the vehicle's damper travel limit (set on its edit page)"
+      : damperTravelLimitDeg === null
+        ? "the vehicle's damper travel limit, which is not set yet (its edit page): until it is, this target does not apply"
+        : `the vehicle's damper travel limit, ${damperTravelLimitDeg}° stop to stop`;
   const conditionErrors = Object.values(fields.conditions.allErrors ?? {}).flat();
   return (
     <SchemaForm
@@ -79,6 +94,8 @@ export function TargetForm({
           options={[
             { value: "isolation", label: "Isolation (minimum, dB)" },
             { value: "rattle", label: "Gear rattle at idle (maximum, rad/s²)" },
+            { value: "start-stop", label: "Amplification at engine start and stop (maximum, dB)" },
+            { value: "twist-margin", label: "Twist margin to the end stops (minimum, °)" },
           ]}
         />
       </div>
@@ -112,6 +129,38 @@ export function TargetForm({
               meta={fields.maxRadS2}
               numeric
               hint={`Gearbox input at idle: the larger of the firing-order amplitude and the time-domain peak. The vehicle's rattle limit is ${rattleLimitRadS2} rad/s².`}
+            />
+          </div>
+        </fieldset>
+      ) : null}
+      {showStartStop ? (
+        <fieldset className={fieldsetClass}>
+          <legend className={legendClass}>
+            Start/stop target{hydrated ? "" : " (fill in when it limits start/stop amplification)"}
+          </legend>
+          <div className="max-w-md">
+            <InputField
+              label="Maximum peak amplification"
+              unit="dB"
+              meta={fields.maxDb}
+              numeric
+              hint="The largest amplification through the damper's resonance over the drive log's engine starts and stops (positive = the gearbox input moves more than the crank)."
+            />
+          </div>
+        </fieldset>
+      ) : null}
+      {showTwist ? (
+        <fieldset className={fieldsetClass}>
+          <legend className={legendClass}>
+            Twist-margin target{hydrated ? "" : " (fill in when it limits the twist margin)"}
+          </legend>
+          <div className="max-w-md">
+            <InputField
+              label="Minimum twist margin"
+              unit="°"
+              meta={fields.minMarginDeg}
+              numeric
+              hint={`How far the largest start/stop twist (peak to peak) must stay below ${travel}.`}
             />
           </div>
         </fieldset>

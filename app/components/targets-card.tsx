@@ -8,6 +8,13 @@ import { Card, EmptyState } from "./page";
 import { ReplyDisclosure } from "./reply-disclosure";
 import { TargetForm } from "./target-form";
 
+const kindLabels: Record<Target["kind"], string> = {
+  isolation: "Isolation ",
+  rattle: "Rattle: ",
+  "start-stop": "Start/stop: ",
+  "twist-margin": "Twist margin: ",
+};
+
 /** A target with how the vehicle's analysed drive logs fare against it. */
 export interface TargetSummary extends Target {
   /** Over the analysed drive logs the target applies to. */
@@ -31,6 +38,7 @@ export function TargetsCard({
   confirmDelete = null,
   analysedLogs,
   rattleLimitRadS2,
+  damperTravelLimitDeg,
 }: {
   vehicleId: number;
   targets: TargetSummary[];
@@ -41,6 +49,8 @@ export function TargetsCard({
   /** Drive logs of the vehicle with a finished analysis. */
   analysedLogs: number;
   rattleLimitRadS2: number;
+  /** The vehicle's damper travel limit (for the twist-margin form's hint); optional. */
+  damperTravelLimitDeg?: number | null;
 }) {
   return (
     <Card title="Targets" id="targets">
@@ -49,7 +59,7 @@ export function TargetsCard({
           <EmptyState>
             No targets yet.{" "}
             {canEdit
-              ? "Add one below: a minimum isolation over an engine-speed range, or a maximum angular acceleration at idle."
+              ? "Add one below: a minimum isolation over an engine-speed range, a maximum angular acceleration at idle, a maximum amplification at engine start and stop, or a minimum twist margin to the damper's end stops."
               : "An engineer sets the programme's targets for this vehicle."}
           </EmptyState>
         ) : (
@@ -60,7 +70,7 @@ export function TargetsCard({
                   <div>
                     <p className="font-medium text-neutral-900">{t.name}</p>
                     <p className="text-sm text-neutral-700">
-                      {t.kind === "isolation" ? "Isolation " : "Rattle: "}
+                      {kindLabels[t.kind]}
                       {limitText(t)}
                     </p>
                     <p className="text-xs text-neutral-500">{scopeText(t)}</p>
@@ -85,6 +95,7 @@ export function TargetsCard({
                         target={t}
                         reply={reply?.form === `target-${t.id}` ? reply.result : null}
                         rattleLimitRadS2={rattleLimitRadS2}
+                        damperTravelLimitDeg={damperTravelLimitDeg}
                       />
                       <DeleteTarget
                         vehicleId={vehicleId}
@@ -112,6 +123,7 @@ export function TargetsCard({
                 id="target-new"
                 reply={reply?.form === "target-new" ? reply.result : null}
                 rattleLimitRadS2={rattleLimitRadS2}
+                damperTravelLimitDeg={damperTravelLimitDeg}
               />
             </div>
           </ReplyDisclosure>

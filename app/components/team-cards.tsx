@@ -1,8 +1,16 @@
 /** The team page's cards: members, open invitations, the amplitude unit and what each role may do. */
+import type { SubmissionResult } from "@conform-to/react";
 import { Form, Link } from "react-router";
 import { roleHints, roleLabels, ROLES, type Role } from "~/lib/domain/roles";
+import {
+  TREND_REFERENCE_DEFAULT_RPM,
+  TREND_REFERENCE_MAX_RPM,
+  TREND_REFERENCE_MIN_RPM,
+  trendReferenceSchema,
+} from "~/lib/domain/trend-settings";
 import { CsrfInput } from "./csrf-input";
-import { IntentButton, SubmitButton } from "./form";
+import { IntentButton, SchemaForm, SubmitButton, useSchemaForm } from "./form";
+import { InputField } from "./form-fields";
 import { Card, EmptyState, TableHead, tableClass, tdClass, When } from "./page";
 import { ScrollArea } from "./scroll-area";
 
@@ -119,6 +127,52 @@ export function UnitsCard({ unit, canEdit }: { unit: "rpm" | "rad/s"; canEdit: b
         </Form>
       ) : null}
     </Card>
+  );
+}
+
+/** The engine speed at which the vehicle pages' damper-health trend reads the isolation. */
+export function TrendReferenceCard({
+  rpm,
+  canEdit,
+  lastResult,
+}: {
+  rpm: number;
+  canEdit: boolean;
+  lastResult: SubmissionResult<string[]> | undefined;
+}) {
+  return (
+    <Card title="Trend reference speed" id="trend-reference">
+      <p className="text-sm text-neutral-600">
+        The damper-health trend on each vehicle page compares the isolation at{" "}
+        <strong data-trend-reference-rpm={rpm}>{rpm} rpm</strong> from one drive log to the next
+        (the engine-speed bin nearest to it).
+      </p>
+      {canEdit ? <TrendReferenceForm rpm={rpm} lastResult={lastResult} /> : null}
+    </Card>
+  );
+}
+
+function TrendReferenceForm({
+  rpm,
+  lastResult,
+}: {
+  rpm: number;
+  lastResult: SubmissionResult<string[]> | undefined;
+}) {
+  const [form, fields] = useSchemaForm("trend-reference-form", trendReferenceSchema, lastResult, {
+    referenceRpm: String(rpm),
+  });
+  return (
+    <SchemaForm form={form} intent="set-trend-reference" className="mt-3 space-y-3">
+      <InputField
+        label="Reference speed"
+        unit="rpm"
+        meta={fields.referenceRpm}
+        numeric
+        hint={`From ${TREND_REFERENCE_MIN_RPM} to ${TREND_REFERENCE_MAX_RPM} rpm; ${TREND_REFERENCE_DEFAULT_RPM} rpm unless the team sets another.`}
+      />
+      <SubmitButton tone="secondary">Save reference speed</SubmitButton>
+    </SchemaForm>
   );
 }
 

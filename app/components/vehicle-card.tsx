@@ -29,6 +29,7 @@ export function VehicleCard({
     primaryInertiaKgM2: number | null;
     secondaryInertiaKgM2: number | null;
     springRateNmPerDeg: number | null;
+    damperTravelLimitDeg?: number | null;
     rattleLimitRadS2: number;
     columnMapping: IngestMapping | null;
     notes: string;
@@ -39,6 +40,7 @@ export function VehicleCard({
     v.primaryInertiaKgM2 !== null ? `primary ${v.primaryInertiaKgM2} kg·m²` : null,
     v.secondaryInertiaKgM2 !== null ? `secondary ${v.secondaryInertiaKgM2} kg·m²` : null,
     v.springRateNmPerDeg !== null ? `spring rate ${v.springRateNmPerDeg} N·m/°` : null,
+    v.damperTravelLimitDeg != null ? `travel limit ${v.damperTravelLimitDeg}° stop to stop` : null,
   ].filter(Boolean);
   const mapping = v.columnMapping ? mappingText(v.columnMapping) : "";
   return (

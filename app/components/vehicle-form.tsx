@@ -10,7 +10,7 @@ import {
   transmissionLabels,
 } from "~/lib/domain/drive-log-terms";
 import { z } from "zod";
-import { vehicleSchema } from "~/lib/domain/vehicle-schema";
+import { DAMPER_TRAVEL_HINT, vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { SubmitButton, SchemaForm, useSchemaForm } from "./form";
 import {
   ChoiceField,
@@ -69,6 +69,7 @@ export function vehicleDefaults(v?: {
   primaryInertiaKgM2: number | null;
   secondaryInertiaKgM2: number | null;
   springRateNmPerDeg: number | null;
+  damperTravelLimitDeg: number | null;
   rattleLimitRadS2: number;
   notes: string;
 }): Record<string, string> {
@@ -100,6 +101,7 @@ export function vehicleDefaults(v?: {
     primaryInertiaKgM2: s(v.primaryInertiaKgM2),
     secondaryInertiaKgM2: s(v.secondaryInertiaKgM2),
     springRateNmPerDeg: s(v.springRateNmPerDeg),
+    damperTravelLimitDeg: s(v.damperTravelLimitDeg),
     rattleLimitRadS2: String(v.rattleLimitRadS2),
     notes: v.notes,
   };
@@ -196,6 +198,13 @@ export function VehicleForm({
             numeric
           />
           <InputField label="Spring rate" unit="N·m/°" meta={fields.springRateNmPerDeg} numeric />
+          <InputField
+            label="Damper travel limit"
+            unit="°"
+            meta={fields.damperTravelLimitDeg}
+            numeric
+            hint={DAMPER_TRAVEL_HINT}
+          />
         </div>
       </fieldset>
       <fieldset className={fieldsetClass}>

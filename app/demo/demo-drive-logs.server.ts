@@ -37,6 +37,8 @@ const DEMO_VEHICLES: {
       primaryInertiaKgM2: 0.16,
       secondaryInertiaKgM2: 0.07,
       springRateNmPerDeg: 8,
+      // A demo value of the invented Kestrel programme, plausible for an arc-spring flywheel.
+      damperTravelLimitDeg: 60,
       notes:
         "Demo vehicle of the invented Kestrel programme. Damper B is the softer arc-spring variant.",
     },
@@ -98,6 +100,8 @@ const DEMO_VEHICLES: {
       primaryInertiaKgM2: 0.12,
       secondaryInertiaKgM2: 0.06,
       springRateNmPerDeg: 6,
+      // A demo value of the invented Kestrel programme.
+      damperTravelLimitDeg: 55,
       notes: "Demo vehicle of the invented Kestrel programme.",
     },
     logs: [
@@ -153,12 +157,18 @@ export async function seedDemoDriveLogs(teamSlug: string): Promise<number> {
   let added = 0;
   for (const demo of DEMO_VEHICLES) {
     let [row] = await db
-      .select({ id: vehicles.id })
+      .select({ id: vehicles.id, travel: vehicles.damperTravelLimitDeg })
       .from(vehicles)
       .where(and(eq(vehicles.teamId, team.id), eq(vehicles.identifier, demo.vehicle.identifier)));
     if (!row) {
-      row = { id: await data.create(vehicleSchema.parse(demo.vehicle)) };
+      row = { id: await data.create(vehicleSchema.parse(demo.vehicle)), travel: null };
       added++;
+    } else if (row.travel === null && demo.vehicle.damperTravelLimitDeg !== undefined) {
+      // Demo vehicles seeded before the field existed (issue 15) get it too.
+      await db
+        .update(vehicles)
+        .set({ damperTravelLimitDeg: demo.vehicle.damperTravelLimitDeg })
+        .where(eq(vehicles.id, row.id));
     }
     const vehicle = await data.vehicle(row.id);
     for (const log of demo.logs) {

@@ -3,9 +3,16 @@ import { data, useActionData, useLoaderData } from "react-router";
 import { z } from "zod";
 import { Field, SelectField, SubmitButton, SchemaForm, useSchemaForm } from "~/components/form";
 import { Card, Notice, PageHeader } from "~/components/page";
-import { Invitations, MembersCard, RolesCard, UnitsCard } from "~/components/team-cards";
+import {
+  Invitations,
+  MembersCard,
+  RolesCard,
+  TrendReferenceCard,
+  UnitsCard,
+} from "~/components/team-cards";
 import { LoggerVocabularyCard } from "~/components/logger-vocabulary-card";
 import { ingestSettingsAction } from "~/lib/http/team-ingest.server";
+import { trendSettingsAction } from "~/lib/http/team-trend.server";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -49,6 +56,8 @@ export const action = pageRoute(async ({ request, context }: Route.ActionArgs) =
   const ip = clientIp(context);
   const ingest = await ingestSettingsAction(request, form, ip);
   if (ingest) return ingest;
+  const trend = await trendSettingsAction(request, form, ip);
+  if (trend) return trend;
 
   if (intent === "set-units") {
     // Display settings belong to the people who analyse: engineers and admins.
@@ -134,6 +143,11 @@ export default function Team() {
             />
           ) : null}
           <UnitsCard unit={team.amplitudeUnit} canEdit={atLeast(me.role, "engineer")} />
+          <TrendReferenceCard
+            rpm={team.trendReferenceRpm}
+            canEdit={atLeast(me.role, "engineer")}
+            lastResult={result && "trendReference" in result ? result.trendReference : undefined}
+          />
           <LoggerVocabularyCard
             settings={ingest}
             canEdit={atLeast(me.role, "engineer")}

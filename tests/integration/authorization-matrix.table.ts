@@ -314,6 +314,15 @@ export const matrix: Record<string, Row> = {
         team("engineer", false),
         400,
       ),
+      // The trend reference speed (lib/http/team-trend.server.ts): out of range changes nothing.
+      post(
+        "form",
+        () => "/team",
+        "set-trend-reference",
+        () => withIntent("set-trend-reference", { referenceRpm: "50" }),
+        team("engineer", false),
+        400,
+      ),
       post(
         "form",
         () => "/team",
@@ -615,6 +624,16 @@ export const matrix: Record<string, Row> = {
         }),
       ]),
       noAction("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}`),
+    ],
+  },
+  "routes/api.v1.vehicle-trend.ts": {
+    probes: [
+      ...api((w) => [
+        get(w, (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/trend`, team("viewer"), 200, {
+          okText: "referenceRpm",
+        }),
+      ]),
+      noAction("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/trend`),
     ],
   },
   "routes/api.v1.vehicle-logs.ts": {

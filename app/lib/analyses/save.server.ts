@@ -13,6 +13,7 @@ import {
   orderCurvePoints,
 } from "~/lib/infra/db/schema-drive-logs";
 import type { AnalysisResult } from "~/lib/signal";
+import { largestEventFigures } from "../domain/event-figures";
 import type { Db } from "../infra/db.server";
 import { stillOurs, type ClaimedJob, type Tx } from "./queue.server";
 import { encodeResult } from "./result.server";
@@ -39,6 +40,8 @@ export async function saveAnalysis(
     const measured = result.isolation.filter((p) => p.aboveNoise);
     const dBs = measured.map((p) => p.dB);
     const rpms = result.isolation.map((p) => p.rpm);
+    // The trend and the start/stop targets read these columns (issue 15); null without events.
+    const events = largestEventFigures(result.events);
     const [row] = await tx
       .insert(analyses)
       .values({
@@ -65,6 +68,10 @@ export async function saveAnalysis(
         resonanceDb: result.resonance?.isolationDb ?? null,
         rattleVerdict: result.idle?.verdict ?? null,
         idleAngAccelRadS2: result.idle?.gearboxAngAccelRadS2 ?? null,
+        modelNaturalHz: result.model?.naturalFrequencyHz ?? null,
+        modelDampingRatio: result.model?.dampingRatio ?? null,
+        eventPeakDb: events.peakDb,
+        eventTwistPpDeg: events.twistPpDeg,
         warnings: result.warnings,
         ...encodeResult(result),
       })

@@ -3,6 +3,7 @@ import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-driv
 import { targets } from "~/lib/infra/db/schema-results";
 import type { AnalysisResult } from "~/lib/signal";
 import { idleFiguresOf, type IdleFigures } from "../analyses/result.server";
+import { transientFiguresOf, type TransientFigures } from "../analyses/transient-figures.server";
 import { db } from "../infra/db.server";
 import type { LogCondition } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";
@@ -27,34 +28,27 @@ export function toTarget(row: TargetRow): Target {
     rpmTo: row.rpmTo,
     minDb: row.minDb,
     maxRadS2: row.maxRadS2,
+    maxDb: row.maxDb,
+    minMarginDeg: row.minMarginDeg,
     conditions: row.conditions,
     gears: row.gears,
   };
 }
 
-/** The columns of a target; the other kind's columns are cleared. */
+/** The columns of a target; the other kinds' columns are cleared. */
 function columns(input: TargetInput) {
-  return input.kind === "isolation"
-    ? {
-        kind: input.kind,
-        name: input.name,
-        rpmFrom: input.rpmFrom,
-        rpmTo: input.rpmTo,
-        minDb: input.minDb,
-        maxRadS2: null,
-        conditions: input.conditions,
-        gears: input.gears,
-      }
-    : {
-        kind: input.kind,
-        name: input.name,
-        rpmFrom: null,
-        rpmTo: null,
-        minDb: null,
-        maxRadS2: input.maxRadS2,
-        conditions: input.conditions,
-        gears: input.gears,
-      };
+  return {
+    kind: input.kind,
+    name: input.name,
+    rpmFrom: input.kind === "isolation" ? input.rpmFrom : null,
+    rpmTo: input.kind === "isolation" ? input.rpmTo : null,
+    minDb: input.kind === "isolation" ? input.minDb : null,
+    maxRadS2: input.kind === "rattle" ? input.maxRadS2 : null,
+    maxDb: input.kind === "start-stop" ? input.maxDb : null,
+    minMarginDeg: input.kind === "twist-margin" ? input.minMarginDeg : null,
+    conditions: input.conditions,
+    gears: input.gears,
+  };
 }
 
 export type { IdleFigures };
@@ -204,6 +198,20 @@ export function targetData(teamId: number) {
       const figures = needIdle.length
         ? await idleFigures(needIdle.map((l) => summaryOf.get(l.id)!.analysisId))
         : new Map<number, IdleFigures | null>();
+      // Start/stop targets read each event, which only the result JSON holds (kept once read).
+      const travel = (await vehicleData(teamId).vehicle(vehicleId)).damperTravelLimitDeg;
+      const eventTargets = judged.filter(
+        (t) => t.kind === "start-stop" || (t.kind === "twist-margin" && travel !== null),
+      );
+      const needEvents = finished.filter(
+        (l) => summaryOf.has(l.id) && eventTargets.some((t) => outOfScope(t, l) === null),
+      );
+      const transients = needEvents.length
+        ? await transientFiguresOf(
+            teamId,
+            needEvents.map((l) => summaryOf.get(l.id)!.analysisId),
+          )
+        : new Map<number, TransientFigures>();
       for (const l of finished) {
         const s = summaryOf.get(l.id);
         if (!s || s.analysisId !== l.latestAnalysisId) continue;
@@ -224,6 +232,8 @@ export function targetData(teamId: number) {
                     gearboxAngAccelPeakRadS2: idle?.peakRadS2 ?? amp,
                     ...(idle ? { meanRpm: idle.meanRpm } : {}),
                   },
+            events: transients.get(s.analysisId)?.events ?? null,
+            damperTravelLimitDeg: travel,
           }),
         );
       }
@@ -234,13 +244,18 @@ export function targetData(teamId: number) {
     async verdictsForAnalysis(
       vehicleId: number,
       log: { condition: LogCondition; gear: number | null },
-      result: Pick<AnalysisResult, "isolation" | "settings" | "idle">,
+      result: Pick<AnalysisResult, "isolation" | "settings" | "idle" | "events">,
     ): Promise<TargetVerdict[]> {
-      const rows = await list(vehicleId);
+      const [rows, vehicle] = await Promise.all([
+        list(vehicleId),
+        vehicleData(teamId).vehicle(vehicleId),
+      ]);
       return evaluateTargets(rows.map(toTarget), log, {
         isolation: result.isolation,
         binRpm: result.settings.binRpm,
         idle: result.idle,
+        events: result.events ?? null,
+        damperTravelLimitDeg: vehicle.damperTravelLimitDeg,
       });
     },
   };

@@ -27,7 +27,12 @@ export function teamData(teamId: number) {
 
     async team() {
       const [team] = await db
-        .select({ id: teams.id, name: teams.name, amplitudeUnit: teams.amplitudeUnit })
+        .select({
+          id: teams.id,
+          name: teams.name,
+          amplitudeUnit: teams.amplitudeUnit,
+          trendReferenceRpm: teams.trendReferenceRpm,
+        })
         .from(teams)
         .where(eq(teams.id, teamId));
       if (!team) throw new NotFound("Team not found.");
@@ -36,6 +41,11 @@ export function teamData(teamId: number) {
 
     setAmplitudeUnit(unit: "rpm" | "rad/s") {
       return db.update(teams).set({ amplitudeUnit: unit }).where(eq(teams.id, teamId));
+    },
+
+    /** The engine speed the damper-health trend reads the isolation at (checked by the caller). */
+    setTrendReferenceRpm(rpm: number) {
+      return db.update(teams).set({ trendReferenceRpm: rpm }).where(eq(teams.id, teamId));
     },
 
     /** The team's channel names and strict flag, as every analysis job gets them. */

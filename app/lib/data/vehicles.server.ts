@@ -191,7 +191,12 @@ export function vehicleData(teamId: number) {
     async create(input: VehicleInput): Promise<number> {
       const [row] = await db
         .insert(vehicles)
-        .values({ ...input, teamId, firingOrderOverride: input.firingOrderOverride ?? null })
+        .values({
+          ...input,
+          teamId,
+          firingOrderOverride: input.firingOrderOverride ?? null,
+          damperTravelLimitDeg: input.damperTravelLimitDeg ?? null,
+        })
         .$returningId();
       return row!.id;
     },
@@ -203,6 +208,8 @@ export function vehicleData(teamId: number) {
         .set({
           ...input,
           firingOrderOverride: input.firingOrderOverride ?? null,
+          // An emptied field clears the limit (undefined would leave the old one).
+          damperTravelLimitDeg: input.damperTravelLimitDeg ?? null,
           updatedAt: new Date(),
         })
         .where(and(eq(vehicles.id, id), inTeam));

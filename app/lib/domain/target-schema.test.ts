@@ -83,7 +83,7 @@ describe("targetSchema (the form and API input)", () => {
       minDb: "Enter the minimum isolation in dB.",
     });
     expect(errors({ ...form, kind: "noise" })).toEqual({
-      kind: "Choose what the target limits: isolation or rattle.",
+      kind: "Choose what the target limits: isolation, rattle, start/stop amplification or twist margin.",
     });
     expect(errors({ ...form, conditions: ["uphill"] })).toEqual({
       "conditions.0": "Choose test conditions from the list.",
@@ -112,5 +112,69 @@ describe("targetSchema (the form and API input)", () => {
       maxRadS2: "Enter the maximum angular acceleration in rad/s².",
     });
     expect(targetSchema.safeParse(null).success).toBe(false);
+  });
+});
+
+describe("targetSchema: the start/stop kinds (issue 15; product rule, see docs/targets.md)", () => {
+  const errors = (input: unknown) => {
+    const r = targetSchema.safeParse(input);
+    return r.success
+      ? {}
+      : Object.fromEntries(r.error.issues.map((i) => [i.path.join("."), i.message]));
+  };
+
+  it("reads a start-stop and a twist-margin target, ignoring the other kinds' fields", () => {
+    expect(
+      targetSchema.parse({
+        kind: "start-stop",
+        name: " Stop ",
+        maxDb: "8.5",
+        minDb: "x",
+        maxRadS2: "",
+      }),
+    ).toEqual({ kind: "start-stop", name: "Stop", maxDb: 8.5, conditions: [], gears: [] });
+    expect(
+      targetSchema.parse({
+        kind: "twist-margin",
+        name: "End stops",
+        minMarginDeg: 5,
+        maxDb: "nonsense",
+        conditions: "start-stop",
+      }),
+    ).toEqual({
+      kind: "twist-margin",
+      name: "End stops",
+      minMarginDeg: 5,
+      conditions: ["start-stop"],
+      gears: [],
+    });
+    // A typographic minus is read as a minus: a start-stop limit may be below 0 dB.
+    expect(targetSchema.parse({ kind: "start-stop", name: "S", maxDb: "−3" })).toMatchObject({
+      maxDb: -3,
+    });
+  });
+
+  it("refuses missing, unreadable and out-of-range limits with clear messages", () => {
+    expect(errors({ kind: "start-stop", name: "S" })).toEqual({
+      maxDb: "Enter the maximum peak amplification in dB.",
+    });
+    expect(errors({ kind: "start-stop", name: "S", maxDb: "loud" })).toEqual({
+      maxDb: "The maximum peak amplification is a number of dB, e.g. 8.",
+    });
+    expect(errors({ kind: "start-stop", name: "S", maxDb: "61" })).toEqual({
+      maxDb: "The maximum peak amplification is at most 60 dB.",
+    });
+    expect(errors({ kind: "start-stop", name: "S", maxDb: "-21" })).toEqual({
+      maxDb: "The maximum peak amplification is at least -20 dB.",
+    });
+    expect(errors({ kind: "twist-margin", name: "T" })).toEqual({
+      minMarginDeg: "Enter the minimum twist margin in degrees.",
+    });
+    expect(errors({ kind: "twist-margin", name: "T", minMarginDeg: "-1" })).toEqual({
+      minMarginDeg: "The minimum twist margin is at least 0°.",
+    });
+    expect(errors({ kind: "twist-margin", name: "T", minMarginDeg: "181" })).toEqual({
+      minMarginDeg: "The minimum twist margin is at most 180°.",
+    });
   });
 });

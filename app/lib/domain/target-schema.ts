@@ -13,6 +13,11 @@ export const RPM_MAX = 10_000;
 export const MIN_DB_LOW = -40;
 export const MIN_DB_HIGH = 60;
 export const MAX_RAD_S2_HIGH = 100_000;
+/** Start-stop: peak amplification limits, dB (positive = amplified through the resonance). */
+export const MAX_DB_LOW = -20;
+export const MAX_DB_HIGH = 60;
+/** Twist-margin: degrees; the travel limit itself is at most 180° (vehicle-schema.ts). */
+export const MIN_MARGIN_DEG_HIGH = 180;
 
 /** "" and null are "not given"; "−" (the typographic minus) is read as "-". */
 function toNumber(v: unknown): unknown {
@@ -53,23 +58,30 @@ const gearList = (v: unknown): unknown => {
  * One schema for the target form (strings) and JSON callers (numbers, arrays). The fields of the
  * other kind are ignored, so a form that shows both sets without JavaScript still posts cleanly.
  */
-const OTHER_KIND_FIELDS = {
-  isolation: ["maxRadS2"],
-  rattle: ["rpmFrom", "rpmTo", "minDb"],
+const KIND_FIELDS = {
+  isolation: ["rpmFrom", "rpmTo", "minDb"],
+  rattle: ["maxRadS2"],
+  "start-stop": ["maxDb"],
+  "twist-margin": ["minMarginDeg"],
 } as const;
+const LIMIT_FIELDS = Object.values(KIND_FIELDS).flat();
 
 function dropOtherKind(v: unknown): unknown {
   if (typeof v !== "object" || v === null || Array.isArray(v)) return v;
   const kind = (v as { kind?: unknown }).kind;
-  if (kind !== "isolation" && kind !== "rattle") return v;
+  if (!(TARGET_KINDS as readonly unknown[]).includes(kind)) return v;
+  const own: readonly string[] = KIND_FIELDS[kind as keyof typeof KIND_FIELDS];
   const copy: Record<string, unknown> = { ...(v as Record<string, unknown>) };
-  for (const key of OTHER_KIND_FIELDS[kind]) delete copy[key];
+  for (const key of LIMIT_FIELDS) if (!own.includes(key)) delete copy[key];
   return copy;
 }
 
 const targetFields = z
   .object({
-    kind: z.enum(TARGET_KINDS, { error: "Choose what the target limits: isolation or rattle." }),
+    kind: z.enum(TARGET_KINDS, {
+      error:
+        "Choose what the target limits: isolation, rattle, start/stop amplification or twist margin.",
+    }),
     name: z
       .string({ error: "Give the target a name, e.g. “Run-up isolation 1000–3000 rpm”." })
       .trim()
@@ -94,6 +106,22 @@ const targetFields = z
           MAX_RAD_S2_HIGH,
           `The maximum angular acceleration is at most ${MAX_RAD_S2_HIGH} rad/s².`,
         )
+        .optional(),
+    ),
+    maxDb: z.preprocess(
+      toNumber,
+      z
+        .number({ error: "The maximum peak amplification is a number of dB, e.g. 8." })
+        .min(MAX_DB_LOW, `The maximum peak amplification is at least ${MAX_DB_LOW} dB.`)
+        .max(MAX_DB_HIGH, `The maximum peak amplification is at most ${MAX_DB_HIGH} dB.`)
+        .optional(),
+    ),
+    minMarginDeg: z.preprocess(
+      toNumber,
+      z
+        .number({ error: "The minimum twist margin is a number of degrees, e.g. 5." })
+        .min(0, "The minimum twist margin is at least 0°.")
+        .max(MIN_MARGIN_DEG_HIGH, `The minimum twist margin is at most ${MIN_MARGIN_DEG_HIGH}°.`)
         .optional(),
     ),
     conditions: z.preprocess(
@@ -146,28 +174,34 @@ const targetFields = z
           path: ["maxRadS2"],
           message: "Enter the maximum angular acceleration in rad/s².",
         });
+      } else if (t.kind === "start-stop" && t.maxDb === undefined) {
+        ctx.addIssue({
+          code: "custom",
+          path: ["maxDb"],
+          message: "Enter the maximum peak amplification in dB.",
+        });
+      } else if (t.kind === "twist-margin" && t.minMarginDeg === undefined) {
+        ctx.addIssue({
+          code: "custom",
+          path: ["minMarginDeg"],
+          message: "Enter the minimum twist margin in degrees.",
+        });
       }
     },
     { when: (payload) => typeof payload.value === "object" && payload.value !== null },
   )
-  .transform((t): TargetInput =>
-    t.kind === "isolation"
-      ? {
-          kind: "isolation",
-          name: t.name,
-          rpmFrom: t.rpmFrom!,
-          rpmTo: t.rpmTo!,
-          minDb: t.minDb!,
-          conditions: t.conditions,
-          gears: t.gears,
-        }
-      : {
-          kind: "rattle",
-          name: t.name,
-          maxRadS2: t.maxRadS2!,
-          conditions: t.conditions,
-          gears: t.gears,
-        },
-  );
+  .transform((t): TargetInput => {
+    const common = { name: t.name, conditions: t.conditions, gears: t.gears };
+    switch (t.kind) {
+      case "isolation":
+        return { kind: t.kind, ...common, rpmFrom: t.rpmFrom!, rpmTo: t.rpmTo!, minDb: t.minDb! };
+      case "rattle":
+        return { kind: t.kind, ...common, maxRadS2: t.maxRadS2! };
+      case "start-stop":
+        return { kind: t.kind, ...common, maxDb: t.maxDb! };
+      case "twist-margin":
+        return { kind: t.kind, ...common, minMarginDeg: t.minMarginDeg! };
+    }
+  });
 
 export const targetSchema = z.preprocess(dropOtherKind, targetFields);

@@ -6,6 +6,7 @@ import { conditionLabels } from "./drive-log-terms";
 import { plural } from "../base/plural";
 import { dbChangeText, dbText, radS2Text, rpmRangeText } from "./format";
 import type { Target, TargetInput, TargetStatus, TargetVerdict } from "./targets";
+import { degText } from "./event-figures";
 
 /** A verdict's status in words, as pages show it. */
 export const TARGET_STATUS_LABELS: Record<TargetStatus, string> = {
@@ -27,15 +28,22 @@ export function gearText(g: number | null): string {
 export function marginText(v: Pick<TargetVerdict, "margin" | "unit">): string {
   if (v.margin === null) return "";
   if (v.unit === "dB") return dbChangeText(v.margin);
-  const size = radS2Text(Math.abs(v.margin));
+  const size = v.unit === "°" ? degText(Math.abs(v.margin)) : radS2Text(Math.abs(v.margin));
   return `${v.margin > 0 ? "+" : v.margin < 0 ? "−" : "±"}${size}`;
 }
 
-/** "at least 10.0 dB over 1000–3000 rpm" / "at most 400 rad/s² at idle". */
+/** "at least 10.0 dB over 1000–3000 rpm" / "at most 400 rad/s² at idle" / …, for every kind. */
 export function limitText(t: Target | TargetInput): string {
-  if (t.kind === "isolation")
-    return `at least ${dbText(t.minDb!)} at the firing order over ${rpmRangeText(t.rpmFrom, t.rpmTo)}`;
-  return `gearbox-input angular acceleration at idle at most ${radS2Text(t.maxRadS2!)}`;
+  switch (t.kind) {
+    case "isolation":
+      return `at least ${dbText(t.minDb!)} at the firing order over ${rpmRangeText(t.rpmFrom, t.rpmTo)}`;
+    case "rattle":
+      return `gearbox-input angular acceleration at idle at most ${radS2Text(t.maxRadS2!)}`;
+    case "start-stop":
+      return `peak amplification at engine start and stop at most ${dbText(t.maxDb!)}`;
+    case "twist-margin":
+      return `start/stop twist at least ${degText(t.minMarginDeg!)} short of the damper travel limit`;
+  }
 }
 
 /** "Every drive log", or "Run-up, Coast-down; gears 2, 3". */

@@ -13,6 +13,8 @@ const iso: Target = {
   rpmTo: 2000,
   minDb: 10,
   maxRadS2: null,
+  maxDb: null,
+  minMarginDeg: null,
   conditions: [],
   gears: [],
 };
@@ -24,6 +26,8 @@ const rattle: Target = {
   rpmTo: null,
   minDb: null,
   maxRadS2: 400,
+  maxDb: null,
+  minMarginDeg: null,
   conditions: [],
   gears: [],
 };
@@ -36,7 +40,7 @@ function bins(from: number, to: number, db: (rpm: number) => number, step = 50) 
   return out;
 }
 function evidence(points: TargetEvidence["isolation"], idle: TargetEvidence["idle"] = null) {
-  return { isolation: points, binRpm: 50, idle };
+  return { isolation: points, binRpm: 50, idle, events: null, damperTravelLimitDeg: null };
 }
 const one = (
   t: Target,
@@ -233,5 +237,150 @@ describe("conditions and gears (product rule, see docs/targets.md)", () => {
       [1, "not-applicable"],
     ]);
     expect(tally(vs)).toEqual({ passed: 1, failed: 0, notCovered: 1, notApplicable: 1 });
+  });
+});
+
+// ---- Start/stop kinds (issue 15) ----------------------------------------------------------------
+
+const startStop: Target = {
+  id: 3,
+  name: "Start/stop amplification",
+  kind: "start-stop",
+  rpmFrom: null,
+  rpmTo: null,
+  minDb: null,
+  maxRadS2: null,
+  maxDb: 8,
+  minMarginDeg: null,
+  conditions: [],
+  gears: [],
+};
+const twistMargin: Target = {
+  ...startStop,
+  id: 4,
+  name: "End stops",
+  kind: "twist-margin",
+  maxDb: null,
+  minMarginDeg: 5,
+};
+const startStopLog = { condition: "start-stop" as const, gear: 0 };
+const event = (
+  kind: "start" | "stop",
+  startS: number,
+  peakAmplificationDb: number | null,
+  twistPeakToPeakDeg: number,
+  resonanceRpm: number | null = 445,
+) => ({ kind, startS, peakAmplificationDb, twistPeakToPeakDeg, resonanceRpm });
+function withEvents(
+  events: TargetEvidence["events"],
+  damperTravelLimitDeg: number | null = 60,
+): TargetEvidence {
+  return { isolation: [], binRpm: 50, idle: null, events, damperTravelLimitDeg };
+}
+
+describe("start-stop targets (product rule, see docs/targets.md)", () => {
+  it("judges the largest peak amplification over the events: margin = maxDb − value", () => {
+    // Largest of 6.5 and 9.25 dB is 9.25 dB, in the stop; 8 − 9.25 = −1.25 dB → fail.
+    const v = one(
+      startStop,
+      withEvents([event("start", 0.4, 6.5, 20), event("stop", 30.2, 9.25, 31, 430)]),
+      startStopLog,
+    );
+    expect(v).toMatchObject({
+      status: "fail",
+      value: 9.25,
+      margin: -1.25,
+      limit: 8,
+      unit: "dB",
+      atRpm: 430,
+    });
+    expect(v.detail).toBe(
+      "Largest peak amplification 9.3 dB in the engine stop at 30.2 s (resonance at 430 rpm): 1.3 dB over the target.",
+    );
+    // Limit 9.25 dB: a margin of exactly 0 passes.
+    expect(
+      one({ ...startStop, maxDb: 9.25 }, withEvents([event("stop", 1, 9.25, 3)]), startStopLog),
+    ).toMatchObject({
+      status: "pass",
+      margin: 0,
+    });
+    expect(marginText({ margin: -1.25, unit: "dB" })).toBe("−1.3 dB");
+  });
+
+  it("is not covered without events, with events the order could not resolve, or for results before events existed", () => {
+    expect(one(startStop, withEvents([]), startStopLog)).toMatchObject({
+      status: "not-covered",
+      value: null,
+      margin: null,
+      detail: "No engine start or stop in this drive log.",
+    });
+    expect(one(startStop, withEvents([event("start", 0, null, 12)]), startStopLog)).toMatchObject({
+      status: "not-covered",
+      detail:
+        "The firing order was not resolved in the drive log's 1 start/stop event, so there is no peak amplification to judge.",
+    });
+    const old = one(startStop, withEvents(null), startStopLog);
+    expect(old.status).toBe("not-covered");
+    expect(old.detail).toMatch(/re-analyse the drive log/);
+    // One unresolved event beside a resolved one: judged on the resolved one, and said so.
+    const mixed = one(
+      startStop,
+      withEvents([event("start", 0, null, 12), event("stop", 9, 5, 14)]),
+      startStopLog,
+    );
+    expect(mixed).toMatchObject({ status: "pass", value: 5, margin: 3 });
+    expect(mixed.detail).toMatch(/1 event of 2 could not be resolved\.$/);
+  });
+});
+
+describe("twist-margin targets (product rule, see docs/targets.md)", () => {
+  it("value = travel limit − largest peak-to-peak twist; margin = value − minMarginDeg", () => {
+    // Travel 60°, largest twist 52.5° → value 7.5°, margin 7.5 − 5 = 2.5° → pass.
+    const v = one(
+      twistMargin,
+      withEvents([event("start", 0.5, 6, 52.5), event("stop", 20, 7, 40)], 60),
+      startStopLog,
+    );
+    expect(v).toMatchObject({
+      status: "pass",
+      value: 7.5,
+      margin: 2.5,
+      limit: 5,
+      unit: "°",
+      atRpm: 445,
+    });
+    expect(v.detail).toBe(
+      "Largest twist 52.5° peak to peak in the engine start at 0.5 s, 7.5° short of the 60.0° travel limit: 2.5° more margin than the target.",
+    );
+    expect(marginText(v)).toBe("+2.5°");
+    // Travel 55°, twist 52.5° → value 2.5°, margin 2.5 − 5 = −2.5° → fail.
+    expect(
+      one(twistMargin, withEvents([event("start", 0.5, 6, 52.5)], 55), startStopLog),
+    ).toMatchObject({
+      status: "fail",
+      value: 2.5,
+      margin: -2.5,
+    });
+    // Twist beyond the travel: 62° against 60° → value −2°, margin −7°; the detail says the stops were reached.
+    const hit = one(twistMargin, withEvents([event("stop", 3, 6, 62)], 60), startStopLog);
+    expect(hit).toMatchObject({ status: "fail", value: -2, margin: -7 });
+    expect(hit.detail).toMatch(
+      /2\.0° beyond the 60\.0° travel limit \(the end stops were reached\)/,
+    );
+  });
+
+  it("does not apply without a travel limit, and is not covered without events", () => {
+    const v = one(twistMargin, withEvents([event("start", 0, 6, 30)], null), startStopLog);
+    expect(v).toMatchObject({ status: "not-applicable", value: null, margin: null });
+    expect(v.detail).toMatch(/no damper travel limit/);
+    expect(one(twistMargin, withEvents([], 60), startStopLog).status).toBe("not-covered");
+    expect(one(twistMargin, withEvents(null, 60), startStopLog).detail).toMatch(/re-analyse/);
+  });
+
+  it("takes conditions and gears like every kind", () => {
+    const limited = { ...twistMargin, conditions: ["start-stop" as const] };
+    expect(one(limited, withEvents([event("start", 0, 6, 30)]), runUp).status).toBe(
+      "not-applicable",
+    );
   });
 });

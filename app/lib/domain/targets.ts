@@ -6,7 +6,10 @@
  * - "isolation": at least `minDb` dB of isolation at the firing order over the engine-speed
  *   range `rpmFrom`–`rpmTo` rpm (both ends included).
  * - "rattle": the gearbox-input angular acceleration at idle at most `maxRadS2` rad/s².
- * Either kind may be limited to test conditions and/or gears; empty lists mean every drive log.
+ * - "start-stop" and "twist-margin" (issue 15): the start/stop events' peak amplification at most
+ *   `maxDb` dB, and their twist's margin to the damper travel limit at least `minMarginDeg` degrees
+ *   (./transient-targets).
+ * Every kind may be limited to test conditions and/or gears; empty lists mean every drive log.
  * The margin is positive when the drive log does better than the target, in the target's unit.
  *
  * This module holds the target model and the verdict rules; the form and API input schema is in
@@ -17,6 +20,8 @@ import { conditionLabels, type LogCondition } from "./drive-log-terms";
 import { countText } from "../base/plural";
 import { dbText, radS2Text, rpmText } from "./format";
 import { gearText, scopeText } from "./target-text";
+import type { EventFigure } from "./event-figures";
+import { startStopVerdict, twistMarginVerdict } from "./transient-targets";
 
 /** A stored target as the evaluation and the pages see it. */
 export interface Target {
@@ -27,6 +32,10 @@ export interface Target {
   rpmTo: number | null;
   minDb: number | null;
   maxRadS2: number | null;
+  /** Start-stop: the largest peak amplification allowed, dB. */
+  maxDb: number | null;
+  /** Twist-margin: the least margin of the start/stop twist to the travel limit, degrees. */
+  minMarginDeg: number | null;
   conditions: LogCondition[];
   gears: number[];
 }
@@ -38,14 +47,21 @@ export interface TargetVerdict {
   name: string;
   kind: TargetKind;
   status: TargetStatus;
-  /** Isolation: least isolation over the range, dB. Rattle: the larger of the two idle figures, rad/s². Null unless pass or fail. */
+  /**
+   * Isolation: least isolation over the range, dB. Rattle: the larger of the two idle figures,
+   * rad/s². Start-stop: the largest peak amplification, dB. Twist-margin: travel limit − largest
+   * peak-to-peak twist, degrees. Null unless pass or fail.
+   */
   value: number | null;
-  /** minDb (dB) or maxRadS2 (rad/s²). */
+  /** minDb (dB), maxRadS2 (rad/s²), maxDb (dB) or minMarginDeg (°). */
   limit: number;
-  /** Positive = better than the target, in `unit`: value − minDb, or maxRadS2 − value. Null unless pass or fail. */
+  /**
+   * Positive = better than the target, in `unit`: value − minDb, maxRadS2 − value,
+   * maxDb − value, or value − minMarginDeg. Null unless pass or fail.
+   */
   margin: number | null;
-  unit: "dB" | "rad/s²";
-  /** Where `value` was found: the isolation bin, or the mean idle speed; rpm. */
+  unit: "dB" | "rad/s²" | "°";
+  /** Where `value` was found: the isolation bin, the mean idle speed, or the event's resonance; rpm. */
   atRpm: number | null;
   /** One plain sentence: what was found, and why when there is no pass or fail. */
   detail: string;
@@ -63,6 +79,10 @@ export interface TargetEvidence {
     gearboxAngAccelPeakRadS2: number;
     meanRpm?: number;
   };
+  /** The engine start and stop events (result.events); null when the result predates them. */
+  events: readonly EventFigure[] | null;
+  /** The vehicle's damper travel limit (stop to stop), degrees; null when not known. */
+  damperTravelLimitDeg: number | null;
 }
 
 /** A target as entered in the form or the API, after the schema in ./target-schema. */
@@ -76,7 +96,23 @@ export type TargetInput =
       conditions: LogCondition[];
       gears: number[];
     }
-  | { kind: "rattle"; name: string; maxRadS2: number; conditions: LogCondition[]; gears: number[] };
+  | { kind: "rattle"; name: string; maxRadS2: number; conditions: LogCondition[]; gears: number[] }
+  | { kind: "start-stop"; name: string; maxDb: number; conditions: LogCondition[]; gears: number[] }
+  | {
+      kind: "twist-margin";
+      name: string;
+      minMarginDeg: number;
+      conditions: LogCondition[];
+      gears: number[];
+    };
+
+/** Each kind's unit and the field that holds its limit. */
+export const TARGET_LIMIT = {
+  isolation: { unit: "dB", field: "minDb" },
+  rattle: { unit: "rad/s²", field: "maxRadS2" },
+  "start-stop": { unit: "dB", field: "maxDb" },
+  "twist-margin": { unit: "°", field: "minMarginDeg" },
+} as const satisfies Record<TargetKind, { unit: TargetVerdict["unit"]; field: keyof Target }>;
 
 // ---------------------------------------------------------------------------------------------
 // Evaluation (product rule, docs/targets.md)
@@ -131,11 +167,20 @@ export function evaluateTargets(
       margin: null,
       atRpm: null,
     } as const;
-    const unit = t.kind === "isolation" ? ("dB" as const) : ("rad/s²" as const);
-    const limit = (t.kind === "isolation" ? t.minDb : t.maxRadS2) ?? 0;
+    const { unit, field } = TARGET_LIMIT[t.kind];
+    const limit = t[field] ?? 0;
     const scope = outOfScope(t, log);
     if (scope) return { ...base, unit, limit, status: "not-applicable", detail: scope };
-    return t.kind === "isolation" ? isolationVerdict(t, result) : rattleVerdict(t, result);
+    switch (t.kind) {
+      case "isolation":
+        return isolationVerdict(t, result);
+      case "rattle":
+        return rattleVerdict(t, result);
+      case "start-stop":
+        return startStopVerdict(t, result);
+      case "twist-margin":
+        return twistMarginVerdict(t, result);
+    }
   });
 }
 

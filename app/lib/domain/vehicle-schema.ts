@@ -10,6 +10,17 @@ import {
 // One schema per form, shared by the browser's hints and the actions and API (docs/conventions.md).
 // Limits match the columns in app/lib/infra/db/schema-drive-logs.ts, so nothing is cut silently.
 
+/**
+ * Stop-to-stop spring travel of a torsional damper is some tens of degrees (a dual-mass flywheel's
+ * arc springs allow roughly 40–90°, common practice, from memory); 180° leaves room for any
+ * design while refusing a value typed in the wrong unit.
+ */
+export const DAMPER_TRAVEL_LIMIT_MAX_DEG = 180;
+
+/** What the travel limit is and what it is compared with (the form's hint, the vehicle card). */
+export const DAMPER_TRAVEL_HINT =
+  "Optional. The spring travel between the damper's end stops, stop to stop. The peak-to-peak twist of each engine start and stop is compared with it; the static twist under load is not measured by speed sensors.";
+
 /** An optional number; `notNumber` says what to type when the text is not one. */
 const optionalNumber = (schema: z.ZodNumber, notNumber: string) =>
   z.preprocess(
@@ -86,6 +97,16 @@ export const vehicleSchema = z.object({
   springRateNmPerDeg: optionalNumber(
     z.number().positive("Spring rate is positive.").max(1000, "At most 1000 N·m/°."),
     "Spring rate is a number in N·m/°, e.g. 8.",
+  ),
+  damperTravelLimitDeg: optionalNumber(
+    z
+      .number()
+      .positive("The damper travel limit is more than 0°.")
+      .max(
+        DAMPER_TRAVEL_LIMIT_MAX_DEG,
+        `The damper travel limit is at most ${DAMPER_TRAVEL_LIMIT_MAX_DEG}° (stop to stop).`,
+      ),
+    "The damper travel limit is a number of degrees, e.g. 60.",
   ),
   rattleLimitRadS2: z.coerce
     .number({ error: "The rattle limit is a number of rad/s², e.g. 500." })

@@ -23,6 +23,8 @@ export function vehicleJson(v: Vehicle) {
     secondaryInertiaKgM2: v.secondaryInertiaKgM2,
     springRateNmPerDeg: v.springRateNmPerDeg,
     rattleLimitRadS2: v.rattleLimitRadS2,
+    /** Stop-to-stop spring travel of the damper, degrees; null when not known. */
+    damperTravelLimitDeg: v.damperTravelLimitDeg,
     notes: v.notes,
     archived: v.archivedAt !== null,
     createdAt: v.createdAt.toISOString(),
