@@ -303,6 +303,7 @@ export default function VehiclePage() {
           confirmDelete={confirmDelete}
           analysedLogs={analysedLogs}
           rattleLimitRadS2={vehicle.rattleLimitRadS2}
+          damperTravelLimitDeg={vehicle.damperTravelLimitDeg}
         />
         <LatestCurves vehicle={vehicle} analysedLogs={analysedLogs} />
       </div>

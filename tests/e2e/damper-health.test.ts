@@ -1,10 +1,11 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { createApiToken } from "~/lib/data/api-tokens.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import type { VehicleTrend } from "~/lib/domain/trend";
 import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
-import { HttpClient } from "../support/http-client";
+import { bearerFetch, uploadTrendLogs } from "../support/trend-logs";
 import { baseUrl, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
@@ -14,34 +15,16 @@ import { signIn, snap } from "./sign-in";
 // (tests/support/trend-logs.ts) at 12.0, 12.6, 13.2 and 13.8 Hz: +15 % from the first.
 
 const SEQUENCE = [
-  { naturalHz: 12.0, testDate: "2026-11-04" },
-  { naturalHz: 12.6, testDate: "2026-11-18" },
-  { naturalHz: 13.2, testDate: "2026-12-02" },
-  { naturalHz: 13.8, testDate: "2026-12-16" },
+  { fnHz: 12.0, testDate: "2026-11-04" },
+  { fnHz: 12.6, testDate: "2026-11-18" },
+  { fnHz: 13.2, testDate: "2026-12-02" },
+  { fnHz: 13.8, testDate: "2026-12-16" },
 ];
 
 let browser: Browser;
 let team: TestTeam;
 let page: Page;
 let vehicleId = 0;
-
-/**
- * tests/support/trend-logs.ts (the trend's own helper): uploads analytic logs with the given
- * natural frequency and test date through the HTTP API and waits until they are analysed.
- * Imported by a computed path so this file type-checks on a branch where the helper is not yet
- * there (LEAD: a plain static import once both branches are merged).
- */
-async function uploadTrendLogs(
-  client: HttpClient,
-  vehicle: number,
-  logs: { naturalHz: number; testDate: string }[],
-): Promise<unknown> {
-  const path = "../support/trend-logs";
-  const helper = (await import(/* @vite-ignore */ path)) as {
-    uploadTrendLogs: typeof uploadTrendLogs;
-  };
-  return helper.uploadTrendLogs(client, vehicle, logs);
-}
 
 /** Share of a canvas' pixels that are neither transparent nor white. */
 async function inkOf(selector: string): Promise<number> {
@@ -71,8 +54,13 @@ beforeAll(async () => {
       damperVariant: "A",
     }),
   );
-  const client = await HttpClient.signedIn(baseUrl, team.accounts.engineer.email, TEST_PASSWORD);
-  await uploadTrendLogs(client, vehicleId, SEQUENCE);
+  const { token } = await createApiToken({
+    userId: team.accounts.engineer.id,
+    teamId: team.id,
+    name: "damper health",
+    expiresAt: null,
+  });
+  await uploadTrendLogs(bearerFetch(baseUrl, token), vehicleId, SEQUENCE);
   page = await signIn(browser, team.accounts.engineer.email, TEST_PASSWORD);
 }, 300_000);
 afterAll(async () => {
@@ -99,7 +87,7 @@ describe("damper health over time on the vehicle page", () => {
     // The analytic signals' natural frequencies rise by 13.8 / 12.0 − 1 = 15 %; the fit of each
     // log within 2 % of its own (tolerance ours), so the measured rise is 15 ± 4 %.
     fn.forEach((hz, i) =>
-      expect(Math.abs(hz - SEQUENCE[i]!.naturalHz) / SEQUENCE[i]!.naturalHz).toBeLessThan(0.02),
+      expect(Math.abs(hz - SEQUENCE[i]!.fnHz) / SEQUENCE[i]!.fnHz).toBeLessThan(0.02),
     );
     expect(fn[3]! / fn[0]! - 1).toBeGreaterThan(0.11);
     expect(fn[3]! / fn[0]! - 1).toBeLessThan(0.19);

@@ -50,35 +50,7 @@ export function largestEventFigures(events: readonly EventFigure[] | null | unde
   return out;
 }
 
-/** A twist or travel angle: 1 decimal and the degree sign ("12.4°"); "—" when not a number. */
-export const degText = (x: number | null | undefined) => `${fixed(x, 1)}°`;
-
 /** "the engine stop at 12.3 s" */
 export function eventText(e: Pick<EventFigure, "kind" | "startS">): string {
   return `the engine ${e.kind} at ${fixed(e.startS, 1)} s`;
-}
-
-/** A start/stop twist this close to the travel limit (share of the limit) is warned about (issue 15). */
-export const TRAVEL_WARNING_SHARE = 0.1;
-
-/**
- * One plain sentence per event whose peak-to-peak twist comes within 10 % of the damper's travel
- * limit (stop to stop) or beyond it; none without a limit. For the drive-log page beside the
- * events (the figure is the vehicle's, so the analysis itself cannot say it).
- */
-export function travelWarnings(
-  events: readonly EventFigure[] | null | undefined,
-  travelLimitDeg: number | null,
-): string[] {
-  if (travelLimitDeg === null) return [];
-  const near = travelLimitDeg * (1 - TRAVEL_WARNING_SHARE);
-  return (events ?? [])
-    .filter((e) => e.twistPeakToPeakDeg >= near)
-    .map((e) => {
-      const where = eventText(e);
-      const text = where.charAt(0).toUpperCase() + where.slice(1);
-      return e.twistPeakToPeakDeg >= travelLimitDeg
-        ? `${text} twisted ${degText(e.twistPeakToPeakDeg)} peak to peak, at or beyond the damper's ${degText(travelLimitDeg)} travel limit: the end stops were probably reached.`
-        : `${text} twisted ${degText(e.twistPeakToPeakDeg)} peak to peak, within 10 % of the damper's ${degText(travelLimitDeg)} travel limit.`;
-    });
 }

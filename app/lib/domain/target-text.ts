@@ -4,9 +4,8 @@
  */
 import { conditionLabels } from "./drive-log-terms";
 import { plural } from "../base/plural";
-import { dbChangeText, dbText, radS2Text, rpmRangeText } from "./format";
+import { dbChangeText, dbText, degreesText, radS2Text, rpmRangeText } from "./format";
 import type { Target, TargetInput, TargetStatus, TargetVerdict } from "./targets";
-import { degText } from "./event-figures";
 
 /** A verdict's status in words, as pages show it. */
 export const TARGET_STATUS_LABELS: Record<TargetStatus, string> = {
@@ -28,7 +27,7 @@ export function gearText(g: number | null): string {
 export function marginText(v: Pick<TargetVerdict, "margin" | "unit">): string {
   if (v.margin === null) return "";
   if (v.unit === "dB") return dbChangeText(v.margin);
-  const size = v.unit === "°" ? degText(Math.abs(v.margin)) : radS2Text(Math.abs(v.margin));
+  const size = v.unit === "°" ? degreesText(Math.abs(v.margin)) : radS2Text(Math.abs(v.margin));
   return `${v.margin > 0 ? "+" : v.margin < 0 ? "−" : "±"}${size}`;
 }
 
@@ -42,7 +41,7 @@ export function limitText(t: Target | TargetInput): string {
     case "start-stop":
       return `peak amplification at engine start and stop at most ${dbText(t.maxDb!)}`;
     case "twist-margin":
-      return `start/stop twist at least ${degText(t.minMarginDeg!)} short of the damper travel limit`;
+      return `start/stop twist at least ${degreesText(t.minMarginDeg!)} short of the damper travel limit`;
   }
 }
 

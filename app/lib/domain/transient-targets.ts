@@ -12,8 +12,8 @@
  * a travel limit is "not-applicable".
  */
 import { countText } from "../base/plural";
-import { degText, eventText, largestEventFigures } from "./event-figures";
-import { dbText, rpmText } from "./format";
+import { eventText, largestEventFigures } from "./event-figures";
+import { dbText, degreesText, rpmText } from "./format";
 import type { Target, TargetEvidence, TargetVerdict } from "./targets";
 
 const round = (x: number, digits: number) => Math.round(x * 10 ** digits) / 10 ** digits;
@@ -81,14 +81,14 @@ export function twistMarginVerdict(t: Target, result: TargetEvidence): TargetVer
   const pass = margin >= 0;
   const toStops =
     value >= 0
-      ? `${degText(value)} short of the ${degText(travel)} travel limit`
-      : `${degText(-value)} beyond the ${degText(travel)} travel limit (the end stops were reached)`;
+      ? `${degreesText(value)} short of the ${degreesText(travel)} travel limit`
+      : `${degreesText(-value)} beyond the ${degreesText(travel)} travel limit (the end stops were reached)`;
   return {
     ...shell,
     status: pass ? "pass" : "fail",
     value,
     margin,
     atRpm: twistEvent.resonanceRpm,
-    detail: `Largest twist ${degText(twistPpDeg)} peak to peak in ${eventText(twistEvent)}, ${toStops}: ${degText(Math.abs(margin))} ${pass ? "more" : "less"} margin than the target.`,
+    detail: `Largest twist ${degreesText(twistPpDeg)} peak to peak in ${eventText(twistEvent)}, ${toStops}: ${degreesText(Math.abs(margin))} ${pass ? "more" : "less"} margin than the target.`,
   };
 }
