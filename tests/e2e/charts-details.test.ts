@@ -95,9 +95,9 @@ describe("one rounding rule for the isolation range", () => {
     expect(table).toContain(`, ${expected})`);
 
     await page.goto(`${baseUrl}/vehicles/${log.vehicleId}`);
-    await expect(
-      page.locator("tr", { hasText: log.fileName }).first().textContent(),
-    ).resolves.toContain(expected);
+    await expect(page.locator(`tr[data-log-id="${log.id}"]`).textContent()).resolves.toContain(
+      expected,
+    );
     await page.goto(`${baseUrl}/vehicles/${log.vehicleId}/logs/${log.id}`);
   });
 });

@@ -82,7 +82,8 @@ describe("damper health over time on the vehicle page", () => {
     const rows = variant.locator("tbody tr");
     await expect(rows.count()).resolves.toBe(SEQUENCE.length);
     const fn = await rows.evaluateAll((trs) =>
-      trs.map((tr) => Number(tr.querySelectorAll("td")[2]!.textContent)),
+      // A flagged figure carries a " (flagged) ⚠" after the number.
+      trs.map((tr) => Number.parseFloat(tr.querySelectorAll("td")[2]!.textContent ?? "")),
     );
     // The analytic signals' natural frequencies rise by 13.8 / 12.0 − 1 = 15 %; the fit of each
     // log within 2 % of its own (tolerance ours), so the measured rise is 15 ± 4 %.

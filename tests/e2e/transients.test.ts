@@ -91,12 +91,21 @@ describe("starts and stops on the drive-log page", () => {
       expect(Number(cells[3]!.replace("−", "-"))).toBeCloseTo(e.peakAmplificationDb!, 1);
       expect(Number(cells[6])).toBeCloseTo(e.twistPeakToPeakDeg, 1);
     }
-    // The demo vehicle has no travel limit: the engineer is told so and where to set it.
-    const note = panel.locator('[data-note="no-travel-limit"]');
-    await expect(note.textContent()).resolves.toContain("no damper travel limit set");
-    await expect(note.getByRole("link").getAttribute("href")).resolves.toBe(
-      `/vehicles/${vehicleId}/edit`,
+    // The demo vehicle's damper travel limit (a demo value, seeded) gives each event's end-stop
+    // margin: the limit minus the peak-to-peak twist (docs/ui.md, the margin rule).
+    const { vehicle } = await apiJson<{ vehicle: { damperTravelLimitDeg: number | null } }>(
+      page,
+      `/api/v1/vehicles/${vehicleId}`,
     );
+    expect(vehicle.damperTravelLimitDeg).not.toBeNull();
+    for (const [i, e] of events.entries()) {
+      const cells = (await rows.nth(i).locator("th, td").allTextContents()).map((t) => t.trim());
+      const margin = /[−-]?\d+(\.\d+)?/.exec(cells[7]!)?.[0] ?? "";
+      expect(Number(margin.replace("−", "-"))).toBeCloseTo(
+        vehicle.damperTravelLimitDeg! - e.twistPeakToPeakDeg,
+        1,
+      );
+    }
     await expect(panel.getByRole("complementary").textContent()).resolves.toMatch(/local codes/i);
   });
 
