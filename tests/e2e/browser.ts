@@ -1,4 +1,4 @@
-import { chromium, type Browser } from "playwright-core";
+import { chromium, type Browser, type Page } from "playwright-core";
 
 export const baseUrl = process.env.TWISTLOG_BASE_URL ?? "http://127.0.0.1:3101";
 
@@ -15,5 +15,21 @@ export function launchBrowser(): Promise<Browser> {
       "--disable-sync",
       "--no-first-run",
     ],
+  });
+}
+
+/** Share of a canvas' pixels that are neither transparent nor white: > 0 means something is drawn. */
+export async function inkOf(page: Page, selector: string): Promise<number> {
+  const canvas = page.locator(`${selector} canvas`).first();
+  await canvas.waitFor();
+  return canvas.evaluate((el) => {
+    const c = el as HTMLCanvasElement;
+    const ctx = c.getContext("2d");
+    if (!ctx || c.width === 0 || c.height === 0) return 0;
+    const { data } = ctx.getImageData(0, 0, c.width, c.height);
+    let ink = 0;
+    for (let i = 0; i < data.length; i += 4)
+      if (data[i + 3]! > 0 && (data[i]! < 245 || data[i + 1]! < 245 || data[i + 2]! < 245)) ink++;
+    return ink / (data.length / 4);
   });
 }

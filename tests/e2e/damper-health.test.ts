@@ -6,7 +6,7 @@ import type { VehicleTrend } from "~/lib/domain/trend";
 import { vehicleSchema } from "~/lib/domain/vehicle-schema";
 import { createTestTeam, TEST_PASSWORD, type TestTeam } from "../support/accounts";
 import { bearerFetch, uploadTrendLogs } from "../support/trend-logs";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, inkOf, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // Issue 15 §4 in Chromium: "a vehicle with a sequence of analytic logs whose natural frequency
@@ -25,22 +25,6 @@ let browser: Browser;
 let team: TestTeam;
 let page: Page;
 let vehicleId = 0;
-
-/** Share of a canvas' pixels that are neither transparent nor white. */
-async function inkOf(selector: string): Promise<number> {
-  const canvas = page.locator(`${selector} canvas`).first();
-  await canvas.waitFor();
-  return canvas.evaluate((el) => {
-    const c = el as HTMLCanvasElement;
-    const ctx = c.getContext("2d");
-    if (!ctx || c.width === 0 || c.height === 0) return 0;
-    const { data } = ctx.getImageData(0, 0, c.width, c.height);
-    let ink = 0;
-    for (let i = 0; i < data.length; i += 4)
-      if (data[i + 3]! > 0 && (data[i]! < 245 || data[i + 1]! < 245 || data[i + 2]! < 245)) ink++;
-    return ink / (data.length / 4);
-  });
-}
 
 beforeAll(async () => {
   browser = await launchBrowser();
@@ -106,7 +90,7 @@ describe("damper health over time on the vehicle page", () => {
     expect(api.points.map((p) => p.date)).toEqual(SEQUENCE.map((s) => s.testDate));
 
     // The small multiple of the natural frequency draws.
-    expect(await inkOf('[data-chart="trend-naturalFrequencyHz"]')).toBeGreaterThan(0.005);
+    expect(await inkOf(page, '[data-chart="trend-naturalFrequencyHz"]')).toBeGreaterThan(0.005);
     await snap(page, "damper-health-1440");
   });
 

@@ -2,7 +2,7 @@ import { readFileSync } from "node:fs";
 import Papa from "papaparse";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, inkOf, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // Reading results in Chromium against the seeded demo (the Kestrel programme, scripts/seed.ts):
@@ -57,22 +57,6 @@ async function demoLogs(page: Page): Promise<Demo> {
     await page.waitForTimeout(1000);
   }
   throw new Error("the demo drive logs were not analysed within 4 minutes");
-}
-
-/** Share of a canvas' pixels that are neither transparent nor white: > 0 means something is drawn. */
-async function inkOf(page: Page, selector: string): Promise<number> {
-  const canvas = page.locator(`${selector} canvas`).first();
-  await canvas.waitFor();
-  return canvas.evaluate((el) => {
-    const c = el as HTMLCanvasElement;
-    const ctx = c.getContext("2d");
-    if (!ctx || c.width === 0 || c.height === 0) return 0;
-    const { data } = ctx.getImageData(0, 0, c.width, c.height);
-    let ink = 0;
-    for (let i = 0; i < data.length; i += 4)
-      if (data[i + 3]! > 0 && (data[i]! < 245 || data[i + 1]! < 245 || data[i + 2]! < 245)) ink++;
-    return ink / (data.length / 4);
-  });
 }
 
 async function ready(page: Page, chart: string) {

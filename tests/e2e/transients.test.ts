@@ -1,7 +1,7 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { TransientEvent } from "~/lib/signal/result-schema";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, inkOf, launchBrowser } from "./browser";
 import { apiJson, demoVehicleId, waitForDemoLogs, type DemoLog } from "./demo-logs";
 import { signIn, snap } from "./sign-in";
 
@@ -15,22 +15,6 @@ let engineer: Page;
 let vehicleId: number;
 let log: DemoLog;
 let events: TransientEvent[];
-
-/** Share of a canvas' pixels that are neither transparent nor white. */
-async function inkOf(page: Page, selector: string): Promise<number> {
-  const canvas = page.locator(`${selector} canvas`).first();
-  await canvas.waitFor();
-  return canvas.evaluate((el) => {
-    const c = el as HTMLCanvasElement;
-    const ctx = c.getContext("2d");
-    if (!ctx || c.width === 0 || c.height === 0) return 0;
-    const { data } = ctx.getImageData(0, 0, c.width, c.height);
-    let ink = 0;
-    for (let i = 0; i < data.length; i += 4)
-      if (data[i + 3]! > 0 && (data[i]! < 245 || data[i + 1]! < 245 || data[i + 2]! < 245)) ink++;
-    return ink / (data.length / 4);
-  });
-}
 
 beforeAll(async () => {
   browser = await launchBrowser();

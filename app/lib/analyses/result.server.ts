@@ -7,10 +7,12 @@
  */
 import { and, eq, inArray } from "drizzle-orm";
 import { gunzipSync, gzipSync } from "node:zlib";
+import { z } from "zod";
 import { analyses } from "~/lib/infra/db/schema-drive-logs";
 import { analysisResultSchema, type AnalysisResult } from "~/lib/signal";
 import { deepFreeze, Lru } from "../base/lru";
 import { db } from "../infra/db.server";
+import type { EventFigure } from "../domain/event-figures";
 
 /** One analysis version with its result (checked against the schema). */
 export interface StoredAnalysis {
@@ -24,6 +26,13 @@ export interface StoredAnalysis {
 export interface IdleFigures {
   peakRadS2: number;
   meanRpm: number;
+}
+
+/** What the targets and the trend read of a result's start/stop events and model fit. */
+export interface TransientFigures {
+  /** The events; null when the result was stored before events were detected (re-analyse). */
+  events: EventFigure[] | null;
+  model: { naturalFrequencyHz: number; dampingRatio: number } | null;
 }
 
 /** The two compressed columns a result is kept in (analyses.result_gz, analyses.order_map_gz). */
@@ -77,9 +86,9 @@ export function decodeStoredJson(stored: EncodedResult): Record<string, unknown>
 // ---- The cache ------------------------------------------------------------------------------
 
 /**
- * What has been read of analyses, by analysis id, in three least-recently-used parts with their
+ * What has been read of analyses, by analysis id, in four least-recently-used parts with their
  * own bounds, as their sizes differ: a parsed result is up to about 1 MB (the order map has at
- * most 400 rows), a chart body about 200 KB, idle figures a few bytes. Decoding a result (gunzip,
+ * most 400 rows), a chart body about 200 KB, idle and transient figures a few bytes to a few hundred. Decoding a result (gunzip,
  * JSON, schema check of the order map; 10 ms or more for a demo run-up) with its garbage was
  * about a third of a drive-log page request's CPU under load (bench/load.bench.ts, profiled), and
  * a chart body takes 20–70 ms to build.
@@ -90,6 +99,7 @@ const cache = {
   /** Bodies of charts.json (chart-bodies.server.ts). */
   chartBodies: new Lru<number, string>(64),
   idle: new Lru<number, IdleFigures | null>(20_000),
+  transient: new Lru<number, TransientFigures>(20_000),
 };
 
 /** The parsed result of an analysis (frozen: no request can change what the next one reads). */
@@ -125,37 +135,86 @@ export function keepChartBody(analysisId: number, body: string): void {
   cache.chartBodies.set(analysisId, body);
 }
 
+/**
+ * Figures read from the result JSON (not the order map) of these analyses of the team, kept by
+ * analysis id in `kept`. `read` gives undefined for a result it cannot read: left out, not kept.
+ */
+async function figuresOf<T>(
+  teamId: number,
+  analysisIds: readonly number[],
+  kept: Lru<number, T>,
+  read: (result: Record<string, unknown>) => T | undefined,
+): Promise<Map<number, T>> {
+  const out = new Map<number, T>();
+  const missing: number[] = [];
+  for (const id of new Set(analysisIds)) {
+    const known = kept.get(id);
+    if (known !== undefined) out.set(id, known);
+    else missing.push(id);
+  }
+  for (let i = 0; i < missing.length; i += 50) {
+    const rows = await db
+      .select({ id: analyses.id, resultGz: analyses.resultGz })
+      .from(analyses)
+      .where(and(inArray(analyses.id, missing.slice(i, i + 50)), eq(analyses.teamId, teamId)));
+    for (const row of rows) {
+      const figures = read(unpack(row.resultGz) as Record<string, unknown>);
+      if (figures === undefined) continue;
+      kept.set(row.id, figures);
+      out.set(row.id, figures);
+    }
+  }
+  return out;
+}
+
 const idleSchema = analysisResultSchema.shape.idle.unwrap().pick({
   gearboxAngAccelPeakRadS2: true,
   meanRpm: true,
 });
 
 /** The idle figures of these analyses of the team (null: no idle segment). */
-export async function idleFiguresOf(
+export function idleFiguresOf(
   teamId: number,
   analysisIds: number[],
 ): Promise<Map<number, IdleFigures | null>> {
-  const out = new Map<number, IdleFigures | null>();
-  const missing: number[] = [];
-  for (const id of new Set(analysisIds)) {
-    const known = cache.idle.get(id);
-    if (known !== undefined) out.set(id, known);
-    else missing.push(id);
-  }
-  for (let i = 0; i < missing.length; i += 50) {
-    // Only the result column: the order map is not needed for these two figures.
-    const rows = await db
-      .select({ id: analyses.id, resultGz: analyses.resultGz })
-      .from(analyses)
-      .where(and(inArray(analyses.id, missing.slice(i, i + 50)), eq(analyses.teamId, teamId)));
-    for (const row of rows) {
-      const idle = idleSchema.safeParse((unpack(row.resultGz) as { idle?: unknown }).idle);
-      const figures = idle.success
-        ? { peakRadS2: idle.data.gearboxAngAccelPeakRadS2, meanRpm: idle.data.meanRpm }
-        : null;
-      cache.idle.set(row.id, figures);
-      out.set(row.id, figures);
-    }
-  }
-  return out;
+  return figuresOf(teamId, analysisIds, cache.idle, (result) => {
+    const idle = idleSchema.safeParse(result.idle);
+    return idle.success
+      ? { peakRadS2: idle.data.gearboxAngAccelPeakRadS2, meanRpm: idle.data.meanRpm }
+      : null;
+  });
+}
+
+const transientSchema = z.object({
+  events: analysisResultSchema.shape.events,
+  model: analysisResultSchema.shape.model.optional(),
+});
+
+/**
+ * The start/stop events and the two-mass model fit of these analyses of the team: the targets
+ * need each event (the analyses row keeps only the largest figures), and analyses saved before
+ * issue 15 have no model columns. An unreadable result is left out.
+ */
+export function transientFiguresOf(
+  teamId: number,
+  analysisIds: readonly number[],
+): Promise<Map<number, TransientFigures>> {
+  return figuresOf(teamId, analysisIds, cache.transient, (result) => {
+    const parsed = transientSchema.safeParse(result);
+    if (!parsed.success) return undefined;
+    const { events, model } = parsed.data;
+    return {
+      events:
+        events?.map((e) => ({
+          kind: e.kind,
+          startS: e.startS,
+          peakAmplificationDb: e.peakAmplificationDb,
+          twistPeakToPeakDeg: e.twistPeakToPeakDeg,
+          resonanceRpm: e.resonanceRpm,
+        })) ?? null,
+      model: model
+        ? { naturalFrequencyHz: model.naturalFrequencyHz, dampingRatio: model.dampingRatio }
+        : null,
+    };
+  });
 }

@@ -2,8 +2,12 @@ import { and, asc, eq, isNotNull } from "drizzle-orm";
 import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-drive-logs";
 import { targets } from "~/lib/infra/db/schema-results";
 import type { AnalysisResult } from "~/lib/signal";
-import { idleFiguresOf, type IdleFigures } from "../analyses/result.server";
-import { transientFiguresOf, type TransientFigures } from "../analyses/transient-figures.server";
+import {
+  idleFiguresOf,
+  transientFiguresOf,
+  type IdleFigures,
+  type TransientFigures,
+} from "../analyses/result.server";
 import { db } from "../infra/db.server";
 import type { LogCondition } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";

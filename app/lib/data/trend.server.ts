@@ -6,7 +6,7 @@
  */
 import { and, asc, eq, gte, inArray, isNotNull, lte } from "drizzle-orm";
 import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-drive-logs";
-import { transientFiguresOf } from "../analyses/transient-figures.server";
+import { transientFiguresOf } from "../analyses/result.server";
 import { db } from "../infra/db.server";
 import { NotFound } from "../domain/errors";
 import {
