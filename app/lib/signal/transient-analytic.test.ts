@@ -9,7 +9,7 @@ import { describe, expect, it } from "vitest";
 import { analyseDriveLog } from "./analyse.ts";
 import { synthLog } from "../../../tests/support/synth-log.ts";
 import { analysisResultSchema, type AnalysisResult } from "./result-schema.ts";
-import { transferFunction, transmissibility } from "./two-mass-model.ts";
+import { transferH } from "../../../tests/support/analytic-log.ts";
 import type { DriveLog } from "./types.ts";
 
 const RAD_PER_RPM = (2 * Math.PI) / 60;
@@ -28,7 +28,7 @@ const FS = 2000;
 const rPeak = Math.sqrt((Math.sqrt(1 + 8 * ZETA ** 2) - 1) / (4 * ZETA ** 2));
 const PEAK_RPM = rPeak * R_N_RPM;
 const formulaDb = (rpm: number) =>
-  -20 * Math.log10(transmissibility(((rpm / 60) * Q) / FN_HZ, ZETA));
+  -20 * Math.log10(transferH(((rpm / 60) * Q) / FN_HZ, ZETA).magnitude);
 
 /** Idle 800 rpm, then 800 → 200 rpm in 3 s (from 6 s), 200 → 0 in 0.5 s, standstill to 12 s. */
 const stopRpm = (t: number) =>
@@ -95,9 +95,9 @@ function analyticPeakAccel(rpmAt: (t: number) => number, a: number, b: number) {
     if (t < a) continue;
     const w = rpmAt(t) * RAD_PER_RPM;
     const dw = ((rpmAt(t + h) - rpmAt(t - h)) * RAD_PER_RPM) / (2 * h);
-    const H = transferFunction(rOf(t), ZETA);
-    const Hp = transferFunction(rOf(t + h), ZETA);
-    const Hm = transferFunction(rOf(t - h), ZETA);
+    const H = transferH(rOf(t), ZETA);
+    const Hp = transferH(rOf(t + h), ZETA);
+    const Hm = transferH(rOf(t - h), ZETA);
     const dT = (Hp.magnitude - Hm.magnitude) / (2 * h);
     const dPhi = (Hp.phaseRad - Hm.phaseRad) / (2 * h);
     const psi = Q * theta + H.phaseRad;
@@ -161,7 +161,7 @@ describe("engine stop 800 → 200 rpm in 3 s through a damper resonance at 445 r
     for (let t = ev.startS; t < ev.endS; t += 1e-3) {
       const w = stopRpm(t) * RAD_PER_RPM;
       if (w <= 0) continue;
-      const H = transferFunction(((stopRpm(t) / 60) * Q) / FN_HZ, ZETA);
+      const H = transferH(((stopRpm(t) / 60) * Q) / FN_HZ, ZETA);
       const d = Math.hypot(
         1 - H.magnitude * Math.cos(H.phaseRad),
         H.magnitude * Math.sin(H.phaseRad),
@@ -177,6 +177,34 @@ describe("engine stop 800 → 200 rpm in 3 s through a damper resonance at 445 r
     const a = v.events!.find((e) => e.kind === "stop")!.twistPeakToPeakDeg;
     const b = w.events!.find((e) => e.kind === "stop")!.twistPeakToPeakDeg;
     expect(Math.abs(b / a - 1)).toBeLessThanOrEqual(0.05);
+  });
+});
+
+describe("the same engine stop with a lighter damping, ζ = 0.1 (a sharper resonance crossed as fast)", () => {
+  const zeta = 0.1;
+  const v = run(
+    synthLog({
+      fs: FS,
+      durationS: 12,
+      rpmAt: stopRpm,
+      order: Q,
+      ampRpm: AMP_RPM,
+      fnHz: FN_HZ,
+      zeta,
+      noiseRpm: 0.2,
+    }),
+  );
+  // Peak of T(r) as above (Harris ch. 30): r² = (√(1 + 8ζ²) − 1)/(4ζ²).
+  const peakRpm = Math.sqrt((Math.sqrt(1 + 8 * zeta ** 2) - 1) / (4 * zeta ** 2)) * R_N_RPM;
+  const db = (rpm: number) => -20 * Math.log10(transferH(((rpm / 60) * Q) / FN_HZ, zeta).magnitude);
+
+  it("resonance within 5 % of the formula's peak; isolation within 1 dB from 0.7× to 1.5× of it (Harris ch. 30 / Ogata eq. 9-14)", () => {
+    const ev = v.events!.find((e) => e.kind === "stop")!;
+    expect(Math.abs(ev.resonanceRpm! / peakRpm - 1)).toBeLessThan(0.05);
+    expect(Math.abs(ev.peakAmplificationDb! + db(peakRpm))).toBeLessThan(1);
+    const checked = v.isolation.filter((p) => p.rpm >= 0.7 * peakRpm && p.rpm <= 1.5 * peakRpm);
+    expect(checked.length).toBeGreaterThanOrEqual(6);
+    for (const p of checked) expect(Math.abs(p.dB - db(p.rpm))).toBeLessThan(1);
   });
 });
 
@@ -257,7 +285,7 @@ describe("fast run-up 1000 → 6000 rpm in 5 s against a slow one (50 rpm/s) of 
       noiseRpm: 0.2,
     });
   const expected = (rpm: number) =>
-    -20 * Math.log10(transmissibility(((rpm / 60) * 2) / fnHz, zeta));
+    -20 * Math.log10(transferH(((rpm / 60) * 2) / fnHz, zeta).magnitude);
   /** Mean and largest |measured − formula| over the bins above the noise, 1000–6000 rpm. */
   const errors = (v: AnalysisResult) => {
     const pts = v.isolation.filter((p) => p.aboveNoise && p.rpm >= 1000 && p.rpm <= 6000);

@@ -25,9 +25,14 @@ export const MAX_SPEED_CHANGE_PER_BLOCK = 0.05;
 export const SLEW_REFERENCE_RPM = 1000;
 /** The order filter's settings for fast spans (vold-kalman.ts). */
 export const TRANSIENT_FILTER = {
-  poles: 2 as const,
-  /** Half-power bandwidth, one side, in orders: 0.2 keeps order q ± 0.5 25 dB down (Tůma 2005, eq. 8). */
-  bandwidthOrders: 0.2,
+  poles: 3 as const,
+  /**
+   * Half-power bandwidth, one side, in orders. With three poles 0.25 orders keeps order q ± 0.5
+   * 29 dB down (Tůma 2005, eq. 8) and follows a damper resonance with ζ = 0.1 crossed at
+   * 200 rpm/s within 1 dB (transient-analytic.test.ts); two poles at 0.2 orders were 1.1 dB off
+   * there (docs/order-filter.md), and wider bands let the half orders of a start in.
+   */
+  bandwidthOrders: 0.25,
   minBandwidthHz: 0.3,
 };
 /** The firing order counts as resolved where its frequency is at least this many bandwidths. */
