@@ -7,7 +7,7 @@ import type uPlot from "uplot";
 import type { ChartData } from "~/lib/domain/chart-data";
 import { dbText, rpmText } from "~/lib/domain/format";
 import { COLOURS, FONT_FAMILY } from "./palette";
-import { drawFilterMarks, drawXMarkers, drawYLine, px } from "./plot-kit";
+import { drawFilterMarks, drawXMarkers, drawYLine, fillDiamond, px } from "./plot-kit";
 import type { TargetBand } from "./types";
 
 type Iso = ChartData["isolation"];
@@ -242,13 +242,7 @@ function drawResonance(u: uPlot, r: { rpm: number; isolationDb: number }) {
   const y = u.valToPos(r.isolationDb, "y", true);
   ctx.save();
   ctx.fillStyle = COLOURS.marker;
-  ctx.beginPath();
-  ctx.moveTo(x, y - 7 * s);
-  ctx.lineTo(x + 6 * s, y);
-  ctx.lineTo(x, y + 7 * s);
-  ctx.lineTo(x - 6 * s, y);
-  ctx.closePath();
-  ctx.fill();
+  fillDiamond(ctx, x, y, 6 * s, 7 * s);
   ctx.font = `500 ${11 * s}px ${FONT_FAMILY}`;
   const text = `Resonance ${rpmText(r.rpm)}, ${dbText(r.isolationDb)}`;
   const w = ctx.measureText(text).width;

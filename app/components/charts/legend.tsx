@@ -1,4 +1,5 @@
 import { COLOURS } from "./palette";
+import { fillDiamond } from "./plot-kit";
 
 /** One legend entry: drawn the same way in the page (SVG) and in a PNG export (canvas). */
 export type LegendEntry =
@@ -127,12 +128,7 @@ export function paintSwatch(
     ctx.lineWidth = 1.5 * s;
     ctx.beginPath();
     if (entry.shape === "diamond") {
-      ctx.moveTo(cx, y + s);
-      ctx.lineTo(cx + 5 * s, cy);
-      ctx.lineTo(cx, y + (H - 1) * s);
-      ctx.lineTo(cx - 5 * s, cy);
-      ctx.closePath();
-      ctx.fill();
+      fillDiamond(ctx, cx, cy, 5 * s, (H / 2 - 1) * s);
     } else if (entry.shape === "square") {
       ctx.strokeRect(cx - 4.5 * s, cy - 4.5 * s, 9 * s, 9 * s);
       ctx.arc(cx, cy, 2 * s, 0, 2 * Math.PI);

@@ -67,6 +67,23 @@ export function px(u: uPlot): number {
   return u.ctx.canvas.clientWidth > 0 ? u.ctx.canvas.width / u.ctx.canvas.clientWidth : 1;
 }
 
+/** A filled diamond centred on (cx, cy), canvas pixels: our mark for a resonance or a flagged point. */
+export function fillDiamond(
+  ctx: CanvasRenderingContext2D,
+  cx: number,
+  cy: number,
+  halfWidth: number,
+  halfHeight: number,
+): void {
+  ctx.beginPath();
+  ctx.moveTo(cx, cy - halfHeight);
+  ctx.lineTo(cx + halfWidth, cy);
+  ctx.lineTo(cx, cy + halfHeight);
+  ctx.lineTo(cx - halfWidth, cy);
+  ctx.closePath();
+  ctx.fill();
+}
+
 /** Vertical bands across the plot at x ranges, with a label at the top of each. */
 export function drawXBands(
   u: uPlot,

@@ -3,7 +3,7 @@ import type uPlot from "uplot";
 import type { TrendQuantity, TrendThresholds, VariantTrend } from "~/lib/domain/trend";
 import { COLOURS, FONT_FAMILY } from "./palette";
 import { Plot, type PlotOptions } from "./plot";
-import { cursor, drawYLine, lineSeries, px, xAxis, yAxis } from "./plot-kit";
+import { cursor, drawYLine, fillDiamond, lineSeries, px, xAxis, yAxis } from "./plot-kit";
 import { trendSeries } from "./trend-series";
 
 const DAY = 86400;
@@ -158,13 +158,7 @@ function drawFlags(u: uPlot, xs: number[], ys: (number | null)[], flagged: boole
     if (!flagged[i] || y === null || y === undefined) return;
     const cx = u.valToPos(x, "x", true);
     const cy = u.valToPos(y, "y", true);
-    ctx.beginPath();
-    ctx.moveTo(cx, cy - 6 * s);
-    ctx.lineTo(cx + 5 * s, cy);
-    ctx.lineTo(cx, cy + 6 * s);
-    ctx.lineTo(cx - 5 * s, cy);
-    ctx.closePath();
-    ctx.fill();
+    fillDiamond(ctx, cx, cy, 5 * s, 6 * s);
     const right = cx + 12 * s < u.bbox.left + u.bbox.width;
     ctx.textAlign = right ? "left" : "right";
     ctx.fillText("!", right ? cx + 8 * s : cx - 8 * s, cy);

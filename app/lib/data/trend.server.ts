@@ -90,6 +90,12 @@ export async function loadVehicleTrend(
   const fromResult = older.length
     ? await transientFiguresOf(teamId, older)
     : new Map<number, never>();
+  const pointsOf = new Map<number, typeof points>();
+  for (const p of points) {
+    const list = pointsOf.get(p.analysisId);
+    if (list) list.push(p);
+    else pointsOf.set(p.analysisId, [p]);
+  }
   const logs: TrendLogInput[] = rows.map((r) => {
     const model = r.naturalHz === null ? (fromResult.get(r.analysisId)?.model ?? null) : null;
     return {
@@ -103,7 +109,7 @@ export async function loadVehicleTrend(
       naturalFrequencyHz: r.naturalHz ?? model?.naturalFrequencyHz ?? null,
       dampingRatio: r.dampingRatio ?? model?.dampingRatio ?? null,
       isolationAtReferenceDb: isolationNear(
-        points.filter((p) => p.analysisId === r.analysisId),
+        pointsOf.get(r.analysisId) ?? [],
         referenceRpm,
         binOf(r.settings),
       ),

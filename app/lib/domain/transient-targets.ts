@@ -12,6 +12,7 @@
  * a travel limit is "not-applicable".
  */
 import { countText } from "../base/plural";
+import { endStopMargin } from "./chart-data";
 import { eventText, largestEventFigures } from "./event-figures";
 import { dbText, degreesText, rpmText } from "./format";
 import type { Target, TargetEvidence, TargetVerdict } from "./targets";
@@ -76,7 +77,7 @@ export function twistMarginVerdict(t: Target, result: TargetEvidence): TargetVer
   const { twistPpDeg, twistEvent } = largestEventFigures(events);
   if (twistPpDeg === null || !twistEvent)
     return { ...shell, ...none, status: "not-covered", detail: NO_EVENTS_TEXT };
-  const value = round(travel - twistPpDeg, 3);
+  const value = round(endStopMargin(twistPpDeg, travel).marginDeg, 3);
   const margin = round(value - minMargin, 2);
   const pass = margin >= 0;
   const toStops =
