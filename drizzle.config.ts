@@ -8,6 +8,7 @@ export default defineConfig({
     "./app/lib/infra/db/schema.ts",
     "./app/lib/infra/db/schema-drive-logs.ts",
     "./app/lib/infra/db/schema-results.ts",
+    "./app/lib/infra/db/schema-signoffs.ts",
   ],
   out: "./drizzle",
 });

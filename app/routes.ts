@@ -11,6 +11,9 @@ export default [
     route("vehicles/:vehicleId/logs/:logId", "routes/drive-log.tsx"),
     route("vehicles/:vehicleId/logs/:logId/rattle", "routes/rattle.tsx"),
     route("vehicles/:vehicleId/compare", "routes/compare.tsx"),
+    // Sign-off (issue 16): propose, and one sign-off with its evidence, history and decisions.
+    route("vehicles/:vehicleId/signoffs/new", "routes/signoff.new.tsx"),
+    route("vehicles/:vehicleId/signoffs/:signoffId", "routes/signoff.tsx"),
     route("comparisons", "routes/comparisons.tsx"),
     route("team", "routes/team.tsx"),
     route("team/members/:memberId", "routes/team.member.tsx"),
@@ -51,6 +54,15 @@ export default [
     route("vehicles/:vehicleId", "routes/api.v1.vehicle.ts"),
     route("vehicles/:vehicleId/logs", "routes/api.v1.vehicle-logs.ts"),
     route("vehicles/:vehicleId/trend", "routes/api.v1.vehicle-trend.ts"),
+    // Sign-off, evidence report and export pack (issue 16)
+    route("vehicles/:vehicleId/signoffs", "routes/api.v1.vehicle-signoffs.ts"),
+    route("vehicles/:vehicleId/report.pdf", "routes/api.v1.vehicle-report.ts"),
+    route("vehicles/:vehicleId/export.zip", "routes/api.v1.vehicle-export.ts"),
+    route("signoffs", "routes/api.v1.signoffs.ts"),
+    route("signoffs/:signoffId", "routes/api.v1.signoff.ts"),
+    route("signoffs/:signoffId/report.pdf", "routes/api.v1.signoff-report.ts"),
+    // approve, reject, withdraw
+    route("signoffs/:signoffId/:step", "routes/api.v1.signoff-step.ts"),
     route("logs/:logId", "routes/api.v1.log.ts"),
     route("logs/:logId/result", "routes/api.v1.log-result.ts"),
     route("logs/:logId/channels", "routes/api.v1.log-channels.ts"),
@@ -66,6 +78,7 @@ export default [
   route("s/:token/charts.json", "routes/share.charts.ts"),
   route("s/:token/curves.json", "routes/share.curves.ts"),
   route("s/:token/file", "routes/share.file.ts"),
+  route("s/:token/report.pdf", "routes/share.report.ts"),
   route("vehicles/:vehicleId/logs/:logId/share", "routes/drive-log.share.ts"),
   route("vehicles/:vehicleId/compare/share", "routes/comparison.share.ts"),
   route("vehicles/:vehicleId/comments", "routes/comments.ts"),

@@ -128,6 +128,7 @@ function summary(
     vehicleId: s.vehicleId,
     logId: s.driveLogId,
     logIds: s.logIds,
+    signoffId: s.signoffId,
     note: s.note,
     allowRawDownload: s.allowRawDownload,
     createdBy: { id: s.createdBy, name: row.creatorName ?? "a former member" },

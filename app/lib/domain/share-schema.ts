@@ -138,10 +138,12 @@ export const apiCreateShareSchema = z
 /** A share link as the share panel lists it (GET …/share, the API's list). */
 export interface ShareSummary {
   id: number;
-  kind: "log" | "comparison";
+  kind: "log" | "comparison" | "signoff";
   vehicleId: number;
   logId: number | null;
   logIds: number[];
+  /** kind "signoff": the sign-off shared (issue 16). */
+  signoffId: number | null;
   note: string;
   allowRawDownload: boolean;
   createdBy: { id: number | null; name: string };

@@ -55,7 +55,7 @@ export const targets = mysqlTable(
   (t) => [index("targets_vehicle_idx").on(t.vehicleId)],
 );
 
-export const SHARE_KINDS = ["log", "comparison"] as const;
+export const SHARE_KINDS = ["log", "comparison", "signoff"] as const;
 export type ShareKind = (typeof SHARE_KINDS)[number];
 
 /**
@@ -77,6 +77,8 @@ export const shares = mysqlTable(
     driveLogId: ref("drive_log_id").references(() => driveLogs.id, { onDelete: "cascade" }),
     /** kind "comparison": the drive logs compared, in the order shown. */
     logIds: json("log_ids").$type<number[]>().notNull(),
+    /** kind "signoff": the sign-off shared (its evidence and report, read only; issue 16). */
+    signoffId: ref("signoff_id"),
     tokenHash: varchar("token_hash", { length: 64 }).notNull(),
     note: text("note").notNull(),
     allowRawDownload: boolean("allow_raw_download").notNull().default(false),

@@ -10,6 +10,7 @@ import {
 } from "drizzle-orm/mysql-core";
 import type { ChannelName } from "../../signal/types";
 import { ROLES, type Role } from "../../domain/roles";
+import { SIGNOFF_APPROVERS } from "../../domain/signoff";
 import { at, createdAt, id, ref } from "./columns";
 
 // Secrets that travel in links, cookies or headers are stored only as their sha256 (hex).
@@ -33,6 +34,10 @@ export const teams = mysqlTable(
     strictIngest: boolean("strict_ingest").notNull().default(false),
     // The engine speed at which the damper-health trend reads the isolation, rpm (issue 15).
     trendReferenceRpm: smallint("trend_reference_rpm", { unsigned: true }).notNull().default(1500),
+    // Who approves sign-offs besides never their proposer (issue 16, domain/signoff.ts).
+    signoffApprovers: mysqlEnum("signoff_approvers", SIGNOFF_APPROVERS)
+      .notNull()
+      .default("engineers"),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex("teams_slug_unique").on(t.slug)],
