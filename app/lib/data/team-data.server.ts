@@ -5,6 +5,7 @@ import { db } from "../infra/db.server";
 import { NotFound } from "../domain/errors";
 import { readChannelNames, type TeamIngestSettings } from "../domain/channel-names";
 import type { ChannelName } from "../signal/types";
+import type { SignoffApprovers } from "../domain/signoff";
 
 /** What a member row shows: the membership with its user. */
 const memberColumns = {
@@ -32,6 +33,7 @@ export function teamData(teamId: number) {
           name: teams.name,
           amplitudeUnit: teams.amplitudeUnit,
           trendReferenceRpm: teams.trendReferenceRpm,
+          signoffApprovers: teams.signoffApprovers,
         })
         .from(teams)
         .where(eq(teams.id, teamId));
@@ -46,6 +48,11 @@ export function teamData(teamId: number) {
     /** The engine speed the damper-health trend reads the isolation at (checked by the caller). */
     setTrendReferenceRpm(rpm: number) {
       return db.update(teams).set({ trendReferenceRpm: rpm }).where(eq(teams.id, teamId));
+    },
+
+    /** Who approves sign-offs besides never their proposer (issue 16; admins change it). */
+    setSignoffApprovers(approvers: SignoffApprovers) {
+      return db.update(teams).set({ signoffApprovers: approvers }).where(eq(teams.id, teamId));
     },
 
     /** The team's channel names and strict flag, as every analysis job gets them. */
