@@ -1,11 +1,11 @@
 import { and, asc, desc, eq, gt, isNull } from "drizzle-orm";
+import type { SignoffApprovers } from "../domain/signoff";
 import { invitations, memberships, teams, users, type Role } from "~/lib/infra/db/schema";
 import { teamAuditChoices, teamAuditLog, type AuditFilter } from "./audit.server";
 import { db } from "../infra/db.server";
 import { NotFound } from "../domain/errors";
 import { readChannelNames, type TeamIngestSettings } from "../domain/channel-names";
 import type { ChannelName } from "../signal/types";
-import type { SignoffApprovers } from "../domain/signoff";
 
 /** What a member row shows: the membership with its user. */
 const memberColumns = {
@@ -50,7 +50,7 @@ export function teamData(teamId: number) {
       return db.update(teams).set({ trendReferenceRpm: rpm }).where(eq(teams.id, teamId));
     },
 
-    /** Who approves sign-offs besides never their proposer (issue 16; admins change it). */
+    /** Who approves sign-offs besides never their proposer (domain/signoff.ts mayDecide). */
     setSignoffApprovers(approvers: SignoffApprovers) {
       return db.update(teams).set({ signoffApprovers: approvers }).where(eq(teams.id, teamId));
     },
