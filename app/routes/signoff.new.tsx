@@ -7,6 +7,7 @@ import { inputClass, linkClass } from "~/components/form-fields";
 import { EmptyState, PageHeader } from "~/components/page";
 import { ProposalForm } from "~/components/signoff-proposal";
 import { signoffData } from "~/lib/data/signoffs.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import { Invalid } from "~/lib/domain/errors";
 import type { ClaimCheck } from "~/lib/domain/signoff";
 import { requireAccess } from "~/lib/http/access.server";
@@ -58,7 +59,8 @@ export const action = pageRoute(async ({ request, params, context }: Route.Actio
   const form = await readForm(request);
   await assertCsrf(request, form);
   const { team, user } = await requireAccess(request, "engineer");
-  const vehicleId = idParam(params.vehicleId);
+  // Another team's vehicle is a 404 before anything is read of the form.
+  const vehicleId = (await vehicleData(team.id).vehicle(idParam(params.vehicleId))).id;
   const intent = form.get("intent");
   if (intent !== "propose" && intent !== "check") throw new Invalid("Unknown action.");
   const signoffs = signoffData(team.id);
