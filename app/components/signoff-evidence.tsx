@@ -59,7 +59,8 @@ export function EvidenceTable({
                   </span>
                 </td>
                 <td className={tdClass}>
-                  {conditionLabels[l.condition]}, {gearLabel(l.gear)}
+                  {conditionLabels[l.condition]}
+                  {l.gear !== null ? `, ${gearLabel(l.gear)}` : ""}
                   <span className="block text-xs text-neutral-500">
                     {l.testDate ? <When date={l.testDate} dateOnly /> : "no test date"}
                   </span>

@@ -269,7 +269,8 @@ function LogChoice({
       <label htmlFor={id} className="min-w-0">
         <span className="break-all">{log.fileName}</span>{" "}
         <span className="text-neutral-500">
-          ({conditionLabels[log.condition as LogCondition]}, {gearLabel(log.gear)}, {log.date})
+          ({conditionLabels[log.condition as LogCondition]}
+          {log.gear !== null ? `, ${gearLabel(log.gear)}` : ""}, {log.date})
         </span>{" "}
         <span className={`font-semibold ${tone}`}>
           {v ? TARGET_STATUS_LABELS[v.status] : "not analysed"}

@@ -156,7 +156,7 @@ describe("sign-off in the browser", () => {
     await snap(page, "signoff-propose-refused");
 
     await deviation.fill("Idle rattle is judged on the vehicle by the NVH jury; figure accepted.");
-    await rattle.locator('[data-claim-status="fail"]').getByText("deviation recorded").waitFor();
+    await rattle.locator('[data-claim-status="fail"]').getByText("— deviation recorded").waitFor();
     await page.getByRole("button", { name: "Propose sign-off" }).click();
     await page.waitForURL(/\/signoffs\/\d+\?notice=proposed$/);
     signoffPath = new URL(page.url()).pathname;
