@@ -186,7 +186,7 @@ describe("sign-off in the browser", () => {
     await page.waitForURL((url) => url.pathname === signoffPath);
     await page.getByLabel("Comment (optional)").fill("Released for the Kestrel programme.");
     await page.getByRole("button", { name: "Approve sign-off" }).click();
-    await page.getByText("The sign-off is approved").waitFor();
+    await page.getByRole("status").filter({ hasText: "The sign-off is approved" }).waitFor();
     await page.locator('h1 [data-signoff-state="approved"]').waitFor();
     approvedDigest = ((await page.locator("[data-digest]").textContent()) ?? "").trim();
     expect(approvedDigest).toMatch(/^[0-9a-f]{64}$/);
