@@ -213,6 +213,34 @@ describe("sign-off in the browser", () => {
     expect(text.join(" ")).toContain(logName);
   });
 
+  it("the engineer shares the sign-off read-only: the guest sees the evidence and the report, nothing else", async () => {
+    const page = engineer;
+    await page.goto(baseUrl + signoffPath);
+    const panel = page.locator("[data-share-panel]");
+    await panel.getByText("Make a share link").click();
+    // A sign-off's link never carries a raw file: no such checkbox.
+    await expect(panel.getByLabel("Allow downloading the raw file").count()).resolves.toBe(0);
+    await panel.getByRole("button", { name: "Make share link" }).click();
+    const shown = panel.getByLabel(/Copy the share link now/);
+    await shown.waitFor();
+    const url = await shown.inputValue();
+    const guest = await (await browser.newContext()).newPage();
+    await guest.goto(url);
+    await guest.locator("[data-shared-signoff]").waitFor();
+    await guest.locator('[data-signoff-state="approved"]').waitFor();
+    await guest.getByTestId("signoff-evidence").getByText(logName).waitFor();
+    // Names only: no e-mail address of the team on the shared page.
+    expect(await guest.content()).not.toContain("@twistlog.test");
+    // No drive-log page is linked, and the link reaches no raw file.
+    await expect(guest.locator('a[href*="/logs/"]').count()).resolves.toBe(0);
+    expect((await guest.request.get(`${url}/file`)).status()).not.toBe(200);
+    const shared = await download(guest, "Evidence report (PDF)");
+    expect(approvedPdf).not.toBeNull();
+    expect(shared.equals(approvedPdf!)).toBe(true);
+    await snap(guest, "signoff-shared");
+    await guest.context().close();
+  });
+
   it("a re-analysis of the claimed drive log supersedes the sign-off; its report stays the same", async () => {
     const page = engineer;
     await page.goto(baseUrl + signoffPath);
