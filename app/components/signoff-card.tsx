@@ -97,6 +97,10 @@ function VariantLine({
               ) : null}
               proposed by {latest.proposedBy.name} on <When date={latest.proposedAt} />
             </p>
+            {latest.closedReason &&
+            (latest.state === "superseded" || latest.state === "withdrawn") ? (
+              <p className="mt-1 text-xs text-amber-900">{latest.closedReason}</p>
+            ) : null}
             {approved && approved.id !== latest.id ? (
               <p className="mt-1 text-xs text-neutral-600">
                 Last approved:{" "}
