@@ -277,3 +277,30 @@ describe("sign-off in the browser", () => {
     await snap(page, "signoff-card-superseded");
   });
 });
+
+describe("who approves sign-offs (team page)", () => {
+  it("everyone reads the setting; only an admin has the form", async () => {
+    await admin.goto(`${baseUrl}/team`);
+    const card = admin.getByRole("region", { name: "Sign-off approvers" });
+    // The demo team as seeded (left unchanged: other browser tests may run at the same time;
+    // the change itself is a matrix row, tests/integration/authorization-matrix.table.ts).
+    const shown = await card
+      .locator("[data-signoff-approvers]")
+      .getAttribute("data-signoff-approvers");
+    expect(["engineers", "admins"]).toContain(shown);
+    await expect(
+      card
+        .getByLabel(
+          shown === "engineers"
+            ? "Any engineer or admin other than the proposer"
+            : "Only an admin other than the proposer",
+        )
+        .isChecked(),
+    ).resolves.toBe(true);
+    await snap(admin, "signoff-approvers-admin");
+    await engineer.goto(`${baseUrl}/team`);
+    const read = engineer.getByRole("region", { name: "Sign-off approvers" });
+    await read.getByText("Admins change who approves.").waitFor();
+    await expect(read.getByRole("radio").count()).resolves.toBe(0);
+  });
+});
