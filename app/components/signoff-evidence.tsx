@@ -103,9 +103,15 @@ export function EvidenceTable({
       <dl className="grid grid-cols-1 gap-x-4 gap-y-1 text-sm sm:grid-cols-[10rem_1fr]">
         <Fact term="Software">{signoff.softwareVersion}</Fact>
         <Fact term="Record digest">
-          <span className={hashClass} data-digest>
-            {signoff.digest ?? "recorded when the sign-off is approved"}
-          </span>
+          {signoff.digest ? (
+            <span className={hashClass} data-digest>
+              {signoff.digest}
+            </span>
+          ) : (
+            <span className="text-neutral-600" data-digest="">
+              recorded when the sign-off is approved
+            </span>
+          )}
         </Fact>
         {signoff.reportSha256 ? (
           <Fact term="Report PDF SHA-256">
