@@ -37,7 +37,8 @@ const RUNNABLE = /^(?:[=+@]|-[A-Za-z])/;
 
 const HOSTILE = {
   fileName: "@SUM(1)+cmd.csv",
-  notes: '=HYPERLINK("http://x.example/?q=1","open")\n-cmd',
+  // One line: a multipart form sends a line break in a field as CRLF (HTML's form encoding).
+  notes: '=HYPERLINK("http://x.example/?q=1","open") and -cmd',
   damperVariant: "+B",
 };
 
@@ -113,7 +114,7 @@ beforeAll(async () => {
     { ...HOSTILE, bytes: trendRunUpCsv({ fnHz: 12 }) },
     {
       fileName: "kestrel-run-up-a.csv",
-      notes: "3rd gear, warm oil",
+      notes: "-cmd, 3rd gear, warm oil",
       damperVariant: "A",
       bytes: trendRunUpCsv({ fnHz: 13 }),
     },
@@ -343,6 +344,7 @@ describe("the export pack", () => {
     const plain = index.rows.find((r) => r.log_id === uploads[1]!.id)!;
     expect(plain).toMatchObject({
       file_name: "kestrel-run-up-a.csv",
+      notes: "'-cmd, 3rd gear, warm oil",
       gear: 3,
       analysis_version: 1,
     });
