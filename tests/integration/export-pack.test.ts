@@ -17,6 +17,8 @@ const testbed = await useJobTestbed("export");
 const { pool } = await import("~/lib/infra/db.server");
 const { createApiToken } = await import("~/lib/data/api-tokens.server");
 const { createTestTeam } = await import("../support/accounts");
+const { openExportPack } = await import("~/lib/data/export-pack.server");
+const { vehicleData } = await import("~/lib/data/vehicles.server");
 
 let server: Awaited<ReturnType<typeof startServer>>;
 let team: Awaited<ReturnType<typeof createTestTeam>>;
@@ -53,6 +55,9 @@ const uploads: Upload[] = [];
 let vehicleId: number;
 let emptyVehicleId: number;
 let failedLogId: number;
+/** A vehicle with several run-ups, for the streaming checks. */
+let streamVehicleId: number;
+const streamLogIds: number[] = [];
 
 async function createVehicle(identifier: string): Promise<number> {
   const r = await api.engineer("/api/v1/vehicles", {
@@ -64,11 +69,16 @@ async function createVehicle(identifier: string): Promise<number> {
   return ((await r.json()) as { vehicle: { id: number } }).vehicle.id;
 }
 
-async function upload(fileName: string, bytes: string, fields: Record<string, string>) {
+async function upload(
+  fileName: string,
+  bytes: string,
+  fields: Record<string, string>,
+  to = vehicleId,
+) {
   const form = new FormData();
   for (const [k, v] of Object.entries(fields)) form.set(k, v);
   form.set("file", new Blob([bytes], { type: "text/csv" }), fileName);
-  const r = await api.engineer(`/api/v1/vehicles/${vehicleId}/logs`, {
+  const r = await api.engineer(`/api/v1/vehicles/${to}/logs`, {
     method: "POST",
     body: form,
   });
@@ -134,7 +144,18 @@ beforeAll(async () => {
     "time [s],crank speed [rpm],gearbox input speed [rpm]\n0,fast,slow\n0.001,fast,slow\n",
     { condition: "other", damperVariant: "A" },
   );
-  for (const u of uploads) expect(await settle(u.id)).toBe("done");
+  streamVehicleId = await createVehicle("EXP-S");
+  for (let i = 0; i < 6; i++)
+    streamLogIds.push(
+      await upload(
+        `run-up-${i}.csv`,
+        trendRunUpCsv({ fnHz: 12 + 0.3 * i }),
+        { condition: "run-up" },
+        streamVehicleId,
+      ),
+    );
+  for (const id of [...uploads.map((u) => u.id), ...streamLogIds])
+    expect(await settle(id)).toBe("done");
   expect(await settle(failedLogId)).toBe("failed");
 }, 240_000);
 
@@ -410,5 +431,56 @@ describe("choosing and refusing", () => {
     expect(manifest).toMatchObject({ logs: [], skipped: [] });
     expect(strFromU8(files["README.md"]!)).toContain("No analysed drive logs");
     expect(csvOf(files, "logs.csv").rows).toEqual([]);
+  });
+});
+
+describe("streaming", () => {
+  const openPack = async () =>
+    openExportPack({
+      teamId: team.id,
+      vehicle: await vehicleData(team.id).vehicle(streamVehicleId),
+      vehicleJson: {},
+    });
+
+  it("makes the next drive log's files only as the reader takes the zip (back-pressure)", async () => {
+    const whole = await openPack();
+    let size = 0;
+    for await (const chunk of whole.stream) size += (chunk as Buffer).length;
+    // Six analysed run-ups: far more than what may wait in the stream below.
+    expect(size).toBeGreaterThan(160_000);
+
+    const waiting = await openPack();
+    // Nobody reads: the pack must stop once the stream's buffer is full, not fill memory. What
+    // may wait is the buffer's high-water mark (16 KiB, Node's default) plus the chunk that
+    // filled it (deflate writes at most 16 KiB at a time) and a few headers. The wait only lets
+    // the pack run ahead if it would; a slower machine can only make it write less.
+    await new Promise((resolve) => setTimeout(resolve, 1500));
+    expect(waiting.stream.readableLength).toBeGreaterThan(0);
+    expect(waiting.stream.readableLength).toBeLessThan(40_000);
+    waiting.stream.destroy();
+  });
+
+  it("stops cleanly when the reader goes away halfway", async () => {
+    const pack = await openPack();
+    let read = 0;
+    for await (const chunk of pack.stream) {
+      read += (chunk as Buffer).length;
+      if (read > 50_000) break; // ends the iteration and destroys the stream
+    }
+    expect(pack.stream.destroyed).toBe(true);
+    // Over HTTP: a client that hangs up after the first bytes; the server goes on answering.
+    const before = server.output().length;
+    const controller = new AbortController();
+    const r = await api.viewer(`/api/v1/vehicles/${vehicleId}/export.zip`, {
+      signal: controller.signal,
+    });
+    const reader = r.body!.getReader();
+    expect((await reader.read()).done).toBe(false);
+    controller.abort();
+    await reader.closed.catch(() => undefined);
+    const again = await download(`/api/v1/vehicles/${vehicleId}/export.zip`);
+    expect(again.r.status).toBe(200);
+    expect(Object.keys(again.files)).toHaveLength(4 * uploads.length + 4);
+    expect(server.output().slice(before)).not.toMatch(/export pack|Error/);
   });
 });
