@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { CAUTIONS } from "./cautions";
 
 /**
  * The export pack's pure parts (docs/export-pack.md): its query, the names of its folders and of
@@ -157,7 +158,8 @@ The CSV files have one header row; every column's unit is in its name, in SI uni
 - \`isolation [dB]\`: 20·log10(crank amplitude / gearbox amplitude) at the firing order; positive
   means the damper attenuates.
 - \`order\`: per crank revolution (dimensionless). \`blocks\`: measurements averaged in the bin.
-  \`above_noise\`: true when the bin is above the noise floor. \`method\`: \`blocks\` or \`filter\`.
+  \`above_noise\`: false when the gearbox amplitude is under 5× its noise floor (the dB is then a
+  lower bound). \`method\`: \`blocks\` or \`filter\`.
 
 result.json keeps the result's own units (engine speed and amplitudes in rpm, as its field names
 say). The numbers in the CSV files are the result's, converted (× 2π/60) and written in full.
@@ -190,8 +192,11 @@ curves = pd.read_csv(z.open("${first}/order-curves.csv"))
 firing = curves[curves["order"] == ${m.logs[0]?.firingOrder ?? 2}]
 \`\`\`
 
-The figures were measured on a road or test-bench run; check them against your own programme's
-rules before a release decision. Each file traces to its drive log, analysis version and settings
-through source.json and manifest.json.
+Each file traces to its drive log, analysis version and settings through source.json and
+manifest.json.
+
+## Cautions (as in the evidence report)
+
+${CAUTIONS.map((c) => `- ${c}`).join("\n")}
 `;
 }
