@@ -638,6 +638,16 @@ export const matrix: Record<string, Row> = {
       noAction("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/trend`),
     ],
   },
+  "routes/api.v1.vehicle-export.ts": {
+    probes: [
+      ...api((w) => [
+        get(w, (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/export.zip`, team("viewer"), 200, {
+          okText: "manifest.json",
+        }),
+      ]),
+      noAction("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/export.zip`),
+    ],
+  },
   "routes/api.v1.vehicle-logs.ts": {
     probes: [
       ...api((w) => [get(w, (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/logs`, team("viewer"))]),
