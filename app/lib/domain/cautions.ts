@@ -52,7 +52,7 @@ export const REPORT_CAUTIONS: readonly Caution[] = [
   { title: "This report", text: REPORT_SCOPE },
 ];
 
-/** The paragraphs as ReportModel.cautions holds them ("Title. Text"). */
+/** The paragraphs as ReportModel.cautions holds them. */
 export function reportCautionParagraphs(): string[] {
-  return REPORT_CAUTIONS.map((c) => `${c.title}. ${c.text}`);
+  return REPORT_CAUTIONS.map((c) => c.text);
 }
