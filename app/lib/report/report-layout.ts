@@ -55,8 +55,8 @@ export interface TextOptions {
   lineGap?: number;
 }
 
-/** Every string drawn, for the glyph-coverage test (set by the test; null in production). */
-export type TextRecorder = ((text: string, face: FontFace) => void) | null;
+/** Every run of text drawn and its registered font (the glyph-coverage test; null otherwise). */
+export type TextRecorder = ((text: string, font: string) => void) | null;
 
 export class ReportDoc {
   readonly pdf: PDFKit.PDFDocument;
@@ -131,8 +131,8 @@ export class ReportDoc {
    */
   text(text: string, x: number, y: number, o: TextOptions = {}): void {
     const face = o.face ?? "regular";
-    this.recorder?.(text, face);
     const runs = textRuns(text, face);
+    for (const run of runs) this.recorder?.(run.text, run.font);
     const pdf = this.pdf;
     pdf
       .fontSize(o.size ?? 9)
@@ -232,7 +232,7 @@ export class ReportDoc {
     pdf.save();
     pdf.rotate(-50, { origin: [PAGE.width / 2, PAGE.height / 2] });
     pdf.font(FONT_NAMES.bold.latin).fontSize(150).fillColor(COLOURS.zero).fillOpacity(0.1);
-    this.recorder?.("DRAFT", "bold");
+    this.recorder?.("DRAFT", FONT_NAMES.bold.latin);
     const w = pdf.widthOfString("DRAFT");
     pdf.text("DRAFT", PAGE.width / 2 - w / 2, PAGE.height / 2 - 75, {
       lineBreak: false,
