@@ -18,7 +18,7 @@ import {
 } from "../../app/lib/domain/signoff.ts";
 import type { LogCondition } from "../../app/lib/domain/drive-log-terms.ts";
 import type { ReportLog, ReportModel } from "../../app/lib/report/report-model.ts";
-import { reportCautionParagraphs } from "../../app/lib/domain/cautions.ts";
+import { CAUTIONS } from "../../app/lib/domain/cautions.ts";
 import { synthLog } from "./synth-log.ts";
 
 const ramp = (from: number, to: number, t0: number, rate: number) => (t: number) => {
@@ -254,7 +254,7 @@ export function fixtureModel(o: FixtureOptions): ReportModel {
     note: o.note ?? "",
     digest: o.digest === undefined ? null : o.digest,
     steps: o.steps ?? [],
-    cautions: reportCautionParagraphs(),
+    cautions: CAUTIONS,
     amplitudeUnit: o.amplitudeUnit ?? "rpm",
   };
 }

@@ -52,7 +52,5 @@ export const REPORT_CAUTIONS: readonly Caution[] = [
   { title: "This report", text: REPORT_SCOPE },
 ];
 
-/** The paragraphs as ReportModel.cautions holds them. */
-export function reportCautionParagraphs(): string[] {
-  return REPORT_CAUTIONS.map((c) => c.text);
-}
+/** The paragraphs as ReportModel.cautions holds them (the data layer passes them on). */
+export const CAUTIONS: string[] = REPORT_CAUTIONS.map((c) => c.text);

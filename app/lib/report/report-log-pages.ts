@@ -4,7 +4,6 @@
  * sides, the rattle check at idle and the engine start/stop events. Each part says in a sentence
  * when the result has nothing to draw.
  */
-import type { AnalysisResult } from "../signal/result-schema";
 import { convertAmplitude } from "../domain/chart-units";
 import { endStopMargin, eventNames } from "../domain/chart-data";
 import {
@@ -23,6 +22,9 @@ import {
   secondsText,
 } from "../domain/format";
 import type { ReportLog, ReportModel } from "./report-model";
+
+/** The result as the report holds it (no order map). */
+type Result = ReportLog["result"];
 import { drawChart, drawGauge, niceRange, type LimitBox, type Series } from "./report-charts";
 import {
   COLOURS,
@@ -176,11 +178,11 @@ function drawIsolation(doc: ReportDoc, model: ReportModel, entry: ReportLog) {
 }
 
 /** The firing-order curve of the result, if it has one. */
-function firingCurve(result: AnalysisResult) {
+function firingCurve(result: Result) {
   return result.orderCurves.find((c) => Math.abs(c.order - result.firingOrder) < 1e-6) ?? null;
 }
 
-function drawOrderCurves(doc: ReportDoc, model: ReportModel, result: AnalysisResult) {
+function drawOrderCurves(doc: ReportDoc, model: ReportModel, result: Result) {
   doc.heading("Firing-order amplitude, crank and gearbox input", 3, 210);
   const curve = firingCurve(result);
   if (!curve || curve.points.length === 0) {
@@ -233,7 +235,7 @@ function drawOrderCurves(doc: ReportDoc, model: ReportModel, result: AnalysisRes
   );
 }
 
-function drawRattle(doc: ReportDoc, model: ReportModel, result: AnalysisResult) {
+function drawRattle(doc: ReportDoc, model: ReportModel, result: Result) {
   doc.heading("Rattle check at idle", 3, 110);
   const idle = result.idle;
   const limit = model.vehicle.rattleLimitRadS2;
@@ -272,7 +274,7 @@ function drawRattle(doc: ReportDoc, model: ReportModel, result: AnalysisResult) 
   );
 }
 
-function drawEvents(doc: ReportDoc, model: ReportModel, result: AnalysisResult) {
+function drawEvents(doc: ReportDoc, model: ReportModel, result: Result) {
   doc.heading("Engine starts and stops", 3, 60);
   const events = result.events;
   if (!events) {

@@ -3,7 +3,7 @@
  * SHA-256, upload, analysis version and settings, result checksum, software version, the
  * targets as they were), the approvals and history, and the cautions.
  */
-import { reportCautionParagraphs } from "../domain/cautions";
+import { CAUTIONS } from "../domain/cautions";
 import type { SignoffState } from "../domain/signoff";
 import type { ReportModel } from "./report-model";
 import {
@@ -138,7 +138,7 @@ export function drawApprovals(doc: ReportDoc, model: ReportModel): void {
 function drawCautions(doc: ReportDoc, model: ReportModel): void {
   doc.pdf.outline.addItem("Cautions");
   doc.heading("Cautions", 2, 80);
-  const paragraphs = model.cautions.length ? model.cautions : reportCautionParagraphs();
+  const paragraphs = model.cautions.length ? model.cautions : CAUTIONS;
   for (const p of paragraphs) {
     const h = doc.heightOf(p, { width: CONTENT_WIDTH - 14 });
     doc.ensure(h + 4);

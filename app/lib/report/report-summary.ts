@@ -40,7 +40,7 @@ export function drawSummary(doc: ReportDoc, model: ReportModel): void {
     ["Damper", `${damper ?? v.damperType}, variant ${model.damperVariant}`],
     [
       "Vehicle limits",
-      `Firing order ${orderNumber(v.firingOrder)}; rattle limit ${radS2Text(v.rattleLimitRadS2)}; damper travel ${
+      `Firing order ${v.firingOrder === null ? "not known" : orderNumber(v.firingOrder)}; rattle limit ${radS2Text(v.rattleLimitRadS2)}; damper travel ${
         v.damperTravelLimitDeg === null
           ? "not given"
           : `${degreesText(v.damperTravelLimitDeg)} stop to stop`
