@@ -6,14 +6,8 @@
 import { CAUTIONS } from "../domain/cautions";
 import type { SignoffState } from "../domain/signoff";
 import type { ReportModel } from "./report-model";
-import {
-  COLOURS,
-  CONTENT_WIDTH,
-  MARGIN,
-  drawFacts,
-  drawTable,
-  type ReportDoc,
-} from "./report-layout";
+import { COLOURS, CONTENT_WIDTH, MARGIN, type ReportDoc } from "./report-layout";
+import { drawFacts, drawTable } from "./report-tables";
 import {
   limitText,
   logConditionText,

@@ -8,8 +8,8 @@ import { damperLabels, type DamperType } from "../domain/drive-log-terms";
 import { degreesText, orderNumber, radS2Text } from "../domain/format";
 import { countText } from "../base/plural";
 import type { ReportModel } from "./report-model";
-import { COLOURS, drawFacts, drawTable, type Cell } from "./report-layout";
-import type { ReportDoc } from "./report-layout";
+import { COLOURS, type ReportDoc } from "./report-layout";
+import { drawFacts, drawTable, type Cell } from "./report-tables";
 import {
   claimStatusWords,
   limitText,
