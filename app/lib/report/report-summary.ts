@@ -3,7 +3,7 @@
  * limit, least margin and the drive logs behind it, the deviations accepted, the note and, once
  * approved, the record's digest.
  */
-import { claimTally } from "../domain/signoff";
+import { claimTally, type ClaimCheck } from "../domain/signoff";
 import { damperLabels, type DamperType } from "../domain/drive-log-terms";
 import { degreesText, orderNumber, radS2Text } from "../domain/format";
 import { countText } from "../base/plural";
@@ -13,12 +13,39 @@ import { drawFacts, drawTable, type Cell } from "./report-tables";
 import {
   claimStatusWords,
   limitText,
+  logConditionText,
   marginText,
   stateText,
   targetScopeText,
   timeText,
   verdictWords,
 } from "./report-text";
+
+/** Up to this many drive logs a claim names them with their verdicts; more go by number. */
+const NAMED_LOGS = 4;
+
+/**
+ * The drive logs behind a claim: each by name with its verdict and margin, or, when there are
+ * many, their numbers (as in "Drive logs in this report") grouped by verdict.
+ */
+function logsText(c: ClaimCheck, numberOf: ReadonlyMap<number, number>): string {
+  if (c.logs.length === 0) return "None";
+  if (c.logs.length <= NAMED_LOGS)
+    return c.logs
+      .map(
+        (l) =>
+          `${l.fileName}: ${verdictWords[l.status]}${l.margin === null ? "" : `, ${marginText(l.margin, c.unit)}`}`,
+      )
+      .join("\n");
+  const groups = (["fail", "pass", "not-covered", "not-applicable"] as const).flatMap((status) => {
+    const numbers = c.logs
+      .filter((l) => l.status === status)
+      .map((l) => numberOf.get(l.logId) ?? 0)
+      .sort((a, b) => a - b);
+    return numbers.length ? [`${verdictWords[status]}: no. ${numbers.join(", ")}`] : [];
+  });
+  return groups.join("\n");
+}
 
 /** The report's title: the sign-off's, or the draft of the vehicle's current state. */
 export function reportTitle(model: ReportModel): string {
@@ -68,6 +95,7 @@ export function drawSummary(doc: ReportDoc, model: ReportModel): void {
       { size: 9 },
     );
     const targets = new Map(model.targets.map((x) => [x.id, x]));
+    const numberOf = new Map(model.logs.map((l, i) => [l.log.id, i + 1]));
     drawTable(
       doc,
       [
@@ -92,14 +120,7 @@ export function drawSummary(doc: ReportDoc, model: ReportModel): void {
             colour: statusColour(c.status),
           },
           marginText(c.margin, c.unit),
-          c.logs.length
-            ? c.logs
-                .map(
-                  (l) =>
-                    `${l.fileName}: ${verdictWords[l.status]}${l.margin === null ? "" : `, ${marginText(l.margin, c.unit)}`}`,
-                )
-                .join("\n")
-            : "None",
+          logsText(c, numberOf),
         ];
       }),
     );
@@ -115,6 +136,26 @@ export function drawSummary(doc: ReportDoc, model: ReportModel): void {
           `${c.targetName} (${claimStatusWords[c.status].toLowerCase()}): deviation accepted: ${c.deviation}`,
         );
     }
+  }
+
+  if (model.logs.length) {
+    doc.heading("Drive logs in this report", 3, 40);
+    drawTable(
+      doc,
+      [
+        { header: "No.", width: 0.06, align: "right" },
+        { header: "Drive log", width: 0.44 },
+        { header: "Test", width: 0.34 },
+        { header: "Analysis", width: 0.16 },
+      ],
+      model.logs.map(({ log }, i) => [
+        String(i + 1),
+        log.fileName,
+        logConditionText(log),
+        `version ${log.analysis.version}`,
+      ]),
+      { size: 7.5 },
+    );
   }
 
   doc.heading("Note", 3, 20);
