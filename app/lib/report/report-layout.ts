@@ -72,6 +72,8 @@ export class ReportDoc {
     this.recorder = recorder;
     this.pdf = new PDFDocument({
       size: "A4",
+      // The watermark and tints use transparency, a PDF 1.4 feature; pdfkit writes 1.3 by default.
+      pdfVersion: "1.7",
       margins: MARGIN,
       bufferPages: true,
       autoFirstPage: false,
