@@ -39,6 +39,7 @@ export const action = apiRoute(async ({ request, params, context }: Route.Action
   const id = idParam(params.signoffId);
   const caller = { userId, role, ip: clientIp(context) };
   const data = signoffData(teamId);
+  await data.get(id); // another team's or a missing sign-off: 404 before the body is read
   let signoff;
   if (step === "withdraw") {
     const { reason } = await readJsonBody(request, withdrawSchema, {

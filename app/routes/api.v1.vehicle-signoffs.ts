@@ -1,5 +1,6 @@
 import { signoffInputSchema } from "~/lib/domain/signoff";
 import { signoffData } from "~/lib/data/signoffs.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import { idParam } from "~/lib/http/params";
 import { clientIp } from "~/lib/http/request.server";
 import { readJsonBody } from "~/lib/http/json-body.server";
@@ -26,6 +27,7 @@ export const action = apiRoute(async ({ request, params, context }: Route.Action
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use GET or POST.");
   const { teamId, userId, role } = await requireAccess(request, "engineer", { from: "api" });
   const vehicleId = idParam(params.vehicleId);
+  await vehicleData(teamId).vehicle(vehicleId); // 404 before the body is read
   const input = await readJsonBody(request, signoffInputSchema, {
     code: "invalid_signoff",
     example:
