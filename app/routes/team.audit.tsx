@@ -40,6 +40,12 @@ const actionLabels: Record<AuditAction, string> = {
   "share-extended": "Extended a share link",
   "share-revoked": "Revoked a share link",
   "share-emailed": "Sent a share link by e-mail",
+  "drive-log-deleted": "Deleted a drive log",
+  "signoff-proposed": "Proposed a sign-off",
+  "signoff-approved": "Approved a sign-off",
+  "signoff-rejected": "Rejected a sign-off",
+  "signoff-withdrawn": "Withdrew a sign-off",
+  "signoff-superseded": "Superseded a sign-off",
 };
 const ACTIONS = Object.keys(actionLabels) as [AuditAction, ...AuditAction[]];
 

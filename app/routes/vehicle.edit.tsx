@@ -41,13 +41,19 @@ export const action = pageRoute(async ({ request, params, context }: Route.Actio
       { status: 400 },
     );
   }
-  await vehicles.update(vehicle.id, submission.value);
+  const ip = clientIp(context);
+  await vehicles.update(vehicle.id, submission.value, {
+    id: user.id,
+    email: user.email,
+    name: user.name,
+    ip,
+  });
   await audit({
     teamId: team.id,
     actor: { id: user.id, email: user.email },
     action: "vehicle-changed",
     detail: `vehicle ${vehicle.id} (${submission.value.identifier})`,
-    ip: clientIp(context),
+    ip,
   });
   return redirect(`/vehicles/${vehicle.id}?notice=saved`);
 });

@@ -208,7 +208,7 @@ export const action = pageRoute(async ({ request, params, context }: Route.Actio
       // Deleting asks first: without confirm=yes (the delete button without JavaScript) the
       // page comes back with the question for this target, and nothing changes.
       if (form.get("confirm") !== "yes") return { confirmDelete: existing.id };
-      await targets.remove(existing.id);
+      await targets.remove(existing.id, { ...actor, name: user.name, ip });
       await audit({
         teamId: team.id,
         actor,
@@ -226,7 +226,7 @@ export const action = pageRoute(async ({ request, params, context }: Route.Actio
     }
     const input = submission.value;
     const id = existing
-      ? (await targets.update(existing.id, input), existing.id)
+      ? (await targets.update(existing.id, input, { ...actor, name: user.name, ip }), existing.id)
       : await targets.create(vehicle.id, input, user.id);
     await audit({
       teamId: team.id,

@@ -32,6 +32,8 @@ export interface TeamFixture {
   compareShareToken: string;
   commentId: number;
   targetId: number;
+  /** A proposed sign-off of the vehicle (issue 16). */
+  signoffId: number;
   invitationId: number;
   adminMembershipId: number;
 }

@@ -35,6 +35,7 @@ const { createShare, revokeShare } = await import("~/lib/data/shares.server");
 const { commentData } = await import("~/lib/data/comments.server");
 const { parseCommentSubject } = await import("~/lib/domain/comment-schema");
 const { targetData } = await import("~/lib/data/targets.server");
+const { signoffData } = await import("~/lib/data/signoffs.server");
 const { startSession } = await import("~/lib/http/session.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
 type TestTeam = Awaited<ReturnType<typeof createTestTeam>>;
@@ -59,6 +60,7 @@ const placeholders = {
     compareShareToken: ":compareToken",
     commentId: ":comment",
     targetId: ":target",
+    signoffId: ":signoff",
     invitationId: ":invitation",
     adminMembershipId: ":adminMember",
   },
@@ -71,6 +73,7 @@ const placeholders = {
     compareShareToken: ":otherCompareToken",
     commentId: ":otherComment",
     targetId: ":otherTarget",
+    signoffId: ":otherSignoff",
     invitationId: ":otherInvitation",
     adminMembershipId: ":otherAdminMember",
   },
@@ -187,6 +190,17 @@ async function seedTeam(t: TestTeam, mark: string, technician: HttpClient, admin
     { kind: "rattle", name: `Target ${mark}`, maxRadS2: 400, conditions: [], gears: [] },
     t.accounts.engineer.id,
   );
+  // A proposal waiting for approval (issue 16), resting on the first drive log and the target.
+  const signoff = await signoffData(t.id).propose(
+    vehicleId,
+    {
+      damperVariant: (await data.vehicle(vehicleId)).damperVariant,
+      claims: [{ targetId, logIds: [logIds[0]] }],
+      note: `Sign-off ${mark}`,
+      deviations: [{ targetId, reason: "Fixture of the authorization matrix." }],
+    },
+    { ...engineer, ip: "127.0.0.1" },
+  );
   await admin.get("/team");
   const invitee = `invitee-${mark}@example.test`;
   const invited = await admin.post("/team", { intent: "invite", email: invitee, role: "viewer" });
@@ -206,6 +220,7 @@ async function seedTeam(t: TestTeam, mark: string, technician: HttpClient, admin
     compareShareToken: compared.token,
     commentId,
     targetId,
+    signoffId: signoff.id,
     invitationId: inv!.id,
     adminMembershipId: t.accounts.admin.membershipId,
   };
@@ -216,7 +231,7 @@ async function fingerprint(): Promise<string> {
   const q = async (sql: string) => (await pool.query(sql))[0];
   return JSON.stringify([
     await q(
-      "CHECKSUM TABLE teams, users, memberships, invitations, vehicles, drive_logs, analyses, targets, comments, password_resets",
+      "CHECKSUM TABLE teams, users, memberships, invitations, vehicles, drive_logs, analyses, targets, comments, password_resets, signoffs, signoff_steps",
     ),
     await q("SELECT id, revoked_at, expires_at, note FROM shares ORDER BY id"),
     await q("SELECT id FROM sessions ORDER BY id"),

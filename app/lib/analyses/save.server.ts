@@ -16,6 +16,7 @@ import type { AnalysisResult } from "~/lib/signal";
 import { largestEventFigures } from "../domain/event-figures";
 import type { Db } from "../infra/db.server";
 import { stillOurs, type ClaimedJob, type Tx } from "./queue.server";
+import { supersedeSignoffs } from "./signoff-supersede.server";
 import { encodeResult } from "./result.server";
 
 /** Test hook: called inside the save transaction after the rows are written, before commit. */
@@ -99,6 +100,20 @@ export async function saveAnalysis(
       .update(analysisJobs)
       .set({ status: "done", finishedAt: new Date(), lastError: null })
       .where(eq(analysisJobs.id, job.id));
+    if (latest > 0) {
+      // A new version of a drive log that a sign-off claims supersedes that sign-off.
+      const [log] = await tx
+        .select({ vehicleId: driveLogs.vehicleId, fileName: driveLogs.fileName })
+        .from(driveLogs)
+        .where(eq(driveLogs.id, job.driveLogId));
+      if (log)
+        await supersedeSignoffs(
+          tx,
+          job.teamId,
+          { vehicleId: log.vehicleId, logIds: [job.driveLogId] },
+          `Drive log "${log.fileName}" was re-analysed: version ${latest + 1} replaces version ${latest}.`,
+        );
+    }
     await beforeCommit?.(tx);
     return analysisId;
   });

@@ -32,7 +32,15 @@ export type AuditAction =
   | "share-created"
   | "share-extended"
   | "share-revoked"
-  | "share-emailed";
+  | "share-emailed"
+  // Drive logs deleted (issue 16), named by id, file and vehicle.
+  | "drive-log-deleted"
+  // Sign-offs (issue 16): every step, named by sign-off id and damper variant.
+  | "signoff-proposed"
+  | "signoff-approved"
+  | "signoff-rejected"
+  | "signoff-withdrawn"
+  | "signoff-superseded";
 
 export interface AuditEntry {
   /** null for a person's own events (sign-ins); admins of the person's teams see those. */

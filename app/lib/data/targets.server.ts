@@ -9,6 +9,7 @@ import {
   type TransientFigures,
 } from "../analyses/result.server";
 import { db } from "../infra/db.server";
+import { supersedeSignoffs, type SupersedeActor } from "../analyses/signoff-supersede.server";
 import type { LogCondition } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";
 import {
@@ -114,17 +115,45 @@ export function targetData(teamId: number) {
       return row!.id;
     },
 
-    async update(id: number, input: TargetInput): Promise<void> {
-      await get(id);
-      await db
-        .update(targets)
-        .set({ ...columns(input), updatedAt: new Date() })
-        .where(and(eq(targets.id, id), inTeam));
+    /**
+     * Changes a target; a change of its name, kind, limit or scope supersedes the open sign-offs
+     * claiming it, in the same transaction.
+     */
+    async update(id: number, input: TargetInput, actor: SupersedeActor = null): Promise<void> {
+      const before = await get(id);
+      const same =
+        JSON.stringify(toTarget(before)) ===
+        JSON.stringify(toTarget({ ...before, ...columns(input) }));
+      await db.transaction(async (tx) => {
+        await tx
+          .update(targets)
+          .set({ ...columns(input), updatedAt: new Date() })
+          .where(and(eq(targets.id, id), inTeam));
+        // Saving it unchanged supersedes nothing.
+        if (same) return;
+        await supersedeSignoffs(
+          tx,
+          teamId,
+          { vehicleId: before.vehicleId, targetIds: [id] },
+          `Target "${before.name}" was changed.`,
+          actor,
+        );
+      });
     },
 
-    async remove(id: number): Promise<void> {
-      await get(id);
-      await db.delete(targets).where(and(eq(targets.id, id), inTeam));
+    /** Deletes a target; open sign-offs claiming it are superseded in the same transaction. */
+    async remove(id: number, actor: SupersedeActor = null): Promise<void> {
+      const before = await get(id);
+      await db.transaction(async (tx) => {
+        await tx.delete(targets).where(and(eq(targets.id, id), inTeam));
+        await supersedeSignoffs(
+          tx,
+          teamId,
+          { vehicleId: before.vehicleId, targetIds: [id] },
+          `Target "${before.name}" was deleted.`,
+          actor,
+        );
+      });
     },
 
     /**

@@ -1,4 +1,5 @@
 import { and, asc, desc, eq, gt, isNull } from "drizzle-orm";
+import type { SignoffApprovers } from "../domain/signoff";
 import { invitations, memberships, teams, users, type Role } from "~/lib/infra/db/schema";
 import { teamAuditChoices, teamAuditLog, type AuditFilter } from "./audit.server";
 import { db } from "../infra/db.server";
@@ -32,6 +33,7 @@ export function teamData(teamId: number) {
           name: teams.name,
           amplitudeUnit: teams.amplitudeUnit,
           trendReferenceRpm: teams.trendReferenceRpm,
+          signoffApprovers: teams.signoffApprovers,
         })
         .from(teams)
         .where(eq(teams.id, teamId));
@@ -46,6 +48,11 @@ export function teamData(teamId: number) {
     /** The engine speed the damper-health trend reads the isolation at (checked by the caller). */
     setTrendReferenceRpm(rpm: number) {
       return db.update(teams).set({ trendReferenceRpm: rpm }).where(eq(teams.id, teamId));
+    },
+
+    /** Who approves sign-offs besides never their proposer (domain/signoff.ts mayDecide). */
+    setSignoffApprovers(approvers: SignoffApprovers) {
+      return db.update(teams).set({ signoffApprovers: approvers }).where(eq(teams.id, teamId));
     },
 
     /** The team's channel names and strict flag, as every analysis job gets them. */

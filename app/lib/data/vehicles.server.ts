@@ -8,6 +8,9 @@ import { db } from "../infra/db.server";
 import type { AppliedMapping, IngestMapping } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";
 import { teamData } from "./team-data.server";
+import { removeDriveLog, type RemovalActor } from "./drive-log-removal.server";
+import { supersedeSignoffs, type SupersedeActor } from "../analyses/signoff-supersede.server";
+import { vehicleFiringOrder } from "../domain/vehicle-firing-order";
 import type { StoredBlob } from "../infra/storage.server";
 import type { LogMetadata, VehicleInput } from "../domain/vehicle-schema";
 
@@ -201,18 +204,41 @@ export function vehicleData(teamId: number) {
       return row!.id;
     },
 
-    async update(id: number, input: VehicleInput) {
-      await vehicle(id);
-      await db
-        .update(vehicles)
-        .set({
-          ...input,
-          firingOrderOverride: input.firingOrderOverride ?? null,
-          // An emptied field clears the limit (undefined would leave the old one).
-          damperTravelLimitDeg: input.damperTravelLimitDeg ?? null,
-          updatedAt: new Date(),
-        })
-        .where(and(eq(vehicles.id, id), inTeam));
+    /**
+     * Changes a vehicle. A change of what verdicts read (firing order, rattle limit, damper
+     * travel limit) supersedes its open sign-offs in the same transaction.
+     */
+    async update(id: number, input: VehicleInput, actor: SupersedeActor = null) {
+      const before = await vehicle(id);
+      const after = {
+        ...input,
+        firingOrderOverride: input.firingOrderOverride ?? null,
+        // An emptied field clears the limit (undefined would leave the old one).
+        damperTravelLimitDeg: input.damperTravelLimitDeg ?? null,
+      };
+      const figures = (
+        v: Parameters<typeof vehicleFiringOrder>[0] &
+          Pick<Vehicle, "rattleLimitRadS2" | "damperTravelLimitDeg">,
+      ) => JSON.stringify([vehicleFiringOrder(v), v.rattleLimitRadS2, v.damperTravelLimitDeg]);
+      await db.transaction(async (tx) => {
+        await tx
+          .update(vehicles)
+          .set({ ...after, updatedAt: new Date() })
+          .where(and(eq(vehicles.id, id), inTeam));
+        if (figures(after) !== figures(before))
+          await supersedeSignoffs(
+            tx,
+            teamId,
+            { vehicleId: id, vehicleFigures: true },
+            "The vehicle's firing order, rattle limit or damper travel limit was changed.",
+            actor,
+          );
+      });
+    },
+
+    /** Deletes a drive log (./drive-log-removal.server.ts): engineer and up, audited. */
+    removeLog(logId: number, actor: RemovalActor) {
+      return removeDriveLog(teamId, logId, actor);
     },
 
     async setArchived(id: number, archived: boolean) {

@@ -362,7 +362,8 @@ export interface SignoffRecord {
     identifier: string;
     name: string;
     damperType: string;
-    firingOrder: number;
+    /** Orders per crank revolution (z/2, or the vehicle's override); null if not known. */
+    firingOrder: number | null;
     rattleLimitRadS2: number;
     damperTravelLimitDeg: number | null;
   };

@@ -21,7 +21,7 @@ function createTransport() {
 let transport: ReturnType<typeof createTransport> | undefined;
 
 /** What a message is, for the outbox: a reset link belongs to its addressee alone. */
-export type MailKind = "invitation" | "share" | "mention" | "reset";
+export type MailKind = "invitation" | "share" | "mention" | "reset" | "signoff";
 
 export interface Mail {
   to: string;

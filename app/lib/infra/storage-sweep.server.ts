@@ -1,5 +1,6 @@
 import { inArray } from "drizzle-orm";
 import { driveLogs } from "~/lib/infra/db/schema-drive-logs";
+import { signoffResults, signoffs } from "~/lib/infra/db/schema-signoffs";
 import { describeDbError, databaseUnavailable } from "./db-errors.server";
 import type { Db } from "./db.server";
 import { getEnv } from "./env.server";
@@ -59,6 +60,27 @@ export async function sweepStorage(options: {
         ),
       );
     const referenced = new Set(rows.map((r) => r.key));
+    // A sign-off keeps its drive logs' raw files and its report (issue 16), even when the drive
+    // log itself was deleted.
+    const kept = await db
+      .selectDistinct({ key: signoffResults.blobKey })
+      .from(signoffResults)
+      .where(
+        inArray(
+          signoffResults.blobKey,
+          batch.map((b) => b.name),
+        ),
+      );
+    const reports = await db
+      .selectDistinct({ key: signoffs.reportSha256 })
+      .from(signoffs)
+      .where(
+        inArray(
+          signoffs.reportSha256,
+          batch.map((b) => b.name),
+        ),
+      );
+    for (const r of [...kept, ...reports]) if (r.key) referenced.add(r.key);
     for (const file of batch) {
       if (referenced.has(file.name)) continue;
       if (await store.remove(file.name, { ifNotModifiedAfter: cutoff })) {

@@ -10,8 +10,11 @@ import type { TargetVerdict } from "../domain/targets";
 
 export interface ReportLog {
   log: RecordLog;
-  /** The analysis result the verdicts were made from (the sign-off's frozen copy). */
-  result: AnalysisResult;
+  /**
+   * The analysis result the verdicts were made from (the sign-off's frozen copy), without the
+   * order map, which the report does not draw.
+   */
+  result: Omit<AnalysisResult, "orderMap">;
   /** This log's verdicts against every target of the report (claimed or not). */
   verdicts: TargetVerdict[];
 }
@@ -34,7 +37,8 @@ export interface ReportModel {
     identifier: string;
     name: string;
     damperType: string;
-    firingOrder: number;
+    /** Orders per crank revolution (z/2, or the vehicle's override); null if not known. */
+    firingOrder: number | null;
     rattleLimitRadS2: number;
     damperTravelLimitDeg: number | null;
   };
