@@ -14,8 +14,6 @@ import { apiRoute } from "~/lib/http/edge.server";
 export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
   const { teamId } = await requireAccess(request, "viewer", { from: "api" });
   const id = idParam(params.signoffId);
-  const data = signoffData(teamId);
-  const signoff = await data.get(id);
-  const { pdf, fileName } = await data.report(id);
-  return pdfResponse(request, pdf, fileName, { stored: signoff.reportSha256 !== null });
+  const { pdf, fileName, stored } = await signoffData(teamId).report(id);
+  return pdfResponse(request, pdf, fileName, { stored });
 });

@@ -2,7 +2,7 @@ import { approveSchema, rejectSchema, withdrawSchema } from "~/lib/domain/signof
 import { NotFound } from "~/lib/domain/errors";
 import { signoffData } from "~/lib/data/signoffs.server";
 import { idParam } from "~/lib/http/params";
-import { clientIp } from "~/lib/http/request.server";
+import { appOrigin, clientIp } from "~/lib/http/request.server";
 import { readJsonBody } from "~/lib/http/json-body.server";
 import type { Route } from "./+types/api.v1.signoff-step";
 import { requireAccess } from "~/lib/http/access.server";
@@ -37,7 +37,7 @@ export const action = apiRoute(async ({ request, params, context }: Route.Action
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use POST.");
   const { teamId, userId, role } = await requireAccess(request, "engineer", { from: "api" });
   const id = idParam(params.signoffId);
-  const caller = { userId, role, ip: clientIp(context) };
+  const caller = { userId, role, ip: clientIp(context), origin: appOrigin(request) };
   const data = signoffData(teamId);
   await data.get(id); // another team's or a missing sign-off: 404 before the body is read
   let signoff;

@@ -2,7 +2,7 @@ import { signoffInputSchema } from "~/lib/domain/signoff";
 import { signoffData } from "~/lib/data/signoffs.server";
 import { vehicleData } from "~/lib/data/vehicles.server";
 import { idParam } from "~/lib/http/params";
-import { clientIp } from "~/lib/http/request.server";
+import { appOrigin, clientIp } from "~/lib/http/request.server";
 import { readJsonBody } from "~/lib/http/json-body.server";
 import type { Route } from "./+types/api.v1.vehicle-signoffs";
 import { requireAccess } from "~/lib/http/access.server";
@@ -37,6 +37,7 @@ export const action = apiRoute(async ({ request, params, context }: Route.Action
     userId,
     role,
     ip: clientIp(context),
+    origin: appOrigin(request),
   });
   return Response.json(
     { signoff },
