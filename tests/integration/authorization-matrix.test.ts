@@ -200,6 +200,7 @@ async function seedTeam(t: TestTeam, mark: string, technician: HttpClient, admin
       deviations: [{ targetId, reason: "Fixture of the authorization matrix." }],
     },
     { ...engineer, ip: "127.0.0.1" },
+    { notify: false },
   );
   await admin.get("/team");
   const invitee = `invitee-${mark}@example.test`;
