@@ -50,11 +50,12 @@ beforeAll(async () => {
   vehicleId = await makeVehicle(api.engineer, IDENTIFIER);
   const page = await HttpClient.signedIn(server.url, team.accounts.engineer.email, TEST_PASSWORD);
   await page.get(`/vehicles/${vehicleId}`);
-  for (const fields of [
+  const targetForms: Record<string, string>[] = [
     { kind: "isolation", name: "Idle isolation", minDb: String(round2(formulaDb - 1)) },
     { kind: "isolation", name: "Idle isolation, stretch", minDb: String(round2(formulaDb + 1)) },
     { kind: "rattle", name: "Idle rattle", maxRadS2: "400" },
-  ]) {
+  ];
+  for (const fields of targetForms) {
     const r = await page.post(`/vehicles/${vehicleId}`, {
       intent: "create-target",
       rpmFrom: "775",
