@@ -22,7 +22,7 @@ import type { ClaimCheck, SignoffJson, SignoffRecord } from "~/lib/domain/signof
 // draft are watermarked, the approved one is not; every page names the vehicle and damper
 // variant and its page number; the summary gives each claimed target's verdict and margin; the
 // traceability table gives every drive log's SHA-256, computed here from the bytes sent.
-const testbed = await useJobTestbed("signoff-report");
+const testbed = await useJobTestbed("signoffpdf");
 const { pool } = await import("~/lib/infra/db.server");
 const { targetData } = await import("~/lib/data/targets.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
