@@ -5,6 +5,8 @@ import type { Role } from "~/lib/domain/roles";
 import { signoffData } from "~/lib/data/signoffs.server";
 import { targetData } from "~/lib/data/targets.server";
 import { db, pool } from "~/lib/infra/db.server";
+import { databaseUnavailable, describeDbError } from "~/lib/infra/db-errors.server";
+import { getEnv } from "~/lib/infra/env.server";
 import { driveLogs, vehicles } from "../lib/infra/db/schema-drive-logs";
 import { memberships, teams, users } from "../lib/infra/db/schema";
 import { DEMO_TEAMS } from "./demo-seed.server";
@@ -235,7 +237,8 @@ export function startDemoSignoffs({ everyMs = 3_000, forMs = 10 * 60_000 } = {})
         console.log(`demo sign-offs: one approved, one awaiting approval on ${VEHICLE}`);
     } catch (error) {
       // Said once per distinct failure (e.g. the database is down for a while): tried again.
-      const message = (error as Error).message;
+      const down = databaseUnavailable(error);
+      const message = down ? describeDbError(down, getEnv()) : (error as Error).message;
       if (message !== lastError) console.error(`demo sign-offs not made yet: ${message}`);
       lastError = message;
     }
