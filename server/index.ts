@@ -100,6 +100,8 @@ if (NODE_ENV === "development") {
 // Imported only now: the database client it opens reads settings already checked above.
 const { startAnalysisService } = await import("../app/lib/analyses/analysis-service.server");
 const analysis = startAnalysisService();
+// The demo (no SMTP_URL): once its drive logs are analysed, one approved sign-off and one waiting.
+if (!env.SMTP_URL) (await import("../app/demo/demo-signoffs.server")).startDemoSignoffs();
 
 const server = app.listen(PORT, HOST, () => {
   const shown = HOST === "127.0.0.1" ? "localhost" : HOST;

@@ -1,4 +1,14 @@
 // The cautions of docs/architecture.md §8, shown where a user uploads a drive log or reads a verdict.
+// The wording lives in lib/domain/cautions.ts, shared with the evidence report.
+import {
+  LOCAL_CODES_FIRST,
+  NO_USE_WHILE_DRIVING,
+  ROAD_TEST_CAUTION,
+  SENSOR_WIRING_CAUTION,
+  START_STOP_CAUTION,
+  VERDICT_SCOPE,
+  WORKSHOP_CAUTION,
+} from "~/lib/domain/cautions";
 
 const box =
   "rounded-md border border-amber-500 bg-amber-50 px-4 py-3 text-sm leading-relaxed text-amber-950";
@@ -9,12 +19,9 @@ export function RoadTestCaution() {
     <aside aria-label="Safety on road tests" className={box}>
       <p className="font-semibold">Before you record a drive log</p>
       <ul className="mt-1 list-disc space-y-0.5 pl-5">
-        <li>
-          Road tests belong on a proving ground or closed course, driven by trained staff under
-          local rules.
-        </li>
-        <li>Nobody operates Twistlog while driving: upload after the run, parked.</li>
-        <li>Secure the sensor wiring at the flywheel and shafts well clear of rotating parts.</li>
+        <li>{ROAD_TEST_CAUTION}</li>
+        <li>{NO_USE_WHILE_DRIVING}</li>
+        <li>{SENSOR_WIRING_CAUTION}</li>
       </ul>
     </aside>
   );
@@ -24,9 +31,7 @@ export function RoadTestCaution() {
 export function VerdictCaution() {
   return (
     <aside aria-label="About these verdicts" className={box}>
-      A rattle or resonance verdict is a screening aid computed from one recording: confirm it on
-      the vehicle before acting on it. Damper and clutch replacement is licensed workshop work;
-      local codes and licensed practice come first.
+      {VERDICT_SCOPE} {WORKSHOP_CAUTION} {LOCAL_CODES_FIRST}
     </aside>
   );
 }
@@ -35,9 +40,7 @@ export function VerdictCaution() {
 export function StartStopCaution() {
   return (
     <aside aria-label="About start and stop tests" className={box}>
-      Engine start and stop tests are run on a vehicle that is secured, in a closed area, by trained
-      staff; a damper that reaches its end stops can be damaged, so confirm a figure on the vehicle
-      before repeating the test. Local codes and licensed practice come first.
+      {START_STOP_CAUTION} {LOCAL_CODES_FIRST}
     </aside>
   );
 }

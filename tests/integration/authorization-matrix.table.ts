@@ -716,6 +716,16 @@ export const matrix: Record<string, Row> = {
       noAction("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/trend`),
     ],
   },
+  "routes/api.v1.vehicle-export.ts": {
+    probes: [
+      ...api((w) => [
+        get(w, (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/export.zip`, team("viewer"), 200, {
+          okText: "manifest.json",
+        }),
+      ]),
+      noAction("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/export.zip`),
+    ],
+  },
   "routes/api.v1.vehicle-logs.ts": {
     probes: [
       ...api((w) => [get(w, (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/logs`, team("viewer"))]),
@@ -746,7 +756,19 @@ export const matrix: Record<string, Row> = {
   },
   "routes/api.v1.log.ts": {
     probes: [
-      ...api((w) => [get(w, (fx) => `/api/v1/logs/${fx.home.logIds[0]}`, team("viewer"))]),
+      ...api((w) => [
+        get(w, (fx) => `/api/v1/logs/${fx.home.logIds[0]}`, team("viewer")),
+        // Deleting: a drive log that does not exist, so the role check shows (403 below
+        // engineer) and nothing is deleted (404 for engineers and admins). The deletion itself:
+        // tests/integration/signoff-rules.test.ts.
+        {
+          way: w,
+          method: "DELETE",
+          path: () => "/api/v1/logs/999999999999",
+          access: team("engineer"),
+          ok: 404,
+        },
+      ]),
       noAction("api-bearer", (fx) => `/api/v1/logs/${fx.home.logIds[0]}`),
     ],
   },
@@ -804,6 +826,95 @@ export const matrix: Record<string, Row> = {
         ok: 200,
       },
     ]),
+  },
+  // Sign-off (issue 16). Reads: viewer and up. Writes: engineer and up, each with a body the
+  // schema refuses (400 after the role check), so no cell proposes or decides anything.
+  "routes/api.v1.vehicle-signoffs.ts": {
+    probes: api((w) => [
+      get(w, (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/signoffs`, team("viewer"), 200, {
+        okText: '"signoffs"',
+      }),
+      {
+        way: w,
+        method: "POST",
+        path: (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/signoffs`,
+        json: {},
+        access: team("engineer"),
+        ok: 400,
+        okText: "invalid_signoff",
+      },
+    ]),
+  },
+  "routes/api.v1.signoffs.ts": {
+    probes: [
+      ...api((w) => [
+        get(w, () => "/api/v1/signoffs", team("viewer", false), 200, { okText: '"signoffs"' }),
+        get(w, (fx) => `/api/v1/signoffs?vehicleId=${fx.home.vehicleId}`, team("viewer"), 200, {
+          okText: '"signoffs":[{',
+        }),
+      ]),
+      noAction("api-bearer", () => "/api/v1/signoffs"),
+    ],
+  },
+  "routes/api.v1.signoff.ts": {
+    probes: [
+      ...api((w) => [
+        get(w, (fx) => `/api/v1/signoffs/${fx.home.signoffId}`, team("viewer"), 200, {
+          shows: true,
+        }),
+      ]),
+      noAction("api-bearer", (fx) => `/api/v1/signoffs/${fx.home.signoffId}`),
+    ],
+  },
+  "routes/api.v1.signoff-report.ts": {
+    probes: [
+      ...api((w) => [
+        get(w, (fx) => `/api/v1/signoffs/${fx.home.signoffId}/report.pdf`, team("viewer"), 200, {
+          okText: "%PDF-",
+        }),
+      ]),
+      noAction("api-bearer", (fx) => `/api/v1/signoffs/${fx.home.signoffId}/report.pdf`),
+    ],
+  },
+  "routes/api.v1.signoff-step.ts": {
+    probes: [
+      ...api((w) =>
+        (
+          [
+            ["approve", { comment: 5 }],
+            ["reject", {}],
+            ["withdraw", {}],
+          ] as const
+        ).map(([step, json]): Probe => ({
+          way: w,
+          method: "POST",
+          path: (fx) => `/api/v1/signoffs/${fx.home.signoffId}/${step}`,
+          json,
+          access: team("engineer"),
+          ok: 400,
+        })),
+      ),
+      // Any other step is no endpoint, for everyone; a step is never a GET.
+      {
+        way: "api-bearer",
+        method: "POST",
+        path: (fx) => `/api/v1/signoffs/${fx.home.signoffId}/publish`,
+        json: {},
+        access: anyone,
+        ok: 404,
+      },
+      get("api-bearer", (fx) => `/api/v1/signoffs/${fx.home.signoffId}/approve`, anyone, 405),
+    ],
+  },
+  "routes/api.v1.vehicle-report.ts": {
+    probes: [
+      ...api((w) => [
+        get(w, (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/report.pdf`, team("viewer"), 200, {
+          okText: "%PDF-",
+        }),
+      ]),
+      noAction("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/report.pdf`),
+    ],
   },
   "routes/api.v1.not-found.ts": {
     probes: api((w) => [

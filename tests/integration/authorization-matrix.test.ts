@@ -202,6 +202,7 @@ async function seedTeam(t: TestTeam, mark: string, technician: HttpClient, admin
       deviations: [{ targetId, reason: "Fixture of the authorization matrix." }],
     },
     { ...engineer, ip: "127.0.0.1" },
+    { notify: false },
   );
   const signoffShare = await createShare({
     teamId: t.id,

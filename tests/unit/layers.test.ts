@@ -82,6 +82,7 @@ describe("layers (docs/architecture.md §5)", () => {
       "base",
       "signal",
       "domain",
+      "report",
       "infra",
       "analyses",
       "data",

@@ -247,12 +247,14 @@ export function signoffData(teamId: number) {
     /**
      * Proposes: Invalid (400) when blocked, listing every problem and blocking claim; Forbidden
      * below engineer; Conflict when a claimed drive log got a new analysis meanwhile. Freezes
-     * the evidence (the record and a copy of each result), audits, mails the possible approvers.
+     * the evidence (the record and a copy of each result), audits, mails the possible approvers
+     * (not with `notify: false`: fixtures and seeds made outside a running server).
      */
     async propose(
       vehicleId: number,
       input: SignoffInput,
       caller: SignoffCaller,
+      options: { notify?: boolean } = {},
     ): Promise<SignoffJson> {
       if (!mayPropose(caller.role))
         throw new Forbidden("Only engineers and admins propose sign-offs.");
@@ -345,7 +347,8 @@ export function signoffData(teamId: number) {
         ip: caller.ip,
       });
       const made = await get(id);
-      await mailApprovers(teamId, made, evidence.vehicle.identifier, proposer, caller);
+      if (options.notify !== false)
+        await mailApprovers(teamId, made, evidence.vehicle.identifier, proposer, caller);
       return made;
     },
 

@@ -1,10 +1,11 @@
-import Papa from "papaparse";
 import type { AnalysisResult } from "../signal/result-schema";
+import { spreadsheetCsv } from "./export-csv";
 
 /**
  * The result's curves as one CSV table for spreadsheets: one row per engine-speed bin (rpm),
  * isolation at the firing order (dB) and every tracked order's 0-peak amplitude at both sides
- * (rpm), values exactly as in the result JSON. Empty cells where a curve has no bin.
+ * (rpm), values exactly as in the result JSON. Empty cells where a curve has no bin. Written by
+ * the one spreadsheet-safe writer (export-csv.ts).
  */
 export function resultCsv(result: AnalysisResult): string {
   const rpms = [
@@ -30,5 +31,5 @@ export function resultCsv(result: AnalysisResult): string {
     iso.has(rpm) ? (iso.get(rpm)!.aboveNoise ? "yes" : "no") : "",
     ...curves.flatMap((m) => [m.get(rpm)?.crankRpm ?? "", m.get(rpm)?.gearboxRpm ?? ""]),
   ]);
-  return Papa.unparse({ fields, data }, { newline: "\n" }) + "\n";
+  return spreadsheetCsv(fields, data, "\n");
 }

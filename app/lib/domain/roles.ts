@@ -29,6 +29,11 @@ export function canManageShare(
   );
 }
 
+/** Engineers and admins propose, decide and withdraw sign-offs (domain/signoff.ts adds four eyes). */
+export function canSignOff(role: Role): boolean {
+  return atLeast(role, "engineer");
+}
+
 /** Technicians and up write comments (viewers read them). */
 export function canComment(role: Role): boolean {
   return atLeast(role, "technician");

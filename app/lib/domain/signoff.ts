@@ -13,7 +13,7 @@
  * not a standard.
  */
 import { z } from "zod";
-import { atLeast, type Role } from "./roles";
+import { canSignOff, type Role } from "./roles";
 import type { LogCondition } from "./drive-log-terms";
 import type { Target, TargetStatus, TargetVerdict } from "./targets";
 
@@ -303,14 +303,14 @@ export function mayDecide(input: {
     return "You proposed this sign-off; a second person must approve or reject it.";
   if (input.approvers === "admins" && input.caller.role !== "admin")
     return "In this team only an admin approves or rejects sign-offs.";
-  if (!atLeast(input.caller.role, "engineer"))
+  if (!canSignOff(input.caller.role))
     return "Only engineers and admins approve or reject sign-offs.";
   return null;
 }
 
 /** Engineers and admins propose and withdraw sign-offs; everyone in the team reads them. */
 export function mayPropose(role: Role): boolean {
-  return atLeast(role, "engineer");
+  return canSignOff(role);
 }
 
 // ---------------------------------------------------------------------------------------------

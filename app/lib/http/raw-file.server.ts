@@ -23,15 +23,18 @@ export function rawFileResponse(log: DriveLogRow, headers: Record<string, string
 }
 
 /**
- * `attachment` with the uploader's file name (RFC 6266 §4): a plain-ASCII fallback in quotes for
- * old clients, and the exact name as percent-encoded UTF-8 in `filename*` (RFC 8187 §3.2.1,
- * attr-char only). No character of the name reaches the header as it is, so a quote, a line
- * break or a semicolon in it can neither end the parameter nor start a header of its own.
+ * `attachment` (or `inline`) with the uploader's file name (RFC 6266 §4): a plain-ASCII fallback
+ * in quotes for old clients, and the exact name as percent-encoded UTF-8 in `filename*` (RFC 8187
+ * §3.2.1, attr-char only). No character of the name reaches the header as it is, so a quote, a
+ * line break or a semicolon in it can neither end the parameter nor start a header of its own.
  */
-export function attachmentDisposition(fileName: string): string {
+export function attachmentDisposition(
+  fileName: string,
+  { type = "attachment", fallback = "drive-log.csv" } = {},
+): string {
   // The fallback keeps what it can; a name with nothing of its own left (e.g. all CJK) gets ours.
   const plain = fileName.replace(/[^A-Za-z0-9._ -]+/g, "_").trim();
-  const ascii = /[A-Za-z0-9]/.test(plain.replace(/\.csv$/i, "")) ? plain : "drive-log.csv";
+  const ascii = /[A-Za-z0-9]/.test(plain.replace(/\.[a-z]+$/i, "")) ? plain : fallback;
   // Buffer, not encodeURIComponent: it leaves ' ( ) * as they are (not attr-chars) and throws on
   // a lone surrogate, where Buffer writes U+FFFD.
   let encoded = "";
@@ -41,5 +44,5 @@ export function attachmentDisposition(fileName: string): string {
       ? c
       : `%${byte.toString(16).toUpperCase().padStart(2, "0")}`;
   }
-  return `attachment; filename="${ascii}"; filename*=UTF-8''${encoded}`;
+  return `${type}; filename="${ascii}"; filename*=UTF-8''${encoded}`;
 }

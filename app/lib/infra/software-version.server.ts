@@ -1,4 +1,4 @@
-import { existsSync, readFileSync } from "node:fs";
+import { existsSync, readFileSync, statSync } from "node:fs";
 import { join } from "node:path";
 
 /**
@@ -26,20 +26,35 @@ export function softwareVersion(): string {
 
 function gitCommit(root: string): string | null {
   try {
-    const git = join(root, ".git");
+    let git = join(root, ".git");
     if (!existsSync(git)) return null;
+    // A worktree's .git is a file naming the real folder ("gitdir: …").
+    if (statSync(git).isFile()) {
+      const named = /^gitdir:\s*(.+)$/m.exec(readFileSync(git, "utf8"));
+      if (!named) return null;
+      git = named[1]!.trim();
+      const common = join(git, "commondir");
+      const head = readFileSync(join(git, "HEAD"), "utf8").trim();
+      if (!head.startsWith("ref: ")) return /^[0-9a-f]{40}$/.test(head) ? head : null;
+      if (existsSync(common)) git = join(git, readFileSync(common, "utf8").trim());
+      return refCommit(git, head.slice(5));
+    }
     const head = readFileSync(join(git, "HEAD"), "utf8").trim();
     if (!head.startsWith("ref: ")) return /^[0-9a-f]{40}$/.test(head) ? head : null;
-    const ref = head.slice(5);
-    const loose = join(git, ref);
-    if (existsSync(loose)) return readFileSync(loose, "utf8").trim();
-    const packed = join(git, "packed-refs");
-    if (!existsSync(packed)) return null;
-    const line = readFileSync(packed, "utf8")
-      .split("\n")
-      .find((l) => l.endsWith(` ${ref}`));
-    return line ? line.split(" ")[0]! : null;
+    return refCommit(git, head.slice(5));
   } catch {
     return null;
   }
+}
+
+/** The commit a branch points at: its loose ref file, else the packed refs. */
+function refCommit(git: string, ref: string): string | null {
+  const loose = join(git, ref);
+  if (existsSync(loose)) return readFileSync(loose, "utf8").trim();
+  const packed = join(git, "packed-refs");
+  if (!existsSync(packed)) return null;
+  const line = readFileSync(packed, "utf8")
+    .split("\n")
+    .find((l) => l.endsWith(` ${ref}`));
+  return line ? line.split(" ")[0]! : null;
 }

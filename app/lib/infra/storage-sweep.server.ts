@@ -7,7 +7,7 @@ import { getEnv } from "./env.server";
 import { formatBytes, type BlobStore } from "./storage.server";
 
 /**
- * The storage sweep: removes stored files that no drive log references and parts of uploads
+ * The storage sweep: removes stored files that no drive log or sign-off references and parts of uploads
  * that were abandoned, each only once untouched for a grace period.
  *
  * Why the grace period makes it safe while uploads run, on any number of app instances:
