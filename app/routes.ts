@@ -81,5 +81,6 @@ export default [
   route("s/:token/report.pdf", "routes/share.report.ts"),
   route("vehicles/:vehicleId/logs/:logId/share", "routes/drive-log.share.ts"),
   route("vehicles/:vehicleId/compare/share", "routes/comparison.share.ts"),
+  route("vehicles/:vehicleId/signoffs/:signoffId/share", "routes/signoff.share.ts"),
   route("vehicles/:vehicleId/comments", "routes/comments.ts"),
 ] satisfies RouteConfig;

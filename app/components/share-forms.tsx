@@ -55,6 +55,8 @@ interface ShareFormProps {
   endpoint: string;
   hidden: React.ReactNode;
   onDone: () => void;
+  /** A sign-off's link never carries raw files: no checkbox for them. */
+  noRaw?: boolean;
 }
 
 /** A share form's fetcher, its last reply and its fields (expiry preset to the default days). */
@@ -72,7 +74,7 @@ function useShareForm<S extends z.ZodType<unknown, Record<string, unknown>>>(
   return { fetcher, reply, form, fields };
 }
 
-export function CreateForm({ endpoint, hidden, onDone }: ShareFormProps) {
+export function CreateForm({ endpoint, hidden, onDone, noRaw }: ShareFormProps) {
   const { fetcher, reply, form, fields } = useShareForm("share-create", createShareSchema, onDone);
   const created = fetcher.state === "idle" ? reply?.created : undefined;
   return (
@@ -94,7 +96,7 @@ export function CreateForm({ endpoint, hidden, onDone }: ShareFormProps) {
             hint="Optional; shown on the shared page, e.g. what to look at."
           />
         </div>
-        <RawCheckbox id="share-create-raw" />
+        {noRaw ? null : <RawCheckbox id="share-create-raw" />}
         <SubmitButton>
           {fetcher.state === "submitting" ? "Making the link…" : "Make share link"}
         </SubmitButton>
@@ -153,7 +155,7 @@ function CreatedLink({ created }: { created: { url: string; expiresAt: string } 
   );
 }
 
-export function EmailForm({ endpoint, hidden, onDone }: ShareFormProps) {
+export function EmailForm({ endpoint, hidden, onDone, noRaw }: ShareFormProps) {
   const { fetcher, reply, form, fields } = useShareForm("share-email", emailShareSchema, onDone);
   return (
     <SchemaForm
@@ -179,7 +181,7 @@ export function EmailForm({ endpoint, hidden, onDone }: ShareFormProps) {
       <div className="max-w-xs">
         <DaysField meta={fields.expiresInDays} />
       </div>
-      <RawCheckbox id="share-email-raw" />
+      {noRaw ? null : <RawCheckbox id="share-email-raw" />}
       <SubmitButton>{fetcher.state === "submitting" ? "Sending…" : "Send"}</SubmitButton>
       {reply?.error ? <ErrorLine message={reply.error.message} /> : null}
       {fetcher.state === "idle" && reply?.notice ? (

@@ -15,7 +15,16 @@ import { ShareTable } from "./share-table";
  * GET lists its links (TanStack Query), POST takes intent create / extend / revoke / email
  * (useFetcher). For a comparison, `logs` is sent along in the query and the forms.
  */
-export function SharePanel({ endpoint, logs }: { endpoint: string; logs?: number[] }) {
+export function SharePanel({
+  endpoint,
+  logs,
+  signoff = false,
+}: {
+  endpoint: string;
+  logs?: number[];
+  /** A sign-off's panel: the link shows the evidence and the report, never a raw file. */
+  signoff?: boolean;
+}) {
   const headingId = useId();
   const listUrl = logs ? `${endpoint}?logs=${logs.join(",")}` : endpoint;
   const queryKey = ["share-links", listUrl];
@@ -46,8 +55,9 @@ export function SharePanel({ endpoint, logs }: { endpoint: string; logs?: number
         Share link
       </h2>
       <p className="mt-1 max-w-3xl text-sm text-neutral-600">
-        A read-only page of these results for colleagues without an account: the summary and the
-        charts, no other records of the team. It stops working when it expires or you revoke it.
+        {signoff
+          ? "A read-only page of this sign-off for colleagues without an account: its claims, the frozen evidence and the evidence report (PDF); no raw files and no other records of the team. It stops working when it expires or you revoke it."
+          : "A read-only page of these results for colleagues without an account: the summary and the charts, no other records of the team. It stops working when it expires or you revoke it."}
       </p>
       <noscript>
         <p className="mt-2 text-sm text-amber-800">
@@ -56,10 +66,10 @@ export function SharePanel({ endpoint, logs }: { endpoint: string; logs?: number
       </noscript>
       <div className="mt-4 space-y-3">
         <Disclosure summary="Make a share link">
-          <CreateForm endpoint={endpoint} hidden={hidden} onDone={refresh} />
+          <CreateForm endpoint={endpoint} hidden={hidden} onDone={refresh} noRaw={signoff} />
         </Disclosure>
         <Disclosure summary="Send by e-mail">
-          <EmailForm endpoint={endpoint} hidden={hidden} onDone={refresh} />
+          <EmailForm endpoint={endpoint} hidden={hidden} onDone={refresh} noRaw={signoff} />
         </Disclosure>
       </div>
       <h3 className="mt-6 text-sm font-semibold text-neutral-700">Links made so far</h3>

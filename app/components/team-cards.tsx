@@ -1,4 +1,7 @@
-/** The team page's cards: members, open invitations, the amplitude unit and what each role may do. */
+/**
+ * The team page's cards: members, open invitations, the amplitude unit, the trend reference
+ * speed, the sign-off approvers and what each role may do.
+ */
 import type { SubmissionResult } from "@conform-to/react";
 import { Form, Link } from "react-router";
 import { roleHints, roleLabels, ROLES, type Role } from "~/lib/domain/roles";
@@ -8,6 +11,8 @@ import {
   TREND_REFERENCE_MIN_RPM,
   trendReferenceSchema,
 } from "~/lib/domain/trend-settings";
+import { SIGNOFF_APPROVERS, type SignoffApprovers } from "~/lib/domain/signoff";
+import { signoffApproverLabels } from "~/lib/domain/signoff-text";
 import { CsrfInput } from "./csrf-input";
 import { IntentButton, SchemaForm, SubmitButton, useSchemaForm } from "./form";
 import { InputField } from "./form-fields";
@@ -173,6 +178,61 @@ function TrendReferenceForm({
       />
       <SubmitButton tone="secondary">Save reference speed</SubmitButton>
     </SchemaForm>
+  );
+}
+
+/** Who approves sign-offs (issue 16): admins choose; everyone reads it. */
+export function SignoffApproversCard({
+  approvers,
+  canEdit,
+  error,
+}: {
+  approvers: SignoffApprovers;
+  canEdit: boolean;
+  error: string | undefined;
+}) {
+  return (
+    <Card title="Sign-off approvers" id="signoff-approvers">
+      <p className="text-sm text-neutral-600">
+        A proposed sign-off is approved or rejected by{" "}
+        <strong data-signoff-approvers={approvers}>{signoffApproverLabels[approvers]}</strong>.
+        Nobody decides on their own proposal.
+      </p>
+      {canEdit ? (
+        <Form method="post" className="mt-3 space-y-3">
+          <CsrfInput />
+          <fieldset aria-describedby={error ? "signoff-approvers-error" : undefined}>
+            <legend className="text-sm font-medium text-neutral-800">Who approves</legend>
+            {SIGNOFF_APPROVERS.map((a) => (
+              <label key={a} className="mt-2 flex items-start gap-2 text-sm">
+                <input
+                  type="radio"
+                  name="approvers"
+                  value={a}
+                  defaultChecked={a === approvers}
+                  className="mt-0.5 size-4 accent-indigo-600"
+                />
+                <span>
+                  {a === "engineers"
+                    ? "Any engineer or admin other than the proposer"
+                    : "Only an admin other than the proposer"}
+                </span>
+              </label>
+            ))}
+          </fieldset>
+          {error ? (
+            <p id="signoff-approvers-error" role="alert" className="text-sm text-red-700">
+              {error}
+            </p>
+          ) : null}
+          <SubmitButton name="intent" value="set-signoff-approvers" tone="secondary">
+            Save approvers
+          </SubmitButton>
+        </Form>
+      ) : (
+        <p className="mt-2 text-xs text-neutral-500">Admins change who approves.</p>
+      )}
+    </Card>
   );
 }
 

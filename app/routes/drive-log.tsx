@@ -1,5 +1,5 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, useActionData, useLoaderData } from "react-router";
+import { data, redirect, useActionData, useLoaderData } from "react-router";
 import { AnalysisDetails } from "~/components/analysis-details";
 import { AnalysisSection } from "~/components/analysis-section";
 import { AnalysisVersions } from "~/components/analysis-versions";
@@ -17,6 +17,8 @@ import { useLiveStatus } from "~/components/use-log-progress";
 import { Card, Notice } from "~/components/page";
 import { ReanalyseForm, reanalyseSchema } from "~/components/reanalyse-form";
 import { SharePanel } from "~/components/share-panel";
+import { DeleteDriveLog } from "~/components/delete-drive-log";
+import { clientIp } from "~/lib/http/request.server";
 import { CommentsPanel, useCommentMarkers } from "~/components/comments-panel";
 import { queueAnalysis } from "~/lib/analyses/requests.server";
 import {
@@ -153,7 +155,7 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
   };
 });
 
-export const action = pageRoute(async ({ request, params }: Route.ActionArgs) => {
+export const action = pageRoute(async ({ request, params, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   await assertCsrf(request, form);
   const intent = form.get("intent");
@@ -166,6 +168,14 @@ export const action = pageRoute(async ({ request, params }: Route.ActionArgs) =>
     // Whoever uploads drive logs (technicians and up) fills in their test details.
     const { vehicles, log } = await load(request, params, "technician");
     return useFileDetails(vehicles, log);
+  }
+  if (intent === "delete-log") {
+    // Deleting a drive log is the engineer's (issue 16); it asks first: without confirm=yes the
+    // page comes back with the question, and nothing changes.
+    const { user, vehicles, vehicle, log } = await load(request, params, "engineer");
+    if (form.get("confirm") !== "yes") return { confirmDeleteLog: true };
+    await vehicles.removeLog(log.id, { ...user, ip: clientIp(context) });
+    return redirect(`/vehicles/${vehicle.id}?notice=log-deleted`);
   }
   if (intent !== "reanalyse") throw new Invalid("Unknown action.");
   const { vehicles, log } = await load(request, params, "engineer");
@@ -299,6 +309,13 @@ export default function DriveLogPage() {
         <AnalysisVersions versions={versions} shownId={shown?.id} logHref={logHref} />
       ) : null}
       {earlier ? null : <CommentsPanel vehicleId={vehicle.id} subject={`log:${log.id}`} />}
+      {atLeast(role, "engineer") && !earlier ? (
+        <DeleteDriveLog
+          logHref={logHref}
+          fileName={log.fileName}
+          asked={!!result && "confirmDeleteLog" in result}
+        />
+      ) : null}
     </div>
   );
 }

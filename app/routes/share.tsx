@@ -4,6 +4,7 @@ import { AnalysisSummaryView } from "~/components/analysis-summary";
 import { DriveLogCharts } from "~/components/charts/drive-log-charts";
 import { ComparisonView } from "~/components/comparison-view";
 import { LogoMark } from "~/components/logo-mark";
+import { SharedSignoff } from "~/components/signoff-shared";
 import { mainProps, SkipLink } from "~/components/skip-link";
 import { Card, InlineTerm, When } from "~/components/page";
 import { conditionLabels, gearLabel } from "~/lib/domain/drive-log-terms";
@@ -21,7 +22,7 @@ import { pageRoute } from "~/lib/http/edge.server";
 export const meta = ({ data }: Route.MetaArgs) => [
   {
     title: data
-      ? `${data.kind === "comparison" ? "Shared comparison" : "Shared drive log"} · ${data.vehicle.identifier} · Twistlog`
+      ? `${data.kind === "comparison" ? "Shared comparison" : data.kind === "signoff" ? "Shared sign-off" : "Shared drive log"} · ${data.vehicle.identifier} · Twistlog`
       : "Share link · Twistlog",
   },
   { name: "robots", content: "noindex, nofollow" },
@@ -75,6 +76,10 @@ export default function SharedPage() {
           </Item>
         </dl>
       </Card>
+
+      {page.kind === "signoff" && page.signoff ? (
+        <SharedSignoff signoff={page.signoff} reportHref={`${base}/report.pdf`} />
+      ) : null}
 
       {page.kind === "comparison" && page.comparison ? (
         <ComparisonView

@@ -7,12 +7,14 @@ import {
   Invitations,
   MembersCard,
   RolesCard,
+  SignoffApproversCard,
   TrendReferenceCard,
   UnitsCard,
 } from "~/components/team-cards";
 import { LoggerVocabularyCard } from "~/components/logger-vocabulary-card";
 import { ingestSettingsAction } from "~/lib/http/team-ingest.server";
 import { trendSettingsAction } from "~/lib/http/team-trend.server";
+import { signoffSettingsAction } from "~/lib/http/team-signoff.server";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
@@ -58,6 +60,8 @@ export const action = pageRoute(async ({ request, context }: Route.ActionArgs) =
   if (ingest) return ingest;
   const trend = await trendSettingsAction(request, form, ip);
   if (trend) return trend;
+  const approvers = await signoffSettingsAction(request, form, ip);
+  if (approvers) return approvers;
 
   if (intent === "set-units") {
     // Display settings belong to the people who analyse: engineers and admins.
@@ -147,6 +151,11 @@ export default function Team() {
             rpm={team.trendReferenceRpm}
             canEdit={atLeast(me.role, "engineer")}
             lastResult={result && "trendReference" in result ? result.trendReference : undefined}
+          />
+          <SignoffApproversCard
+            approvers={team.signoffApprovers}
+            canEdit={admin}
+            error={result && "approversError" in result ? result.approversError : undefined}
           />
           <LoggerVocabularyCard
             settings={ingest}

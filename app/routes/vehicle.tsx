@@ -21,6 +21,8 @@ import { UploadCard } from "~/components/upload-card";
 import { ProgressNotes, UploadNotices } from "~/components/upload-notices";
 import { useLogProgress } from "~/components/use-log-progress";
 import { VehicleCard } from "~/components/vehicle-card";
+import { SignoffCard } from "~/components/signoff-card";
+import { signoffCardData } from "~/lib/http/signoff-pages.server";
 import { VehicleHeading } from "~/components/vehicle-heading";
 import { audit } from "~/lib/data/audit.server";
 import { assertCsrf } from "~/lib/http/csrf.server";
@@ -46,7 +48,7 @@ export const meta = ({ data }: Route.MetaArgs) => [
 ];
 
 export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) => {
-  const { team } = await requireAccess(request, "viewer");
+  const { team, user } = await requireAccess(request, "viewer");
   const vehicles = vehicleData(team.id);
   const targets = targetData(team.id);
   const vehicle = await vehicles.vehicle(idParam(params.vehicleId));
@@ -56,10 +58,11 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
     const ids = search.getAll("logs").filter((s) => /^\d{1,15}$/.test(s));
     throw redirect(`/vehicles/${vehicle.id}/compare?logs=${ids.join(",")}`);
   }
-  const [logs, targetRows, trend] = await Promise.all([
+  const [logs, targetRows, trend, signoff] = await Promise.all([
     vehicles.logsWithSummary(vehicle.id),
     targets.list(vehicle.id),
     loadVehicleTrend(team.id, vehicle.id),
+    signoffCardData(team.id, vehicle.id, { userId: user.id, role: team.role }),
   ]);
   const idle = logs.filter((l) => l.latestAnalysisId !== null && l.idleAngAccelRadS2 !== null);
   const [verdicts, idleFigures] = await Promise.all([
@@ -131,6 +134,7 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
     targets: summaries,
     analysedLogs: verdicts.size,
     trend,
+    signoff,
     // After a form upload without JavaScript: ?uploaded=12,13&dup=13-7 (log 13 repeats log 7).
     uploaded: (search.get("uploaded") ?? "")
       .split(",")
@@ -143,9 +147,16 @@ export const loader = pageRoute(async ({ request, params }: Route.LoaderArgs) =>
         (p): p is [number, number] =>
           p.length === 2 && p.every((n) => Number.isSafeInteger(n) && n > 0),
       ),
-    notice: search.get("notice") === "saved" ? "The vehicle is saved." : null,
+    notice: noticeOf(search.get("notice")),
   };
 });
+
+function noticeOf(code: string | null): string | null {
+  if (code === "saved") return "The vehicle is saved.";
+  if (code === "log-deleted")
+    return "The drive log is deleted. Sign-offs that rested on it are marked superseded.";
+  return null;
+}
 
 function verdictCounts(verdicts: TargetVerdict[]): NonNullable<DriveLogTableRow["targets"]> {
   return {
@@ -264,8 +275,18 @@ export const action = pageRoute(async ({ request, params, context }: Route.Actio
 });
 
 export default function VehiclePage() {
-  const { role, vehicle, logs, targets, analysedLogs, trend, uploaded, duplicates, notice } =
-    useLoaderData<typeof loader>();
+  const {
+    role,
+    vehicle,
+    logs,
+    targets,
+    analysedLogs,
+    trend,
+    signoff,
+    uploaded,
+    duplicates,
+    notice,
+  } = useLoaderData<typeof loader>();
   const result = useActionData<typeof action>();
   const revalidator = useRevalidator();
   const progress: LogProgress[] = useMemo(
@@ -307,6 +328,7 @@ export default function VehiclePage() {
         />
         <LatestCurves vehicle={vehicle} analysedLogs={analysedLogs} />
       </div>
+      <SignoffCard vehicleId={vehicle.id} {...signoff} />
       <DamperHealthCard trend={trend} vehicleId={vehicle.id} />
       <Card title="Drive logs" id="drive-logs">
         <DriveLogTable

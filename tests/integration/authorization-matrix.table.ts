@@ -34,6 +34,8 @@ export interface TeamFixture {
   targetId: number;
   /** A proposed sign-off of the vehicle (issue 16). */
   signoffId: number;
+  /** A share link of that sign-off. */
+  signoffShareToken: string;
   invitationId: number;
   adminMembershipId: number;
 }
@@ -121,6 +123,7 @@ const share: Access = { kind: "share" };
 const v = (fx: Fixtures) => `/vehicles/${fx.home.vehicleId}`;
 const log = (fx: Fixtures) => `${v(fx)}/logs/${fx.home.logIds[0]}`;
 const pair = (fx: Fixtures) => fx.home.logIds.join(",");
+const signoffPath = (fx: Fixtures) => `${v(fx)}/signoffs/${fx.home.signoffId}`;
 const get = (way: Way, path: Probe["path"], access: Access, ok = 200, more: Partial<Probe> = {}) =>
   ({ way, method: "GET", path, access, ok, ...more }) satisfies Probe;
 const post = (
@@ -265,6 +268,71 @@ export const matrix: Record<string, Row> = {
         team("engineer"),
         400,
       ),
+      // Without confirm=yes the page only asks back (200) and nothing is deleted.
+      post("form", log, "delete-log", () => withIntent("delete-log"), team("engineer"), 200, {
+        okText: "confirmDeleteLog",
+      }),
+    ],
+  },
+  // Sign-off pages (issue 16): every write is the engineer's or admin's; technicians and viewers
+  // get 403. The payloads are refused after the role check (400), so nothing changes.
+  "routes/signoff.new.tsx": {
+    probes: [
+      noBody((fx) => `${v(fx)}/signoffs/new`),
+      get("page", (fx) => `${v(fx)}/signoffs/new`, team("engineer"), 200, { shows: true }),
+      // No target claimed: "Claim at least one target." (400).
+      post(
+        "form",
+        (fx) => `${v(fx)}/signoffs/new`,
+        "propose",
+        () => withIntent("propose", { damperVariant: "A", note: "" }),
+        team("engineer"),
+        400,
+        { okText: "Claim at least one target." },
+      ),
+      post(
+        "form",
+        (fx) => `${v(fx)}/signoffs/new`,
+        "check",
+        () => withIntent("check", { damperVariant: "A", note: "" }),
+        team("engineer"),
+        400,
+        { okText: "Claim at least one target." },
+      ),
+    ],
+  },
+  "routes/signoff.tsx": {
+    probes: [
+      noBody(signoffPath),
+      get("page", signoffPath, team("viewer"), 200, { shows: true }),
+      // A comment over 2000 characters: refused on its field after the role check.
+      post(
+        "form",
+        signoffPath,
+        "approve",
+        () => withIntent("approve", { comment: "x".repeat(2001) }),
+        team("engineer"),
+        400,
+        { okText: "The comment is at most 2000 characters." },
+      ),
+      post(
+        "form",
+        signoffPath,
+        "reject",
+        () => withIntent("reject", { comment: "" }),
+        team("engineer"),
+        400,
+        { okText: "Say why the sign-off is rejected." },
+      ),
+      post(
+        "form",
+        signoffPath,
+        "withdraw",
+        () => withIntent("withdraw", { reason: "" }),
+        team("engineer"),
+        400,
+        { okText: "Say why the sign-off is withdrawn." },
+      ),
     ],
   },
   "routes/rattle.tsx": {
@@ -331,6 +399,16 @@ export const matrix: Record<string, Row> = {
         "set-strict",
         () => withIntent("set-strict", { strict: "maybe" }),
         team("engineer", false),
+        400,
+      ),
+      // Who approves sign-offs (lib/http/team-signoff.server.ts): admins only; a value that is
+      // neither choice changes nothing (400).
+      post(
+        "form",
+        () => "/team",
+        "set-signoff-approvers",
+        () => withIntent("set-signoff-approvers", { approvers: "everyone" }),
+        team("admin", false),
         400,
       ),
       post(
@@ -856,6 +934,7 @@ export const matrix: Record<string, Row> = {
       get("share", (fx) => `/s/${fx.home.shareToken}`, share, 200, { shows: true }),
       get("share", (fx) => `/s/${fx.home.shareToken}.data`, share, 200, { shows: true }),
       get("share", (fx) => `/s/${fx.home.compareShareToken}`, share, 200, { shows: true }),
+      get("share", (fx) => `/s/${fx.home.signoffShareToken}`, share, 200, { shows: true }),
       get("share", (fx) => `/s/${fx.revokedShareToken}`, share, 410),
       get("share", () => `/s/${"A".repeat(43)}`, share, 404),
       // The shared page has no action.
@@ -910,6 +989,17 @@ export const matrix: Record<string, Row> = {
       get("share", (fx) => `/s/${fx.home.compareShareToken}/file`, share, 403),
     ],
   },
+  "routes/share.report.ts": {
+    probes: [
+      noAction("share", (fx) => `/s/${fx.home.signoffShareToken}/report.pdf`),
+      get("share", (fx) => `/s/${fx.home.signoffShareToken}/report.pdf`, share, 200, {
+        okText: "%PDF-",
+      }),
+      // A drive log's link has no report; a revoked link is gone.
+      get("share", (fx) => `/s/${fx.home.shareToken}/report.pdf`, share, 404),
+      get("share", (fx) => `/s/${fx.revokedShareToken}/report.pdf`, share, 410),
+    ],
+  },
   "routes/drive-log.share.ts": {
     probes: sharePanel(
       (fx) => `${log(fx)}/share`,
@@ -920,6 +1010,12 @@ export const matrix: Record<string, Row> = {
     probes: sharePanel(
       (fx) => `${v(fx)}/compare/share?logs=${pair(fx)}`,
       (fx) => ({ logs: pair(fx) }),
+    ),
+  },
+  "routes/signoff.share.ts": {
+    probes: sharePanel(
+      (fx) => `${signoffPath(fx)}/share`,
+      () => ({}),
     ),
   },
   "routes/comments.ts": {

@@ -61,6 +61,7 @@ const placeholders = {
     commentId: ":comment",
     targetId: ":target",
     signoffId: ":signoff",
+    signoffShareToken: ":signoffToken",
     invitationId: ":invitation",
     adminMembershipId: ":adminMember",
   },
@@ -74,6 +75,7 @@ const placeholders = {
     commentId: ":otherComment",
     targetId: ":otherTarget",
     signoffId: ":otherSignoff",
+    signoffShareToken: ":otherSignoffToken",
     invitationId: ":otherInvitation",
     adminMembershipId: ":otherAdminMember",
   },
@@ -202,6 +204,14 @@ async function seedTeam(t: TestTeam, mark: string, technician: HttpClient, admin
     { ...engineer, ip: "127.0.0.1" },
     { notify: false },
   );
+  const signoffShare = await createShare({
+    teamId: t.id,
+    caller: engineer,
+    subject: { kind: "signoff", signoffId: signoff.id },
+    expiresInDays: 14,
+    note: `Sign-off link ${mark}`,
+    allowRawDownload: false,
+  });
   await admin.get("/team");
   const invitee = `invitee-${mark}@example.test`;
   const invited = await admin.post("/team", { intent: "invite", email: invitee, role: "viewer" });
@@ -222,6 +232,7 @@ async function seedTeam(t: TestTeam, mark: string, technician: HttpClient, admin
     commentId,
     targetId,
     signoffId: signoff.id,
+    signoffShareToken: signoffShare.token,
     invitationId: inv!.id,
     adminMembershipId: t.accounts.admin.membershipId,
   };

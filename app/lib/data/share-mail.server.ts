@@ -2,11 +2,14 @@ import { conditionLabels } from "../domain/drive-log-terms";
 import type { ShareSubject } from "../domain/share-schema";
 import { sendMail } from "../infra/mail.server";
 import { createShare, shareUrl, type ShareCaller } from "./shares.server";
+import { signoffData } from "./signoffs.server";
 import { teamData } from "./team-data.server";
 import { vehicleData } from "./vehicles.server";
 
 /** The signed-in page of a subject, for colleagues who are in the team. */
 export function inAppPath(subject: ShareSubject): string {
+  if (subject.kind === "signoff")
+    return `/vehicles/${subject.vehicleId}/signoffs/${subject.signoffId}`;
   return subject.kind === "log"
     ? `/vehicles/${subject.vehicleId}/logs/${subject.logId}`
     : `/vehicles/${subject.vehicleId}/compare?logs=${subject.logIds.join(",")}`;
@@ -41,14 +44,7 @@ export async function emailShare(input: {
     share = await createShare({
       teamId: input.teamId,
       caller: input.caller,
-      subject:
-        input.subject.kind === "log"
-          ? { kind: "log", logId: input.subject.logId }
-          : {
-              kind: "comparison",
-              vehicleId: input.subject.vehicleId,
-              logIds: input.subject.logIds,
-            },
+      subject: input.subject,
       expiresInDays: input.expiresInDays,
       note: input.message,
       allowRawDownload: input.allowRawDownload,
@@ -96,6 +92,13 @@ export async function emailShare(input: {
 async function describe(teamId: number, subject: ShareSubject) {
   const data = vehicleData(teamId);
   const vehicle = await data.vehicle(subject.vehicleId);
+  if (subject.kind === "signoff") {
+    const signoff = await signoffData(teamId).get(subject.signoffId);
+    return {
+      short: "a sign-off",
+      long: `the sign-off of damper variant "${signoff.damperVariant}" of ${vehicle.name} (${vehicle.identifier})`,
+    };
+  }
   if (subject.kind === "comparison") {
     return {
       short: "a comparison",

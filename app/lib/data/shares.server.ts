@@ -11,6 +11,7 @@ import {
   type ShareSubject,
   type ShareSummary,
 } from "../domain/share-schema";
+import { signoffData } from "./signoffs.server";
 import { vehicleData } from "./vehicles.server";
 
 /**
@@ -56,16 +57,19 @@ function expiryFromNow(days: number): Date {
 }
 
 /**
- * Makes a share link for one drive log (kind "log") or a comparison of a vehicle's drive logs
- * (kind "comparison", 2–8 logs, in the order shown). Every log must be the team's and the
- * vehicle's (404 otherwise). Returns the token: this is the only time it exists outside the
- * caller's browser.
+ * Makes a share link for one drive log (kind "log"), a comparison of a vehicle's drive logs
+ * (kind "comparison", 2–8 logs, in the order shown) or a sign-off (kind "signoff": its evidence
+ * page and report only, never a raw file, so `allowRawDownload` is ignored). Every log and
+ * sign-off must be the team's and the vehicle's (404 otherwise). Returns the token: this is the
+ * only time it exists outside the caller's browser.
  */
 export async function createShare(input: {
   teamId: number;
   caller: ShareCaller;
   subject:
-    { kind: "log"; logId: number } | { kind: "comparison"; vehicleId: number; logIds: number[] };
+    | { kind: "log"; logId: number }
+    | { kind: "comparison"; vehicleId: number; logIds: number[] }
+    | { kind: "signoff"; signoffId: number };
   expiresInDays: number;
   note: string;
   allowRawDownload: boolean;
@@ -73,8 +77,14 @@ export async function createShare(input: {
   const data = vehicleData(input.teamId);
   let vehicleId: number;
   let driveLogId: number | null = null;
+  let signoffId: number | null = null;
   let logIds: number[];
-  if (input.subject.kind === "log") {
+  if (input.subject.kind === "signoff") {
+    const signoff = await signoffData(input.teamId).get(input.subject.signoffId);
+    vehicleId = signoff.vehicleId;
+    signoffId = signoff.id;
+    logIds = [];
+  } else if (input.subject.kind === "log") {
     const log = await data.log(input.subject.logId);
     vehicleId = log.vehicleId;
     driveLogId = log.id;
@@ -100,10 +110,11 @@ export async function createShare(input: {
       vehicleId,
       kind: input.subject.kind,
       driveLogId,
+      signoffId,
       logIds,
       tokenHash: sha256Hex(token),
       note: input.note.slice(0, 500),
-      allowRawDownload: input.allowRawDownload,
+      allowRawDownload: input.subject.kind !== "signoff" && input.allowRawDownload,
       createdBy: input.caller.userId,
       expiresAt,
     })
@@ -150,7 +161,7 @@ function summary(
 export async function listShares(
   teamId: number,
   caller: ShareCaller,
-  filter: { logId?: number; vehicleId?: number } = {},
+  filter: { logId?: number; vehicleId?: number; signoffId?: number } = {},
 ): Promise<ShareSummary[]> {
   const rows = await db
     .select(listColumns)
@@ -161,6 +172,7 @@ export async function listShares(
         eq(shares.teamId, teamId),
         filter.logId ? eq(shares.driveLogId, filter.logId) : undefined,
         filter.vehicleId ? eq(shares.vehicleId, filter.vehicleId) : undefined,
+        filter.signoffId ? eq(shares.signoffId, filter.signoffId) : undefined,
       ),
     )
     .orderBy(desc(shares.createdAt), desc(shares.id))
@@ -179,6 +191,8 @@ export async function sharesOfSubject(
   subject: ShareSubject,
 ): Promise<ShareSummary[]> {
   if (subject.kind === "log") return listShares(teamId, caller, { logId: subject.logId });
+  if (subject.kind === "signoff")
+    return listShares(teamId, caller, { signoffId: subject.signoffId });
   const setOf = (ids: number[]) => [...ids].sort((a, b) => a - b).join(",");
   const key = setOf(subject.logIds);
   return (await listShares(teamId, caller, { vehicleId: subject.vehicleId })).filter(
@@ -291,8 +305,12 @@ export async function countShareView(shareId: number): Promise<void> {
   });
 }
 
-/** The drive-log ids a share link opens: its one log, or the comparison's logs. */
+/**
+ * The drive-log ids a share link opens: its one log, or the comparison's logs. A sign-off's link
+ * opens none: its page shows the frozen evidence and the report, no drive log's charts or file.
+ */
 export function sharedLogIds(share: Pick<ShareRow, "kind" | "driveLogId" | "logIds">): number[] {
+  if (share.kind === "signoff") return [];
   return share.kind === "log" ? (share.driveLogId ? [share.driveLogId] : []) : share.logIds;
 }
 

@@ -157,7 +157,11 @@ export interface ShareSummary {
   canManage: boolean;
 }
 
-/** What a share link shows: one drive log, or a comparison of 2 to 8 of one vehicle's logs. */
+/**
+ * What a share link shows: one drive log, a comparison of 2 to 8 of one vehicle's logs, or a
+ * sign-off's evidence and report (issue 16).
+ */
 export type ShareSubject =
   | { kind: "log"; vehicleId: number; logId: number }
-  | { kind: "comparison"; vehicleId: number; logIds: number[] };
+  | { kind: "comparison"; vehicleId: number; logIds: number[] }
+  | { kind: "signoff"; vehicleId: number; signoffId: number };

@@ -10,6 +10,8 @@ import { resolveShare, sharedLogIds, type ResolvedShare } from "../data/shares.s
 import { teamData } from "../data/team-data.server";
 import { apiError } from "./edge.server";
 import { vehicleData, type DriveLogRow } from "../data/vehicles.server";
+import { signoffData } from "../data/signoffs.server";
+import { signoffView } from "./signoff-pages.server";
 
 /**
  * What every answer under /s/:token carries: the URL holds a secret, so it must not leave in a
@@ -107,6 +109,16 @@ export async function sharedPageData(active: ActiveShare) {
       };
     }),
   );
+  let signoff = null;
+  if (share.kind === "signoff" && share.signoffId) {
+    // The sign-off's frozen evidence only: names, never addresses (signoffView).
+    const signoffs = signoffData(teamId);
+    const [json, { record }] = await Promise.all([
+      signoffs.get(share.signoffId),
+      signoffs.record(share.signoffId),
+    ]);
+    signoff = signoffView(json, record);
+  }
   let comparison = null;
   if (share.kind === "comparison") {
     const { logs: compared, referenceNote } = await comparisonLogs(vehicles, vehicle, ids);
@@ -146,5 +158,6 @@ export async function sharedPageData(active: ActiveShare) {
     },
     logs,
     comparison,
+    signoff,
   };
 }

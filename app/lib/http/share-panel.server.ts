@@ -93,7 +93,9 @@ export function sharePanelAction(resolve: SubjectResolver) {
     const where =
       subject.kind === "log"
         ? `drive log ${subject.logId}`
-        : `comparison ${subject.logIds.join(",")}`;
+        : subject.kind === "signoff"
+          ? `sign-off ${subject.signoffId}`
+          : `comparison ${subject.logIds.join(",")}`;
     const intent = form.get("intent");
 
     if (intent === "create") {
@@ -104,10 +106,7 @@ export function sharePanelAction(resolve: SubjectResolver) {
       const made = await createShare({
         teamId,
         caller: access,
-        subject:
-          subject.kind === "log"
-            ? { kind: "log", logId: subject.logId }
-            : { kind: "comparison", vehicleId: subject.vehicleId, logIds: subject.logIds },
+        subject,
         expiresInDays,
         note,
         allowRawDownload,
@@ -115,7 +114,7 @@ export function sharePanelAction(resolve: SubjectResolver) {
       await audit({
         ...log,
         action: "share-created",
-        detail: `share ${made.id} of ${where}, ${expiresInDays} days${allowRawDownload ? ", raw file allowed" : ""}`,
+        detail: `share ${made.id} of ${where}, ${expiresInDays} days${allowRawDownload && subject.kind !== "signoff" ? ", raw file allowed" : ""}`,
       });
       const url = shareUrl(appOrigin(request), made.token);
       const created = { id: made.id, url, expiresAt: made.expiresAt.toISOString() };
