@@ -1,9 +1,8 @@
-import { useEffect, useRef, useState } from "react";
 import { Form } from "react-router";
 import { CsrfInput } from "./csrf-input";
 import { buttonClass, IntentButton, SubmitButton } from "./form";
 import { Card } from "./page";
-import { useHydrated } from "./use-hydrated";
+import { useAskFirst } from "./use-ask-first";
 
 /**
  * "Delete drive log" (engineers and admins; issue 16) asks first, like "Delete target": with
@@ -20,18 +19,7 @@ export function DeleteDriveLog({
   fileName: string;
   asked: boolean;
 }) {
-  const hydrated = useHydrated();
-  const [asking, setAsking] = useState(asked);
-  const askButton = useRef<HTMLButtonElement>(null);
-  const question = useRef<HTMLDivElement>(null);
-  const opened = useRef(false);
-  useEffect(() => {
-    if (asking && opened.current) question.current?.focus();
-  }, [asking]);
-  const keep = () => {
-    setAsking(false);
-    askButton.current?.focus();
-  };
+  const { hydrated, asking, askButton, question, open, keep } = useAskFirst(asked);
   return (
     <Card title="Delete drive log" id="delete-log">
       <p className="mb-3 max-w-3xl text-sm text-neutral-600">
@@ -45,10 +33,7 @@ export function DeleteDriveLog({
           type="button"
           aria-expanded={asking}
           aria-controls="delete-log-question"
-          onClick={() => {
-            opened.current = true;
-            setAsking(true);
-          }}
+          onClick={open}
           className={buttonClass("danger")}
         >
           Delete drive log

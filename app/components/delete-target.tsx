@@ -1,9 +1,8 @@
-import { useEffect, useRef, useState } from "react";
 import { Form } from "react-router";
 import type { Target } from "~/lib/domain/targets";
 import { CsrfInput } from "./csrf-input";
 import { buttonClass, IntentButton, SubmitButton } from "./form";
-import { useHydrated } from "./use-hydrated";
+import { useAskFirst } from "./use-ask-first";
 
 /**
  * "Delete target" asks first (issue 11): with JavaScript the question opens in place and takes
@@ -20,19 +19,8 @@ export function DeleteTarget({
   target: Target;
   asked: boolean;
 }) {
-  const hydrated = useHydrated();
-  const [asking, setAsking] = useState(asked);
-  const askButton = useRef<HTMLButtonElement>(null);
-  const question = useRef<HTMLDivElement>(null);
-  const opened = useRef(false);
-  useEffect(() => {
-    if (asking && opened.current) question.current?.focus();
-  }, [asking]);
+  const { hydrated, asking, askButton, question, open, keep } = useAskFirst(asked);
   const panelId = `delete-target-${target.id}`;
-  const keep = () => {
-    setAsking(false);
-    askButton.current?.focus();
-  };
   return (
     <div className="space-y-3 border-t border-neutral-100 pt-3">
       {hydrated ? (
@@ -41,10 +29,7 @@ export function DeleteTarget({
           type="button"
           aria-expanded={asking}
           aria-controls={panelId}
-          onClick={() => {
-            opened.current = true;
-            setAsking(true);
-          }}
+          onClick={open}
           className={buttonClass("danger")}
         >
           Delete target <span className="sr-only">{target.name}</span>

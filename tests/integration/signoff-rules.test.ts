@@ -24,7 +24,9 @@ import type { SignoffJson, SignoffRecord } from "~/lib/domain/signoff";
 // or its PDF, withdrawing, and the approvers' mail. A database of its own: the analyses here
 // must not be taken by another file's job runner.
 const testbed = await useJobTestbed("signoff");
-const { pool } = await import("~/lib/infra/db.server");
+const { db, pool } = await import("~/lib/infra/db.server");
+const { localBlobStore } = await import("~/lib/infra/storage.server");
+const { sweepStorage } = await import("~/lib/infra/storage-sweep.server");
 const { readStoredMail } = await import("~/lib/infra/fake-smtp.server");
 const { targetData } = await import("~/lib/data/targets.server");
 const { createTestTeam, TEST_PASSWORD } = await import("../support/accounts");
@@ -376,6 +378,12 @@ describe("superseding: the reason is kept, the record and its PDF never change",
     expect(signoff.state).toBe("superseded");
     expect(signoff.closedReason).toContain(`Drive log "${logs.d.fileName}" was deleted`);
     expect(await frozen(s.id)).toEqual(before);
+    // The evidence outlives the drive log: a sweep with no grace period keeps the raw file (its
+    // key is the SHA-256 computed here from the bytes sent) and the stored report.
+    const store = localBlobStore(testbed.storage);
+    await sweepStorage({ store, db, graceMs: 0 });
+    expect(await store.has(logs.d.sha256)).toBe(true);
+    expect(await store.has(signoff.reportSha256!)).toBe(true);
   });
 
   it("other sign-offs, resting on neither the log nor the target, stay as they were", async () => {

@@ -10,6 +10,7 @@ import {
 } from "../analyses/result.server";
 import { db } from "../infra/db.server";
 import { supersedeSignoffs, type SupersedeActor } from "../analyses/signoff-supersede.server";
+import type { Tx } from "../analyses/queue.server";
 import type { LogCondition } from "../domain/drive-log-terms";
 import { NotFound } from "../domain/errors";
 import {
@@ -83,6 +84,17 @@ export function targetData(teamId: number) {
     return row;
   }
 
+  /** The open sign-offs claiming the target are superseded (inside the change's transaction). */
+  function supersedeFor(tx: Tx, target: TargetRow, what: string, actor: SupersedeActor) {
+    return supersedeSignoffs(
+      tx,
+      teamId,
+      { vehicleId: target.vehicleId, targetIds: [target.id] },
+      `Target "${target.name}" was ${what}.`,
+      actor,
+    );
+  }
+
   function list(vehicleId: number): Promise<TargetRow[]> {
     return db
       .select()
@@ -130,14 +142,7 @@ export function targetData(teamId: number) {
           .set({ ...columns(input), updatedAt: new Date() })
           .where(and(eq(targets.id, id), inTeam));
         // Saving it unchanged supersedes nothing.
-        if (same) return;
-        await supersedeSignoffs(
-          tx,
-          teamId,
-          { vehicleId: before.vehicleId, targetIds: [id] },
-          `Target "${before.name}" was changed.`,
-          actor,
-        );
+        if (!same) await supersedeFor(tx, before, "changed", actor);
       });
     },
 
@@ -146,13 +151,7 @@ export function targetData(teamId: number) {
       const before = await get(id);
       await db.transaction(async (tx) => {
         await tx.delete(targets).where(and(eq(targets.id, id), inTeam));
-        await supersedeSignoffs(
-          tx,
-          teamId,
-          { vehicleId: before.vehicleId, targetIds: [id] },
-          `Target "${before.name}" was deleted.`,
-          actor,
-        );
+        await supersedeFor(tx, before, "deleted", actor);
       });
     },
 

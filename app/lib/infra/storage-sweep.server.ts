@@ -50,37 +50,24 @@ export async function sweepStorage(options: {
 
   let batch: { name: string; bytes: number }[] = [];
   const sweepBatch = async () => {
-    const rows = await db
-      .selectDistinct({ key: driveLogs.blobKey })
-      .from(driveLogs)
-      .where(
-        inArray(
-          driveLogs.blobKey,
-          batch.map((b) => b.name),
-        ),
-      );
-    const referenced = new Set(rows.map((r) => r.key));
-    // A sign-off keeps its drive logs' raw files and its report (issue 16), even when the drive
-    // log itself was deleted.
-    const kept = await db
-      .selectDistinct({ key: signoffResults.blobKey })
-      .from(signoffResults)
-      .where(
-        inArray(
-          signoffResults.blobKey,
-          batch.map((b) => b.name),
-        ),
-      );
-    const reports = await db
-      .selectDistinct({ key: signoffs.reportSha256 })
-      .from(signoffs)
-      .where(
-        inArray(
-          signoffs.reportSha256,
-          batch.map((b) => b.name),
-        ),
-      );
-    for (const r of [...kept, ...reports]) if (r.key) referenced.add(r.key);
+    const names = batch.map((b) => b.name);
+    // Drive logs reference their raw files; a sign-off keeps its drive logs' raw files and its
+    // report (issue 16), even when a drive log itself was deleted.
+    const [logs, kept, reports] = await Promise.all([
+      db
+        .selectDistinct({ key: driveLogs.blobKey })
+        .from(driveLogs)
+        .where(inArray(driveLogs.blobKey, names)),
+      db
+        .selectDistinct({ key: signoffResults.blobKey })
+        .from(signoffResults)
+        .where(inArray(signoffResults.blobKey, names)),
+      db
+        .selectDistinct({ key: signoffs.reportSha256 })
+        .from(signoffs)
+        .where(inArray(signoffs.reportSha256, names)),
+    ]);
+    const referenced = new Set([...logs, ...kept, ...reports].map((r) => r.key));
     for (const file of batch) {
       if (referenced.has(file.name)) continue;
       if (await store.remove(file.name, { ifNotModifiedAfter: cutoff })) {

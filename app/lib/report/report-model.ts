@@ -5,7 +5,13 @@
  * else, so the same model always gives the same pages.
  */
 import type { AnalysisResult } from "../signal/result-schema";
-import type { ClaimCheck, RecordLog, RecordTarget, SignoffState } from "../domain/signoff";
+import type {
+  ClaimCheck,
+  RecordLog,
+  RecordTarget,
+  SignoffRecord,
+  SignoffState,
+} from "../domain/signoff";
 import type { TargetVerdict } from "../domain/targets";
 
 export interface ReportLog {
@@ -32,16 +38,8 @@ export interface ReportModel {
   /** "approved" etc. for a sign-off; "current state" for a vehicle draft. */
   state: SignoffState | "current state";
   signoffId: number | null;
-  vehicle: {
-    id: number;
-    identifier: string;
-    name: string;
-    damperType: string;
-    /** Orders per crank revolution (z/2, or the vehicle's override); null if not known. */
-    firingOrder: number | null;
-    rattleLimitRadS2: number;
-    damperTravelLimitDeg: number | null;
-  };
+  /** The vehicle's figures that verdicts read, as a sign-off's record holds them. */
+  vehicle: SignoffRecord["vehicle"];
   damperVariant: string;
   /** The team's name, shown as the programme in the header. */
   programme: string;
