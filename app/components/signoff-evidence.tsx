@@ -1,5 +1,6 @@
 import { Link } from "react-router";
-import { conditionLabels, gearLabel } from "~/lib/domain/drive-log-terms";
+import { conditionLabels } from "~/lib/domain/drive-log-terms";
+import { gearText } from "~/lib/domain/target-text";
 import { signoffStepLabels } from "~/lib/domain/signoff-text";
 import type { SignoffView } from "~/lib/http/signoff-pages.server";
 import { linkClass } from "./form-fields";
@@ -76,7 +77,7 @@ export function EvidenceTable({
             <dl className="mt-2 grid grid-cols-1 gap-x-4 gap-y-1 text-sm sm:grid-cols-[10rem_1fr]">
               <Fact term="Test">
                 {conditionLabels[l.condition]}
-                {l.gear !== null ? `, ${gearLabel(l.gear)}` : ""};{" "}
+                {l.gear !== null ? `, ${gearText(l.gear)}` : ""};{" "}
                 {l.testDate ? <When date={l.testDate} dateOnly /> : "no test date"}
               </Fact>
               <Fact term="Raw file">

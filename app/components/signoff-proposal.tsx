@@ -1,9 +1,9 @@
 import { useMemo, useState } from "react";
 import { Form, Link, useNavigation } from "react-router";
 import { checkClaims, type ClaimCheck, type ClaimLog } from "~/lib/domain/signoff";
-import { conditionLabels, gearLabel, type LogCondition } from "~/lib/domain/drive-log-terms";
+import { conditionLabels, type LogCondition } from "~/lib/domain/drive-log-terms";
 import type { Target } from "~/lib/domain/targets";
-import { marginText, TARGET_STATUS_LABELS } from "~/lib/domain/target-text";
+import { gearText, marginText, TARGET_STATUS_LABELS } from "~/lib/domain/target-text";
 import type { ClaimValues, ProposalLog, ProposalValues } from "~/lib/http/signoff-pages.server";
 import { CsrfInput } from "./csrf-input";
 import { FormError, SubmitButton, buttonClass } from "./form";
@@ -270,7 +270,7 @@ function LogChoice({
         <span className="break-all">{log.fileName}</span>{" "}
         <span className="text-neutral-500">
           ({conditionLabels[log.condition as LogCondition]}
-          {log.gear !== null ? `, ${gearLabel(log.gear)}` : ""}, {log.date})
+          {log.gear !== null ? `, ${gearText(log.gear)}` : ""}, {log.date})
         </span>{" "}
         <span className={`font-semibold ${tone}`}>
           {v ? TARGET_STATUS_LABELS[v.status] : "not analysed"}

@@ -106,4 +106,21 @@ describe("the demo sign-offs", () => {
     ]);
     expect(record.claims.map((c) => c.status)).toEqual(["pass"]);
   });
+
+  it("the damper-health trend takes damper A's baseline from the approved sign-off, B's from its first analysis", async () => {
+    const approved = signoffs.find((s) => s.state === "approved")!;
+    const { record } = (await (await api(`/api/v1/signoffs/${approved.id}`)).json()) as {
+      record: SignoffRecord;
+    };
+    const trend = (await (await api(`/api/v1/vehicles/${approved.vehicleId}/trend`)).json()) as {
+      variants: { damperVariant: string; baseline: { logId: number; kind: string } | null }[];
+    };
+    const a = trend.variants.find((v) => v.damperVariant === "A")!;
+    expect(a.baseline?.kind).toBe("signed-off");
+    expect(record.logs.map((l) => l.id)).toContain(a.baseline?.logId);
+    // B's only sign-off is still a proposal: not signed off.
+    expect(trend.variants.find((v) => v.damperVariant === "B")!.baseline?.kind).toBe(
+      "first-analysed",
+    );
+  });
 });

@@ -2,10 +2,12 @@
  * Damper health over time: a vehicle's trend per damper variant (app/lib/domain/trend.ts,
  * docs/trend.md), read from each drive log's latest analysis: the model fit and the start/stop
  * peak amplification from the analyses row, the isolation at the team's reference speed from
- * its isolation points (the nearest measured bin within one bin width).
+ * its isolation points (the nearest measured bin within one bin width). A drive log whose latest
+ * analysis an approved sign-off rests on is signed off: the first of its variant is the baseline.
  */
 import { and, asc, eq, gte, inArray, isNotNull, lte } from "drizzle-orm";
 import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-drive-logs";
+import { signoffResults, signoffs } from "~/lib/infra/db/schema-signoffs";
 import { transientFiguresOf } from "../analyses/result.server";
 import { db } from "../infra/db.server";
 import { NotFound } from "../domain/errors";
@@ -85,6 +87,24 @@ export async function loadVehicleTrend(
         )
         .orderBy(asc(isolationPoints.analysisId), asc(isolationPoints.rpm))
     : [];
+  // The analyses an approved sign-off rests on (issue 16): the baseline of their variant.
+  const signed = new Set(
+    rows.length
+      ? (
+          await db
+            .select({ analysisId: signoffResults.analysisId })
+            .from(signoffResults)
+            .innerJoin(signoffs, eq(signoffs.id, signoffResults.signoffId))
+            .where(
+              and(
+                eq(signoffs.teamId, teamId),
+                eq(signoffs.vehicleId, vehicle.id),
+                eq(signoffs.state, "approved"),
+              ),
+            )
+        ).map((r) => r.analysisId)
+      : [],
+  );
   // Analyses saved before issue 15 have no model columns: their fit is read from the result.
   const older = rows.filter((r) => r.naturalHz === null).map((r) => r.analysisId);
   const fromResult = older.length
@@ -114,6 +134,7 @@ export async function loadVehicleTrend(
         binOf(r.settings),
       ),
       startStopPeakAmplificationDb: r.eventPeakDb,
+      signedOff: signed.has(r.analysisId),
     };
   });
   return vehicleTrend({ vehicleId: vehicle.id, referenceRpm, logs });
