@@ -247,7 +247,7 @@ export function fixtureModel(o: FixtureOptions): ReportModel {
     programme: "Kestrel driveline NVH",
     date: at("2026-11-05T15:30:00Z"),
     generatedAt: at("2026-11-06T07:00:00Z"),
-    softwareVersion: "0.1.0 (3f2c9a1)",
+    softwareVersion: "twistlog 0.1.0+3f2c9a1e07b4",
     targets: FIXTURE_TARGETS,
     claims: check.checks,
     logs: reportLogs,

@@ -26,7 +26,7 @@ export async function drawEvidenceReport(
 ): Promise<Buffer> {
   const v = model.vehicle;
   const footer = [
-    `Twistlog ${model.softwareVersion}`,
+    model.softwareVersion,
     model.signoffId === null ? "Draft of the current state" : `Sign-off ${model.signoffId}`,
     model.digest ? `Digest ${shortHash(model.digest)}` : null,
     `Generated ${dateText(model.generatedAt)}`,

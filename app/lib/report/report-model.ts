@@ -47,6 +47,7 @@ export interface ReportModel {
   date: string;
   /** When the PDF was made (ISO); also the PDF's creation date. */
   generatedAt: string;
+  /** The software that made the record, e.g. "twistlog 0.1.0+3f2c9a1e07b4" (softwareVersion()). */
   softwareVersion: string;
   targets: RecordTarget[];
   /** One row per claimed target (a vehicle draft: every target, over every finished log). */

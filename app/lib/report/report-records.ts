@@ -31,7 +31,7 @@ export function drawTraceability(doc: ReportDoc, model: ReportModel): void {
   doc.pdf.outline.addItem("Traceability");
   doc.heading("Traceability", 2);
   doc.para(
-    `Every figure in this report comes from the raw files below, analysed by the analysis version named, with the settings shown, by Twistlog ${model.softwareVersion}. The SHA-256 of a raw file identifies its bytes as uploaded; the result checksum identifies the stored result the charts and verdicts were drawn from.`,
+    `Every figure in this report comes from the raw files below, analysed by the analysis version named, with the settings shown, by ${model.softwareVersion}. The SHA-256 of a raw file identifies its bytes as uploaded; the result checksum identifies the stored result the charts and verdicts were drawn from.`,
   );
   if (model.logs.length === 0)
     doc.para("No drive log is part of this report.", { colour: COLOURS.muted });
@@ -51,7 +51,7 @@ export function drawTraceability(doc: ReportDoc, model: ReportModel): void {
         ["Result SHA-256", log.analysis.resultSha256],
         ["Key settings", settingsText(log.analysis.settings)],
         ["Other settings", otherSettingsText(log.analysis.settings)],
-        ["Software", `Twistlog ${model.softwareVersion}`],
+        ["Software", model.softwareVersion],
       ],
       { size: 8, labelWidth: 96 },
     );

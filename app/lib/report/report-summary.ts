@@ -80,7 +80,7 @@ export function drawSummary(doc: ReportDoc, model: ReportModel): void {
         ? `${stateText(model.state)}: a draft of the vehicle's analysed drive logs`
         : `Sign-off ${model.signoffId}: ${stateText(model.state)}`,
     ],
-    ["Generated", `${timeText(model.generatedAt)} by Twistlog ${model.softwareVersion}`],
+    ["Generated", `${timeText(model.generatedAt)} by ${model.softwareVersion}`],
   ]);
 
   doc.heading(model.signoffId === null ? "Targets" : "Claimed targets", 2);
