@@ -23,8 +23,8 @@ import {
   type SignoffRecord,
 } from "../domain/signoff";
 import type { TargetVerdict } from "../domain/targets";
-import { targetData, toTarget } from "./targets.server";
-import { vehicleData, type Vehicle } from "./vehicles.server";
+import { targetData, toTarget, type TargetRow } from "./targets.server";
+import { vehicleData, type DriveLogRow, type Vehicle } from "./vehicles.server";
 
 /** The canonical JSON text of a record (RFC 8785): what is stored and hashed. */
 export function canonicalText(record: SignoffRecord): string {
@@ -37,6 +37,76 @@ export function sha256Hex(data: string | Buffer): string {
   return createHash("sha256").update(data).digest("hex");
 }
 
+/** A vehicle's figures that verdicts read, as a record holds them. */
+export function recordVehicleOf(v: Vehicle): SignoffRecord["vehicle"] {
+  return {
+    id: v.id,
+    identifier: v.identifier,
+    name: v.name,
+    damperType: v.damperType,
+    firingOrder: vehicleFiringOrder(v),
+    rattleLimitRadS2: v.rattleLimitRadS2,
+    damperTravelLimitDeg: v.damperTravelLimitDeg,
+  };
+}
+
+/** A target as a record holds it: its values and its last change. */
+export function recordTargetOf(row: TargetRow): RecordTarget {
+  return { ...toTarget(row), updatedAt: row.updatedAt.toISOString() };
+}
+
+/** One analysed drive log as a record holds it (a draft has no result checksum: ""). */
+export function recordLogOf(
+  row: DriveLogRow,
+  analysis: AnalysisOfLog,
+  resultSha256: string,
+): RecordLog {
+  return {
+    id: row.id,
+    fileName: row.fileName,
+    sha256: row.blobKey,
+    sizeBytes: row.sizeBytes,
+    uploadedAt: row.uploadedAt.toISOString(),
+    testDate: row.testDate,
+    condition: row.condition,
+    gear: row.gear,
+    damperVariant: row.damperVariant,
+    analysis: {
+      id: analysis.id,
+      version: analysis.version,
+      createdAt: analysis.createdAt.toISOString(),
+      settings: analysis.settings,
+      resultSha256,
+    },
+  };
+}
+
+/** The analyses row columns a record names. */
+export interface AnalysisOfLog {
+  id: number;
+  version: number;
+  createdAt: Date;
+  settings: Record<string, unknown>;
+}
+
+/** The analyses named by id, of the team, with the columns a record names. */
+export async function analysesOf(
+  teamId: number,
+  ids: readonly number[],
+): Promise<(AnalysisOfLog & { driveLogId: number })[]> {
+  if (ids.length === 0) return [];
+  return db
+    .select({
+      id: analyses.id,
+      driveLogId: analyses.driveLogId,
+      version: analyses.version,
+      createdAt: analyses.createdAt,
+      settings: analyses.settings,
+    })
+    .from(analyses)
+    .where(and(eq(analyses.teamId, teamId), inArray(analyses.id, [...ids])));
+}
+
 /** Everything a proposal needs, read at one moment. */
 export interface Evidence {
   vehicle: Vehicle;
@@ -45,11 +115,7 @@ export interface Evidence {
   problems: string[];
   blocked: boolean;
   /** The claimed drive logs with the analysis their verdicts came from. */
-  logs: {
-    row: typeof driveLogs.$inferSelect;
-    analysis: { id: number; version: number; createdAt: Date; settings: Record<string, unknown> };
-    verdicts: TargetVerdict[];
-  }[];
+  logs: { row: DriveLogRow; analysis: AnalysisOfLog; verdicts: TargetVerdict[] }[];
 }
 
 /** Reads the vehicle's targets and the claimed drive logs, and checks the claims. */
@@ -74,19 +140,10 @@ export async function gatherEvidence(
         )
     : [];
   const verdicts = await targetData(teamId).verdictsForLogs(vehicle.id, rows, targetRows);
-  const analysisIds = rows.flatMap((r) => (r.latestAnalysisId ? [r.latestAnalysisId] : []));
-  const analysisRows = analysisIds.length
-    ? await db
-        .select({
-          id: analyses.id,
-          driveLogId: analyses.driveLogId,
-          version: analyses.version,
-          createdAt: analyses.createdAt,
-          settings: analyses.settings,
-        })
-        .from(analyses)
-        .where(and(eq(analyses.teamId, teamId), inArray(analyses.id, analysisIds)))
-    : [];
+  const analysisRows = await analysesOf(
+    teamId,
+    rows.flatMap((r) => (r.latestAnalysisId ? [r.latestAnalysisId] : [])),
+  );
   const analysisOf = new Map(analysisRows.map((a) => [a.driveLogId, a]));
   const claimLogs = new Map<number, ClaimLog>(
     rows.map((r) => [
@@ -99,7 +156,7 @@ export async function gatherEvidence(
       },
     ]),
   );
-  const targets = targetRows.map((t) => ({ ...toTarget(t), updatedAt: t.updatedAt.toISOString() }));
+  const targets = targetRows.map(recordTargetOf);
   const { checks, problems, blocked } = checkClaims({
     targets,
     claims: input.claims,
@@ -132,38 +189,14 @@ export function recordOf(input: {
   proposedBy: SignoffRecord["proposedBy"];
   proposedAt: Date;
 }): SignoffRecord {
-  const v = input.evidence.vehicle;
-  const logs: RecordLog[] = input.evidence.logs.map(({ row, analysis }) => ({
-    id: row.id,
-    fileName: row.fileName,
-    sha256: row.blobKey,
-    sizeBytes: row.sizeBytes,
-    uploadedAt: row.uploadedAt.toISOString(),
-    testDate: row.testDate,
-    condition: row.condition,
-    gear: row.gear,
-    damperVariant: row.damperVariant,
-    analysis: {
-      id: analysis.id,
-      version: analysis.version,
-      createdAt: analysis.createdAt.toISOString(),
-      settings: analysis.settings,
-      resultSha256: sha256Hex(gunzipSync(input.resultGz.get(analysis.id)!)),
-    },
-  }));
+  const logs = input.evidence.logs.map(({ row, analysis }) =>
+    recordLogOf(row, analysis, sha256Hex(gunzipSync(input.resultGz.get(analysis.id)!))),
+  );
   return {
     format: "twistlog-signoff/1",
     signoffId: input.signoffId,
     team: input.team,
-    vehicle: {
-      id: v.id,
-      identifier: v.identifier,
-      name: v.name,
-      damperType: v.damperType,
-      firingOrder: vehicleFiringOrder(v),
-      rattleLimitRadS2: v.rattleLimitRadS2,
-      damperTravelLimitDeg: v.damperTravelLimitDeg,
-    },
+    vehicle: recordVehicleOf(input.evidence.vehicle),
     damperVariant: input.damperVariant,
     softwareVersion: softwareVersion(),
     targets: input.evidence.targets,

@@ -20,11 +20,16 @@ import {
   type SignoffState,
 } from "../domain/signoff";
 import { evaluateTargets } from "../domain/targets";
-import { vehicleFiringOrder } from "../domain/vehicle-firing-order";
 import { renderEvidenceReport } from "../report/evidence-report";
-import type { ReportLog, ReportModel, ReportStep } from "../report/report-model";
+import type { ReportLog, ReportStep } from "../report/report-model";
 import { teamData } from "./team-data.server";
-import { targetData, toTarget } from "./targets.server";
+import { targetData } from "./targets.server";
+import {
+  analysesOf,
+  recordLogOf,
+  recordTargetOf,
+  recordVehicleOf,
+} from "./signoff-evidence.server";
 import { vehicleData } from "./vehicles.server";
 
 /** The stored result JSON without its order map, checked against the schema. */
@@ -113,42 +118,22 @@ export async function vehicleDraftReport(
   const logs = allLogs
     .filter((l) => l.damperVariant === variant && l.latestAnalysisId !== null)
     .sort((a, b) => a.id - b.id);
-  const targets = targetRows.map((t) => ({ ...toTarget(t), updatedAt: t.updatedAt.toISOString() }));
-  const versions = new Map(
-    await Promise.all(logs.map(async (l) => [l.id, await vehicles.versions(l.id)] as const)),
+  const targets = targetRows.map(recordTargetOf);
+  const recordVehicle = recordVehicleOf(vehicle);
+  const analysisOf = new Map(
+    (
+      await analysesOf(
+        teamId,
+        logs.map((l) => l.latestAnalysisId!),
+      )
+    ).map((a) => [a.id, a]),
   );
   const reportLogs: ReportLog[] = [];
-  const recordVehicle = {
-    id: vehicle.id,
-    identifier: vehicle.identifier,
-    name: vehicle.name,
-    damperType: vehicle.damperType,
-    firingOrder: vehicleFiringOrder(vehicle),
-    rattleLimitRadS2: vehicle.rattleLimitRadS2,
-    damperTravelLimitDeg: vehicle.damperTravelLimitDeg,
-  };
   for (const l of logs) {
-    const result = await storedResult(l.latestAnalysisId!);
-    if (!result) continue;
-    const version = versions.get(l.id)?.find((v) => v.id === l.latestAnalysisId);
-    const log: RecordLog = {
-      id: l.id,
-      fileName: l.fileName,
-      sha256: l.blobKey,
-      sizeBytes: l.sizeBytes,
-      uploadedAt: l.uploadedAt.toISOString(),
-      testDate: l.testDate,
-      condition: l.condition,
-      gear: l.gear,
-      damperVariant: l.damperVariant,
-      analysis: {
-        id: l.latestAnalysisId!,
-        version: version?.version ?? 0,
-        createdAt: version?.createdAt.toISOString() ?? "",
-        settings: { ...result.settings },
-        resultSha256: "",
-      },
-    };
+    const analysis = analysisOf.get(l.latestAnalysisId!);
+    const result = analysis ? await storedResult(analysis.id) : null;
+    if (!analysis || !result) continue;
+    const log = recordLogOf(l, analysis, "");
     reportLogs.push({
       log,
       result,

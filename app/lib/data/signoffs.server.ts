@@ -11,7 +11,6 @@ import { users } from "~/lib/infra/db/schema";
 import { analyses, driveLogs } from "~/lib/infra/db/schema-drive-logs";
 import { signoffResults, signoffSteps, signoffs } from "~/lib/infra/db/schema-signoffs";
 import { db } from "../infra/db.server";
-import { sendMail } from "../infra/mail.server";
 import { blobStore } from "../infra/storage-settings.server";
 import { Conflict, Forbidden, Invalid, NotFound } from "../domain/errors";
 import type { Role } from "../domain/roles";
@@ -35,6 +34,7 @@ import {
   sha256Hex,
 } from "./signoff-evidence.server";
 import { renderSignoffReport } from "./signoff-report.server";
+import { mailApprovers, mailProposer } from "./signoff-mail.server";
 import { teamData } from "./team-data.server";
 import { vehicleData } from "./vehicles.server";
 
@@ -405,14 +405,14 @@ export function signoffData(teamId: number) {
     async reject(id: number, comment: string, caller: SignoffCaller): Promise<SignoffJson> {
       const r = await row(id);
       await decider(r, caller);
-      const decider_ = await person(caller.userId);
+      const by = await person(caller.userId);
       await step(id, "rejected", caller, comment, {
         decidedBy: caller.userId,
         decidedAt: new Date(),
         decisionComment: comment,
       });
       const made = await get(id);
-      await mailProposer(teamId, made, "rejected", decider_, caller);
+      await mailProposer(teamId, made, "rejected", by, caller);
       return made;
     },
 
@@ -484,76 +484,6 @@ export function signoffData(teamId: number) {
       });
     },
   };
-}
-
-// ---- Mail -----------------------------------------------------------------------------------
-
-function link(caller: SignoffCaller, s: SignoffJson): string {
-  return caller.origin ? `${caller.origin}/vehicles/${s.vehicleId}/signoffs/${s.id}` : "";
-}
-
-/** Tells the team's possible approvers (never the proposer) that a proposal waits. */
-async function mailApprovers(
-  teamId: number,
-  s: SignoffJson,
-  identifier: string,
-  proposer: RecordPerson,
-  caller: SignoffCaller,
-): Promise<void> {
-  const { signoffApprovers, name } = await teamData(teamId).team();
-  const members = await teamData(teamId).members();
-  const approvers = members.filter(
-    (m) =>
-      mayDecide({ approvers: signoffApprovers, caller: m, proposedBy: s.proposedBy.id }) === null,
-  );
-  const url = link(caller, s);
-  await Promise.all(
-    approvers.map((m) =>
-      sendMail({
-        kind: "signoff",
-        teamId,
-        to: m.email,
-        subject: `Sign-off of ${identifier} damper variant ${s.damperVariant} awaits your approval`,
-        text: [
-          `${proposer.name} proposes to sign off damper variant ${s.damperVariant} of vehicle ${identifier} (${name}), claiming ${s.claims.length} target(s).`,
-          s.note ? `\nNote: ${s.note}\n` : "",
-          url
-            ? `Review the evidence and approve or reject it: ${url}`
-            : "Open the vehicle's Sign-off card in Twistlog to review it.",
-        ].join("\n"),
-      }).catch((error: unknown) => logMailFailure(error)),
-    ),
-  );
-}
-
-/** Tells the proposer the decision. */
-async function mailProposer(
-  teamId: number,
-  s: SignoffJson,
-  decision: "approved" | "rejected",
-  by: RecordPerson,
-  caller: SignoffCaller,
-): Promise<void> {
-  if (!s.proposedBy.email) return;
-  const url = link(caller, s);
-  await sendMail({
-    kind: "signoff",
-    teamId,
-    to: s.proposedBy.email,
-    subject: `Sign-off ${s.id} (damper variant ${s.damperVariant}) was ${decision} by ${by.name}`,
-    text: [
-      `${by.name} ${decision} your sign-off of damper variant ${s.damperVariant}.`,
-      s.decisionComment ? `\nComment: ${s.decisionComment}\n` : "",
-      url,
-    ].join("\n"),
-  }).catch((error: unknown) => logMailFailure(error));
-}
-
-/** A failed message never undoes the step it reports; it is logged (redacted) and left. */
-function logMailFailure(error: unknown): void {
-  console.error(
-    `sign-off mail not sent: ${error instanceof Error ? error.message : String(error)}`,
-  );
 }
 
 export type { SignoffState };
