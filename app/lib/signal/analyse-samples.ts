@@ -69,7 +69,9 @@ export function analyseSamples(
   const multi = sections.length >= 2;
   const main = multi ? sections : [whole];
   const points = main.map((s) =>
-    multi ? Math.max(1, Math.floor((TRACE_POINTS * (s.endIndex - s.startIndex)) / n)) : TRACE_POINTS,
+    multi
+      ? Math.max(1, Math.floor((TRACE_POINTS * (s.endIndex - s.startIndex)) / n))
+      : TRACE_POINTS,
   );
   // The transients go by sectionsOf, which differs only for a single section short of the log.
   const oneShort = !multi && (sections[0]!.startIndex !== 0 || sections[0]!.endIndex !== n);

@@ -10,12 +10,7 @@
 import { butterworthLowpass4 } from "../lowpass.ts";
 import type { TrackedBlocks } from "../order-tracking.ts";
 import { round } from "../order-curves.ts";
-import {
-  idleOrderAccel,
-  rattleResult,
-  type RattleCheck,
-  type RattleSpan,
-} from "../rattle.ts";
+import { idleOrderAccel, rattleResult, type RattleCheck, type RattleSpan } from "../rattle.ts";
 import type { SampleSource } from "../sample-source.ts";
 import type { Segment } from "../segments.ts";
 import { TRACE_POINTS } from "../traces.ts";

@@ -41,9 +41,7 @@ export class BlockStore {
       blockEndS: new Float64Array(capacity),
       crankAmp: new Float64Array(capacity * bins),
       gearboxAmp: new Float64Array(capacity * bins),
-      ...(setup.trackArgs.firingBin !== undefined
-        ? { twistRadS: new Float64Array(capacity) }
-        : {}),
+      ...(setup.trackArgs.firingBin !== undefined ? { twistRadS: new Float64Array(capacity) } : {}),
       droppedSlowBlocks: 0,
       samplesPerRevRange: [0, 0],
     };

@@ -128,7 +128,11 @@ export function stretchTransients(
   const pad = Math.ceil(SPAN_PAD_S * fs) + 8;
   for (const span of spans) {
     const w = reader.window(span.startIndex - pad, span.endIndex + pad);
-    const local = { ...span, startIndex: span.startIndex - w.start, endIndex: span.endIndex - w.start };
+    const local = {
+      ...span,
+      startIndex: span.startIndex - w.start,
+      endIndex: span.endIndex - w.start,
+    };
     const { timeS, angleRad, crankRadS, gearboxRadS } = w;
     const m = measureSpan({
       timeS,
@@ -140,7 +144,14 @@ export function stretchTransients(
       span: local,
     });
     out.events.push(
-      ...transientEvents({ timeS, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, measures: [m] }),
+      ...transientEvents({
+        timeS,
+        crankRadS,
+        gearboxRadS,
+        sampleRateHz: fs,
+        order: q,
+        measures: [m],
+      }),
     );
     const p = Math.ceil(0.5 * fs);
     const a = Math.max(0, local.startIndex - p);
