@@ -10,7 +10,11 @@
  * process); the time of analyseDriveLog on the same 3 M samples held in arrays is printed beside
  * the windowed analysis's (median of 3; the machine is shared, so the figures are noisy).
  *
- * `tsx bench/analyse-samples.bench.ts child stream|batch ROWS` runs one measurement.
+ * `tsx bench/analyse-samples.bench.ts child MODE ROWS` runs one measurement: MODE stream (the
+ * generated source), stream-steady (the same without transients), memory (analyseSamples over
+ * memorySource of the samples in arrays) or batch (analyseDriveLog on them). BENCH_SMALL_ROWS and
+ * BENCH_LARGE_ROWS change the two lengths, BENCH_WINDOW the window, BENCH_TRACE=1 prints the
+ * process's memory at each progress call.
  */
 import { execFileSync } from "node:child_process";
 import { fileURLToPath } from "node:url";
@@ -26,7 +30,7 @@ import type { DriveLog } from "../app/lib/signal/types.ts";
 const RATE_HZ = 5000;
 const ORDER = 2;
 const GOAL_MB = 150;
-const SMALL_ROWS = 3_000_000;
+const SMALL_ROWS = Number(process.env.BENCH_SMALL_ROWS ?? 3_000_000);
 const LARGE_ROWS = 34_000_000;
 
 /** Knots (s, rpm) of one 120 s cycle of the Kestrel bench drive; the log repeats it. */
@@ -158,9 +162,18 @@ function child(mode: string, rows: number): void {
   }
   const trace = process.env.BENCH_TRACE
     ? (stage: string, f: number) =>
-        console.error(stage, f.toFixed(2), (process.memoryUsage().rss / 2 ** 20).toFixed(0), "MB")
+        console.error(
+          stage,
+          f.toFixed(2),
+          Object.entries(process.memoryUsage())
+            .map(([k, v]) => `${k} ${(v / 2 ** 20).toFixed(0)}`)
+            .join(" "),
+        )
     : undefined;
-  const r = analyseSamples(generatedSource(rows), { transients: mode !== "stream-steady" }, trace);
+  const windowSamples = process.env.BENCH_WINDOW ? Number(process.env.BENCH_WINDOW) : undefined;
+  const r = analyseSamples(generatedSource(rows), { transients: mode !== "stream-steady" }, trace, {
+    windowSamples,
+  });
   if (!r.ok) throw new Error(r.error.message);
   blocks = r.value.blocks;
   console.log(
