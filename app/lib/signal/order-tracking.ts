@@ -63,13 +63,22 @@ export function trackBlocks(args: {
    * more is computed than the amplitudes.
    */
   firingBin?: number;
+  /**
+   * Only blocks first … end−1 of the whole stretch (block b starts at b·hop revolutions of
+   * `angleRad`), for a window of a longer stretch (stream/track-windows.ts). Default: all.
+   */
+  blockRange?: [number, number];
   onProgress?: (fraction: number) => void;
 }): TrackedBlocks {
   const { timeS, angleRad, crankRadS, gearboxRadS, revsPerBlock: R } = args;
   const n = timeS.length;
   const hopRevs = R * (1 - args.overlap);
   const totalRevs = n > 1 ? angleRad[n - 1]! / (2 * Math.PI) : 0;
-  const maxBlocks = totalRevs >= R ? Math.floor((totalRevs - R) / hopRevs + 1e-9) + 1 : 0;
+  const [first, end] = args.blockRange ?? [
+    0,
+    totalRevs >= R ? Math.floor((totalRevs - R) / hopRevs + 1e-9) + 1 : 0,
+  ];
+  const maxBlocks = Math.max(0, end - first);
   const bins = args.topBin + 1;
   const crankAmp = new Float64Array(maxBlocks * bins);
   const gearboxAmp = new Float64Array(maxBlocks * bins);
@@ -91,8 +100,8 @@ export function trackBlocks(args: {
   let sHi = 0;
   let hint = 0;
   let prevS = 0;
-  let prevBlock = -2;
-  for (let b = 0; b < maxBlocks; b++) {
+  let prevBlock = first - 2;
+  for (let b = first; b < end; b++) {
     const thetaA = b * hopRevs * 2 * Math.PI;
     const thetaE = thetaA + 2 * Math.PI * R;
     const ia = indexAtAngle(angleRad, thetaA, hint);
@@ -158,7 +167,7 @@ export function trackBlocks(args: {
     kept++;
     sLo = Math.min(sLo, S);
     sHi = Math.max(sHi, S);
-    if (args.onProgress && (b & 255) === 0) args.onProgress(b / maxBlocks);
+    if (args.onProgress && (b & 255) === 0) args.onProgress((b - first) / maxBlocks);
   }
   return {
     revsPerBlock: R,

@@ -83,24 +83,9 @@ export function rattleCheck(args: {
 }): RattleCheck | null {
   const { tracked, firingOrder: q, limitRadS2: limit } = args;
   const idle = args.segments.filter((s) => s.kind === "idle");
-  if (idle.length === 0) return null;
-  const k = orderBin(q, tracked.revsPerBlock);
-  let p = 0;
-  let w = 0;
-  let nBlocks = 0;
-  for (let b = 0; b < tracked.blockCount; b++) {
-    const a = tracked.blockStartS[b]!;
-    const e = tracked.blockEndS[b]!;
-    if (!idle.some((s) => a >= s.startS && e <= s.endS)) continue;
-    const amp = k < tracked.binsPerBlock ? tracked.gearboxAmp[b * tracked.binsPerBlock + k]! : 0;
-    p += amp * amp;
-    w += tracked.blockRadS[b]!;
-    nBlocks++;
-  }
-  if (nBlocks === 0) return null;
-  const omega = w / nBlocks;
-  const orderAlpha = angularAccelerationRadS2(Math.sqrt(p / nBlocks), q, omega);
-
+  const order = idleOrderAccel(tracked, idle, q);
+  if (!order) return null;
+  const { omega } = order;
   const firingHz = (omega / (2 * Math.PI)) * q;
   const cutoff = 2.5 * firingHz;
   const sections =
@@ -174,6 +159,50 @@ export function rattleCheck(args: {
       });
     }
   }
+  return rattleResult({ ...order, peak, idleS, limit, spans, trace });
+}
+
+/**
+ * The order part of the check over the `idle` segments: α = Δω·q·Ω from the blocks lying wholly
+ * inside one (power-averaged gearbox amplitude at the firing order q, their mean crank speed Ω
+ * in rad/s); null when there is none.
+ */
+export function idleOrderAccel(
+  tracked: TrackedBlocks,
+  idle: readonly Segment[],
+  q: number,
+): { omega: number; orderAlpha: number; nBlocks: number } | null {
+  if (idle.length === 0) return null;
+  const k = orderBin(q, tracked.revsPerBlock);
+  let p = 0;
+  let w = 0;
+  let nBlocks = 0;
+  for (let b = 0; b < tracked.blockCount; b++) {
+    const a = tracked.blockStartS[b]!;
+    const e = tracked.blockEndS[b]!;
+    if (!idle.some((s) => a >= s.startS && e <= s.endS)) continue;
+    const amp = k < tracked.binsPerBlock ? tracked.gearboxAmp[b * tracked.binsPerBlock + k]! : 0;
+    p += amp * amp;
+    w += tracked.blockRadS[b]!;
+    nBlocks++;
+  }
+  if (nBlocks === 0) return null;
+  const omega = w / nBlocks;
+  return { omega, orderAlpha: angularAccelerationRadS2(Math.sqrt(p / nBlocks), q, omega), nBlocks };
+}
+
+/** The check from its parts: figures rounded, the longest MAX_SPANS spans kept, the verdict. */
+export function rattleResult(r: {
+  omega: number;
+  orderAlpha: number;
+  nBlocks: number;
+  peak: number;
+  idleS: number;
+  limit: number;
+  spans: RattleSpan[];
+  trace: RattleCheck["accelTrace"];
+}): RattleCheck {
+  const { omega, orderAlpha, nBlocks, peak, idleS, limit, spans, trace } = r;
   const kept =
     spans.length > MAX_SPANS
       ? [...spans]

@@ -36,7 +36,9 @@ export interface SegmentOptions {
   idleBandRpm?: [number, number];
 }
 
-const FRAME_S = 0.1;
+/** Length of the frames the crank speed is averaged in, s. */
+export const SEGMENT_FRAME_S = 0.1;
+const FRAME_S = SEGMENT_FRAME_S;
 /** A steady stretch's line may move at most B in this time (frames below), s. */
 const RATE_REF_S = 10;
 const rateRefFrames = RATE_REF_S / FRAME_S;
@@ -165,11 +167,6 @@ export function findSegments(
   crankRadS: Float64Array,
   options: SegmentOptions = {},
 ): Segment[] {
-  const bandFraction = options.bandFraction ?? 0.02;
-  const bandMin = options.bandMinRpm ?? 25;
-  const minSteadyS = options.minSteadyS ?? 3;
-  const minDur = options.minDurationS ?? 1.5;
-  const idleBand = options.idleBandRpm ?? [450, 1300];
   const n = timeS.length;
   if (n < 2) return [];
   const t0 = timeS[0]!;
@@ -187,9 +184,34 @@ export function findSegments(
     sum[f] = sum[f]! + crankRadS[i]!;
     cnt[f] = cnt[f]! + 1;
   }
+  return segmentsFromFrames(frameRpm(sum, cnt), t0, timeS[n - 1]!, options);
+}
+
+/** Frame means in rpm from the frames' sums and counts of crank speed (rad/s); an empty frame repeats the one before. */
+export function frameRpm(sum: Float64Array, cnt: Float64Array): Float64Array {
+  const frames = sum.length;
   const raw = new Float64Array(frames);
   for (let f = 0; f < frames; f++)
     raw[f] = cnt[f]! > 0 ? (sum[f]! / cnt[f]!) * RPM_PER_RAD_S : f > 0 ? raw[f - 1]! : 0;
+  return raw;
+}
+
+/**
+ * findSegments from the stretch's SEGMENT_FRAME_S frame means `raw` (rpm, frameRpm), the time
+ * of its first sample `t0` and of its last `tEnd`, s: the same segments, without the samples.
+ */
+export function segmentsFromFrames(
+  raw: Float64Array,
+  t0: number,
+  tEnd: number,
+  options: SegmentOptions = {},
+): Segment[] {
+  const bandFraction = options.bandFraction ?? 0.02;
+  const bandMin = options.bandMinRpm ?? 25;
+  const minSteadyS = options.minSteadyS ?? 3;
+  const minDur = options.minDurationS ?? 1.5;
+  const idleBand = options.idleBandRpm ?? [450, 1300];
+  const frames = raw.length;
   const rpm = movingAverage(raw, 5);
   const slope = new Float64Array(frames);
   for (let f = 0; f < frames; f++) {
@@ -242,7 +264,7 @@ export function findSegments(
     for (let h = f; h < g; h++) kinds[h] = "start";
     f = g;
   }
-  return mergeRuns(kinds, rpm, t0, timeS[n - 1]!, minDur);
+  return mergeRuns(kinds, rpm, t0, tEnd, minDur);
 }
 
 function mergeRuns(

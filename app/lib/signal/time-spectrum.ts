@@ -52,10 +52,34 @@ export function timeSpectrum(args: {
   topOrder: number;
 }): TimeSpectrum | null {
   const { timeS, segment: seg, sampleRateHz: fs } = args;
+  // The segment's samples: the first at or after its start up to the first at or after its end.
   let i0 = 0;
   while (i0 < timeS.length && timeS[i0]! < seg.startS) i0++;
   let i1 = i0;
   while (i1 < timeS.length && timeS[i1]! < seg.endS) i1++;
+  return spectrumOfRange({
+    frameAt: (a, b) => [args.crankRadS.subarray(a, b), args.gearboxRadS.subarray(a, b)],
+    i0,
+    i1,
+    sampleRateHz: fs,
+    segment: seg,
+    topOrder: args.topOrder,
+  });
+}
+
+/**
+ * timeSpectrum over samples [i0, i1) (the segment's), each frame's crank and gearbox samples
+ * [a, b) handed out by `frameAt` (so they can come from a file, stream/spectrum-windows.ts).
+ */
+export function spectrumOfRange(args: {
+  frameAt: (a: number, b: number) => [Float64Array, Float64Array];
+  i0: number;
+  i1: number;
+  sampleRateHz: number;
+  segment: Segment;
+  topOrder: number;
+}): TimeSpectrum | null {
+  const { i0, i1, segment: seg, sampleRateHz: fs } = args;
   const len = i1 - i0;
   if (len < 64) return null;
   let frame = 64;
@@ -67,9 +91,10 @@ export function timeSpectrum(args: {
   const a = new Float64Array(plan.bins);
   let frames = 0;
   for (let s = i0; s + frame <= i1; s += hop) {
-    plan.amplitudes(args.crankRadS.subarray(s, s + frame), a);
+    const [c, g] = args.frameAt(s, s + frame);
+    plan.amplitudes(c, a);
     for (let k = 0; k < plan.bins; k++) pc[k] = pc[k]! + a[k]! * a[k]!;
-    plan.amplitudes(args.gearboxRadS.subarray(s, s + frame), a);
+    plan.amplitudes(g, a);
     for (let k = 0; k < plan.bins; k++) pg[k] = pg[k]! + a[k]! * a[k]!;
     frames++;
   }

@@ -146,7 +146,7 @@ export function lowestResolved(points: readonly IsolationPoint[]): number | null
 }
 
 /** Idle speed for the span kinds: the longest idle segment's mean, or null. */
-function idleOf(segments: readonly Segment[]): number | null {
+export function idleOf(segments: readonly Segment[]): number | null {
   const idle = segments
     .filter((s) => s.kind === "idle")
     .sort((a, b) => b.endS - b.startS - (a.endS - a.startS));
@@ -173,11 +173,25 @@ export function transientResult(args: {
   events: TransientEvent[];
   twist: TwistBlock;
 } {
-  const { order: q, binRpm, revsPerBlock: R } = args;
   const part = analyseTransients({ ...args, idleRpm: idleOf(args.segments) });
+  return transientResultOf(part, { ...args, sampleRateHz: args.log.sampleRateHz });
+}
+
+/** transientResult from the transients already measured (`part`). */
+export function transientResultOf(
+  part: TransientPart,
+  args: {
+    tracked: TrackedBlocks;
+    order: number;
+    revsPerBlock: number;
+    binRpm: number;
+    sampleRateHz: number;
+  },
+): ReturnType<typeof transientResult> {
+  const { order: q, binRpm, revsPerBlock: R } = args;
   const spans = part.measures.map((m) => m.span);
   const steady = blocksOutside(args.tracked, spans);
-  const binArgs = { order: q, binRpm, sampleRateHz: args.log.sampleRateHz, revsPerBlock: R };
+  const binArgs = { order: q, binRpm, sampleRateHz: args.sampleRateHz, revsPerBlock: R };
   const isolation = mergeByRpm(
     isolationCurve(steady, q, binRpm, gearboxNoiseFloor(steady)),
     filterIsolation(part.measures, binArgs),

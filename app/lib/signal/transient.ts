@@ -45,7 +45,9 @@ export const RESOLVE_RATIO = 3;
 export const MAX_CHANGE_PER_FIRING = 0.15;
 /** Below this block-mean speed the engine stands (no slew, no order), rpm. */
 export const STANDSTILL_RPM = 20;
-const FRAME_S = 0.05;
+/** Frames the slew is read in, s. */
+export const FAST_FRAME_S = 0.05;
+const FRAME_S = FAST_FRAME_S;
 const MERGE_GAP_S = 0.5;
 const CROSSING_S = 3;
 
@@ -120,6 +122,24 @@ export function findFastSpans(args: {
         : 0;
   }
   at[frames] = n;
+  return spansFromFrames({ rpm, fast, at, n, timeAt: (k) => timeS[k]!, idleRpm: args.idleRpm });
+}
+
+/**
+ * The spans of findFastSpans from its frames: block-mean speed `rpm` and the fast mark of each
+ * FAST_FRAME_S frame, `at` the sample at each frame's middle (at[frames] = n), `timeAt` the time
+ * of a sample (only the spans' first and last are asked for).
+ */
+export function spansFromFrames(args: {
+  rpm: Float64Array;
+  fast: Uint8Array;
+  at: Int32Array;
+  n: number;
+  timeAt: (index: number) => number;
+  idleRpm: number | null;
+}): FastSpan[] {
+  const { rpm, fast, at, n } = args;
+  const frames = rpm.length;
   // Runs of fast frames, joined across short gaps.
   const runs: [number, number][] = [];
   const gap = Math.round(MERGE_GAP_S / FRAME_S);
@@ -140,8 +160,8 @@ export function findFastSpans(args: {
       kind: spanKind(rpm, a, b, idle),
       startIndex,
       endIndex,
-      startS: timeS[startIndex]!,
-      endS: timeS[endIndex - 1]!,
+      startS: args.timeAt(startIndex),
+      endS: args.timeAt(endIndex - 1),
     };
   });
 }
