@@ -28,10 +28,15 @@ export interface CheckOptions {
 
 /** Nominal sampling interval in s: the median of up to 4001 intervals spread over the log. */
 export function nominalInterval(timeS: Float64Array): number {
-  const n = timeS.length - 1;
+  return nominalIntervalOf(timeS.length, (i) => timeS[i]! - timeS[i - 1]!);
+}
+
+/** nominalInterval of a log of `length` samples whose interval before sample i is interval(i). */
+export function nominalIntervalOf(length: number, interval: (i: number) => number): number {
+  const n = length - 1;
   const step = Math.max(1, Math.floor(n / 4001));
   const d: number[] = [];
-  for (let i = 1; i <= n; i += step) d.push((timeS[i] ?? 0) - (timeS[i - 1] ?? 0));
+  for (let i = 1; i <= n; i += step) d.push(interval(i));
   d.sort((a, b) => a - b);
   return d[Math.floor(d.length / 2)] ?? 0;
 }
