@@ -21,7 +21,7 @@ import { concat, MAX_LINE_BYTES } from "./ingest-scan.ts";
 import type { SignalIssue } from "./types.ts";
 
 /** Rows a reader stores before a fresh one takes over. */
-const ROTATE_ROWS = 1 << 15;
+export const ROTATE_ROWS = 1 << 15;
 
 /**
  * Receives the rows in order, in s and rad/s: samples [from, to) of the arrays are new; when
