@@ -6,17 +6,17 @@
  * memory: the head as there (csv-head.ts, ingest-header.ts), the rows through the same row
  * reader in windows (ingest-spool-rows.ts) into the spool (sample-spool.ts) with running figures,
  * and the whole-log checks from those figures (ingest-spool-finish.ts). Extra columns are not
- * kept. MDF4 is read by the batch reader (mdf4/) and its samples spooled afterwards.
+ * kept. MDF4 goes through mdf4/samples.ts, record piece by record piece.
  */
 import { open, stat } from "node:fs/promises";
 import { createHeadCollector, type HeadResult } from "./csv-head.ts";
 import { sniffFormat } from "./format.ts";
 import { resolveHead, type LogHeader } from "./ingest-header.ts";
-import { finishSpooled, RunningFigures, spoolLog } from "./ingest-spool-finish.ts";
+import { finishSpooled, RunningFigures } from "./ingest-spool-finish.ts";
 import { createWindowedRows, type WindowedRows } from "./ingest-spool-rows.ts";
 import { sniffStream, spooled, type ByteProgress, type Chunks } from "./ingest-stream.ts";
 import type { IngestOptions } from "./ingest.ts";
-import { ingestMdf4File } from "./mdf4/index.ts";
+import { ingestMdf4Samples } from "./mdf4/samples.ts";
 import type { SampleSource } from "./sample-source.ts";
 import { SampleSpool } from "./sample-spool.ts";
 import { rateMismatch } from "./stated-rate.ts";
@@ -149,14 +149,13 @@ function sourceOf(header: LogHeader, n: number): DriveLog["source"] {
   };
 }
 
-/** MDF4 by path: the batch reader, then its samples spooled. */
-async function mdf4Samples(
+/** MDF4 by path (mdf4/samples.ts). */
+function mdf4Samples(
   path: string,
   options: IngestOptions,
   onProgress?: ByteProgress,
 ): Promise<Outcome<SampleSource>> {
-  const r = await ingestMdf4File(path, options, onProgress);
-  return r.ok ? { ...r, value: spoolLog(r.value) } : r;
+  return ingestMdf4Samples(path, options, onProgress);
 }
 
 /** Reads chunks into a fresh ingester; a read error becomes `read_failed`. */
