@@ -13,113 +13,29 @@
  * Temporary files go to a folder of this test's own (TMPDIR), checked empty after each case.
  */
 import fc from "fast-check";
-import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import Papa from "papaparse";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { MdfBuilder } from "../../../tests/support/mdf4-builder.ts";
+import { describe, expect, it } from "vitest";
 import { RIPPLE, rippleCsv } from "../../../tests/support/ripple-csv.ts";
+import {
+  batchOf,
+  chunked,
+  expectSame,
+  sameOnText,
+  useOwnTmpdir,
+} from "../../../tests/support/sample-source-compare.ts";
 import { ingestSamples } from "./ingest-samples.ts";
 import { ROTATE_ROWS } from "./ingest-spool-rows.ts";
 import { ingestFile } from "./ingest-stream.ts";
-import { createIngester, type IngestOptions } from "./ingest.ts";
-import type { SampleSource } from "./sample-source.ts";
-import type { DriveLog, Outcome } from "./types.ts";
+import type { IngestOptions } from "./ingest.ts";
 
 const root = join(import.meta.dirname, "../../..");
 const samplesDir = join(root, "samples");
 const mdfDir = join(root, "tests/fixtures/mdf4");
 const csvs = readdirSync(samplesDir).filter((f) => f.endsWith(".csv"));
 const mdfs = readdirSync(mdfDir).filter((f) => f.endsWith(".mf4"));
-let spoolDir = "";
-let work = "";
-const oldTmp = process.env.TMPDIR;
-beforeAll(() => {
-  work = mkdtempSync(join(tmpdir(), "ingest-samples-test-"));
-  spoolDir = mkdtempSync(join(work, "spool-"));
-  process.env.TMPDIR = spoolDir; // os.tmpdir() reads it on every call
-});
-afterAll(() => {
-  process.env.TMPDIR = oldTmp;
-  rmSync(work, { recursive: true, force: true });
-});
-const spoolFolders = () => readdirSync(spoolDir).filter((f) => f.startsWith("twistlog-samples-"));
-
-/** Counts samples that differ (Object.is) between the source read in windows of `size` and the log. */
-function mismatches(src: SampleSource, log: DriveLog, size: number): number {
-  let bad = 0;
-  for (let a = 0; a < src.length; a += size) {
-    const w = src.read(a, a + size);
-    for (let i = 0; i < w.timeS.length; i++) {
-      if (!Object.is(w.timeS[i], log.timeS[a + i])) bad++;
-      if (!Object.is(w.crankRadS[i], log.crankRadS[a + i])) bad++;
-      if (!Object.is(w.gearboxRadS[i], log.gearboxRadS[a + i])) bad++;
-    }
-  }
-  return bad;
-}
-
-/** The spooled outcome equals the batch one (method at the top); closes the source. */
-function expectSame(spooled: Outcome<SampleSource>, batch: Outcome<DriveLog>): void {
-  try {
-    expect(spooled.warnings).toStrictEqual(batch.warnings);
-  } catch (e) {
-    if (spooled.ok) spooled.value.close(); // so the next case starts with no folder
-    throw e;
-  }
-  if (!batch.ok || !spooled.ok) {
-    expect(spooled.ok).toBe(batch.ok);
-    if (!batch.ok && !spooled.ok) expect(spooled.error).toStrictEqual(batch.error);
-    expect(spoolFolders()).toEqual([]); // a refused log leaves no file
-    return;
-  }
-  const src = spooled.value;
-  try {
-    const { timeS, crankRadS: _c, gearboxRadS: _g, extra: _x, ...meta } = batch.value;
-    const { length, read: _r, close: _cl, ...srcMeta } = src;
-    expect(length).toBe(timeS.length);
-    expect(srcMeta).toStrictEqual(meta);
-    for (const size of [1, 7, 4096, 1 << 20]) {
-      if (size === 1 && length > 5000) continue; // one sample at a time: small logs only
-      expect(mismatches(src, batch.value, size)).toBe(0);
-    }
-    expect(spoolFolders().length).toBe(1);
-  } finally {
-    src.close(); // also when a check failed, so the next case starts with no folder
-  }
-  expect(spoolFolders()).toEqual([]);
-  expect(() => src.read(0, 1)).toThrow(/closed/);
-}
-
-/** The text in chunks of the given sizes (cycled), as a stream would deliver it. */
-async function* chunked(text: string | Uint8Array, sizes: number[]) {
-  const bytes = typeof text === "string" ? new TextEncoder().encode(text) : text;
-  let k = 0;
-  for (let s = 0; s < bytes.length; k++) {
-    const n = Math.max(1, sizes[k % sizes.length]!);
-    yield bytes.slice(s, s + n);
-    s += n;
-  }
-}
-
-/** The batch ingest fed the same chunks (a line cut by a chunk is read on the careful path). */
-async function batchOf(text: string | Uint8Array, options: IngestOptions, sizes: number[]) {
-  const ing = createIngester(options);
-  for await (const c of chunked(text, sizes)) ing.push(c);
-  return ing.finish();
-}
-
-async function sameOnText(
-  text: string | Uint8Array,
-  options: IngestOptions = {},
-  sizes = [1 << 18],
-) {
-  expectSame(
-    await ingestSamples(chunked(text, sizes), options),
-    await batchOf(text, options, sizes),
-  );
-}
+const workDir = useOwnTmpdir();
 
 // Channels named where recognition cannot tell (as mdf4/fixtures.test.ts names them).
 const pick: Record<string, IngestOptions> = {
@@ -154,7 +70,7 @@ describe("files: the samples and the MDF4 reference files", () => {
       await ingestSamples(path, { strict: true }),
       await ingestFile(path, { strict: true }),
     );
-    const none = join(work, "none.csv");
+    const none = join(workDir(), "none.csv");
     expectSame(await ingestSamples(none), await ingestFile(none));
   });
 });
@@ -199,6 +115,10 @@ describe("outside sources directly", () => {
     r.value.close();
     expect(w.timeS.length).toBe(time.length);
     expect(w.timeS.every((t, i) => Math.abs(t - time[i]!) <= 1e-9 * Math.max(1, Math.abs(t)))).toBe(
+      true,
+    );
+    const rad = (i: number) => (crank[i]! * 2 * Math.PI) / 60; // 1 rpm = 2π/60 rad/s
+    expect(w.crankRadS.every((c, i) => Math.abs(c - rad(i)) <= 1e-9 * Math.max(1, rad(i)))).toBe(
       true,
     );
   });
@@ -346,118 +266,8 @@ describe("logs longer than one row reader", () => {
     const lines = ["time,crank,gearbox", "ms,rpm,rpm"];
     for (let i = 0; i < 50000; i++)
       lines.push(`${(i * 0.5).toFixed(1)},${900 + (i % 7)},${880 + (i % 5)}`);
-    const path = join(work, "ms.csv");
+    const path = join(workDir(), "ms.csv");
     writeFileSync(path, `${lines.join("\r\n")}\r\n`);
     expectSame(await ingestSamples(path), await ingestFile(path));
-  });
-});
-
-/**
- * A one-group MDF4 log as a logger writes one (the layout of bench/mdf4-log.ts): float64 time,
- * float32 crank and gearbox speeds in `unit`, an invalidation byte; records in DT blocks of
- * 64 KiB whose seams cut through records, so the reader hands them on in many pieces. `edit`
- * may change record i's values or mark a speed invalid.
- */
-type Rec = { t: number; c: number; g: number; invalid?: boolean };
-function mdfLog(
-  name: string,
-  rows: number,
-  edit: (i: number, v: { t: number; c: number; g: number; invalid?: boolean }) => void = () => {},
-  unit = "rpm",
-): string {
-  const REC = 17;
-  const data = Buffer.alloc(rows * REC);
-  const w = (2 * Math.PI * RIPPLE.rpm) / 60;
-  for (let i = 0; i < rows; i++) {
-    const t = i / RIPPLE.fs;
-    const r = Math.cos(RIPPLE.order * w * t);
-    const v: Rec = {
-      t,
-      c: RIPPLE.rpm + RIPPLE.crankAmpRpm * r,
-      g: RIPPLE.rpm + RIPPLE.gearboxAmpRpm * r,
-    };
-    edit(i, v);
-    data.writeDoubleLE(v.t, i * REC);
-    data.writeFloatLE(v.c, i * REC + 8);
-    data.writeFloatLE(v.g, i * REC + 12);
-    data.writeUInt8(v.invalid ? 1 : 0, i * REC + 16);
-  }
-  const b = new MdfBuilder();
-  const gear = b.cn({
-    name: "gearbox input speed",
-    unit,
-    dataType: 4,
-    byteOffset: 12,
-    bitCount: 32,
-    flags: 2,
-    invalBitPos: 0,
-  });
-  const crank = b.cn({
-    next: gear,
-    name: "crank speed",
-    unit,
-    dataType: 4,
-    byteOffset: 8,
-    bitCount: 32,
-  });
-  const time = b.timeMaster(crank, "time");
-  const blocks: number[] = [];
-  for (let at = 0; at < data.length; at += 65536) blocks.push(b.dt(data.subarray(at, at + 65536)));
-  const cg = b.cg({
-    cnFirst: time,
-    name: "Kestrel logger",
-    cycles: rows,
-    dataBytes: 16,
-    invalBytes: 1,
-  });
-  b.setHd(0, b.dg(cg, b.dl(blocks)));
-  const path = join(work, name);
-  writeFileSync(path, b.bytes());
-  return path;
-}
-
-describe("MDF4 read piece by piece (one time base)", () => {
-  const rows = 40000; // 680 KB of records: 11 blocks, many pieces
-  const at = 30001;
-  const cases: [
-    string,
-    (i: number, v: { t: number; c: number; g: number; invalid?: boolean }) => void,
-    string?,
-  ][] = [
-    ["clean", () => {}],
-    ["clean, in rad/s", () => {}, "rad/s"],
-    ["time repeating", (i, v) => void (i === at && (v.t = (at - 1) / RIPPLE.fs))],
-    ["time going back", (i, v) => void (i === at && (v.t = 0.25))],
-    ["time repeating at the first record after the first", (i, v) => void (i === 1 && (v.t = 0))],
-    ["an implausible crank speed", (i, v) => void (i === at && (v.c = 20000))],
-    [
-      "an implausible gearbox speed before a crank one",
-      (i, v) => void ((i === at && (v.g = -300)) || (i === at + 5 && (v.c = -300))),
-    ],
-    [
-      "an invalid gearbox value (a dropout, filled)",
-      (i, v) => void (i === at && (v.invalid = true)),
-    ],
-    ["jitter", (i, v) => void (v.t += ((i * 7919) % 13) * 1e-6)],
-    ["clipping", (i, v) => void (i >= at && i < at + 12 && (v.c = 3500))],
-  ];
-  for (const [name, edit, unit] of cases)
-    it(name, async () => {
-      const path = mdfLog(`piece-${name.replace(/\W+/g, "-")}.mf4`, rows, edit, unit);
-      for (const strict of [false, true]) {
-        const batch = await ingestFile(path, { strict });
-        expectSame(await ingestSamples(path, { strict }), batch);
-      }
-    });
-  it("the clean log is a log, and refusals name their record", async () => {
-    const ok = await ingestFile(mdfLog("ok.mf4", rows));
-    expect(ok.ok).toBe(true);
-    const back = await ingestSamples(
-      mdfLog("back.mf4", rows, (i, v) => void (i === at && (v.t = 0.25))),
-    );
-    expect(back.ok ? undefined : back.error).toMatchObject({
-      code: "time_not_increasing",
-      row: at + 1,
-    });
   });
 });

@@ -149,15 +149,6 @@ function sourceOf(header: LogHeader, n: number): DriveLog["source"] {
   };
 }
 
-/** MDF4 by path (mdf4/samples.ts). */
-function mdf4Samples(
-  path: string,
-  options: IngestOptions,
-  onProgress?: ByteProgress,
-): Promise<Outcome<SampleSource>> {
-  return ingestMdf4Samples(path, options, onProgress);
-}
-
 /** Reads chunks into a fresh ingester; a read error becomes `read_failed`. */
 async function fromChunks(
   read: (push: (chunk: string | Uint8Array) => void) => Promise<void>,
@@ -189,7 +180,7 @@ export async function ingestSamples(
     try {
       const { format, chunks } = await sniffStream(source);
       if (format === "mdf4")
-        return await spooled(chunks, (path) => mdf4Samples(path, options, onProgress));
+        return await spooled(chunks, (path) => ingestMdf4Samples(path, options, onProgress));
       return await fromChunks(async (push) => {
         for await (const chunk of chunks) {
           push(chunk);
@@ -219,7 +210,8 @@ export async function ingestSamples(
   try {
     const headBytes = Buffer.alloc(8);
     await fh.read(headBytes, 0, 8, 0);
-    if (sniffFormat(headBytes) === "mdf4") return await mdf4Samples(path, options, onProgress);
+    if (sniffFormat(headBytes) === "mdf4")
+      return await ingestMdf4Samples(path, options, onProgress);
     const buf = Buffer.allocUnsafe(CHUNK_BYTES);
     return await fromChunks(async (push) => {
       let bytes = 0;
