@@ -28,10 +28,15 @@ export interface CheckOptions {
 
 /** Nominal sampling interval in s: the median of up to 4001 intervals spread over the log. */
 export function nominalInterval(timeS: Float64Array): number {
-  const n = timeS.length - 1;
+  return nominalIntervalOf(timeS.length, (i) => timeS[i]! - timeS[i - 1]!);
+}
+
+/** nominalInterval of a log of `length` samples whose interval before sample i is interval(i). */
+export function nominalIntervalOf(length: number, interval: (i: number) => number): number {
+  const n = length - 1;
   const step = Math.max(1, Math.floor(n / 4001));
   const d: number[] = [];
-  for (let i = 1; i <= n; i += step) d.push((timeS[i] ?? 0) - (timeS[i - 1] ?? 0));
+  for (let i = 1; i <= n; i += step) d.push(interval(i));
   d.sort((a, b) => a - b);
   return d[Math.floor(d.length / 2)] ?? 0;
 }
@@ -51,7 +56,7 @@ export interface Stats {
 }
 
 /** Fold samples [from, to) (from ≥ 1) into st. Units: s, rad/s, rad. */
-function statsPiece(
+export function statsPiece(
   t: Float64Array,
   c: Float64Array,
   g: Float64Array,
@@ -81,29 +86,40 @@ function statsPiece(
   Object.assign(st, { revRad, sumG, maxC, minC, maxG, minG, minDt, maxDt });
 }
 
+/** The stats of the first sample (crank c, gearbox g), or of no sample when c is undefined. */
+export function startStats(c: number | undefined, g: number): Stats {
+  if (c === undefined)
+    return {
+      revRad: 0,
+      sumG: 0,
+      maxC: -Infinity,
+      minC: Infinity,
+      maxG: -Infinity,
+      minG: Infinity,
+      minDt: Infinity,
+      maxDt: -Infinity,
+    };
+  // revRad is NaN when the first crank value is; sumG when the first gearbox value is.
+  return {
+    revRad: c * 0,
+    sumG: g,
+    maxC: c,
+    minC: c,
+    maxG: g,
+    minG: g,
+    minDt: Infinity,
+    maxDt: -Infinity,
+  };
+}
+
 /**
  * One pass for sampling extremes, revolutions and channel extremes. Run in pieces of 16 k
  * samples because a single call with a 3 M-sample loop runs long before V8 optimises it
  * (measured: ~50 ms as one loop, ~25 ms in pieces, on the bench log).
  */
 export function logStats(log: DriveLog): Stats {
-  const st: Stats = {
-    revRad: 0,
-    sumG: 0,
-    maxC: -Infinity,
-    minC: Infinity,
-    maxG: -Infinity,
-    minG: Infinity,
-    minDt: Infinity,
-    maxDt: -Infinity,
-  };
   const n = log.timeS.length;
-  if (n > 0) {
-    st.maxC = st.minC = log.crankRadS[0]!;
-    st.maxG = st.minG = log.gearboxRadS[0]!;
-    st.sumG = log.gearboxRadS[0]!;
-    st.revRad = log.crankRadS[0]! * 0; // NaN when the first crank value is
-  }
+  const st = startStats(n > 0 ? log.crankRadS[0]! : undefined, log.gearboxRadS[0]!);
   for (let s = 1; s < n; s += 16384)
     statsPiece(log.timeS, log.crankRadS, log.gearboxRadS, s, Math.min(n, s + 16384), st);
   return st;
@@ -140,6 +156,15 @@ export function firstNonFinite(log: DriveLog, rowOf: (i: number) => number): Sig
   return { code: "non_finite", message, row: r, column };
 }
 
+/**
+ * Whether the strict sampling check finds a problem in a log of n samples with nominal
+ * interval `nom`: decided by the interval extremes of the stats pass alone.
+ */
+export function samplingOff(n: number, nom: number, o: CheckOptions, st: Stats): boolean {
+  const tol = (o.samplingTolerance ?? 0.1) * nom;
+  return n >= 3 && (st.maxDt - nom > tol || nom - st.minDt > tol);
+}
+
 /** The strict sampling check: the first gap, or every interval off the nominal one, is an error. */
 export function samplingProblem(
   log: DriveLog,
@@ -156,7 +181,7 @@ export function samplingProblem(
   const tol = (o.samplingTolerance ?? 0.1) * nom;
   const gap = (o.gapFactor ?? 1.5) * nom;
   // The row-by-row search only runs when the extremes show that something is off.
-  if (n >= 3 && (st.maxDt - nom > tol || nom - st.minDt > tol)) {
+  if (samplingOff(n, nom, o, st)) {
     const irregular: number[] = [];
     let count = 0;
     for (let i = 1; i < n; i++) {
@@ -180,6 +205,17 @@ export function samplingProblem(
   return undefined;
 }
 
+/** What contentWarnings needs of a log besides the stats pass (a spooled log has no arrays). */
+export interface LogFacts {
+  n: number;
+  durationS: number;
+  sampleRateHz: number;
+  crankColumn: string;
+  gearboxColumn: string;
+  /** Index where the crank (0) or gearbox (1) values first stay at `max` for `need` samples, or −1. */
+  runAt(channel: 0 | 1, max: number, need: number): number;
+}
+
 /** Length, sampling rate against the top order, and clipping: warnings only. */
 export function contentWarnings(
   log: DriveLog,
@@ -187,10 +223,28 @@ export function contentWarnings(
   o: CheckOptions,
   st: Stats,
 ): SignalIssue[] {
-  const warnings: SignalIssue[] = [];
   const { timeS } = log;
   const n = timeS.length;
-  const durationS = n > 1 ? timeS[n - 1]! - timeS[0]! : 0;
+  const facts: LogFacts = {
+    n,
+    durationS: n > 1 ? timeS[n - 1]! - timeS[0]! : 0,
+    sampleRateHz: log.sampleRateHz,
+    crankColumn: log.source.crankColumn,
+    gearboxColumn: log.source.gearboxColumn,
+    runAt: (ch, max, need) => firstRunAt(ch === 0 ? log.crankRadS : log.gearboxRadS, max, need),
+  };
+  return factWarnings(facts, rowOf, o, st);
+}
+
+/** contentWarnings from the facts of a log (LogFacts) and its stats pass. */
+export function factWarnings(
+  f: LogFacts,
+  rowOf: (i: number) => number,
+  o: CheckOptions,
+  st: Stats,
+): SignalIssue[] {
+  const warnings: SignalIssue[] = [];
+  const { n, durationS } = f;
   const revs = st.revRad / (2 * Math.PI);
   const minS = o.minDurationS ?? 2;
   const minRevs = o.minRevs ?? 20;
@@ -201,19 +255,19 @@ export function contentWarnings(
   const topOrder = o.topOrder ?? 6;
   // Sampling theorem: order q at shaft frequency f needs a sampling rate above 2·q·f.
   const needHz = (2 * topOrder * st.maxC) / (2 * Math.PI);
-  if (n > 1 && log.sampleRateHz < needHz) {
+  if (n > 1 && f.sampleRateHz < needHz) {
     const rpm = Math.round((st.maxC * 60) / (2 * Math.PI));
-    const message = `the sampling rate ${fmt(log.sampleRateHz)} Hz is too low for order ${topOrder} at ${rpm} rpm (needs more than ${Math.ceil(needHz)} Hz)`;
+    const message = `the sampling rate ${fmt(f.sampleRateHz)} Hz is too low for order ${topOrder} at ${rpm} rpm (needs more than ${Math.ceil(needHz)} Hz)`;
     warnings.push({ code: "low_sample_rate", message });
   }
   const need = o.clipRunSamples ?? 10;
   const channels = [
-    [log.crankRadS, log.source.crankColumn, st.maxC, st.minC],
-    [log.gearboxRadS, log.source.gearboxColumn, st.maxG, st.minG],
+    [0, f.crankColumn, st.maxC, st.minC],
+    [1, f.gearboxColumn, st.maxG, st.minG],
   ] as const;
-  for (const [values, name, max, min] of channels) {
+  for (const [ch, name, max, min] of channels) {
     if (!(max > min) || max <= 0) continue;
-    const at = firstRunAt(values, max, need);
+    const at = f.runAt(ch, max, need);
     if (at < 0) continue;
     const r = rowOf(at);
     const message = `column "${name}" stays at its maximum for ${need} or more samples from row ${r}; the sensor or logger may be clipping`;

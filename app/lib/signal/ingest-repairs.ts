@@ -100,6 +100,21 @@ export interface Repaired {
   error?: SignalIssue;
 }
 
+/**
+ * Deviation from the nominal interval `nom` below which an interval is taken as written, s.
+ * Rounding is not jitter: 1 % of the interval, or the step the times are written in up to 5 %
+ * (a coarser step is resampled: it cannot be told from jitter, and resampling it is harmless).
+ */
+export function jitterFloor(n: number, nom: number, quantum: number): number {
+  const q = n >= 3 ? Math.min(quantum * (1 + 1e-6), ROUNDING_MAX * nom) : 0;
+  return Math.max(JITTER_FLOOR * nom, q);
+}
+
+/** True when a log of n samples (stats `st`) has no dropout, gap or jitter: repairLog keeps it. */
+export function nothingToRepair(n: number, nom: number, floor: number, st: Stats): boolean {
+  return allFinite(st) && (n < 3 || (st.maxDt - nom <= floor && nom - st.minDt <= floor));
+}
+
 /** Repairs `log` (method at the top); `st` is its stats pass, `rowOf` maps a sample to its file row. */
 export function repairLog(
   log: DriveLog,
@@ -111,12 +126,8 @@ export function repairLog(
   const n = t.length;
   const warnings: SignalIssue[] = [];
   const nom = n >= 3 ? nominalInterval(t) : 0;
-  // Rounding is not jitter: 1 % of the interval, or the step the times are written in up to 5 %
-  // (a coarser step is resampled: it cannot be told from jitter, and resampling it is harmless).
-  const q = n >= 3 ? Math.min(timeQuantum(t) * (1 + 1e-6), ROUNDING_MAX * nom) : 0;
-  const floor = Math.max(JITTER_FLOOR * nom, q);
-  if (allFinite(st) && (n < 3 || (st.maxDt - nom <= floor && nom - st.minDt <= floor)))
-    return { log, rowOf, warnings };
+  const floor = jitterFloor(n, nom, n >= 3 ? timeQuantum(t) : 0);
+  if (nothingToRepair(n, nom, floor, st)) return { log, rowOf, warnings };
   const tolF = o.samplingTolerance ?? 0.25;
   const gapS = (o.gapFactor ?? 1.5) * nom;
   const limit = Math.min(o.repairMaxSamples ?? 20, Math.floor((o.repairMaxS ?? 0.01) / nom + 1e-9));

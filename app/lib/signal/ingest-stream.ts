@@ -25,13 +25,13 @@ function failed(code: "read_failed" | "file_not_found", message: string): Outcom
 /** Report progress as the fraction (0–1) of bytes read, when the total is known. */
 export type ByteProgress = (fraction: number) => void;
 
-type Chunks = Readable | AsyncIterable<string | Uint8Array>;
+export type Chunks = Readable | AsyncIterable<string | Uint8Array>;
 
 /**
  * The first chunks of a readable (at least 8 bytes, unless it ends first), their format told by
  * content, and the whole stream again (those chunks, then the rest) for the reader that takes it.
  */
-async function sniffStream(readable: Chunks) {
+export async function sniffStream(readable: Chunks) {
   const it = (readable as AsyncIterable<string | Uint8Array>)[Symbol.asyncIterator]();
   const head: (string | Uint8Array)[] = [];
   let bytes = 0;
@@ -60,7 +60,7 @@ async function sniffStream(readable: Chunks) {
  * is written to a temporary file (in os.tmpdir(), removed afterwards, also on error) and read
  * from there.
  */
-async function spooled<T>(
+export async function spooled<T>(
   chunks: AsyncIterable<string | Uint8Array>,
   read: (path: string) => Promise<Outcome<T>>,
 ): Promise<Outcome<T>> {

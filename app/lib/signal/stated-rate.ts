@@ -71,7 +71,10 @@ const hz = (v: number) => `${Number(v.toPrecision(6))} Hz`;
  * The `stated_rate_mismatch` warning when the preamble's rate and the time column's mean rate
  * differ by more than STATED_RATE_TOLERANCE (relative to the stated one); none otherwise.
  */
-export function rateMismatch(stated: number | undefined, log: DriveLog): SignalIssue[] {
+export function rateMismatch(
+  stated: number | undefined,
+  log: Pick<DriveLog, "sampleRateHz">,
+): SignalIssue[] {
   const measured = log.sampleRateHz;
   if (stated === undefined || !(measured > 0)) return [];
   if (Math.abs(measured - stated) <= STATED_RATE_TOLERANCE * stated) return [];

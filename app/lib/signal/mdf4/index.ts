@@ -13,7 +13,7 @@ import { listModel } from "./list.ts";
 import { readStructure, type MdfModel } from "./structure.ts";
 
 /** Opens the file, reads its structure and runs `work`; faults and I/O errors become values. */
-async function withModel<T>(
+export async function withModel<T>(
   path: string,
   work: (file: MdfFile, model: MdfModel) => Promise<Outcome<T>>,
 ): Promise<Outcome<T>> {

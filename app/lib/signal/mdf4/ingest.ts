@@ -162,10 +162,15 @@ export async function ingestModel(
 }
 
 function notIncreasing(r: ChannelRef, t: Float64Array, i: number): SignalIssue {
-  const what = t[i] === t[i - 1] ? "repeats" : "goes backwards";
+  return notIncreasingAt(r, t[i - 1]!, t[i]!, i);
+}
+
+/** The refusal of time `cur` at record index i after `prev` (not greater), as the ingest words it. */
+export function notIncreasingAt(r: ChannelRef, prev: number, cur: number, i: number): SignalIssue {
+  const what = cur === prev ? "repeats" : "goes backwards";
   return {
     code: "time_not_increasing",
-    message: `the time channel "${r.display}" ${what} at record ${i + 1} (${fmt(t[i]!)} s after ${fmt(t[i - 1]!)} s)`,
+    message: `the time channel "${r.display}" ${what} at record ${i + 1} (${fmt(cur)} s after ${fmt(prev)} s)`,
     row: i + 1,
     column: r.display,
   };
@@ -192,7 +197,7 @@ function alignedWarning(
 }
 
 /** The first speed outside the plausible range, as the CSV row check words it. */
-function checkSpeeds(
+export function checkSpeeds(
   channels: [Float64Array, ChannelRef][],
   o: IngestOptions,
   rowOf: (i: number) => number,
@@ -218,7 +223,7 @@ function checkSpeeds(
 // same loop inside a long function runs unoptimised for a while (see ingest-checks.ts).
 
 /** Index of the first value outside [lo, hi] (NaN is an invalid sample, left to the repairs), or −1. */
-function firstOutside(v: Float64Array, lo: number, hi: number): number {
+export function firstOutside(v: Float64Array, lo: number, hi: number): number {
   for (let i = 0; i < v.length; i++) {
     const x = v[i]!;
     if ((x < lo || x > hi) && !Number.isNaN(x)) return i;
