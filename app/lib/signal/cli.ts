@@ -146,8 +146,13 @@ export async function main(
   return 0;
 }
 
-if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  main(process.argv.slice(2)).then(
+/**
+ * Runs the CLI as a process does: main() on argv, its code as the exit code, a thrown bug as
+ * one line (exit 70). The entry of both `npm run analyse` (below) and the compiled
+ * `twistlog` command (bin/twistlog.mjs).
+ */
+export function runCommand(argv: string[]): void {
+  main(argv).then(
     (code) => {
       process.exitCode = code;
     },
@@ -160,3 +165,6 @@ if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) 
     },
   );
 }
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href)
+  runCommand(process.argv.slice(2));

@@ -1,0 +1,40 @@
+/**
+ * Builds the compiled `twistlog` command: app/lib/signal/cli.ts and everything it imports,
+ * bundled by esbuild into one ES module, build/cli/twistlog.mjs (git-ignored), so the command
+ * starts without transpiling TypeScript. bin/twistlog.mjs runs it. Run by `npm ci` (prepare),
+ * `npm run build` and `npm run build:cli`; it takes well under a second.
+ */
+import { fileURLToPath } from "node:url";
+
+let build;
+try {
+  ({ build } = await import("esbuild"));
+} catch {
+  // An install without the devDependencies (npm ci --omit=dev) runs prepare too: say so, and
+  // fail only when the build was asked for.
+  process.stderr.write(
+    "build-cli: esbuild is not installed (devDependencies left out?); the twistlog command was not built\n",
+  );
+  process.exit(process.env.npm_lifecycle_event === "prepare" ? 0 : 1);
+}
+
+const root = fileURLToPath(new URL("..", import.meta.url));
+
+await build({
+  absWorkingDir: root,
+  entryPoints: { twistlog: "app/lib/signal/cli.ts" },
+  outdir: "build/cli",
+  outExtension: { ".js": ".mjs" },
+  bundle: true,
+  splitting: true,
+  chunkNames: "chunk-[hash]",
+  format: "esm",
+  platform: "node",
+  target: "node20",
+  sourcemap: "linked",
+  logLevel: "warning",
+  // CommonJS packages in the bundle (papaparse, fft.js) call require() for Node's own modules.
+  banner: {
+    js: 'import { createRequire as __twistlogRequire } from "node:module"; const require = __twistlogRequire(import.meta.url);',
+  },
+});
