@@ -22,12 +22,14 @@ const root = fileURLToPath(new URL("..", import.meta.url));
 
 await build({
   absWorkingDir: root,
-  entryPoints: { twistlog: "app/lib/signal/cli.ts" },
+  // The two-thread ingest starts its worker from parse-worker.mjs beside the command.
+  entryPoints: {
+    twistlog: "app/lib/signal/cli.ts",
+    "parse-worker": "app/lib/signal/parse-worker.ts",
+  },
   outdir: "build/cli",
   outExtension: { ".js": ".mjs" },
   bundle: true,
-  splitting: true,
-  chunkNames: "chunk-[hash]",
   format: "esm",
   platform: "node",
   target: "node20",

@@ -8,7 +8,8 @@ import { pathToFileURL } from "node:url";
 import { channelTable } from "./channel-table.ts";
 import { parseCliArgs, USAGE } from "./cli-args.ts";
 import { listChannelsOfFile } from "./ingest-stream.ts";
-import { analyseSource, type FileAnalysis, type PipelineStage } from "./pipeline.ts";
+import { analyseFile } from "./cli-pipeline.ts";
+import type { FileAnalysis, PipelineStage } from "./pipeline.ts";
 import type { SignalIssue } from "./types.ts";
 
 /** One line naming the problem, its row and column. */
@@ -132,7 +133,7 @@ export async function main(
     return 0;
   }
   const progress = err === process.stderr ? terminalProgress() : undefined;
-  const outcome = await analyseSource({ ...cmd, source: cmd.file }, progress);
+  const outcome = await analyseFile({ ...cmd, source: cmd.file }, progress);
   if (progress) err.write("\r\x1b[K");
   if (!outcome.ok) {
     err.write(`${describeIssue(cmd.file, outcome.error)}\n`);

@@ -1,0 +1,129 @@
+/**
+ * The CSV ingest on two threads, for a large file on disk: the head is read as the whole-file
+ * ingest reads it (ingest.ts, csv-head.ts), the data split at the line boundary nearest their
+ * middle, the second half read by a worker thread (parse-worker.ts) while this thread reads the
+ * first (both with ingest-range.ts, i.e. the same row reader), then the columns joined and the
+ * log finished exactly as ingest.ts finishes it. The result is the same DriveLog and warnings.
+ *
+ * Anything out of the ordinary — a problem in either half, a row warning, time not increasing
+ * across the seam, a worker that fails — and the file is read again by the one-thread ingest
+ * (ingestFile), so messages and row numbers are always that ingest's. Small files and MDF4 go
+ * there directly. Measured on the 92 MB bench log (bench/cli.bench.ts): see docs/signal-ingest.md.
+ */
+import { open, stat } from "node:fs/promises";
+import { Worker } from "node:worker_threads";
+import { createHeadCollector } from "./csv-head.ts";
+import { buildDriveLog } from "./ingest-channels.ts";
+import { finishLog } from "./ingest-finish.ts";
+import { resolveHead } from "./ingest-header.ts";
+import { readRange, RANGE_CHUNK_BYTES, type RangeLimits } from "./ingest-range.ts";
+import { ingestFile, type ByteProgress } from "./ingest-stream.ts";
+import type { IngestOptions } from "./ingest.ts";
+import type { RangeJob, RangeReply } from "./parse-worker.ts";
+import { rateMismatch } from "./stated-rate.ts";
+import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
+
+/** Below this size one thread is as fast (a worker takes some 30 ms to start). */
+export const PARALLEL_MIN_BYTES = 4 << 20;
+
+/** The worker's script: the TypeScript source under tsx and vitest, the built file in build/cli. */
+function startWorker(job: RangeJob): Worker {
+  const fromSource = import.meta.url.endsWith(".ts");
+  const url = new URL(fromSource ? "./parse-worker.ts" : "./parse-worker.mjs", import.meta.url);
+  return new Worker(url, {
+    workerData: job,
+    ...(fromSource ? { execArgv: ["--import", "tsx"] } : {}),
+  });
+}
+
+function workerReply(worker: Worker): Promise<RangeReply | undefined> {
+  return new Promise((resolve) => {
+    worker.once("message", (m: RangeReply) => resolve(m));
+    worker.once("error", () => resolve(undefined));
+    worker.once("exit", () => resolve(undefined));
+  });
+}
+
+/**
+ * Ingest the CSV or MDF4 file at `path`: two threads when it is a CSV of at least
+ * PARALLEL_MIN_BYTES (or `minBytes`), else ingestFile. Same options, result and progress.
+ */
+export async function ingestFileParallel(
+  path: string,
+  options: IngestOptions = {},
+  onProgress?: ByteProgress,
+  minBytes = PARALLEL_MIN_BYTES,
+): Promise<Outcome<DriveLog>> {
+  const oneThread = () => ingestFile(path, options, onProgress);
+  let size: number;
+  let first: Uint8Array;
+  try {
+    const s = await stat(path);
+    if (!s.isFile() || s.size < Math.max(minBytes, RANGE_CHUNK_BYTES)) return oneThread();
+    size = s.size;
+    // The first read of the one-thread ingest, byte for byte: the head is decided on it.
+    first = new Uint8Array(RANGE_CHUNK_BYTES);
+    const fh = await open(path, "r");
+    try {
+      await fh.read(first, 0, first.length, 0);
+    } finally {
+      await fh.close();
+    }
+  } catch {
+    return oneThread(); // it names the problem
+  }
+  const collector = createHeadCollector(options);
+  const head = collector.push(first);
+  const resolved = head?.ok ? resolveHead(head.value, options) : undefined;
+  if (!resolved?.ok) return oneThread();
+  const header = resolved.value;
+  const dataStart = header.dataStart;
+  // Split at the first line start after the middle of the data.
+  const mid = dataStart + Math.floor((size - dataStart) / 2);
+  const probe = new Uint8Array(1 << 16);
+  const fh = await open(path, "r");
+  let got: number;
+  try {
+    ({ bytesRead: got } = await fh.read(probe, 0, probe.length, mid));
+  } finally {
+    await fh.close();
+  }
+  const nl = probe.subarray(0, got).indexOf(10);
+  if (nl < 0) return oneThread();
+  const split = mid + nl + 1;
+  if (split >= size) return oneThread();
+
+  const limits: RangeLimits = {
+    maxRpm: options.maxRpm ?? 12000,
+    minRpm: options.minRpm ?? -20,
+    strict: options.strict === true,
+  };
+  // The row reader counts file lines from the line before the data (the units row, if any).
+  const rowsFrom = { ...header, headerLine: header.lastHeadLine };
+  onProgress?.(0);
+  const worker = startWorker({ path, from: split, to: size, header: rowsFrom, limits });
+  const second = workerReply(worker);
+  const a = readRange(path, dataStart, split, rowsFrom, limits, size);
+  onProgress?.(0.5);
+  const b = await second;
+  void worker.terminate();
+  if (!b || b.failed || b.warnings > 0 || a.error || a.warnings.length > 0) return oneThread();
+  const ch = a.channels;
+  const n = a.n + b.n;
+  if (a.n === 0 || b.n === 0 || !(b.t[0]! > ch.t.data[a.n - 1]!)) return oneThread();
+  const columns = [ch.t, ch.crank, ch.gear, ...ch.extras];
+  const parts = [b.t, b.crank, b.gear, ...b.extras];
+  columns.forEach((c, k) => {
+    while (c.data.length < n) c.ensure(c.data.length);
+    c.data.set(parts[k]!, a.n);
+  });
+  onProgress?.(1);
+  // As ingest.ts finish(): row of each sample, whole-log checks and repairs, stated rate.
+  const skipped = [...a.skipped, ...b.skipped.map((k) => k + a.n)];
+  const firstDataLine = header.lastHeadLine + 1;
+  const rowOf = (i: number) => firstDataLine + i + skipped.filter((k) => k <= i).length;
+  const finished = finishLog(buildDriveLog(ch, n, header), rowOf, options);
+  const stated = finished.ok ? rateMismatch(header.statedRateHz, finished.value) : [];
+  const warnings: SignalIssue[] = [...header.warnings];
+  return { ...finished, warnings: [...warnings, ...finished.warnings, ...stated] };
+}
