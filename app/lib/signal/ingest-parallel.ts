@@ -11,8 +11,11 @@
  * there directly. Measured on the 92 MB bench log (bench/cli.bench.ts): see docs/signal-ingest.md.
  */
 import { open, stat } from "node:fs/promises";
+import { createRequire } from "node:module";
+import { pathToFileURL } from "node:url";
 import { Worker } from "node:worker_threads";
 import { createHeadCollector } from "./csv-head.ts";
+import { sniffFormat } from "./format.ts";
 import { buildDriveLog } from "./ingest-channels.ts";
 import { finishLog } from "./ingest-finish.ts";
 import { resolveHead } from "./ingest-header.ts";
@@ -26,14 +29,20 @@ import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 /** Below this size one thread is as fast (a worker takes some 30 ms to start). */
 export const PARALLEL_MIN_BYTES = 4 << 20;
 
-/** The worker's script: the TypeScript source under tsx and vitest, the built file in build/cli. */
+/**
+ * The worker's script: the built parse-worker.mjs beside the bundled command, or under tsx and
+ * vitest the TypeScript source, loaded through tsx's API (a worker does not inherit the
+ * loader, and `--import tsx` in its execArgv does not take on Node 20).
+ */
 function startWorker(job: RangeJob): Worker {
-  const fromSource = import.meta.url.endsWith(".ts");
-  const url = new URL(fromSource ? "./parse-worker.ts" : "./parse-worker.mjs", import.meta.url);
-  return new Worker(url, {
-    workerData: job,
-    ...(fromSource ? { execArgv: ["--import", "tsx"] } : {}),
-  });
+  if (!import.meta.url.endsWith(".ts"))
+    return new Worker(new URL("./parse-worker.mjs", import.meta.url), { workerData: job });
+  const api = createRequire(import.meta.url)
+    .resolve("tsx/esm/api")
+    .replace(/\.cjs$/, ".mjs");
+  const source = new URL("./parse-worker.ts", import.meta.url).href;
+  const boot = `import(${JSON.stringify(pathToFileURL(api).href)}).then((m) => m.tsImport(${JSON.stringify(source)}, ${JSON.stringify(import.meta.url)}))`;
+  return new Worker(boot, { eval: true, workerData: job });
 }
 
 function workerReply(worker: Worker): Promise<RangeReply | undefined> {
@@ -46,20 +55,31 @@ function workerReply(worker: Worker): Promise<RangeReply | undefined> {
 
 /**
  * Ingest the CSV or MDF4 file at `path`: two threads when it is a CSV of at least
- * PARALLEL_MIN_BYTES (or `minBytes`), else ingestFile. Same options, result and progress.
+ * PARALLEL_MIN_BYTES, else ingestFile. Same options, result and progress as ingestFile.
  */
 export async function ingestFileParallel(
   path: string,
   options: IngestOptions = {},
   onProgress?: ByteProgress,
-  minBytes = PARALLEL_MIN_BYTES,
 ): Promise<Outcome<DriveLog>> {
-  const oneThread = () => ingestFile(path, options, onProgress);
+  return (await ingestInTwo(path, options, onProgress)) ?? ingestFile(path, options, onProgress);
+}
+
+/**
+ * The two-thread read of a CSV file of at least `minBytes`, or undefined when the file is not
+ * one for it (small, MDF4, unreadable) or anything in it needs the one-thread ingest's words.
+ */
+export async function ingestInTwo(
+  path: string,
+  options: IngestOptions = {},
+  onProgress?: ByteProgress,
+  minBytes = PARALLEL_MIN_BYTES,
+): Promise<Outcome<DriveLog> | undefined> {
   let size: number;
   let first: Uint8Array;
   try {
     const s = await stat(path);
-    if (!s.isFile() || s.size < Math.max(minBytes, RANGE_CHUNK_BYTES)) return oneThread();
+    if (!s.isFile() || s.size < Math.max(minBytes, RANGE_CHUNK_BYTES)) return undefined;
     size = s.size;
     // The first read of the one-thread ingest, byte for byte: the head is decided on it.
     first = new Uint8Array(RANGE_CHUNK_BYTES);
@@ -70,12 +90,13 @@ export async function ingestFileParallel(
       await fh.close();
     }
   } catch {
-    return oneThread(); // it names the problem
+    return undefined; // the one-thread ingest names the problem
   }
+  if (sniffFormat(first.subarray(0, 8)) !== "csv") return undefined;
   const collector = createHeadCollector(options);
   const head = collector.push(first);
   const resolved = head?.ok ? resolveHead(head.value, options) : undefined;
-  if (!resolved?.ok) return oneThread();
+  if (!resolved?.ok) return undefined;
   const header = resolved.value;
   const dataStart = header.dataStart;
   // Split at the first line start after the middle of the data.
@@ -89,9 +110,9 @@ export async function ingestFileParallel(
     await fh.close();
   }
   const nl = probe.subarray(0, got).indexOf(10);
-  if (nl < 0) return oneThread();
+  if (nl < 0) return undefined;
   const split = mid + nl + 1;
-  if (split >= size) return oneThread();
+  if (split >= size) return undefined;
 
   const limits: RangeLimits = {
     maxRpm: options.maxRpm ?? 12000,
@@ -107,10 +128,10 @@ export async function ingestFileParallel(
   onProgress?.(0.5);
   const b = await second;
   void worker.terminate();
-  if (!b || b.failed || b.warnings > 0 || a.error || a.warnings.length > 0) return oneThread();
+  if (!b || b.failed || b.warnings > 0 || a.error || a.warnings.length > 0) return undefined;
   const ch = a.channels;
   const n = a.n + b.n;
-  if (a.n === 0 || b.n === 0 || !(b.t[0]! > ch.t.data[a.n - 1]!)) return oneThread();
+  if (a.n === 0 || b.n === 0 || !(b.t[0]! > ch.t.data[a.n - 1]!)) return undefined;
   const columns = [ch.t, ch.crank, ch.gear, ...ch.extras];
   const parts = [b.t, b.crank, b.gear, ...b.extras];
   columns.forEach((c, k) => {
