@@ -22,10 +22,11 @@ const root = fileURLToPath(new URL("..", import.meta.url));
 
 await build({
   absWorkingDir: root,
-  // The two-thread ingest starts its worker from parse-worker.mjs beside the command.
+  // The two-thread ingest and the block helper start their workers from files beside it.
   entryPoints: {
     twistlog: "app/lib/signal/cli.ts",
     "parse-worker": "app/lib/signal/parse-worker.ts",
+    "block-worker": "app/lib/signal/block-worker.ts",
   },
   outdir: "build/cli",
   outExtension: { ".js": ".mjs" },

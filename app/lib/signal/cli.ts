@@ -8,6 +8,7 @@ import { pathToFileURL } from "node:url";
 import { channelTable } from "./channel-table.ts";
 import { parseCliArgs, USAGE } from "./cli-args.ts";
 import { listChannelsOfFile } from "./ingest-stream.ts";
+import { startBlockHelper, stopBlockHelper } from "./block-helper.ts";
 import { analyseFile } from "./cli-pipeline.ts";
 import type { FileAnalysis, PipelineStage } from "./pipeline.ts";
 import type { SignalIssue } from "./types.ts";
@@ -133,7 +134,11 @@ export async function main(
     return 0;
   }
   const progress = err === process.stderr ? terminalProgress() : undefined;
-  const outcome = await analyseFile({ ...cmd, source: cmd.file }, progress);
+  // The second core takes half of the order-tracking blocks (block-helper.ts).
+  startBlockHelper();
+  const outcome = await analyseFile({ ...cmd, source: cmd.file }, progress).finally(
+    stopBlockHelper,
+  );
   if (progress) err.write("\r\x1b[K");
   if (!outcome.ok) {
     err.write(`${describeIssue(cmd.file, outcome.error)}\n`);

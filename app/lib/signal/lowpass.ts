@@ -4,6 +4,7 @@
  * with pre-warping, run forward then backward. Units: Hz for cutoff and sampling rate; the
  * filtered signal keeps its own unit.
  */
+import { float64Array } from "./shared-arrays.ts";
 
 /** One biquad section, coefficients normalised so a0 = 1. */
 export interface Biquad {
@@ -85,7 +86,8 @@ function runPair(x: Float64Array, s: Biquad, t: Biquad, forward: boolean): void 
  * phase cancels). Returns a new array; the input is left untouched.
  */
 export function filtfilt(x: Float64Array, sections: readonly Biquad[]): Float64Array {
-  const y = x.slice();
+  const y = float64Array(x.length); // shared memory for the block helper, when it runs
+  y.set(x);
   const [s, t] = sections;
   if (sections.length === 2 && s && t) {
     runPair(y, s, t, true);
