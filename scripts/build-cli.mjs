@@ -35,6 +35,9 @@ await build({
   platform: "node",
   target: "node20",
   sourcemap: "linked",
+  // Less to read at start-up; names kept, so a --cpu-prof profile stays readable.
+  minifyWhitespace: true,
+  minifySyntax: true,
   logLevel: "warning",
   // CommonJS packages in the bundle (papaparse, fft.js) call require() for Node's own modules.
   banner: {
