@@ -15,9 +15,10 @@
  */
 import { execFileSync, spawnSync } from "node:child_process";
 import { existsSync, mkdtempSync, readFileSync, rmSync, statSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { availableParallelism, loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
+import { startBlockHelper, stopBlockHelper } from "../app/lib/signal/block-helper.ts";
 import { analyseFile } from "../app/lib/signal/cli-pipeline.ts";
 import type { PipelineStage } from "../app/lib/signal/pipeline.ts";
 
@@ -86,7 +87,7 @@ try {
   const cliS = median(cli.map((r) => r.s));
   const mb = (rs: { mb: number }[]) => Math.max(...rs.map((r) => r.mb));
   console.log(
-    `\nlog: ${(statSync(file).size / 1e6).toFixed(1)} MB; whole processes, median of 3 (shared machine)`,
+    `\nlog: ${(statSync(file).size / 1e6).toFixed(1)} MB; whole processes, median of 3 (shared machine: load average ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores)`,
   );
   console.log(
     `  twistlog analyse --json   ${cliS.toFixed(2)} s, peak RSS ${mb(cli).toFixed(0)} MB`,
@@ -118,9 +119,10 @@ try {
     );
   }
 
-  // Where the time goes: one in-process run, stage by stage (the progress events).
+  // Where the time goes: one in-process run, stage by stage (the progress events), both threads.
   const marks: [string, number][] = [];
   let last = "";
+  startBlockHelper(); // as the command does
   const t0 = performance.now();
   const outcome = await analyseFile(
     { source: file, ingest: {}, analysis: {} },
@@ -131,6 +133,7 @@ try {
     },
   );
   const t1 = performance.now();
+  await stopBlockHelper();
   if (!outcome.ok) throw new Error(outcome.error.message);
   JSON.stringify(outcome.value.result);
   const t2 = performance.now();
