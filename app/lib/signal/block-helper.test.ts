@@ -13,6 +13,8 @@ import { float64Array } from "./shared-arrays.ts";
 // held against analytic signals in order-tracking.test.ts; here it is the reference.
 const dir = cliTempDir("twistlog-blocks-");
 afterAll(stopBlockHelper);
+// Whole analyses on a shared machine: a generous timeout, not a speed check.
+const SLOW = { timeout: 300_000 };
 
 /** A 20 s run-up 900 → 3000 rpm with an order-2 fluctuation, 5 kHz, in shared memory. */
 function runUp() {
@@ -33,7 +35,7 @@ function runUp() {
   return { timeS, crank, gear };
 }
 
-describe("the block helper", () => {
+describe("the block helper", SLOW, () => {
   it("gives trackBlocks the same blocks as one thread, on a run-up (R = 8, 50 % and 75 % overlap)", () => {
     startBlockHelper();
     const { timeS, crank, gear } = runUp();

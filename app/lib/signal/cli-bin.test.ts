@@ -8,6 +8,8 @@ import { analyseSource } from "./pipeline.ts";
 
 // The compiled `twistlog` command (bin/twistlog.mjs running build/cli, scripts/build-cli.mjs)
 // as a user runs it, on the bench's synthetic log cut to 60 s (9 MB: read on two threads).
+// Several whole processes per test on a shared machine: a generous timeout, not a speed check.
+const SLOW = { timeout: 300_000 };
 const root = fileURLToPath(new URL("../../..", import.meta.url));
 const bin = join(root, "bin/twistlog.mjs");
 const dir = cliTempDir("twistlog-bin-");
@@ -22,9 +24,9 @@ beforeAll(() => {
   // The bundle of the source under test (npm ci and npm run build make it too).
   execFileSync(process.execPath, [join(root, "scripts/build-cli.mjs")], { stdio: "inherit" });
   writeBenchLog(log, { durationS: 60, sampleRateHz: 5000, order: 2 });
-});
+}, SLOW.timeout);
 
-describe("the compiled twistlog command", () => {
+describe("the compiled twistlog command", SLOW, () => {
   it("prints the same result document as the tsx CLI and the one-thread pipeline", async () => {
     const compiled = twistlog("analyse", log, "--json");
     expect(compiled.stderr).toBe("");

@@ -13,6 +13,8 @@ import type { DriveLog, Outcome } from "./types.ts";
 // against papaparse + Number() (ingest-fuzz.test.ts); here it is the reference.
 const samples = fileURLToPath(new URL("../../../samples", import.meta.url));
 const dir = cliTempDir("twistlog-parallel-");
+// Worker threads on a shared machine: a generous timeout, not a speed check.
+const SLOW = { timeout: 120_000 };
 
 /** Every array and field of two outcomes, compared value for value. */
 function expectSame(two: Outcome<DriveLog> | undefined, one: Outcome<DriveLog>) {
@@ -34,7 +36,7 @@ function expectSame(two: Outcome<DriveLog> | undefined, one: Outcome<DriveLog>) 
   expect(a.source).toEqual(b.source);
 }
 
-describe("the CSV ingest on two threads", () => {
+describe("the CSV ingest on two threads", SLOW, () => {
   const csvs = readdirSync(samples).filter((f) => f.endsWith(".csv"));
   it.each(csvs)("equals the one-thread ingest on samples/%s", async (name) => {
     const path = join(samples, name);
