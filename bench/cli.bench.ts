@@ -17,9 +17,8 @@ import { execFileSync, spawnSync } from "node:child_process";
 import { existsSync, mkdtempSync, readFileSync, rmSync, statSync } from "node:fs";
 import { availableParallelism, loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
-import { fileURLToPath } from "node:url";
-import { startBlockHelper, stopBlockHelper } from "../app/lib/signal/block-helper.ts";
-import { analyseFile } from "../app/lib/signal/cli-pipeline.ts";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import type * as Cli from "../app/lib/signal/cli.ts";
 import type { PipelineStage } from "../app/lib/signal/pipeline.ts";
 
 const GOAL_RATIO = 0.5;
@@ -122,7 +121,10 @@ try {
   // Where the time goes: one in-process run, stage by stage (the progress events), both threads.
   const marks: [string, number][] = [];
   let last = "";
-  startBlockHelper(); // as the command does
+  // The compiled code, as the command runs it (the bundle exports its pipeline and threads).
+  const bundle = pathToFileURL(join(root, "build/cli/twistlog.mjs")).href;
+  const { analyseFile, startBlockHelper, stopBlockHelper } = (await import(bundle)) as typeof Cli;
+  startBlockHelper();
   const t0 = performance.now();
   const outcome = await analyseFile(
     { source: file, ingest: {}, analysis: {} },
