@@ -4,11 +4,12 @@
  * the band folds back), and the 4-point cubic Lagrange interpolation of both channels onto it.
  * Units: angle rad, speed rad/s, time s, frequency Hz.
  */
+import { float64Array } from "./shared-arrays.ts";
 
 /** Crank angle in rad by the trapezoid rule; negative speeds count as standstill (angle never runs back). */
 export function integrateAngle(timeS: Float64Array, radS: Float64Array): Float64Array {
   const n = timeS.length;
-  const angle = new Float64Array(n);
+  const angle = float64Array(n);
   for (let i = 1; i < n; i++) {
     const a = Math.max(0, radS[i - 1]!);
     const b = Math.max(0, radS[i]!);

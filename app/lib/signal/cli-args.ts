@@ -34,7 +34,8 @@ into sections; every repair is listed as a warning. --strict refuses such a log 
 A CSV's header row is found behind any recorder preamble; --header-row N (the file line)
 picks it instead.
 --list-channels prints every channel of the file (CSV or ASAM MDF4): name, unit, group, rate,
-samples, range and the role it is recognised as, then exits.`;
+samples, range and the role it is recognised as, then exits.
+The compiled command takes the same flags: npx twistlog analyse FILE [flags].`;
 
 const OPTIONS = {
   cylinders: { type: "string" },

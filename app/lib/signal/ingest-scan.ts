@@ -5,6 +5,7 @@
  * written); ingest.ts converts.
  */
 import Papa from "papaparse";
+import { float64Array } from "./shared-arrays.ts";
 
 export const POW10 = Array.from({ length: 23 }, (_, i) => 10 ** i); // exact doubles up to 1e22
 export const TWO53 = 2 ** 53;
@@ -129,7 +130,7 @@ export class Column {
   data: Float64Array;
   private readonly sized: boolean;
   constructor(capacity: number, sized = false) {
-    this.data = new Float64Array(capacity);
+    this.data = float64Array(capacity);
     this.sized = sized;
   }
   ensure(n: number): void {
@@ -137,7 +138,7 @@ export class Column {
     // Grow by half when unsized; by a tenth once sized from a hint (a near miss should not
     // leave a third of the buffer unused).
     const factor = this.sized ? 1.1 : 1.5;
-    const next = new Float64Array(Math.max(1024, Math.ceil(this.data.length * factor)));
+    const next = float64Array(Math.max(1024, Math.ceil(this.data.length * factor)));
     next.set(this.data);
     this.data = next;
   }

@@ -14,6 +14,8 @@
  * computes their spectra (step 4).
  */
 import { indexAtAngle, resampleBlock, samplesPerRevFor, type AngleGrid } from "./angle-grid.ts";
+import { helpedSplit } from "./block-helper.ts";
+import { mergeTracked } from "./section-analysis.ts";
 import { createPairAmplitudePlan, type Detrend } from "./spectrum.ts";
 
 export interface TrackedBlocks {
@@ -41,13 +43,8 @@ export interface TrackedBlocks {
   samplesPerRevRange: [number, number];
 }
 
-/**
- * Cuts blocks of R revolutions (hop R·(1−overlap)), resamples both (already filtered) channels
- * of each block to its angle grid and computes the block spectra; the angle-domain signal never
- * sits in memory whole. `angleRad` is the crank angle of each time sample; `topBin` limits the
- * bins kept per block; `minSpeedRadS` is the channel the slowest in-block speed is read from.
- */
-export function trackBlocks(args: {
+/** What trackBlocks reads: the log's arrays and the block settings. */
+export interface TrackArgs {
   timeS: Float64Array;
   angleRad: Float64Array;
   crankRadS: Float64Array;
@@ -69,16 +66,55 @@ export function trackBlocks(args: {
    */
   blockRange?: [number, number];
   onProgress?: (fraction: number) => void;
-}): TrackedBlocks {
+}
+
+/** Blocks that fit the log: R revolutions each, hop R·(1−overlap) revolutions. */
+export function blockCount(args: TrackArgs): number {
+  const { angleRad, revsPerBlock: R } = args;
+  const n = angleRad.length;
+  const hopRevs = R * (1 - args.overlap);
+  const totalRevs = n > 1 ? angleRad[n - 1]! / (2 * Math.PI) : 0;
+  return totalRevs >= R ? Math.floor((totalRevs - R) / hopRevs + 1e-9) + 1 : 0;
+}
+
+/**
+ * Cuts blocks of R revolutions (hop R·(1−overlap)), resamples both (already filtered) channels
+ * of each block to its angle grid and computes the block spectra; the angle-domain signal never
+ * sits in memory whole. `angleRad` is the crank angle of each time sample; `topBin` limits the
+ * bins kept per block. With the block helper running (block-helper.ts, the CLI starts it) the
+ * later blocks are computed on the second core, with the same values.
+ */
+export function trackBlocks(args: TrackArgs): TrackedBlocks {
+  if (args.blockRange) {
+    const [first, end] = args.blockRange;
+    return trackRange(args, first, end, first);
+  }
+  const maxBlocks = blockCount(args);
+  const split = maxBlocks >= 64 ? helpedSplit(args, maxBlocks) : undefined;
+  if (!split) return trackRange(args, 0, maxBlocks, 0);
+  const own = trackRange(args, 0, split.from, 0);
+  const theirs = split.wait();
+  return theirs
+    ? mergeTracked([own, theirs], own)
+    : mergeTracked([own, trackRange(args, split.from, maxBlocks, split.warmFrom)], own);
+}
+
+/**
+ * The blocks from..to−1 of trackBlocks, with their values exactly as trackBlocks computes them:
+ * a block reuses the previous block's overlapping samples when the grid is the same, so blocks
+ * warmFrom..from−1 (at least 1/(1−overlap) of them, for the reused samples to come from the same
+ * block as in a run from the start) are resampled first and not kept.
+ */
+export function trackRange(
+  args: TrackArgs,
+  fromBlock: number,
+  toBlock: number,
+  warmFrom: number,
+): TrackedBlocks {
   const { timeS, angleRad, crankRadS, gearboxRadS, revsPerBlock: R } = args;
   const n = timeS.length;
   const hopRevs = R * (1 - args.overlap);
-  const totalRevs = n > 1 ? angleRad[n - 1]! / (2 * Math.PI) : 0;
-  const [first, end] = args.blockRange ?? [
-    0,
-    totalRevs >= R ? Math.floor((totalRevs - R) / hopRevs + 1e-9) + 1 : 0,
-  ];
-  const maxBlocks = Math.max(0, end - first);
+  const maxBlocks = toBlock - fromBlock;
   const bins = args.topBin + 1;
   const crankAmp = new Float64Array(maxBlocks * bins);
   const gearboxAmp = new Float64Array(maxBlocks * bins);
@@ -100,8 +136,9 @@ export function trackBlocks(args: {
   let sHi = 0;
   let hint = 0;
   let prevS = 0;
-  let prevBlock = first - 2;
-  for (let b = first; b < end; b++) {
+  let prevBlock = -2;
+  for (let b = warmFrom; b < toBlock; b++) {
+    const keep = b >= fromBlock;
     const thetaA = b * hopRevs * 2 * Math.PI;
     const thetaE = thetaA + 2 * Math.PI * R;
     const ia = indexAtAngle(angleRad, thetaA, hint);
@@ -118,7 +155,7 @@ export function trackBlocks(args: {
     for (let i = ia; i <= ie + 1 && i < n; i++) minRadS = Math.min(minRadS, crankRadS[i]!);
     const S = samplesPerRevFor(args.grid, minRadS);
     if (S === null || S * R < 2 * (bins - 1)) {
-      dropped++;
+      if (keep) dropped++;
       continue;
     }
     const N = S * R;
@@ -157,6 +194,7 @@ export function trackBlocks(args: {
     );
     prevS = S;
     prevBlock = b;
+    if (!keep) continue;
     plan.amplitudes(bufC, bufG, ampC, ampG, bins - 1);
     crankAmp.set(ampC.subarray(0, bins), kept * bins);
     gearboxAmp.set(ampG.subarray(0, bins), kept * bins);
@@ -167,7 +205,7 @@ export function trackBlocks(args: {
     kept++;
     sLo = Math.min(sLo, S);
     sHi = Math.max(sHi, S);
-    if (args.onProgress && (b & 255) === 0) args.onProgress((b - first) / maxBlocks);
+    if (args.onProgress && (b & 255) === 0) args.onProgress((b - fromBlock) / maxBlocks);
   }
   return {
     revsPerBlock: R,

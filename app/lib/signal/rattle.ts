@@ -16,6 +16,7 @@ import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
 import type { TrackedBlocks } from "./order-tracking.ts";
 import { orderBin } from "./order-curves.ts";
 import type { Segment } from "./segments.ts";
+import { slidingMax } from "./sliding-max.ts";
 import { envelopeMax, TRACE_POINTS } from "./traces.ts";
 
 export interface RattleSpan {
@@ -114,9 +115,9 @@ export function rattleCheck(args: {
     const half = Math.max(1, guard >> 1);
     let open = -1;
     let spanPeak = 0;
+    const envelope = slidingMax(acc, half, guard, y.length - guard);
     for (let i = guard; i < y.length - guard; i++) {
-      let env = 0;
-      for (let j = i - half; j <= i + half; j++) env = Math.max(env, acc[j]!);
+      const env = envelope[i - guard]!;
       peak = Math.max(peak, acc[i]!);
       if (env > limit) {
         if (open < 0) {

@@ -153,6 +153,20 @@ export function voldKalmanOrder(args: {
   return envelope(R, o.poles, args.signal, args.angleRad, args.order);
 }
 
+/**
+ * The last factor and the weights it was made from: callers filter two channels with the same
+ * shaft speed one after the other (span-measure.ts: the trends, then the order of each), and the
+ * factorisation is most of a filter's cost. Reused only when the weights are equal value for
+ * value, so the result is the same as a fresh factorisation.
+ */
+let lastFactor: { w2: Float64Array; p: number; n: number; R: Float64Array } | undefined;
+
+function sameWeights(a: Float64Array, b: Float64Array): boolean {
+  if (a.length !== b.length) return false;
+  for (let k = 0; k < a.length; k++) if (a[k] !== b[k]) return false;
+  return true;
+}
+
 /** The factor for these weights, or null when there are too few samples for one equation. */
 function factorFor(
   shaftRadS: Float64Array,
@@ -160,7 +174,13 @@ function factorFor(
   o: ReturnType<typeof resolve>,
   n: number,
 ): Float64Array | null {
-  return n > o.poles ? factorBanded(rowWeights(shaftRadS, sampleRateHz, o), o.poles, n) : null;
+  if (n <= o.poles) return null;
+  const w2 = rowWeights(shaftRadS, sampleRateHz, o);
+  const last = lastFactor;
+  if (last && last.p === o.poles && last.n === n && sameWeights(last.w2, w2)) return last.R;
+  const R = factorBanded(w2, o.poles, n);
+  lastFactor = { w2, p: o.poles, n, R };
+  return R;
 }
 
 function envelope(

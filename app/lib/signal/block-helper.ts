@@ -1,0 +1,123 @@
+/**
+ * The block helper: a worker thread that computes the later half of the order-tracking blocks
+ * (order-tracking.ts trackRange) while the calling thread computes the first half, so the
+ * second core shares the spectra. Opt-in: the CLI starts it (startBlockHelper); the server's
+ * analysis workers never do, and without it trackBlocks runs on one thread as before. It needs
+ * the log's arrays in shared memory (shared-arrays.ts); else the blocks stay on one thread.
+ *
+ * The work is split at the middle of the log's time (a block's cost follows its duration: a
+ * slow block has a finer angle grid). The caller waits for the helper with Atomics.wait and
+ * computes the helper's blocks itself when the helper fails or does not answer within a minute.
+ */
+import { createRequire } from "node:module";
+import { pathToFileURL } from "node:url";
+import { Worker } from "node:worker_threads";
+import type { TrackArgs, TrackedBlocks } from "./order-tracking.ts";
+import { allocateShared, allShared } from "./shared-arrays.ts";
+
+let helper: Worker | undefined;
+let jobs = 0;
+
+/** Jobs handed to the helper so far (for the tests: the split did happen). */
+export function blockHelperJobs(): number {
+  return jobs;
+}
+
+/** Start the helper (idempotent); arrays allocated from now on are shared. */
+export function startBlockHelper(): void {
+  if (helper) return;
+  if (import.meta.url.endsWith(".ts")) {
+    // Under tsx or vitest: the TypeScript source through tsx's API (as ingest-parallel.ts).
+    const api = createRequire(import.meta.url)
+      .resolve("tsx/esm/api")
+      .replace(/\.cjs$/, ".mjs");
+    const source = new URL("./block-worker.ts", import.meta.url).href;
+    helper = new Worker(
+      `import(${JSON.stringify(pathToFileURL(api).href)}).then((m) => m.tsImport(${JSON.stringify(source)}, ${JSON.stringify(import.meta.url)}))`,
+      { eval: true },
+    );
+  } else helper = new Worker(new URL("./block-worker.mjs", import.meta.url));
+  helper.unref(); // the process may end while it idles
+  helper.on("error", () => (helper = undefined));
+  allocateShared(true);
+}
+
+/** Stop the helper; arrays are ordinary again. */
+export async function stopBlockHelper(): Promise<void> {
+  allocateShared(false);
+  const h = helper;
+  helper = undefined;
+  await h?.terminate();
+}
+
+/** A block job as posted to the helper (the arrays are shared, the rest is copied). */
+export interface BlockJob {
+  args: Omit<TrackArgs, "onProgress">;
+  from: number;
+  to: number;
+  warmFrom: number;
+  /** [state (0 busy, 1 done, 2 failed), kept, dropped, S lowest, S highest] */
+  control: Int32Array;
+  out: {
+    crankAmp: Float64Array;
+    gearboxAmp: Float64Array;
+    blockRadS: Float64Array;
+    blockStartS: Float64Array;
+    blockEndS: Float64Array;
+    twistRadS: Float64Array | undefined;
+  };
+}
+
+const sharedF64 = (n: number) => new Float64Array(new SharedArrayBuffer(Math.max(1, n) * 8));
+
+/**
+ * Hands blocks split…maxBlocks−1 to the helper, or undefined when there is none or the arrays
+ * are not shared. `wait()` returns them, or undefined when the caller must compute them.
+ */
+export function helpedSplit(
+  args: TrackArgs,
+  maxBlocks: number,
+): { from: number; warmFrom: number; wait: () => TrackedBlocks | undefined } | undefined {
+  const { timeS, angleRad, crankRadS, gearboxRadS, revsPerBlock: R } = args;
+  if (!helper || !allShared(timeS, angleRad, crankRadS, gearboxRadS)) return undefined;
+  const hopRad = R * (1 - args.overlap) * 2 * Math.PI;
+  const from = Math.min(maxBlocks - 1, Math.floor(angleRad[timeS.length >> 1]! / hopRad));
+  // Blocks reuse up to 1/(1−overlap) earlier blocks' samples: resample that many first.
+  const warmFrom = Math.max(0, from - Math.ceil(1 / (1 - args.overlap)));
+  if (from < 1) return undefined;
+  const count = maxBlocks - from;
+  const bins = args.topBin + 1;
+  const control = new Int32Array(new SharedArrayBuffer(5 * 4));
+  const out = {
+    crankAmp: sharedF64(count * bins),
+    gearboxAmp: sharedF64(count * bins),
+    blockRadS: sharedF64(count),
+    blockStartS: sharedF64(count),
+    blockEndS: sharedF64(count),
+    twistRadS: args.firingBin !== undefined ? sharedF64(count) : undefined,
+  };
+  const { onProgress: _, ...plain } = args;
+  const job: BlockJob = { args: plain, from, to: maxBlocks, warmFrom, control, out };
+  helper.postMessage(job);
+  jobs++;
+  const wait = (): TrackedBlocks | undefined => {
+    Atomics.wait(control, 0, 0, 60_000);
+    if (Atomics.load(control, 0) !== 1) return undefined;
+    const kept = control[1]!;
+    return {
+      revsPerBlock: R,
+      orderStep: 1 / R,
+      binsPerBlock: bins,
+      blockCount: kept,
+      blockRadS: out.blockRadS.subarray(0, kept),
+      blockStartS: out.blockStartS.subarray(0, kept),
+      blockEndS: out.blockEndS.subarray(0, kept),
+      crankAmp: out.crankAmp.subarray(0, kept * bins),
+      gearboxAmp: out.gearboxAmp.subarray(0, kept * bins),
+      ...(out.twistRadS ? { twistRadS: out.twistRadS.subarray(0, kept) } : {}),
+      droppedSlowBlocks: control[2]!,
+      samplesPerRevRange: kept > 0 ? [control[3]!, control[4]!] : [0, 0],
+    };
+  };
+  return { from, warmFrom, wait };
+}

@@ -1,0 +1,22 @@
+#!/usr/bin/env node
+/**
+ * The `twistlog` command (package.json "bin"): runs the compiled CLI, build/cli/twistlog.mjs
+ * (scripts/build-cli.mjs; `npm ci` and `npm run build` make it). Same flags and output as
+ * `npm run analyse -- FILE` (app/lib/signal/cli.ts):
+ *
+ *   twistlog analyse FILE [flags]      or      twistlog FILE [flags]
+ */
+import { existsSync } from "node:fs";
+import { fileURLToPath } from "node:url";
+
+const bundle = new URL("../build/cli/twistlog.mjs", import.meta.url);
+if (!existsSync(fileURLToPath(bundle))) {
+  process.stderr.write(
+    "twistlog: the compiled command is missing (build/cli/twistlog.mjs); run npm run build:cli\n",
+  );
+  process.exit(1);
+}
+const { runCommand } = await import(bundle.href);
+const argv = process.argv.slice(2);
+// "analyse" names the one command; a log file called "analyse" is read as ./analyse.
+runCommand(argv[0] === "analyse" ? argv.slice(1) : argv);
