@@ -223,6 +223,13 @@ function toRequest(
     if (Array.isArray(values)) for (const value of values) headers.append(key, value);
     else if (values) headers.set(key, values);
   }
+  // A `.data` answer is React Router's own encoding of the loaders' data: it reads a resource
+  // route's Response body as text, so that body must come uncoded and whole (the compression
+  // middleware then compresses the answer as a whole).
+  if (req.path.endsWith(".data")) {
+    headers.delete("accept-encoding");
+    headers.delete("if-none-match");
+  }
   // One id for a read's copies (app/lib/http/request-id.ts); a client's own value never counts.
   // A write has none: its loaders run after its action, which may have changed the session.
   headers.delete(REQUEST_ID_HEADER);
