@@ -186,6 +186,15 @@ describe("charts.json: one packed body per analysis version", () => {
       expect(withTag.headers.get("Location")).toBe(plain.headers.get("Location"));
       expect(withTag.headers.get("ETag")).toBeNull();
     }
+    // An expired session (30 days after sign-in) is refused like no session.
+    const expiring = await directClient({ id: team.accounts.viewer.id, teamId: team.id });
+    expect((await charts(expiring.get(chartsPath()))).status).toBe(200);
+    await db
+      .update(sessions)
+      .set({ expiresAt: new Date(Date.now() - 1_000) })
+      .where(eq(sessions.userId, team.accounts.viewer.id));
+    const expired = await charts(expiring.get(chartsPath(), { "If-None-Match": etag }));
+    expect(expired.status).toBe(302);
     // A session ended (signed out elsewhere, revoked on the account page) is refused at once.
     const leaving = await directClient({ id: team.accounts.viewer.id, teamId: team.id });
     expect((await charts(leaving.get(chartsPath()))).status).toBe(200);
