@@ -30,7 +30,15 @@ if (env.TRUST_PROXY) {
     Number.isInteger(hops) ? hops : env.TRUST_PROXY === "true" || env.TRUST_PROXY,
   );
 }
-app.use(compression());
+// A response with a strong ETag is a packed body whose codings were made once
+// (app/lib/http/packed-response.server.ts): sent as it is. Compressing it here would cost every
+// request again and give a new representation the tag of another (RFC 9110 §8.8.3).
+app.use(
+  compression({
+    filter: (req, res) =>
+      !String(res.getHeader("ETag") ?? "").startsWith('"') && compression.filter(req, res),
+  }),
+);
 app.use((req, res, next) => {
   res.locals.cspNonce = newNonce();
   res.set(

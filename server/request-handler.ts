@@ -11,6 +11,7 @@ import {
   writeReadableStreamToWritable,
 } from "@react-router/node";
 import type express from "express";
+import { randomUUID } from "node:crypto";
 import { Transform, type TransformCallback } from "node:stream";
 import {
   createRequestHandler as createRouterHandler,
@@ -25,6 +26,7 @@ import {
   BodyTooLargeError,
   FORM_BODY_MAX_BYTES,
 } from "../app/lib/http/request-limits";
+import { REQUEST_ID_HEADER } from "../app/lib/http/request-id";
 
 type GetLoadContext = (req: express.Request, res: express.Response) => AppLoadContext;
 type RouteInfo = { id: string; hasAction: boolean };
@@ -221,6 +223,17 @@ function toRequest(
     if (Array.isArray(values)) for (const value of values) headers.append(key, value);
     else if (values) headers.set(key, values);
   }
+  // A `.data` answer is React Router's own encoding of the loaders' data: it reads a resource
+  // route's Response body as text, so that body must come uncoded and whole (the compression
+  // middleware then compresses the answer as a whole).
+  if (req.path.endsWith(".data")) {
+    headers.delete("accept-encoding");
+    headers.delete("if-none-match");
+  }
+  // One id for a read's copies (app/lib/http/request-id.ts); a client's own value never counts.
+  // A write has none: its loaders run after its action, which may have changed the session.
+  headers.delete(REQUEST_ID_HEADER);
+  if (req.method === "GET" || req.method === "HEAD") headers.set(REQUEST_ID_HEADER, randomUUID());
   const init: RequestInit & { duplex?: "half" } = { method: req.method, headers, signal };
   if (body) {
     init.body = createReadableStreamFromReadable(body as import("node:stream").Readable);

@@ -11,6 +11,7 @@ import { z } from "zod";
 import { analyses } from "~/lib/infra/db/schema-drive-logs";
 import { analysisResultSchema, type AnalysisResult } from "~/lib/signal";
 import { deepFreeze, Lru } from "../base/lru";
+import { packBody, type PackedBody } from "../base/packed-body.server";
 import { db } from "../infra/db.server";
 import type { EventFigure } from "../domain/event-figures";
 
@@ -83,21 +84,40 @@ export function decodeStoredJson(stored: EncodedResult): Record<string, unknown>
   };
 }
 
+/**
+ * The stored result JSON of one analysis of the team as the API serves it (decodeStoredJson),
+ * packed once and kept; null when there is no such analysis in the team. The caller checks that
+ * the analysis belongs to the drive log it was asked for.
+ */
+export function packedStoredJson(teamId: number, analysisId: number): Promise<PackedBody | null> {
+  return packedBodyOf("result", analysisId, async () => {
+    const [stored] = await db
+      .select({ resultGz: analyses.resultGz, orderMapGz: analyses.orderMapGz })
+      .from(analyses)
+      .where(and(eq(analyses.id, analysisId), eq(analyses.teamId, teamId)));
+    return stored ? packBody(JSON.stringify(decodeStoredJson(stored))) : null;
+  });
+}
+
 // ---- The cache ------------------------------------------------------------------------------
 
 /**
  * What has been read of analyses, by analysis id, in four least-recently-used parts with their
  * own bounds, as their sizes differ: a parsed result is up to about 1 MB (the order map has at
- * most 400 rows), a chart body about 200 KB, idle and transient figures a few bytes to a few hundred. Decoding a result (gunzip,
- * JSON, schema check of the order map; 10 ms or more for a demo run-up) with its garbage was
- * about a third of a drive-log page request's CPU under load (bench/load.bench.ts, profiled), and
- * a chart body takes 20–70 ms to build.
+ * most 400 rows), a packed body a few hundred KB, idle and transient figures a few bytes to a few
+ * hundred. Decoding a result (gunzip, JSON, schema check of the order map; 10 ms or more for a
+ * demo run-up) with its garbage was about a third of a drive-log page request's CPU under load
+ * (bench/load.bench.ts, profiled); a chart body takes 20–70 ms to build and 0.3 s to pack.
  */
 const cache = {
   /** Parsed, frozen results. The promise is kept, so requests that arrive together decode once. */
   results: new Lru<number, Promise<AnalysisResult | null>>(16),
-  /** Bodies of charts.json (chart-bodies.server.ts). */
-  chartBodies: new Lru<number, string>(64),
+  /**
+   * Packed bodies (identity, gzip, brotli; about 300 KB for a run-up's chart body) by kind and
+   * analysis id: charts.json (chart-bodies.server.ts) and the API's result JSON. The promise is
+   * kept, so requests that arrive together pack once.
+   */
+  bodies: new Lru<string, Promise<PackedBody | null>>(64),
   idle: new Lru<number, IdleFigures | null>(20_000),
   transient: new Lru<number, TransientFigures>(20_000),
 };
@@ -126,13 +146,26 @@ export function storedResult(analysisId: number): Promise<AnalysisResult | null>
   return made;
 }
 
-/** A chart body built before for this analysis, if still kept. */
-export function cachedChartBody(analysisId: number): string | undefined {
-  return cache.chartBodies.get(analysisId);
-}
-
-export function keepChartBody(analysisId: number, body: string): void {
-  cache.chartBodies.set(analysisId, body);
+/**
+ * The packed body of kind `kind` for an analysis, made by `make` on the first request and kept
+ * (an analysis never changes). Callers check who may see it before they ask; a failure or a null
+ * (nothing to show) is not kept, so the next request tries again.
+ */
+export function packedBodyOf(
+  kind: "charts" | "result",
+  analysisId: number,
+  make: () => Promise<PackedBody | null>,
+): Promise<PackedBody | null> {
+  const key = `${kind}:${analysisId}`;
+  const kept = cache.bodies.get(key);
+  if (kept) return kept;
+  const made = make();
+  cache.bodies.set(key, made);
+  const forget = () => {
+    if (cache.bodies.get(key) === made) cache.bodies.delete(key);
+  };
+  made.then((body) => body ?? forget(), forget);
+  return made;
 }
 
 /**

@@ -1,9 +1,10 @@
 import type { Role } from "~/lib/infra/db/schema";
-import { accountWithTeams, type TeamRole } from "../data/accounts.server";
+import type { TeamRole } from "../data/accounts.server";
 import { findApiCaller } from "../data/api-tokens.server";
 import { Forbidden, NotFound, Unauthenticated } from "../domain/errors";
 import { atLeast, roleLabels } from "../domain/roles";
-import { readSession } from "./session.server";
+import { requestId } from "./request-id";
+import { readSessionAccount } from "./session.server";
 
 /**
  * Who is asking and what they may do: the one place that compares a caller's role with the role
@@ -32,16 +33,37 @@ export interface Access extends CurrentUser {
   role: Role;
 }
 
+type SignedIn = CurrentUser & { sessionId: string };
+
+/**
+ * What one HTTP request's loaders have read of its session, by the request's id
+ * (app/lib/http/request-id.ts): a page's shell and its own loader run together and then cost one
+ * query. An entry is dropped a second after it was read, and no other request has its id, so a
+ * later request always reads the database again (a revocation acts at once, on every instance).
+ */
+const perRequest = new Map<string, Promise<SignedIn | null>>();
+const KEEP_MS = 1_000;
+
 /** The signed-in user with their teams, or null. */
-export async function getCurrentUser(
-  request: Request,
-): Promise<(CurrentUser & { sessionId: string }) | null> {
-  const session = await readSession(request);
-  if (!session) return null;
-  const account = await accountWithTeams(session.userId);
+export function getCurrentUser(request: Request): Promise<SignedIn | null> {
+  const id = requestId(request);
+  if (id === null) return readCurrentUser(request);
+  let found = perRequest.get(id);
+  if (!found) {
+    found = readCurrentUser(request);
+    perRequest.set(id, found);
+    const forget = () => setTimeout(() => perRequest.delete(id), KEEP_MS).unref();
+    found.then(forget, forget);
+  }
+  return found;
+}
+
+async function readCurrentUser(request: Request): Promise<SignedIn | null> {
+  const account = await readSessionAccount(request);
   if (!account) return null;
-  const team = account.teams.find((t) => t.id === session.teamId) ?? account.teams[0] ?? null;
-  return { ...account, sessionId: session.id, team };
+  const { session, user, teams } = account;
+  const team = teams.find((t) => t.id === session.teamId) ?? teams[0] ?? null;
+  return { user, teams, sessionId: session.id, team };
 }
 
 /** The signed-in user (any team, or none yet), or Unauthenticated. */

@@ -1,6 +1,6 @@
-import { and, asc, eq, gt, ne } from "drizzle-orm";
+import { and, asc, eq, gt, ne, sql } from "drizzle-orm";
 import { createCookie } from "react-router";
-import { sessions } from "~/lib/infra/db/schema";
+import { memberships, sessions, teams, users, type Role } from "~/lib/infra/db/schema";
 import { db } from "../infra/db.server";
 import { getEnv } from "../infra/env.server";
 import { isSecureRequest } from "./request.server";
@@ -28,16 +28,84 @@ export interface SessionRow {
   teamId: number | null;
 }
 
-/** The live session of this request, or null (no cookie, bad signature, expired or revoked). */
-export async function readSession(request: Request): Promise<SessionRow | null> {
+/** The session row's id (sha256 of the cookie's secret), or null for no cookie or a bad signature. */
+async function sessionId(request: Request): Promise<string | null> {
   const secret: unknown = await sessionCookie.parse(request.headers.get("Cookie"));
   if (typeof secret !== "string" || secret.length < 40) return null;
+  return sha256Hex(secret);
+}
+
+/** The live session of this request, or null (no cookie, bad signature, expired or revoked). */
+export async function readSession(request: Request): Promise<SessionRow | null> {
+  const id = await sessionId(request);
+  if (id === null) return null;
   const [row] = await db
     .select({ id: sessions.id, userId: sessions.userId, teamId: sessions.teamId })
     .from(sessions)
-    .where(and(eq(sessions.id, sha256Hex(secret)), gt(sessions.expiresAt, new Date())))
+    .where(and(eq(sessions.id, id), gt(sessions.expiresAt, new Date())))
     .limit(1);
   return row ?? null;
+}
+
+/**
+ * The query of readSessionAccount, built once: drizzle's query building was a tenth of a signed-in
+ * request's CPU, and this one runs on every request.
+ */
+function prepareSessionAccount() {
+  return db
+    .select({
+      sessionId: sessions.id,
+      userId: users.id,
+      chosenTeamId: sessions.teamId,
+      email: users.email,
+      name: users.name,
+      teamId: teams.id,
+      teamName: teams.name,
+      role: memberships.role,
+    })
+    .from(sessions)
+    .innerJoin(users, eq(users.id, sessions.userId))
+    .leftJoin(memberships, eq(memberships.userId, users.id))
+    .leftJoin(teams, eq(teams.id, memberships.teamId))
+    .where(
+      and(eq(sessions.id, sql.placeholder("id")), gt(sessions.expiresAt, sql.placeholder("now"))),
+    )
+    .orderBy(asc(teams.name))
+    .prepare();
+}
+let sessionAccountQuery: ReturnType<typeof prepareSessionAccount> | undefined;
+
+/** A live session with its account and the account's teams (by name, with the role in each). */
+export interface SessionAccount {
+  session: SessionRow;
+  user: { id: number; email: string; name: string };
+  teams: { id: number; name: string; role: Role }[];
+}
+
+/**
+ * The live session of this request with its user and teams, in one query (session by its
+ * primary key, the user by theirs, the memberships by memberships_user_idx): every signed-in
+ * request asks this, and three round trips to the database were most of what a kept chart body
+ * cost (docs/serving-speed.md). Nothing is kept between requests, so a session ended or a
+ * membership removed is refused at once by every instance of the app.
+ */
+export async function readSessionAccount(request: Request): Promise<SessionAccount | null> {
+  const id = await sessionId(request);
+  if (id === null) return null;
+  // The expiry compared as drizzle writes a datetime (UTC text), as in readSession.
+  const now = sessions.expiresAt.mapToDriverValue(new Date());
+  const rows = await (sessionAccountQuery ??= prepareSessionAccount()).execute({ id, now });
+  const first = rows[0];
+  if (!first) return null;
+  return {
+    session: { id: first.sessionId, userId: first.userId, teamId: first.chosenTeamId },
+    user: { id: first.userId, email: first.email, name: first.name },
+    teams: rows.flatMap((r) =>
+      r.teamId !== null && r.teamName !== null && r.role !== null
+        ? [{ id: r.teamId, name: r.teamName, role: r.role }]
+        : [],
+    ),
+  };
 }
 
 /** Creates a session row and returns the Set-Cookie header value that carries it. */
