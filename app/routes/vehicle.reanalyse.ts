@@ -5,6 +5,7 @@ import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { idParam } from "~/lib/http/params";
 import { clientIp } from "~/lib/http/request.server";
+import { vehicleData } from "~/lib/data/vehicles.server";
 import type { Route } from "./+types/vehicle.reanalyse";
 import { requireAccess } from "~/lib/http/access.server";
 import { Invalid } from "~/lib/domain/errors";
@@ -23,6 +24,7 @@ export const action = panelRoute(async ({ request, params, context }: Route.Acti
   await assertCsrf(request, form);
   const { team, user } = await requireAccess(request, "engineer");
   const vehicleId = idParam(params.vehicleId);
+  await vehicleData(team.id).vehicle(vehicleId); // another team's vehicle: 404 before the form
   if (form.get("intent") !== "reanalyse-all") throw new Invalid("Unknown action.");
   const submission = parseWithZod(form, { schema: reanalyseAllSchema });
   const noStore = { "Cache-Control": "no-store" };
