@@ -6,13 +6,14 @@
  * are stored once and recorded ten times each through the data layer (50 drive logs, no
  * analysis yet). One of them has a damper variant of its own, so POST /api/v1/vehicles/:id/reanalyse
  * with that variant times one job alone (from the request to `finished`, median of 3); then the
- * same without a variant re-analyses all 50. Printed: one job alone, the worker's own time of it,
+ * same without a variant re-analyses all 50 (one job alone is timed 3 times before and 2 times
+ * after the batch; the median). Printed: one job alone, the worker's own time of it,
  * the batch's wall time, ideal = 50 × one ÷ workers, their ratio (goal ≤ 1.2) and the workers'
  * utilisation (their summed run time ÷ (wall × workers), from the server's ANALYSIS_TIMINGS lines).
  * It starts a MariaDB of its own (BENCH_DATABASE_PORT + 3, default 3471) and builds the app first
  * when build/ is missing.
  */
-import { availableParallelism } from "node:os";
+import { availableParallelism, loadavg } from "node:os";
 import { createReadStream } from "node:fs";
 import { join } from "node:path";
 import {
@@ -119,14 +120,19 @@ try {
     return timings.filter((t) => wanted.has(t.jobId));
   };
 
+  // One job alone, three times before the batch and twice after (a shared machine drifts).
   const alone: number[] = [];
   const aloneWorker: number[] = [];
-  for (let i = 0; i < 3; i++) {
+  const soloRun = async (i: number) => {
     const one = await batch({ binRpm: 50 + i, damperVariant: "solo" });
     alone.push(one.ms);
     aloneWorker.push(...byJob(one.jobIds).map((t) => t.analysisMs));
-  }
+  };
+  for (let i = 0; i < 3; i++) await soloRun(i);
+  const loadBefore = loadavg()[0]!;
   const all = await batch({ binRpm: 40 });
+  const loadAfter = loadavg()[0]!;
+  for (let i = 3; i < 5; i++) await soloRun(i);
   await pool.end();
 
   const workers = Math.max(1, availableParallelism() - 1); // the server's pool (worker-pool.server.ts)
@@ -138,19 +144,21 @@ try {
     `\nre-analyse all: ${LOGS} drive logs (${FILES} files, 60–64 s at 5 kHz), ${workers} worker(s)`,
   );
   console.log(
-    `  one job alone (request → finished)      ${s(one)}   (median of 3: ${alone.map(s).join(", ")})`,
+    `  one job alone (request → finished)      ${s(one)}   (median of 5: ${alone.map(s).join(", ")})`,
   );
   console.log(`    of which the worker's own run          ${s(median(aloneWorker))}`);
-  console.log(`  all ${LOGS} (request → finished)          ${s(all.ms)}`);
-  console.log(`  ideal = ${LOGS} × one ÷ ${workers}                ${s(ideal)}`);
+  console.log(
+    `  all ${LOGS} (request → finished)           ${s(all.ms)}   (load average ${loadBefore.toFixed(1)} → ${loadAfter.toFixed(1)} on ${availableParallelism()} cores)`,
+  );
+  console.log(`  ideal = ${LOGS} × one ÷ ${workers}`.padEnd(42) + s(ideal));
   console.log(
     `  ratio wall / ideal                      ${(all.ms / ideal).toFixed(2)}   (goal ≤ ${GOAL_RATIO})`,
   );
   console.log(
-    `  worker utilisation                      ${((100 * busy) / (all.ms * workers)).toFixed(0)} %   (${ran.length} jobs timed; summed worker run ${s(busy)})`,
+    `  worker utilisation                      ${((100 * busy) / (all.ms * workers)).toFixed(0)} %   (${ran.length} jobs timed; summed worker run ${s(busy)}, ${s(busy / ran.length)} per job)`,
   );
   console.log(
-    `  per job, median: worker start ${s(median(ran.map((t) => t.workerStartMs)))}, save ${s(median(ran.map((t) => t.saveMs)))}, queued → claimed ${s(median(ran.map((t) => t.queuedMs)))}`,
+    `  per job, median: worker start ${s(median(ran.map((t) => t.workerStartMs)))}, column choice ${s(median(ran.map((t) => t.columnsMs)))}, save ${s(median(ran.map((t) => t.saveMs)))} (beside the next job's run)`,
   );
 } finally {
   await cleanUp(setup, server);
