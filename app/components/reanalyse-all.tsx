@@ -51,7 +51,7 @@ export function ReanalyseAllPanel({
   return (
     <section
       aria-labelledby="reanalyse-all-title"
-      id="reanalyse-all"
+      id="reanalyse-all-panel"
       className="rounded-lg border border-neutral-200 bg-white p-4 shadow-xs sm:p-6"
     >
       <h2 id="reanalyse-all-title" className="text-base font-semibold">

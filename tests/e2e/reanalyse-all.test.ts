@@ -85,7 +85,7 @@ describe("re-analyse all in the browser", () => {
     expect(vehiclePath).not.toBe("");
     const technician = await signIn(browser, "technician@twistlog.test");
     await technician.goto(baseUrl + vehiclePath);
-    await technician.getByRole("heading", { name: "Drive logs" }).waitFor();
+    await technician.getByRole("heading", { name: "Drive logs", exact: true }).waitFor();
     expect(await panelOf(technician).count()).toBe(0);
   });
 });
