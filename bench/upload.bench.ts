@@ -5,7 +5,8 @@
  * A 10-minute, 5 kHz drive log (3 M rows, about 92 MB, bench/drive-log.ts) goes through the real
  * server (POST /api/v1/vehicles/:id/logs with an API token) three times; each time is measured
  * from the first byte of the upload until the API says the analysis is `done`. In the same run
- * `npm run -s analyse -- FILE --json` analyses the same file as a child process three times.
+ * `npm run -s analyse -- FILE --json` analyses the same file as a child process three times
+ * (before each upload, so both see the same load).
  * Printed: the medians, their ratio (goal ≤ 1.5), and where the server's extra time goes — the
  * upload itself (stream to storage, gzip, hash), then per job (ANALYSIS_TIMINGS=1, runner.server.ts):
  * waiting in the queue, column choice, worker start, the worker's run (of which reading and
@@ -43,9 +44,10 @@ try {
   const fileMB = bytes / 1e6;
   prepareDatabaseAndBuild(setup);
 
-  // The CLI on the same file, as a user runs it (whole process, median of 3).
+  // The CLI on the same file, as a user runs it (whole process); run between the uploads below,
+  // so that both see the same load on a shared machine.
   const cliMs: number[] = [];
-  for (let i = 0; i < RUNS; i++) {
+  const runCli = () => {
     const t0 = performance.now();
     const cli = spawnSync("npm", ["run", "-s", "analyse", "--", file, "--json"], {
       cwd: root,
@@ -53,7 +55,7 @@ try {
     });
     if (cli.status !== 0) throw new Error(`npm run analyse exited with ${cli.status}`);
     cliMs.push(performance.now() - t0);
-  }
+  };
 
   // Settings are in process.env now, so the app modules connect to the bench database.
   const { vehicleData } = await import("../app/lib/data/vehicles.server.ts");
@@ -80,7 +82,9 @@ try {
     [];
   let blobKey = "";
   for (let i = 0; i < RUNS; i++) {
-    peak = memoryOf(pid).rssMB;
+    runCli();
+    const before = memoryOf(pid).rssMB;
+    peak = before;
     const form = new FormData();
     form.set("condition", "run-up");
     form.set("file", await openAsBlob(file, { type: "text/csv" }), `upload-bench-${i}.csv`);
@@ -91,7 +95,7 @@ try {
       body: form,
     });
     const uploadMs = performance.now() - t0;
-    const uploadPeakMB = peak;
+    const uploadPeakMB = peak - before;
     if (response.status !== 202) throw new Error(`upload answered ${response.status}`);
     const { log } = (await response.json()) as { log: { id: number } };
     let status = "queued";
@@ -144,13 +148,18 @@ try {
   console.log(`      of which storage read + gunzip alone  ${s(median(readMs))}`);
   console.log(`    result back from the worker             ${s(m("returnMs"))}`);
   console.log(`    save (encode, rows, status)             ${s(m("saveMs"))}`);
-  console.log(
-    `    status poll (25 ms) and the rest         ${s(result - upload - m("queuedMs") - m("columnsMs") - m("workerStartMs") - m("analysisMs") - m("returnMs") - m("saveMs"))}`,
+  const parts = (t: JobTimings) =>
+    t.queuedMs + t.columnsMs + t.workerStartMs + t.analysisMs + t.returnMs + t.saveMs;
+  const rest = uploads.map(
+    (u, i) => u.resultMs - u.uploadMs - (timings[i] ? parts(timings[i]) : 0),
   );
+  console.log(`    the rest (status poll every 25 ms)      ${s(median(rest))}`);
   console.log(`  server RSS idle                           ${idle.rssMB.toFixed(0)} MB`);
-  const uploadPeak = median(uploads.map((u) => u.uploadPeakMB));
   console.log(
-    `  server RSS peak during an upload          ${uploadPeak.toFixed(0)} MB (+${(uploadPeak - idle.rssMB).toFixed(0)} MB for a ${fileMB.toFixed(0)} MB file)`,
+    `  server RSS growth during an upload        +${uploads[0]!.uploadPeakMB.toFixed(0)} MB for a ${fileMB.toFixed(0)} MB file (the first; later ones +${uploads
+      .slice(1)
+      .map((u) => u.uploadPeakMB.toFixed(0))
+      .join(", +")} MB)`,
   );
   console.log(
     `  server RSS peak with the analysis         ${peak.toFixed(0)} MB (worker thread in the same process)`,
