@@ -14,7 +14,7 @@
  * It starts a MariaDB of its own in a temporary folder (BENCH_DATABASE_PORT, default 3468) and
  * builds the app first when build/ is missing.
  */
-import { spawnSync } from "node:child_process";
+import { spawn } from "node:child_process";
 import { openAsBlob, statSync } from "node:fs";
 import { join } from "node:path";
 import {
@@ -47,13 +47,16 @@ try {
   // The CLI on the same file, as a user runs it (whole process); run between the uploads below,
   // so that both see the same load on a shared machine.
   const cliMs: number[] = [];
-  const runCli = () => {
+  // Asynchronously: a blocked event loop would miss the server closing an idle keep-alive
+  // connection, and the next upload would be written into the closed socket (EPIPE).
+  const runCli = async () => {
     const t0 = performance.now();
-    const cli = spawnSync("npm", ["run", "-s", "analyse", "--", file, "--json"], {
+    const cli = spawn("npm", ["run", "-s", "analyse", "--", file, "--json"], {
       cwd: root,
       stdio: ["ignore", "ignore", "inherit"],
     });
-    if (cli.status !== 0) throw new Error(`npm run analyse exited with ${cli.status}`);
+    const code = await new Promise<number | null>((resolve) => cli.on("exit", resolve));
+    if (code !== 0) throw new Error(`npm run analyse exited with ${code}`);
     cliMs.push(performance.now() - t0);
   };
 
@@ -82,7 +85,7 @@ try {
     [];
   let blobKey = "";
   for (let i = 0; i < RUNS; i++) {
-    runCli();
+    await runCli();
     const before = memoryOf(pid).rssMB;
     peak = before;
     const form = new FormData();
