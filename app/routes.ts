@@ -46,6 +46,8 @@ export default [
   route("vehicles/:vehicleId/logs/:logId/result.csv", "routes/drive-log.result-csv.ts"),
   // Isolation and firing-order curves of several drive logs, for overlays.
   route("vehicles/:vehicleId/curves.json", "routes/vehicle.curves.ts"),
+  // The vehicle page's "re-analyse all" panel posts here (issue 17).
+  route("vehicles/:vehicleId/reanalyse", "routes/vehicle.reanalyse.ts"),
   // Resource routes (no component). The API answers JSON, errors as { error: { code, message } }.
   route("healthz", "routes/healthz.ts"),
   ...prefix("api/v1", [
@@ -58,6 +60,9 @@ export default [
     route("vehicles/:vehicleId/signoffs", "routes/api.v1.vehicle-signoffs.ts"),
     route("vehicles/:vehicleId/report.pdf", "routes/api.v1.vehicle-report.ts"),
     route("vehicles/:vehicleId/export.zip", "routes/api.v1.vehicle-export.ts"),
+    // Re-analyse all of a vehicle's drive logs, and the batch's progress (issue 17)
+    route("vehicles/:vehicleId/reanalyse", "routes/api.v1.vehicle-reanalyse.ts"),
+    route("vehicles/:vehicleId/reanalyse/:batchId", "routes/api.v1.vehicle-reanalyse-batch.ts"),
     route("signoffs", "routes/api.v1.signoffs.ts"),
     route("signoffs/:signoffId", "routes/api.v1.signoff.ts"),
     route("signoffs/:signoffId/report.pdf", "routes/api.v1.signoff-report.ts"),

@@ -41,6 +41,7 @@ const actionLabels: Record<AuditAction, string> = {
   "share-revoked": "Revoked a share link",
   "share-emailed": "Sent a share link by e-mail",
   "drive-log-deleted": "Deleted a drive log",
+  "vehicle-reanalysed": "Re-analysed a vehicle's drive logs",
   "signoff-proposed": "Proposed a sign-off",
   "signoff-approved": "Approved a sign-off",
   "signoff-rejected": "Rejected a sign-off",

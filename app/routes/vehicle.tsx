@@ -19,6 +19,7 @@ import { Card, Notice } from "~/components/page";
 import { TargetsCard, type TargetFormReply, type TargetSummary } from "~/components/targets-card";
 import { UploadCard } from "~/components/upload-card";
 import { ProgressNotes, UploadNotices } from "~/components/upload-notices";
+import { ReanalyseAllPanel } from "~/components/reanalyse-all";
 import { useLogProgress } from "~/components/use-log-progress";
 import { VehicleCard } from "~/components/vehicle-card";
 import { SignoffCard } from "~/components/signoff-card";
@@ -29,7 +30,7 @@ import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";
 import { idParam } from "~/lib/http/params";
 import { clientIp } from "~/lib/http/request.server";
-import { atLeast } from "~/lib/domain/roles";
+import { atLeast, canReanalyseAll } from "~/lib/domain/roles";
 import { vehicleFiringOrder } from "~/lib/domain/vehicle-firing-order";
 import type { TargetVerdict } from "~/lib/domain/targets";
 import { targetSchema } from "~/lib/domain/target-schema";
@@ -345,6 +346,9 @@ export default function VehiclePage() {
           </div>
         ) : null}
       </Card>
+      {canReanalyseAll(role) ? (
+        <ReanalyseAllPanel vehicleId={vehicle.id} logs={logs} firingOrder={vehicle.firingOrder} />
+      ) : null}
       {atLeast(role, "technician") && !vehicle.archived ? (
         <UploadCard
           vehicle={vehicle}

@@ -644,6 +644,22 @@ export const matrix: Record<string, Row> = {
       get("json", (fx) => `${v(fx)}/status`, team("viewer")),
     ],
   },
+  // Re-analyse all (issue 17): the vehicle page's panel posts a form; a setting out of range
+  // is refused (400) after the role check, so no cell queues anything.
+  "routes/vehicle.reanalyse.ts": {
+    probes: [
+      noBody((fx) => `${v(fx)}/reanalyse`),
+      get("json", (fx) => `${v(fx)}/reanalyse`, anyone, 405),
+      post(
+        "form",
+        (fx) => `${v(fx)}/reanalyse`,
+        "reanalyse-all",
+        () => withIntent("reanalyse-all", { revsPerBlock: "0" }),
+        team("engineer"),
+        400,
+      ),
+    ],
+  },
   "routes/drive-log.file.ts": {
     probes: [
       noAction("json", (fx) => `${log(fx)}/file`),
@@ -844,6 +860,41 @@ export const matrix: Record<string, Row> = {
         okText: "invalid_signoff",
       },
     ]),
+  },
+  // Re-analyse all (issue 17): queueing is the engineer's (a refused setting, 400, queues
+  // nothing); a batch's progress is readable by the team (an unknown batch is 404 for all).
+  "routes/api.v1.vehicle-reanalyse.ts": {
+    probes: [
+      ...api((w) => [
+        {
+          way: w,
+          method: "POST",
+          path: (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/reanalyse`,
+          json: { revsPerBlock: 0 },
+          access: team("engineer"),
+          ok: 400,
+          okText: "invalid_settings",
+        },
+      ]),
+      get("api-bearer", (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/reanalyse`, anyone, 405),
+    ],
+  },
+  "routes/api.v1.vehicle-reanalyse-batch.ts": {
+    probes: [
+      ...api((w) => [
+        get(
+          w,
+          (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/reanalyse/0123456789abcdef`,
+          team("viewer"),
+          404,
+          { okText: "No such re-analysis" },
+        ),
+      ]),
+      noAction(
+        "api-bearer",
+        (fx) => `/api/v1/vehicles/${fx.home.vehicleId}/reanalyse/0123456789abcdef`,
+      ),
+    ],
   },
   "routes/api.v1.signoffs.ts": {
     probes: [

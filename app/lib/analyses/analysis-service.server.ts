@@ -13,7 +13,7 @@ import { createAnalysisPool } from "../infra/worker-pool.server";
  * it on shutdown; a job cut short by a stop is claimed again once its heartbeat is stale.
  */
 export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = {}) {
-  const pool = createAnalysisPool();
+  const pool = createAnalysisPool({ warm: true });
   // Only a worker that died before it was ready gets here (a task's own failure goes to its job).
   pool.on("error", (error: Error) =>
     console.error(`analysis worker could not start: ${error.name}: ${error.message}`),
@@ -26,6 +26,10 @@ export function startAnalysisService(options: { beforeCommit?: BeforeCommit } = 
     store: blobStoreDescription(),
     pollMs: getEnv().ANALYSIS_POLL_MS,
     beforeCommit: options.beforeCommit,
+    onTimings:
+      getEnv().ANALYSIS_TIMINGS === "1"
+        ? (t) => console.log(`analysis timings: ${JSON.stringify(t)}`)
+        : undefined,
     onError(error) {
       // One line, and the same line at most once a minute (a stopped database must not flood the log).
       // Drizzle wraps the driver's error (with the SQL): the cause says what happened.

@@ -17,6 +17,7 @@ const STAGES = {
 } as const;
 
 export default async function analyseStoredLog(task: AnalysisTask): Promise<AnalysisTaskOutcome> {
+  const startedAt = Date.now();
   const source = blobStoreFrom(task.store).read(task.blobKey);
   let last = -1;
   const outcome = await analyseSource(
@@ -31,7 +32,8 @@ export default async function analyseStoredLog(task: AnalysisTask): Promise<Anal
     },
   );
   task.progress?.close();
-  if (outcome.ok) return { ok: true, result: outcome.value.result };
+  if (outcome.ok)
+    return { ok: true, result: outcome.value.result, ran: { startedAt, endedAt: Date.now() } };
   const e = outcome.error as LogError;
   if (e.code === "read_failed" && e.message.includes("ENOENT")) {
     // Storage lost the file (or this instance looks at another storage): not the file's fault,

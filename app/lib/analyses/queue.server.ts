@@ -4,7 +4,7 @@
  * runs them, and a job whose heartbeat went stale (its instance died) is claimed again. Only the
  * latest claim of a job may write its outcome (`ours`, `stillOurs`).
  */
-import { and, eq, isNull, lt, or } from "drizzle-orm";
+import { and, eq, inArray, isNull, lt, or } from "drizzle-orm";
 import { analysisJobs, driveLogs } from "~/lib/infra/db/schema-drive-logs";
 import type { LogError } from "../domain/drive-log-terms";
 import type { Db } from "../infra/db.server";
@@ -42,12 +42,39 @@ export async function enqueueAnalysis(db: Db | Tx, job: NewJob): Promise<number>
   return row!.id;
 }
 
+/**
+ * Queues the jobs of a batch (a whole vehicle re-analysed, batch.server.ts) in the caller's
+ * transaction: their drive logs queued in one statement, the jobs inserted in another.
+ */
+export async function enqueueBatch(tx: Tx, batchId: string, jobs: NewJob[]): Promise<void> {
+  if (jobs.length === 0) return;
+  await tx
+    .update(driveLogs)
+    .set({ status: "queued", progress: 0, stage: null, error: null })
+    .where(
+      inArray(
+        driveLogs.id,
+        jobs.map((j) => j.driveLogId),
+      ),
+    );
+  await tx.insert(analysisJobs).values(
+    jobs.map((j) => ({
+      teamId: j.teamId,
+      driveLogId: j.driveLogId,
+      settings: { ...j.settings },
+      batchId,
+    })),
+  );
+}
+
 export interface ClaimedJob {
   id: number;
   teamId: number;
   driveLogId: number;
   settings: JobSettings;
   attempts: number;
+  /** When the job was queued. */
+  queuedAt: Date;
   /** This claim's own mark in `claimed_by`: a later claim of the same job replaces it. */
   claimedBy: string;
 }
@@ -70,6 +97,7 @@ export async function claimJob(
         driveLogId: analysisJobs.driveLogId,
         settings: analysisJobs.settings,
         attempts: analysisJobs.attempts,
+        queuedAt: analysisJobs.createdAt,
       })
       .from(analysisJobs)
       .where(

@@ -40,6 +40,26 @@ export interface RunnerOptions {
   pollMs?: number;
   beforeCommit?: BeforeCommit;
   onError?: (error: unknown) => void;
+  /** Called with where each finished job's time went (the server logs it when asked). */
+  onTimings?: (timings: JobTimings) => void;
+}
+
+/** Where a job's time went, ms (bench/upload.bench.ts prints them as the server's profile). */
+export interface JobTimings {
+  jobId: number;
+  driveLogId: number;
+  /** From queueing the job to this claim. */
+  queuedMs: number;
+  /** Reading the file's head to choose the columns, and recording them. */
+  columnsMs: number;
+  /** From handing the task to the pool until the worker began it (a cold worker starts here). */
+  workerStartMs: number;
+  /** The worker's own run: storage read, decompress, parse and analysis. */
+  analysisMs: number;
+  /** Carrying the result back from the worker thread. */
+  returnMs: number;
+  /** The save transaction (result encoding, rows, status). */
+  saveMs: number;
 }
 
 // The runners of this process. On globalThis, not in this module: the server's runner is loaded
@@ -87,13 +107,20 @@ export function startJobRunner(options: RunnerOptions) {
         running--;
         return;
       }
-      const work = runClaimedJob(options, store, job, stopping.signal, waiting)
+      // A slot is a worker: it is freed as soon as the worker has answered, so the next job
+      // starts while this one's result is still being saved (every worker stays busy).
+      let freed = false;
+      const free = () => {
+        if (freed) return;
+        freed = true;
+        running--;
+        if (!stopped) void tick();
+      };
+      const work = runClaimedJob(options, store, job, stopping.signal, waiting, free)
         .catch((error) => options.onError?.(error))
         .finally(() => {
-          running--;
+          free();
           active.delete(work);
-          // A freed slot takes the next queued job now, not at the next poll.
-          if (!stopped) void tick();
         });
       active.add(work);
     }
@@ -124,8 +151,10 @@ async function runClaimedJob(
   claimed: ClaimedJob,
   signal: AbortSignal,
   waiting: Set<(error: unknown) => void>,
+  freeWorker: () => void,
 ) {
   const { db } = options;
+  const claimedAt = Date.now();
   const [log] = await db
     .select({ blobKey: driveLogs.blobKey, sizeBytes: driveLogs.sizeBytes })
     .from(driveLogs)
@@ -138,6 +167,7 @@ async function runClaimedJob(
   );
   const job: ClaimedJob = { ...claimed, settings: { ...claimed.settings, applied } };
   await recordSettings(db, job);
+  const handedAt = Date.now();
 
   // Until its worker reports progress the task may still wait for a worker: a pool 'error'
   // (a worker that died before it was ready) then fails it (startJobRunner).
@@ -186,7 +216,9 @@ async function runClaimedJob(
     clearInterval(progressTimer);
     clearInterval(heartbeat);
     channel.port2.close();
+    freeWorker();
   }
+  const answeredAt = Date.now();
 
   if (!outcome.ok) {
     await failJob(db, job, outcome.error);
@@ -197,7 +229,19 @@ async function runClaimedJob(
   } catch (error) {
     const reason = error instanceof Error ? error.message.split("\n")[0]! : String(error);
     await retryJob(db, job, reason);
+    return;
   }
+  const ran = outcome.ran ?? { startedAt: handedAt, endedAt: answeredAt };
+  options.onTimings?.({
+    jobId: job.id,
+    driveLogId: job.driveLogId,
+    queuedMs: Math.max(0, claimedAt - claimed.queuedAt.getTime()),
+    columnsMs: handedAt - claimedAt,
+    workerStartMs: Math.max(0, ran.startedAt - handedAt),
+    analysisMs: ran.endedAt - ran.startedAt,
+    returnMs: Math.max(0, answeredAt - ran.endedAt),
+    saveMs: Date.now() - answeredAt,
+  });
 }
 
 /**

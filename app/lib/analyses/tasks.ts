@@ -21,5 +21,10 @@ export interface AnalysisTask {
 }
 
 export type AnalysisTaskOutcome =
-  | { ok: true; result: AnalysisResult }
+  | {
+      ok: true;
+      result: AnalysisResult;
+      /** When the worker began and ended the task (ms since the epoch), for the runner's timings. */
+      ran?: { startedAt: number; endedAt: number };
+    }
   | { ok: false; error: LogError; warnings: { code: string; message: string }[] };

@@ -35,6 +35,8 @@ export type AuditAction =
   | "share-emailed"
   // Drive logs deleted (issue 16), named by id, file and vehicle.
   | "drive-log-deleted"
+  // Every drive log of a vehicle re-analysed at once (issue 17), named by vehicle and batch.
+  | "vehicle-reanalysed"
   // Sign-offs (issue 16): every step, named by sign-off id and damper variant.
   | "signoff-proposed"
   | "signoff-approved"

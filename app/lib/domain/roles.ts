@@ -34,6 +34,11 @@ export function canSignOff(role: Role): boolean {
   return atLeast(role, "engineer");
 }
 
+/** Engineers and admins re-analyse all of a vehicle's drive logs at once (issue 17). */
+export function canReanalyseAll(role: Role): boolean {
+  return atLeast(role, "engineer");
+}
+
 /** Technicians and up write comments (viewers read them). */
 export function canComment(role: Role): boolean {
   return atLeast(role, "technician");

@@ -51,6 +51,9 @@ const envSchema = z.object({
   // How often the job runner looks for queued analyses, in ms. A new job of this instance wakes
   // it at once; the poll finds jobs queued by other instances and ones whose instance died.
   ANALYSIS_POLL_MS: z.coerce.number().int().min(10).max(86_400_000).default(500),
+  // "1": one line per finished analysis saying where its time went (queue, worker start,
+  // analysis, save); bench/upload.bench.ts reads it as the server's profile.
+  ANALYSIS_TIMINGS: z.enum(["0", "1"]).default("0"),
 });
 
 const checkedEnv = envSchema

@@ -9,14 +9,19 @@ import { getEnv } from "./env.server";
  * tsx, as the server does (docs/decisions/003-custom-server.md). Each worker has a JS heap limit
  * (ANALYSIS_WORKER_MEMORY_MB): a drive log that needs more ends its worker with
  * ERR_WORKER_OUT_OF_MEMORY, the job fails with a message, and piscina starts a fresh worker.
+ *
+ * `warm` (the server's pool) starts every worker at once and keeps it: a worker's start-up
+ * (thread, tsx, loading the pipeline) takes 0.7–0.9 s on a 2-core machine, which a cold pool
+ * adds to the first analysis after each idle minute (bench/upload.bench.ts). A worker that
+ * fails while starting is not started over and over (piscina stops after the first failure).
  */
 export function createAnalysisPool(
-  options: { maxThreads?: number; memoryMb?: number; filename?: string } = {},
+  options: { maxThreads?: number; memoryMb?: number; filename?: string; warm?: boolean } = {},
 ): Piscina {
   const maxThreads = options.maxThreads ?? Math.max(1, availableParallelism() - 1);
   return new Piscina({
     filename: options.filename ?? workerFile(),
-    minThreads: 0,
+    minThreads: options.warm ? maxThreads : 0,
     maxThreads,
     idleTimeout: 60_000,
     execArgv: ["--import", "tsx"],

@@ -122,8 +122,13 @@ export const analysisJobs = mysqlTable(
     lastError: text("last_error"),
     createdAt: createdAt(),
     finishedAt: at("finished_at"),
+    /** The re-analysis of a whole vehicle this job belongs to (app/lib/analyses/batch.server.ts). */
+    batchId: varchar("batch_id", { length: 32 }),
   },
-  (t) => [index("analysis_jobs_status_idx").on(t.status, t.id)],
+  (t) => [
+    index("analysis_jobs_status_idx").on(t.status, t.id),
+    index("analysis_jobs_batch_idx").on(t.batchId),
+  ],
 );
 
 /** A finished analysis (versioned per drive log); the signal core's result JSON, compressed. */
