@@ -28,7 +28,7 @@ const GOAL_MB = 150;
 const LARGE_S = Number(process.env.BENCH_LARGE_SECONDS ?? 6500);
 const SMALL_S = 670; // ≈ 100 MB of CSV
 
-const setup = benchSetup("large-log", 3);
+const setup = benchSetup("large-log", 4);
 const { dir, run } = setup;
 
 /** Whole-process wall time (s) and peak RSS (MB) of the compiled CLI on `file`. */

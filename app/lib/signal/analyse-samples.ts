@@ -146,6 +146,7 @@ export function analyseSamples(
           revsPerBlock: R,
           binRpm: o.binRpm,
           sampleRateHz: fs,
+          inPlace: true,
         });
       },
       rattle: (t) =>

@@ -159,6 +159,7 @@ export function analyseDriveLog(
               order: q,
               revsPerBlock: R,
               binRpm,
+              inPlace: true,
             })
           : null,
       rattle: (t) =>

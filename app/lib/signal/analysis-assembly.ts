@@ -113,6 +113,7 @@ export function setupAnalysis(
 export interface SampleParts {
   segments: Segment[];
   durationS: number;
+  /** Called after everything else that reads the blocks: it may reuse their arrays. */
   transients: (tracked: TrackedBlocks) => ReturnType<typeof transientResult> | null;
   rattle: (tracked: TrackedBlocks) => RattleCheck | null;
   spectrum: (segment: Segment) => TimeSpectrum | null;
@@ -148,11 +149,16 @@ export function finishAnalysis(
 
   onProgress?.("results", 0);
   const { segments } = parts;
+  // What reads every block first: the transients may then reuse the blocks' arrays.
+  const blocks = tracked.blockCount;
+  const samplesPerRevRange = tracked.samplesPerRevRange;
+  const orderCurves = orders.map((order) => orderCurve(tracked, order, binRpm));
+  const map = orderMap(tracked, topOrder);
+  const idle = parts.rattle(tracked);
+  const noTransients = () => isolationCurve(tracked, q, binRpm, gearboxNoiseFloor(tracked));
   // Transients: fast spans measured by the order filter, their blocks left out of the curve.
   const part = parts.transients(tracked);
-  const isolation = part
-    ? part.isolation
-    : isolationCurve(tracked, q, binRpm, gearboxNoiseFloor(tracked));
+  const isolation = part ? part.isolation : noTransients();
   const nearNoise = isolation.filter((p) => !p.aboveNoise).length;
   if (nearNoise > 0)
     warnings.push({
@@ -164,7 +170,6 @@ export function finishAnalysis(
   if (!res.found) warnings.push({ code: "no_resonance", message: res.reason });
   const fit = fitTwoMassModel(measured, q);
   if (!fit.ok) warnings.push({ code: "no_model_fit", message: fit.reason });
-  const idle = parts.rattle(tracked);
   const spectrumSegment = pickSpectrumSegment(segments);
   const spectrum = spectrumSegment ? parts.spectrum(spectrumSegment) : null;
   const result: AnalysisResult = {
@@ -175,8 +180,8 @@ export function finishAnalysis(
       cylinders,
       stroke,
       firingOrder: q,
-      samplesPerRev: tracked.samplesPerRevRange[1],
-      samplesPerRevMin: tracked.samplesPerRevRange[0],
+      samplesPerRev: samplesPerRevRange[1],
+      samplesPerRevMin: samplesPerRevRange[0],
       samplesPerRevFixed: grid.fixedSamplesPerRev !== null,
       revsPerBlock: R,
       overlap,
@@ -189,10 +194,10 @@ export function finishAnalysis(
       window: "hann-periodic",
       detrend: "linear",
     },
-    blocks: tracked.blockCount,
+    blocks,
     isolation,
-    orderCurves: orders.map((order) => orderCurve(tracked, order, binRpm)),
-    orderMap: orderMap(tracked, topOrder),
+    orderCurves,
+    orderMap: map,
     segments,
     idle,
     resonance: res.found ? { rpm: res.rpm, isolationDb: res.isolationDb } : null,

@@ -9,15 +9,35 @@ import { channelTable } from "./channel-table.ts";
 import { parseCliArgs, USAGE } from "./cli-args.ts";
 import { listChannelsOfFile } from "./ingest-stream.ts";
 import { startBlockHelper, stopBlockHelper } from "./block-helper.ts";
-import { analyseFile } from "./cli-pipeline.ts";
-import { analyseSource, type FileAnalysis, type PipelineStage } from "./pipeline.ts";
+import { ingestFileParallel } from "./ingest-parallel.ts";
+import {
+  analyseSource,
+  type FileAnalysis,
+  type PipelineInput,
+  type PipelineStage,
+} from "./pipeline.ts";
 import type { SignalIssue } from "./types.ts";
 
 /** Running from the bundle (build/cli, scripts/build-cli.mjs), not from the TypeScript source. */
 const COMPILED = !import.meta.url.endsWith(".ts");
 
+/**
+ * The pipeline as the command runs it. Compiled, a CSV analysed in memory is read in two halves
+ * on two threads (ingest-parallel.ts); under tsx each thread would first load the TypeScript
+ * loader, which costs more than it saves. Same output either way (cli-bin.test.ts).
+ */
+export function analyseFile(
+  input: PipelineInput & { source: string },
+  onProgress?: (stage: PipelineStage, fraction: number) => void,
+) {
+  return analyseSource(
+    COMPILED ? { ...input, ingestWholeFile: ingestFileParallel } : input,
+    onProgress,
+  );
+}
+
 // The bundle's pipeline and threads, for bench/cli.bench.ts's stage profile of compiled code.
-export { analyseFile, startBlockHelper, stopBlockHelper };
+export { startBlockHelper, stopBlockHelper };
 
 /** One line naming the problem, its row and column. */
 export function describeIssue(file: string, e: SignalIssue): string {
@@ -140,15 +160,12 @@ export async function main(
     return 0;
   }
   const progress = err === process.stderr ? terminalProgress() : undefined;
-  // Compiled, the command uses the second core: a large CSV is read in two halves
-  // (ingest-parallel.ts) and half of the order-tracking blocks go to a helper thread
-  // (block-helper.ts). Under tsx each thread would first load the TypeScript loader, which
-  // costs more than it saves: `npm run analyse` stays on one thread. Same output either way.
+  // Compiled, the command uses the second core: half of the order-tracking blocks go to a
+  // helper thread (block-helper.ts), and see analyseFile. `npm run analyse` stays on one thread.
   if (COMPILED) startBlockHelper();
-  const input = { ...cmd, source: cmd.file };
-  const outcome = await (
-    COMPILED ? analyseFile(input, progress) : analyseSource(input, progress)
-  ).finally(stopBlockHelper);
+  const outcome = await analyseFile({ ...cmd, source: cmd.file }, progress).finally(
+    stopBlockHelper,
+  );
   if (progress) err.write("\r\x1b[K");
   if (!outcome.ok) {
     err.write(`${describeIssue(cmd.file, outcome.error)}\n`);

@@ -167,6 +167,8 @@ export function transientResult(args: {
   order: number;
   revsPerBlock: number;
   binRpm: number;
+  /** The caller reads `tracked` no more: its arrays may be reused (blocksOutside). */
+  inPlace?: boolean;
 }): {
   isolation: IsolationPoint[];
   transient: TransientInfo;
@@ -186,11 +188,12 @@ export function transientResultOf(
     revsPerBlock: number;
     binRpm: number;
     sampleRateHz: number;
+    inPlace?: boolean;
   },
 ): ReturnType<typeof transientResult> {
   const { order: q, binRpm, revsPerBlock: R } = args;
   const spans = part.measures.map((m) => m.span);
-  const steady = blocksOutside(args.tracked, spans);
+  const steady = blocksOutside(args.tracked, spans, args.inPlace);
   const binArgs = { order: q, binRpm, sampleRateHz: args.sampleRateHz, revsPerBlock: R };
   const isolation = mergeByRpm(
     isolationCurve(steady, q, binRpm, gearboxNoiseFloor(steady)),

@@ -94,10 +94,13 @@ export function mergeByRpm<T extends { rpm: number }>(blocks: readonly T[], filt
 /**
  * The blocks that lie outside every span (time ranges in s), as a TrackedBlocks of their own so
  * the existing curve functions (isolationCurve, twistCurve, gearboxNoiseFloor) read only them.
+ * `inPlace` moves the kept blocks to the front of tracked's own arrays instead of copying them
+ * (for a caller that reads `tracked` no more: a long log's block spectra are its largest part).
  */
 export function blocksOutside(
   tracked: TrackedBlocks,
   spans: readonly { startS: number; endS: number }[],
+  inPlace = false,
 ): TrackedBlocks {
   if (spans.length === 0) return tracked;
   const keep: number[] = [];
@@ -108,9 +111,11 @@ export function blocksOutside(
   }
   const bins = tracked.binsPerBlock;
   const pick = (x: Float64Array, w: number) => {
-    const out = new Float64Array(keep.length * w);
+    // Kept block i comes from block b ≥ i: moving them forward in order never overwrites one
+    // still to be moved.
+    const out = inPlace ? x : new Float64Array(keep.length * w);
     keep.forEach((b, i) => out.set(x.subarray(b * w, (b + 1) * w), i * w));
-    return out;
+    return inPlace ? x.subarray(0, keep.length * w) : out;
   };
   return {
     ...tracked,

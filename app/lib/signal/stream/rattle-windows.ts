@@ -12,6 +12,7 @@ import type { TrackedBlocks } from "../order-tracking.ts";
 import { round } from "../order-curves.ts";
 import { idleOrderAccel, rattleResult, type RattleCheck, type RattleSpan } from "../rattle.ts";
 import type { SampleSource } from "../sample-source.ts";
+import { slidingMax } from "../sliding-max.ts";
 import type { Segment } from "../segments.ts";
 import { TRACE_POINTS } from "../traces.ts";
 import { filterMargin, filterWindow } from "./filtered-window.ts";
@@ -83,10 +84,10 @@ export function rattleWindows(args: {
         acc[j] = Math.abs((y[j + 1]! - y[j - 1]!) / (t[j + 1]! - t[j - 1]!));
       const from = Math.max(c0, guard);
       const to = Math.min(c1, L - guard);
+      const envelope = slidingMax(acc, half, from - r0, Math.max(from, to) - r0);
       for (let i = from; i < to; i++) {
         const j = i - r0;
-        let env = 0;
-        for (let m = j - half; m <= j + half; m++) env = Math.max(env, acc[m]!);
+        const env = envelope[i - from]!;
         const a = acc[j]!;
         peak = Math.max(peak, a);
         if (env > limit) {
