@@ -23,7 +23,7 @@ import { frameRpm, segmentsFromFrames, type Segment } from "./segments.ts";
 import { sourceBlock } from "./source-block.ts";
 import { spectrumOfRange } from "./time-spectrum.ts";
 import { TRACE_POINTS, type SpeedTrace } from "./traces.ts";
-import { idleOf, transientResultOf, type TransientPart } from "./transient-analysis.ts";
+import { emptyTransientPart, idleOf, transientResultOf } from "./transient-analysis.ts";
 import type { DriveLog, LogSection, Outcome } from "./types.ts";
 import { indexAtTime, rattleWindows } from "./stream/rattle-windows.ts";
 import { scanSource, type StretchScan } from "./stream/scan.ts";
@@ -132,7 +132,7 @@ export function analyseSamples(
       durationS: tLast - tFirst,
       transients: (t) => {
         if (!o.transients) return null;
-        const part: TransientPart = { measures: [], events: [], blocks: [] };
+        const part = emptyTransientPart();
         const idleRpm = idleOf(segments);
         for (const s of transientScans) {
           const reader = readerOf(source, s);

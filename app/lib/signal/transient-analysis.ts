@@ -7,12 +7,7 @@
 import { adaptiveBlocks, type AdaptiveBlock } from "./adaptive-blocks.ts";
 import { integrateAngle, type AngleGrid } from "./angle-grid.ts";
 import { transientEvents } from "./events.ts";
-import {
-  gearboxNoiseFloor,
-  isolationCurve,
-  NOISE_MARGIN,
-  type IsolationPoint,
-} from "./isolation.ts";
+import { gearboxNoiseFloor, isolationCurve, type IsolationPoint } from "./isolation.ts";
 import { filtfilt, type Biquad } from "./lowpass.ts";
 import { round } from "./order-curves.ts";
 import type { TrackedBlocks } from "./order-tracking.ts";
@@ -27,19 +22,36 @@ import {
   slewLimitRpmS,
   TRANSIENT_FILTER,
   RESOLVE_RATIO,
-  STANDSTILL_RPM,
+  type FastSpan,
 } from "./transient.ts";
-import { measureSpan, type SpanMeasure } from "./span-measure.ts";
-import { blocksOutside, filterIsolation, filterTwist, mergeByRpm } from "./transient-curves.ts";
+import { measureSpan } from "./span-measure.ts";
+import {
+  addMeasure,
+  blocksOutside,
+  filterIsolation,
+  filterTwist,
+  mergeByRpm,
+  type FilterBins,
+} from "./transient-curves.ts";
 import { TWIST_DRIFT_CUTOFF_HZ, twistCurve } from "./twist.ts";
 import type { DriveLog } from "./types.ts";
 
 export interface TransientPart {
   /** Spans with times in the log's terms (indices relative to their section). */
-  measures: SpanMeasure[];
+  spans: FastSpan[];
+  /** The order filter's samples of every span, per rpm bin (addMeasure, transient-curves.ts). */
+  bins: FilterBins;
   events: TransientEvent[];
   blocks: AdaptiveBlock[];
 }
+
+/** A TransientPart with nothing measured yet. */
+export const emptyTransientPart = (): TransientPart => ({
+  spans: [],
+  bins: new Map(),
+  events: [],
+  blocks: [],
+});
 
 export function analyseTransients(args: {
   log: DriveLog;
@@ -49,11 +61,12 @@ export function analyseTransients(args: {
   grid: AngleGrid;
   order: number;
   revsPerBlock: number;
+  binRpm: number;
   idleRpm: number | null;
 }): TransientPart {
   const { log, order: q } = args;
   const fs = log.sampleRateHz;
-  const out: TransientPart = { measures: [], events: [], blocks: [] };
+  const out = emptyTransientPart();
   for (const s of sectionsOf(log)) {
     const timeS = log.timeS.subarray(s.startIndex, s.endIndex);
     const crankRadS = log.crankRadS.subarray(s.startIndex, s.endIndex);
@@ -72,7 +85,8 @@ export function analyseTransients(args: {
     const measures = spans.map((span) =>
       measureSpan({ timeS, angleRad, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, span }),
     );
-    out.measures.push(...measures);
+    out.spans.push(...spans);
+    for (const m of measures) addMeasure(out.bins, m, q, args.binRpm);
     out.events.push(
       ...transientEvents({ timeS, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, measures }),
     );
@@ -105,24 +119,13 @@ export function analyseTransients(args: {
  * reaches no lower, or only the blocks measured it).
  */
 export function unresolvedReason(
-  measures: readonly SpanMeasure[],
+  bins: FilterBins,
   lowestRpm: number | null,
   binRpm: number,
 ): string | null {
   if (lowestRpm === null) return null;
-  const below = lowestRpm - binRpm / 2;
-  const counts = [0, 0, 0, 0, 0];
-  for (const m of measures)
-    for (let j = 0; j < m.rpm.length; j++) {
-      const rpm = m.rpm[j]!;
-      if (rpm >= below || rpm < Math.max(STANDSTILL_RPM, below - binRpm)) continue;
-      let code = m.unresolved[j]!;
-      if (code === 0) {
-        const g = Math.hypot(m.gRe[j]!, m.gIm[j]!);
-        code = g < NOISE_MARGIN * m.noiseRadS[j]! ? 4 : 0;
-      }
-      counts[code]!++;
-    }
+  // The bin below lowestRpm: samples in [lowestRpm − 1.5·binRpm, lowestRpm − 0.5·binRpm).
+  const counts = bins.get(Math.round(lowestRpm / binRpm) - 1)?.reasons ?? [0, 0, 0, 0, 0];
   let best = 1;
   for (let c = 2; c <= 4; c++) if (counts[c]! > counts[best]!) best = c;
   if (counts[best] === 0) return null;
@@ -192,12 +195,12 @@ export function transientResultOf(
   },
 ): ReturnType<typeof transientResult> {
   const { order: q, binRpm, revsPerBlock: R } = args;
-  const spans = part.measures.map((m) => m.span);
+  const spans = part.spans;
   const steady = blocksOutside(args.tracked, spans, args.inPlace);
   const binArgs = { order: q, binRpm, sampleRateHz: args.sampleRateHz, revsPerBlock: R };
   const isolation = mergeByRpm(
     isolationCurve(steady, q, binRpm, gearboxNoiseFloor(steady)),
-    filterIsolation(part.measures, binArgs),
+    filterIsolation(part.bins, binArgs),
   );
   const lowest = lowestResolved(isolation);
   const r3 = (x: number) => round(x, 3);
@@ -215,7 +218,7 @@ export function transientResultOf(
       },
       spans: spans.map((s) => ({ kind: s.kind, startS: r3(s.startS), endS: r3(s.endS) })),
       lowestResolvedRpm: lowest,
-      unresolvedReason: unresolvedReason(part.measures, lowest, binRpm),
+      unresolvedReason: unresolvedReason(part.bins, lowest, binRpm),
       blocks: part.blocks.map((b) => ({
         startS: r3(b.startS),
         endS: r3(b.endS),
@@ -234,7 +237,7 @@ export function transientResultOf(
           deg: round(p.deg, 4),
           method: "blocks" as const,
         })),
-        filterTwist(part.measures, binArgs),
+        filterTwist(part.bins, binArgs),
       ),
       driftCutoffHz: TWIST_DRIFT_CUTOFF_HZ,
     },

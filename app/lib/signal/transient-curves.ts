@@ -14,40 +14,69 @@ import { NOISE_MARGIN, type IsolationPoint } from "./isolation.ts";
 import { round } from "./order-curves.ts";
 import type { TrackedBlocks } from "./order-tracking.ts";
 import type { SpanMeasure } from "./span-measure.ts";
+import { STANDSTILL_RPM } from "./transient.ts";
 import { twistAmplitudeDeg, type TwistPoint } from "./twist.ts";
 
 export type Method = "blocks" | "filter";
 
-interface Bin {
+/** The filter's samples in one rpm bin, summed. */
+export interface FilterBin {
+  /** Sums over the resolved samples of |C|², |G|², noise² and twist², rad²/s² and deg². */
   c2: number;
   g2: number;
   noise2: number;
   twist2: number;
-  /** Log samples in the bin (stored samples × stride), and stored samples. */
+  /** Resolved log samples in the bin (stored samples × stride), and stored samples. */
   n: number;
   k: number;
+  /**
+   * Stored samples at or above standstill by what kept them out of the curve (unresolvedReason,
+   * transient-analysis.ts): 0 none, 1–3 SpanMeasure's unresolved codes, 4 the gearbox amplitude
+   * within the noise.
+   */
+  reasons: [number, number, number, number, number];
 }
 
-function binSamples(measures: readonly SpanMeasure[], order: number, binRpm: number) {
-  const bins = new Map<number, Bin>();
-  for (const m of measures) {
-    for (let j = 0; j < m.rpm.length; j++) {
-      if (m.unresolved[j]) continue;
-      const rpm = m.rpm[j]!;
-      const key = Math.round(rpm / binRpm) * binRpm;
-      const e = bins.get(key) ?? { c2: 0, g2: 0, noise2: 0, twist2: 0, n: 0, k: 0 };
-      const c = { re: m.cRe[j]!, im: m.cIm[j]! };
-      const g = { re: m.gRe[j]!, im: m.gIm[j]! };
-      e.c2 += c.re * c.re + c.im * c.im;
-      e.g2 += g.re * g.re + g.im * g.im;
-      e.noise2 += m.noiseRadS[j]! ** 2;
-      e.twist2 += twistAmplitudeDeg(c, g, (order * rpm) / 60) ** 2;
-      e.n += m.stride;
-      e.k++;
+/**
+ * The filter's samples of every span measured so far, per rpm bin index round(rpm / binRpm):
+ * kept in place of the samples themselves, which grow with the log (a 30 s run-up at 5 kHz
+ * stores about 7 MB of them).
+ */
+export type FilterBins = Map<number, FilterBin>;
+
+/** Adds one span's samples to `bins`, in the samples' order (the sums do not depend on windows). */
+export function addMeasure(bins: FilterBins, m: SpanMeasure, order: number, binRpm: number): void {
+  for (let j = 0; j < m.rpm.length; j++) {
+    const rpm = m.rpm[j]!;
+    const key = Math.round(rpm / binRpm);
+    let e = bins.get(key);
+    if (!e) {
+      e = { c2: 0, g2: 0, noise2: 0, twist2: 0, n: 0, k: 0, reasons: [0, 0, 0, 0, 0] };
       bins.set(key, e);
     }
+    const c = { re: m.cRe[j]!, im: m.cIm[j]! };
+    const g = { re: m.gRe[j]!, im: m.gIm[j]! };
+    const code = m.unresolved[j]!;
+    if (rpm >= STANDSTILL_RPM)
+      e.reasons[
+        code === 0 && Math.hypot(g.re, g.im) < NOISE_MARGIN * m.noiseRadS[j]! ? 4 : code
+      ]!++;
+    if (code) continue;
+    e.c2 += c.re * c.re + c.im * c.im;
+    e.g2 += g.re * g.re + g.im * g.im;
+    e.noise2 += m.noiseRadS[j]! ** 2;
+    e.twist2 += twistAmplitudeDeg(c, g, (order * rpm) / 60) ** 2;
+    e.n += m.stride;
+    e.k++;
   }
-  return [...bins.entries()].sort((a, b) => a[0] - b[0]);
+}
+
+/** The bins with resolved samples, ascending: [rpm, bin]. */
+function resolvedBins(bins: FilterBins, binRpm: number): [number, FilterBin][] {
+  return [...bins.entries()]
+    .filter(([, e]) => e.k > 0)
+    .sort((a, b) => a[0] - b[0])
+    .map(([key, e]) => [key * binRpm, e]);
 }
 
 const blocksOf = (samples: number, rpm: number, sampleRateHz: number, R: number) =>
@@ -55,11 +84,11 @@ const blocksOf = (samples: number, rpm: number, sampleRateHz: number, R: number)
 
 /** Isolation per rpm bin from the filter's samples (method "filter"). */
 export function filterIsolation(
-  measures: readonly SpanMeasure[],
-  args: { order: number; binRpm: number; sampleRateHz: number; revsPerBlock: number },
+  bins: FilterBins,
+  args: { binRpm: number; sampleRateHz: number; revsPerBlock: number },
 ): IsolationPoint[] {
   const out: IsolationPoint[] = [];
-  for (const [rpm, e] of binSamples(measures, args.order, args.binRpm)) {
+  for (const [rpm, e] of resolvedBins(bins, args.binRpm)) {
     if (!(e.c2 > 0 && e.g2 > 0)) continue;
     out.push({
       rpm,
@@ -74,10 +103,10 @@ export function filterIsolation(
 
 /** Twist amplitude per rpm bin from the filter's samples, degrees 0-peak. */
 export function filterTwist(
-  measures: readonly SpanMeasure[],
-  args: { order: number; binRpm: number; sampleRateHz: number; revsPerBlock: number },
+  bins: FilterBins,
+  args: { binRpm: number; sampleRateHz: number; revsPerBlock: number },
 ): (TwistPoint & { method: Method })[] {
-  return binSamples(measures, args.order, args.binRpm).map(([rpm, e]) => ({
+  return resolvedBins(bins, args.binRpm).map(([rpm, e]) => ({
     rpm,
     deg: round(Math.sqrt(e.twist2 / e.k), 4),
     blocks: blocksOf(e.n, rpm, args.sampleRateHz, args.revsPerBlock),

@@ -18,6 +18,7 @@ import { RPM_PER_RAD_S } from "../firing-order.ts";
 import { filtfilt } from "../lowpass.ts";
 import { measureSpan } from "../span-measure.ts";
 import type { TransientPart } from "../transient-analysis.ts";
+import { addMeasure } from "../transient-curves.ts";
 import {
   FAST_FRAME_S,
   MAX_SPEED_CHANGE_PER_BLOCK,
@@ -169,6 +170,7 @@ export function stretchTransients(
         maxRevs: setup.o.revsPerBlock,
       }),
     );
-    out.measures.push({ ...m, span });
+    out.spans.push(span);
+    addMeasure(out.bins, m, q, setup.o.binRpm);
   }
 }
