@@ -26,6 +26,7 @@ import {
   type SampleWindow,
 } from "../app/lib/signal/sample-source.ts";
 import type { DriveLog } from "../app/lib/signal/types.ts";
+import { ratioLine } from "./goal-lines.ts";
 
 const RATE_HZ = 5000;
 const ORDER = 2;
@@ -220,6 +221,22 @@ if (process.argv[2] === "child") {
   );
   console.log(
     `  goal: ≤ ${GOAL_MB} MB → ${large.rssMB <= GOAL_MB ? "met" : "NOT met"}; large / small = ${(large.rssMB / smallMB).toFixed(2)} (goal ≤ 1.10 → ${large.rssMB <= 1.1 * smallMB ? "met" : "NOT met"})`,
+  );
+  ratioLine(
+    "1",
+    "windowed analysis peak RSS, 34 M rows vs goal",
+    large.rssMB,
+    "MB",
+    GOAL_MB,
+    "≤ 1",
+  );
+  ratioLine(
+    "1",
+    "windowed analysis peak RSS, 34 M vs 3 M rows",
+    large.rssMB,
+    "MB",
+    smallMB,
+    "≤ 1.1",
   );
   const memory = [0, 1, 2].map(() => run("memory", SMALL_ROWS));
   const bMs = median(batch.map((s) => s.ms));

@@ -30,6 +30,7 @@ import {
   startBenchServer,
   type BenchServer,
 } from "./bench-server.ts";
+import { ratioLine } from "./goal-lines.ts";
 
 const SECONDS = Number(process.env.CHARTS_SECONDS ?? "10");
 const ROUNDS = Number(process.env.CHARTS_ROUNDS ?? "3");
@@ -212,11 +213,20 @@ try {
     console.log(
       `    ratio chart JSON / static file (${enc}): ${(json / file).toFixed(2)}  (goal ≥ 0.8)  ${json / file >= 0.8 ? "ok" : "MISSED"}`,
     );
+    ratioLine("4", `chart JSON vs static file, ${enc}`, json, "req/s", file, "≥ 0.8");
   }
   if (notModified.length) {
     const { result: r } = pick(notModified);
     const got304 = notModified.every((x) => (x.result.statusCodeStats["304"]?.count ?? 0) > 0);
-    line("charts.json If-None-Match", 0, notModified);
+    const rate304 = line("charts.json If-None-Match", 0, notModified);
+    ratioLine(
+      "4",
+      "chart JSON answered 304 (If-None-Match)",
+      rate304,
+      "req/s",
+      null,
+      "304 on every analysis JSON",
+    );
     console.log(
       `    answered 304: ${got304 ? "yes" : "NO"} (${r.statusCodeStats["304"]?.count ?? 0} in the median run)`,
     );
@@ -230,6 +240,15 @@ try {
     console.log(
       `    beside the server's ${jsonCpu.toFixed(2)} CPU ms per chart request (gzip): ${((100 * lookupCpuMs) / jsonCpu).toFixed(0)} % (the database's own CPU comes on top)`,
     );
+  if (PARTS.has("lookup") && rows.has("json gzip"))
+    ratioLine(
+      "4",
+      "session + team lookup CPU vs a chart request's CPU",
+      lookupCpuMs,
+      "ms",
+      jsonCpu,
+      "small",
+    );
   if (page.length) {
     const pageRate = line(`drive-log page (${PAGE_CONNECTIONS} conns)`, "html", page);
     const p975 = pick(page).result.latency.p97_5;
@@ -237,6 +256,22 @@ try {
     console.log(`    answers: ${codes.map(([c, x]) => `${x.count}× ${c}`).join(", ") || "none"}`);
     console.log(
       `    goal ≥ 150 req/s and p97.5 < 1000 ms: ${pageRate >= 150 && p975 < 1000 ? "ok" : "MISSED"}`,
+    );
+    ratioLine(
+      "5",
+      `drive-log page, ${PAGE_CONNECTIONS} connections`,
+      pageRate,
+      "req/s",
+      150,
+      "≥ 1",
+    );
+    ratioLine(
+      "5",
+      `drive-log page p97.5, ${PAGE_CONNECTIONS} connections`,
+      p975,
+      "ms",
+      1000,
+      "< 1",
     );
     line("drive-log page (10 conns)", "html", fewPage);
   }

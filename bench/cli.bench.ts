@@ -20,6 +20,7 @@ import { join } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import type * as Cli from "../app/lib/signal/cli.ts";
 import type { PipelineStage } from "../app/lib/signal/pipeline.ts";
+import { ratioLine, skippedLine } from "./goal-lines.ts";
 
 const GOAL_RATIO = 0.5;
 /**
@@ -74,7 +75,10 @@ try {
     execFileSync(process.execPath, [join(root, "scripts/build-cli.mjs")], { stdio: "inherit" });
   const py = spawnSync("python3", ["-c", "import numpy"], { encoding: "utf8" });
   const numpy = py.status === 0;
-  if (!numpy) console.log("python3 with numpy is missing: the numpy reference is skipped");
+  if (!numpy) {
+    console.log("python3 with numpy is missing: the numpy reference is skipped");
+    skippedLine("2", "CLI whole process vs numpy script", "python3 with numpy is missing");
+  }
 
   const cli: ReturnType<typeof timed>[] = [];
   const ref: ReturnType<typeof timed>[] = [];
@@ -103,6 +107,7 @@ try {
     console.log(
       `  ratio twistlog / numpy    ${ratio.toFixed(2)} (goal ≤ ${GOAL_RATIO}: ${ratio <= GOAL_RATIO ? "met" : "NOT met"})`,
     );
+    ratioLine("2", "CLI whole process vs numpy script", cliS, "s", refS, `≤ ${GOAL_RATIO}`);
     // Cross-check against the independent implementation.
     type Point = { rpm: number; dB: number; blocks: number; method?: string };
     const ours = (JSON.parse(cli[0]!.out) as { isolation: Point[] }).isolation;

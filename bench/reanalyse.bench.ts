@@ -26,6 +26,7 @@ import {
   type BenchServer,
 } from "./bench-server.ts";
 import type { JobTimings } from "../app/lib/analyses/runner.server.ts";
+import { ratioLine } from "./goal-lines.ts";
 
 const LOGS = 50;
 const FILES = 5;
@@ -154,6 +155,14 @@ try {
   console.log(`  ideal = ${LOGS} × one ÷ ${workers}`.padEnd(42) + s(ideal));
   console.log(
     `  ratio wall / ideal                      ${(all.ms / ideal).toFixed(2)}   (goal ≤ ${GOAL_RATIO})`,
+  );
+  ratioLine(
+    "3",
+    `re-analyse all ${LOGS} logs vs ${LOGS} × one ÷ ${workers} worker(s)`,
+    all.ms / 1000,
+    "s",
+    ideal / 1000,
+    `≤ ${GOAL_RATIO}`,
   );
   console.log(
     `  worker utilisation                      ${((100 * busy) / (all.ms * workers)).toFixed(0)} %   (${ran.length} jobs timed; summed worker run ${s(busy)}, ${s(busy / ran.length)} per job)`,

@@ -17,7 +17,8 @@ export function differences(a: unknown, b: unknown, path = "", out: string[] = [
   if (typeof a === "number" && typeof b === "number") {
     const dB = /db$/i.test(path.replace(/\[\d+\]$/, ""));
     const tol = dB ? 0.01 : Math.max(1e-6 * Math.abs(a), lastDecimal(a), lastDecimal(b));
-    if (!(Math.abs(a - b) <= tol) && !(Number.isNaN(a) && Number.isNaN(b)))
+    // (1 + 1e-9): a difference of one printed unit is that unit only up to rounding.
+    if (!(Math.abs(a - b) <= tol * (1 + 1e-9)) && !(Number.isNaN(a) && Number.isNaN(b)))
       out.push(`${path}: ${a} vs ${b}`);
   } else if (Array.isArray(a) && Array.isArray(b)) {
     if (a.length !== b.length) out.push(`${path}: ${a.length} items vs ${b.length}`);

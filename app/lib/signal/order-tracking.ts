@@ -29,9 +29,12 @@ export interface TrackedBlocks {
   blockRadS: Float64Array;
   blockStartS: Float64Array;
   blockEndS: Float64Array;
-  /** 0-peak angular-velocity amplitude in rad/s, block-major: [block·binsPerBlock + bin]. */
-  crankAmp: Float64Array;
-  gearboxAmp: Float64Array;
+  /**
+   * 0-peak angular-velocity amplitude in rad/s, block-major: [block·binsPerBlock + bin]. Single
+   * precision where a long log's blocks are kept (stream/track-windows.ts): 7 digits, 1e-6 dB.
+   */
+  crankAmp: Float64Array | Float32Array;
+  gearboxAmp: Float64Array | Float32Array;
   /**
    * |C − G| per block at the firing-order bin: the complex crank and gearbox 0-peak amplitudes'
    * difference, rad/s (twist.ts turns it into degrees). Absent unless asked for (`firingBin`).

@@ -139,12 +139,12 @@ export function blocksOutside(
     if (!spans.some((s) => a < s.endS && e > s.startS)) keep.push(b);
   }
   const bins = tracked.binsPerBlock;
-  const pick = (x: Float64Array, w: number) => {
+  const pick = <T extends Float64Array | Float32Array>(x: T, w: number): T => {
     // Kept block i comes from block b ≥ i: moving them forward in order never overwrites one
     // still to be moved.
-    const out = inPlace ? x : new Float64Array(keep.length * w);
+    const out = inPlace ? x : new (x.constructor as new (n: number) => T)(keep.length * w);
     keep.forEach((b, i) => out.set(x.subarray(b * w, (b + 1) * w), i * w));
-    return inPlace ? x.subarray(0, keep.length * w) : out;
+    return (inPlace ? x.subarray(0, keep.length * w) : out) as T;
   };
   return {
     ...tracked,
