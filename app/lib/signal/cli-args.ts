@@ -16,13 +16,15 @@ export interface CliCommand {
   help: boolean;
   /** --list-channels: print the file's channel table instead of analysing it. */
   listChannels?: boolean;
+  /** --low-memory: 0, every log through the windowed analysis (pipeline.ts). */
+  inMemoryLimitBytes?: number;
 }
 
 export const USAGE = `usage: npm run -s analyse -- FILE [--cylinders N] [--stroke 4|2] [--order Q]
        [--time COL] [--crank COL] [--gearbox COL] [--unit rpm|rad/s|deg/s|rev/s]
        [--crank-unit U] [--gearbox-unit U] [--time-unit s|ms] [--rattle-limit RAD_PER_S2]
        [--bin-rpm N] [--strict] [--repair-limit-ms MS] [--repair-limit-samples N]
-       [--header-row N] [--json]
+       [--header-row N] [--low-memory] [--json]
        npm run -s analyse -- FILE --list-channels [--time COL] [--crank COL] [--gearbox COL]
 
 Reads a drive log — CSV text or ASAM MDF4, told by its content — (time, crank-side and
@@ -33,6 +35,8 @@ default 20, whichever is fewer) are filled, jitter is resampled, longer gaps spl
 into sections; every repair is listed as a warning. --strict refuses such a log instead.
 A CSV's header row is found behind any recorder preamble; --header-row N (the file line)
 picks it instead.
+Logs over 128 MiB are analysed in windows, in memory that does not grow with the log;
+--low-memory does that for any log (slower, the same figures).
 --list-channels prints every channel of the file (CSV or ASAM MDF4): name, unit, group, rate,
 samples, range and the role it is recognised as, then exits.
 The compiled command takes the same flags: npx twistlog analyse FILE [flags].`;
@@ -55,6 +59,7 @@ const OPTIONS = {
   "repair-limit-samples": { type: "string" },
   "header-row": { type: "string" },
   json: { type: "boolean" },
+  "low-memory": { type: "boolean" },
   "list-channels": { type: "boolean" },
   help: { type: "boolean", short: "h" },
 } as const;
@@ -177,6 +182,7 @@ export function parseCliArgs(argv: string[]): Parsed {
       json: v.json === true,
       help: false,
       ...(v["list-channels"] === true ? { listChannels: true } : {}),
+      ...(v["low-memory"] === true ? { inMemoryLimitBytes: 0 } : {}),
     },
   };
 }
