@@ -8,7 +8,7 @@
 import { useQuery } from "@tanstack/react-query";
 import { useEffect, useRef, useState } from "react";
 import { useFetcher, useRevalidator } from "react-router";
-import type { BatchProgress } from "~/lib/analyses/batch.server";
+import type { BatchProgress } from "~/lib/data/reanalysis-batch.server";
 import type { FetcherReply } from "./fetcher-form";
 import { ErrorLine, SchemaForm, SubmitButton, useSchemaForm } from "./form";
 import { ChoiceField } from "./form-fields";

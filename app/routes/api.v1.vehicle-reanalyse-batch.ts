@@ -1,4 +1,4 @@
-import { batchProgress } from "~/lib/analyses/batch.server";
+import { batchProgress } from "~/lib/data/reanalysis-batch.server";
 import { idParam } from "~/lib/http/params";
 import type { Route } from "./+types/api.v1.vehicle-reanalyse-batch";
 import { requireAccess } from "~/lib/http/access.server";
@@ -8,7 +8,7 @@ import { apiRoute } from "~/lib/http/edge.server";
  * GET /api/v1/vehicles/:vehicleId/reanalyse/:batchId (viewer and up) → { batchId, vehicleId,
  * total, queued, running, done, failed, finished, logs: [{ driveLogId, fileName, damperVariant,
  * state, progress, stage, error, analysisVersion }] }: the progress of a "re-analyse all"
- * (app/lib/analyses/batch.server.ts); the vehicle page's panel polls it.
+ * (app/lib/data/reanalysis-batch.server.ts); the vehicle page's panel polls it.
  */
 export const loader = apiRoute(async ({ request, params }: Route.LoaderArgs) => {
   const { teamId } = await requireAccess(request, "viewer", { from: "api" });

@@ -1,4 +1,4 @@
-import { queueBatch } from "~/lib/analyses/batch.server";
+import { queueBatch } from "~/lib/data/reanalysis-batch.server";
 import { reanalyseAllBodySchema } from "~/components/reanalyse-all-schema";
 import { idParam } from "~/lib/http/params";
 import { readJsonBody } from "~/lib/http/json-body.server";
@@ -12,7 +12,7 @@ import { apiError, apiRoute } from "~/lib/http/edge.server";
  * POST /api/v1/vehicles/:vehicleId/reanalyse (engineer and up), JSON { firingOrder?,
  * revsPerBlock?, binRpm?, damperVariant? } → 202 { batchId, jobs: [{ jobId, driveLogId }] }: a
  * new analysis of every drive log of the vehicle (or of one damper variant), queued at once
- * (app/lib/analyses/batch.server.ts). Its progress: GET …/reanalyse/:batchId. A setting out of
+ * (app/lib/data/reanalysis-batch.server.ts). Its progress: GET …/reanalyse/:batchId. A setting out of
  * range is 400 invalid_settings naming the field, and nothing is queued; no drive log to
  * re-analyse, or some still being analysed, is 409.
  */

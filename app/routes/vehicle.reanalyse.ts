@@ -1,5 +1,5 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { queueBatch } from "~/lib/analyses/batch.server";
+import { queueBatch } from "~/lib/data/reanalysis-batch.server";
 import { reanalyseAllSchema } from "~/components/reanalyse-all-schema";
 import { assertCsrf } from "~/lib/http/csrf.server";
 import { readForm } from "~/lib/http/forms.server";

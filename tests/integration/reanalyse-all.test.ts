@@ -16,7 +16,7 @@ const { createApiToken } = await import("~/lib/data/api-tokens.server");
 const { db, pool } = await import("~/lib/infra/db.server");
 const { createTestTeam } = await import("../support/accounts");
 const { startJobRunner } = await import("~/lib/analyses/runner.server");
-const { queueBatch } = await import("~/lib/analyses/batch.server");
+const { queueBatch } = await import("~/lib/data/reanalysis-batch.server");
 
 let server: Awaited<ReturnType<typeof startServer>> | undefined;
 const tokens: Record<string, string> = {};

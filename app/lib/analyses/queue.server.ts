@@ -43,7 +43,7 @@ export async function enqueueAnalysis(db: Db | Tx, job: NewJob): Promise<number>
 }
 
 /**
- * Queues the jobs of a batch (a whole vehicle re-analysed, batch.server.ts) in the caller's
+ * Queues the jobs of a batch (a whole vehicle re-analysed, data/reanalysis-batch.server.ts) in the caller's
  * transaction: their drive logs queued in one statement, the jobs inserted in another.
  */
 export async function enqueueBatch(tx: Tx, batchId: string, jobs: NewJob[]): Promise<void> {

@@ -122,7 +122,7 @@ export const analysisJobs = mysqlTable(
     lastError: text("last_error"),
     createdAt: createdAt(),
     finishedAt: at("finished_at"),
-    /** The re-analysis of a whole vehicle this job belongs to (app/lib/analyses/batch.server.ts). */
+    /** The re-analysis of a whole vehicle this job belongs to (app/lib/data/reanalysis-batch.server.ts). */
     batchId: varchar("batch_id", { length: 32 }),
   },
   (t) => [

@@ -9,13 +9,13 @@
 import { randomBytes } from "node:crypto";
 import { and, asc, eq } from "drizzle-orm";
 import { analyses, analysisJobs, driveLogs } from "~/lib/infra/db/schema-drive-logs";
-import { audit } from "../data/audit.server";
-import { vehicleData, type AnalysisOverrides } from "../data/vehicles.server";
+import { audit } from "./audit.server";
+import { vehicleData, type AnalysisOverrides } from "./vehicles.server";
 import type { JobState } from "../domain/drive-log-terms";
 import { Conflict, NotFound } from "../domain/errors";
 import { db } from "../infra/db.server";
-import { enqueueBatch, type NewJob } from "./queue.server";
-import { wakeRunners } from "./runner.server";
+import { enqueueBatch, type NewJob } from "../analyses/queue.server";
+import { wakeRunners } from "../analyses/runner.server";
 
 /** A batch id: 16 lower-case hex digits. */
 export const BATCH_ID = /^[0-9a-f]{16}$/;
