@@ -18,11 +18,11 @@ import {
 } from "./analysis-assembly.ts";
 import type { AnalysisResult } from "./result-schema.ts";
 import type { SampleSource } from "./sample-source.ts";
-import { skippedWarnings } from "./section-analysis.ts";
+import { joinTraces, skippedWarnings } from "./section-analysis.ts";
 import { frameRpm, segmentsFromFrames, type Segment } from "./segments.ts";
 import { sourceBlock } from "./source-block.ts";
 import { spectrumOfRange } from "./time-spectrum.ts";
-import { TRACE_POINTS, type SpeedTrace } from "./traces.ts";
+import { TRACE_POINTS } from "./traces.ts";
 import { emptyTransientPart, idleOf, transientResultOf } from "./transient-analysis.ts";
 import type { DriveLog, LogSection, Outcome } from "./types.ts";
 import { indexAtTime, rattleWindows } from "./stream/rattle-windows.ts";
@@ -171,7 +171,11 @@ export function analyseSamples(
           segment,
           topOrder: o.topOrder,
         }),
-      speedTrace: () => joinTraces(main, mainScans),
+      speedTrace: () =>
+        joinTraces(
+          main,
+          mainScans.map((s) => s.trace),
+        ),
       source: () =>
         sourceBlock({
           source: source.source,
@@ -181,24 +185,4 @@ export function analyseSamples(
     },
     onProgress,
   );
-}
-
-/** The stretches' speed traces joined as sectionSpeedTrace joins them (a null point in each gap). */
-function joinTraces(parts: readonly LogSection[], scans: readonly StretchScan[]): SpeedTrace {
-  if (parts.length === 1) return scans[0]!.trace;
-  const out: SpeedTrace = { timeS: [], crankRpm: [], gearboxRpm: [], samplesPerPoint: 1 };
-  parts.forEach((s, k) => {
-    const piece = scans[k]!.trace;
-    if (k > 0) {
-      const prev = parts[k - 1]!;
-      out.timeS.push(Math.round(((prev.endS + s.startS) / 2) * 1000) / 1000);
-      out.crankRpm.push(null);
-      out.gearboxRpm.push(null);
-    }
-    out.timeS.push(...piece.timeS);
-    out.crankRpm.push(...piece.crankRpm);
-    out.gearboxRpm.push(...piece.gearboxRpm);
-    out.samplesPerPoint = Math.max(out.samplesPerPoint, piece.samplesPerPoint);
-  });
-  return out;
 }

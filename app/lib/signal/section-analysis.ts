@@ -121,16 +121,28 @@ export function sectionSpeedTrace(log: DriveLog): SpeedTrace {
   const { timeS, crankRadS, gearboxRadS } = log;
   if (parts.length === 1) return speedTrace(timeS, crankRadS, gearboxRadS);
   const n = timeS.length;
+  return joinTraces(
+    parts,
+    parts.map(({ startIndex: a, endIndex: b }) =>
+      speedTrace(
+        timeS.subarray(a, b),
+        crankRadS.subarray(a, b),
+        gearboxRadS.subarray(a, b),
+        Math.max(1, Math.floor((TRACE_POINTS * (b - a)) / n)),
+      ),
+    ),
+  );
+}
+
+/** The sections' speed traces (pieces[k] of parts[k]) as one, a null point in each gap. */
+export function joinTraces(
+  parts: readonly LogSection[],
+  pieces: readonly SpeedTrace[],
+): SpeedTrace {
+  if (parts.length === 1) return pieces[0]!;
   const out: SpeedTrace = { timeS: [], crankRpm: [], gearboxRpm: [], samplesPerPoint: 1 };
   parts.forEach((s, k) => {
-    const { startIndex: a, endIndex: b } = s;
-    const points = Math.max(1, Math.floor((TRACE_POINTS * (b - a)) / n));
-    const piece = speedTrace(
-      timeS.subarray(a, b),
-      crankRadS.subarray(a, b),
-      gearboxRadS.subarray(a, b),
-      points,
-    );
+    const piece = pieces[k]!;
     if (k > 0) {
       const prev = parts[k - 1]!;
       out.timeS.push(Math.round(((prev.endS + s.startS) / 2) * 1000) / 1000);
