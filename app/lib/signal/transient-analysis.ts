@@ -90,27 +90,52 @@ export function analyseTransients(args: {
     out.events.push(
       ...transientEvents({ timeS, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, measures }),
     );
-    for (const span of spans) {
-      // The adaptive blocks read the same low-passed channels as the fixed blocks.
-      const pad = Math.ceil(0.5 * fs);
-      const a = Math.max(0, span.startIndex - pad);
-      const b = Math.min(timeS.length, span.endIndex + pad);
-      const lp = (x: Float64Array) => (args.filters.length ? filtfilt(x, args.filters) : x);
+    for (const span of spans)
       out.blocks.push(
-        ...adaptiveBlocks({
-          timeS: timeS.subarray(a, b),
-          angleRad: angleRad.subarray(a, b),
-          crankRadS: lp(crankRadS.subarray(a, b)),
-          gearboxRadS: lp(gearboxRadS.subarray(a, b)),
-          grid: args.grid,
-          order: q,
-          spans: [{ startIndex: span.startIndex - a, endIndex: span.endIndex - a }],
-          maxRevs: args.revsPerBlock,
+        ...spanBlocks({ timeS, angleRad, crankRadS, gearboxRadS }, span, {
+          ...args,
+          sampleRateHz: fs,
         }),
       );
-    }
   }
   return out;
+}
+
+/**
+ * The adaptive blocks of one fast span (adaptive-blocks.ts), cut from the stretch's arrays half a
+ * second beyond the span on each side and low-passed like the fixed blocks.
+ */
+export function spanBlocks(
+  stretch: {
+    timeS: Float64Array;
+    angleRad: Float64Array;
+    crankRadS: Float64Array;
+    gearboxRadS: Float64Array;
+  },
+  span: { startIndex: number; endIndex: number },
+  args: {
+    sampleRateHz: number;
+    filters: readonly Biquad[];
+    grid: AngleGrid;
+    order: number;
+    revsPerBlock: number;
+  },
+): AdaptiveBlock[] {
+  const { timeS, angleRad, crankRadS, gearboxRadS } = stretch;
+  const pad = Math.ceil(0.5 * args.sampleRateHz);
+  const a = Math.max(0, span.startIndex - pad);
+  const b = Math.min(timeS.length, span.endIndex + pad);
+  const lp = (x: Float64Array) => (args.filters.length ? filtfilt(x, args.filters) : x);
+  return adaptiveBlocks({
+    timeS: timeS.subarray(a, b),
+    angleRad: angleRad.subarray(a, b),
+    crankRadS: lp(crankRadS.subarray(a, b)),
+    gearboxRadS: lp(gearboxRadS.subarray(a, b)),
+    grid: args.grid,
+    order: args.order,
+    spans: [{ startIndex: span.startIndex - a, endIndex: span.endIndex - a }],
+    maxRevs: args.revsPerBlock,
+  });
 }
 
 /**

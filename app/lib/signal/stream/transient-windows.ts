@@ -11,13 +11,11 @@
  * the window reproduces the stretch wherever these look. docs/signal-computation.md,
  * "Bounded-memory analysis".
  */
-import { adaptiveBlocks } from "../adaptive-blocks.ts";
 import type { AnalysisSetup } from "../analysis-assembly.ts";
 import { transientEvents } from "../events.ts";
 import { RPM_PER_RAD_S } from "../firing-order.ts";
-import { filtfilt } from "../lowpass.ts";
 import { measureSpan } from "../span-measure.ts";
-import type { TransientPart } from "../transient-analysis.ts";
+import { spanBlocks, type TransientPart } from "../transient-analysis.ts";
 import { addMeasure } from "../transient-curves.ts";
 import {
   FAST_FRAME_S,
@@ -154,20 +152,13 @@ export function stretchTransients(
         measures: [m],
       }),
     );
-    const p = Math.ceil(0.5 * fs);
-    const a = Math.max(0, local.startIndex - p);
-    const b = Math.min(timeS.length, local.endIndex + p);
-    const lp = (x: Float64Array) => (filters.length ? filtfilt(x, filters) : x);
     out.blocks.push(
-      ...adaptiveBlocks({
-        timeS: timeS.subarray(a, b),
-        angleRad: angleRad.subarray(a, b),
-        crankRadS: lp(crankRadS.subarray(a, b)),
-        gearboxRadS: lp(gearboxRadS.subarray(a, b)),
+      ...spanBlocks(w, local, {
+        sampleRateHz: fs,
+        filters,
         grid,
         order: q,
-        spans: [{ startIndex: local.startIndex - a, endIndex: local.endIndex - a }],
-        maxRevs: setup.o.revsPerBlock,
+        revsPerBlock: setup.o.revsPerBlock,
       }),
     );
     out.spans.push(span);
