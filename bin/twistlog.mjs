@@ -1,4 +1,4 @@
-#!/usr/bin/env node
+#!/usr/bin/env -S node --max-semi-space-size=2
 /**
  * The `twistlog` command (package.json "bin"): runs the compiled CLI, build/cli/twistlog.mjs
  * (scripts/build-cli.mjs; `npm ci` and `npm run build` make it). Same flags and output as

@@ -149,6 +149,26 @@ describe("analytic logs (tests/support)", () => {
     expect(Math.abs(at800.dB - expectedIsolationDb(idle))).toBeLessThan(0.5);
   });
 
+  it("a cranking start and a long run: slow blocks dropped, order-map rows of several blocks", () => {
+    // The windowed analysis sums the order map's rows as the blocks come: rows of
+    // ⌈positions ÷ 400⌉ blocks, positions counting the dropped ones (order-curves.ts).
+    const log = synthLog({
+      fs: 2000,
+      durationS: 100,
+      rpmAt: (t) => (t < 1 ? 0 : t < 2 ? 200 : t < 4 ? 200 + 300 * (t - 2) : 800 + 30 * (t - 4)),
+      order: 2,
+      ampRpm: 15,
+      fnHz: 12,
+      zeta: 0.15,
+      noiseRpm: 0.2,
+    });
+    const batch = expectSame(log);
+    if (!batch.ok) throw new Error(batch.error.message);
+    expect(batch.value.warnings.map((w) => w.code)).toContain("slow_blocks_dropped");
+    expect(batch.value.orderMap.blocksPerRow).toBeGreaterThan(1);
+    expect(batch.value.orderMap.blockRpm.length).toBeLessThanOrEqual(400);
+  });
+
   it("a log with a gap: two sections, each on its own", () => {
     const log = ingested(rippleCsv(8, { edit: (i, l) => (i >= 6000 && i < 6100 ? null : l) }));
     expect(log.sections).toHaveLength(2);

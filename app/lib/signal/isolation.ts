@@ -16,24 +16,36 @@ export const NOISE_MARGIN = 5;
  * leaves no such bins.
  */
 export function gearboxNoiseFloor(tracked: TrackedBlocks): Float64Array {
-  const R = tracked.revsPerBlock;
-  const half = R / 2; // bins per half order
-  const quiet: number[] = [];
-  if (!Number.isInteger(half)) return new Float64Array(tracked.blockCount).fill(NaN);
-  for (let k = 1; k < tracked.binsPerBlock; k++) {
-    const fromLine = k % half;
-    if (Math.min(fromLine, half - fromLine) > 1) quiet.push(k);
-  }
-  const out = new Float64Array(tracked.blockCount).fill(NaN);
-  if (quiet.length === 0) return out;
-  const vals = new Float64Array(quiet.length);
-  for (let b = 0; b < tracked.blockCount; b++) {
-    for (let i = 0; i < quiet.length; i++)
-      vals[i] = tracked.gearboxAmp[b * tracked.binsPerBlock + quiet[i]!]!;
-    vals.sort();
-    out[b] = vals[vals.length >> 1]!;
-  }
+  if (tracked.noiseFloor) return tracked.noiseFloor;
+  const floor = noiseFloorOf(tracked.binsPerBlock, tracked.revsPerBlock);
+  const out = new Float64Array(tracked.blockCount);
+  for (let b = 0; b < tracked.blockCount; b++)
+    out[b] = floor(tracked.gearboxAmp, b * tracked.binsPerBlock);
   return out;
+}
+
+/**
+ * The noise floor of one block's gearbox spectrum (bins 0 … binsPerBlock−1 at [at + k]), as
+ * gearboxNoiseFloor takes it; NaN when R leaves no bin between the half-order lines.
+ */
+export function noiseFloorOf(
+  binsPerBlock: number,
+  revsPerBlock: number,
+): (gearbox: Float64Array, at: number) => number {
+  const half = revsPerBlock / 2; // bins per half order
+  const quiet: number[] = [];
+  if (Number.isInteger(half))
+    for (let k = 1; k < binsPerBlock; k++) {
+      const fromLine = k % half;
+      if (Math.min(fromLine, half - fromLine) > 1) quiet.push(k);
+    }
+  if (quiet.length === 0) return () => NaN;
+  const vals = new Float64Array(quiet.length);
+  return (gearbox, at) => {
+    for (let i = 0; i < quiet.length; i++) vals[i] = gearbox[at + quiet[i]!]!;
+    vals.sort();
+    return vals[vals.length >> 1]!;
+  };
 }
 
 export interface IsolationPoint {

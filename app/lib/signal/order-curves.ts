@@ -8,7 +8,7 @@
  * blocks), so a bin's value is the amplitude of a steady tone with the same mean power.
  */
 import { RPM_PER_RAD_S } from "./firing-order.ts";
-import type { TrackedBlocks } from "./order-tracking.ts";
+import { ampIndex, type TrackedBlocks } from "./order-tracking.ts";
 
 /** Stored bin index for `order` (nearest multiple of 1/R). */
 export function orderBin(order: number, revsPerBlock: number): number {
@@ -34,12 +34,14 @@ export function binOrder(
 ): BinnedCurve {
   const k = orderBin(order, tracked.revsPerBlock);
   const sums = new Map<number, { c: number; g: number; n: number }>();
-  if (k >= tracked.binsPerBlock) return { rpm: [], crankRadS: [], gearboxRadS: [], blocks: [] };
+  if (tracked.blockCount === 0 || ampIndex(tracked, 0, k) < 0)
+    return { rpm: [], crankRadS: [], gearboxRadS: [], blocks: [] };
   for (let b = 0; b < tracked.blockCount; b++) {
     if (include && !include(b)) continue;
     const bin = Math.round((tracked.blockRadS[b]! * RPM_PER_RAD_S) / binRpm);
-    const c = tracked.crankAmp[b * tracked.binsPerBlock + k]!;
-    const g = tracked.gearboxAmp[b * tracked.binsPerBlock + k]!;
+    const at = ampIndex(tracked, b, k);
+    const c = tracked.crankAmp[at]!;
+    const g = tracked.gearboxAmp[at]!;
     const s = sums.get(bin) ?? { c: 0, g: 0, n: 0 };
     s.c += c * c;
     s.g += g * g;
@@ -96,44 +98,112 @@ export interface OrderMap {
   blocksPerRow: number;
 }
 
+/** Rows of the order map: at most this many (the chart needs no more; the JSON stays small). */
+export const MAP_ROWS = 400;
+
+/** Columns of the order map: orders 0 … topOrder, as far as the blocks' bins reach. */
+export function mapColumns(binsPerBlock: number, revsPerBlock: number, topOrder: number): number {
+  return Math.min(binsPerBlock, Math.floor(topOrder * revsPerBlock + 1e-9) + 1);
+}
+
 /**
- * The order map up to `topOrder`, with consecutive blocks power-averaged in groups so there are
- * at most `maxRows` rows (the chart needs no more, and the JSON stays small).
+ * Blocks power-averaged per row of the order map, from the block positions of the log (kept
+ * and dropped: a number known before the blocks are computed, so the windowed analysis can sum
+ * the rows as the blocks come).
  */
-export function orderMap(tracked: TrackedBlocks, topOrder: number, maxRows = 400): OrderMap {
-  const orderCount = Math.min(
-    tracked.binsPerBlock,
-    Math.floor(topOrder * tracked.revsPerBlock + 1e-9) + 1,
-  );
-  const per = Math.max(1, Math.ceil(tracked.blockCount / maxRows));
-  const map: OrderMap = {
-    orderStep: tracked.orderStep,
-    orderCount,
-    blockRpm: [],
-    timeS: [],
-    crankRpm: [],
-    gearboxRpm: [],
-    blocksPerRow: per,
-  };
-  for (let start = 0; start < tracked.blockCount; start += per) {
-    const end = Math.min(start + per, tracked.blockCount);
-    const c = new Float64Array(orderCount);
-    const g = new Float64Array(orderCount);
-    let rad = 0;
-    for (let b = start; b < end; b++) {
-      rad += tracked.blockRadS[b]!;
-      for (let k = 0; k < orderCount; k++) {
-        const ac = tracked.crankAmp[b * tracked.binsPerBlock + k]!;
-        const ag = tracked.gearboxAmp[b * tracked.binsPerBlock + k]!;
-        c[k] = c[k]! + ac * ac;
-        g[k] = g[k]! + ag * ag;
-      }
-    }
-    const n = end - start;
-    map.blockRpm.push(round((rad / n) * RPM_PER_RAD_S, 1));
-    map.timeS.push(round(0.5 * (tracked.blockStartS[start]! + tracked.blockEndS[end - 1]!), 3));
-    map.crankRpm.push(Array.from(c, (v) => round(Math.sqrt(v / n) * RPM_PER_RAD_S)));
-    map.gearboxRpm.push(Array.from(g, (v) => round(Math.sqrt(v / n) * RPM_PER_RAD_S)));
+export function blocksPerMapRow(blockPositions: number): number {
+  return Math.max(1, Math.ceil(blockPositions / MAP_ROWS));
+}
+
+/**
+ * The order map summed block by block, in order: `add` each kept block's spectra (bins from 0),
+ * then `finish`. Consecutive blocks are power-averaged in groups of `per`.
+ */
+export class OrderMapRows {
+  private readonly map: OrderMap;
+  private c: Float64Array;
+  private g: Float64Array;
+  private rad = 0;
+  private n = 0;
+  private startS = 0;
+  private endS = 0;
+  constructor(
+    orderStep: number,
+    private readonly orderCount: number,
+    private readonly per: number,
+  ) {
+    this.map = {
+      orderStep,
+      orderCount,
+      blockRpm: [],
+      timeS: [],
+      crankRpm: [],
+      gearboxRpm: [],
+      blocksPerRow: per,
+    };
+    this.c = new Float64Array(orderCount);
+    this.g = new Float64Array(orderCount);
   }
-  return map;
+
+  /** One block: its mean speed (rad/s), times (s), and spectra whose bin k is at [at + k]. */
+  add(
+    radS: number,
+    startS: number,
+    endS: number,
+    crank: Float64Array,
+    gearbox: Float64Array,
+    at: number,
+  ): void {
+    if (this.n === 0) this.startS = startS;
+    this.rad += radS;
+    for (let k = 0; k < this.orderCount; k++) {
+      const ac = crank[at + k]!;
+      const ag = gearbox[at + k]!;
+      this.c[k] = this.c[k]! + ac * ac;
+      this.g[k] = this.g[k]! + ag * ag;
+    }
+    this.endS = endS;
+    if (++this.n === this.per) this.row();
+  }
+
+  private row(): void {
+    const { n, map } = this;
+    map.blockRpm.push(round((this.rad / n) * RPM_PER_RAD_S, 1));
+    map.timeS.push(round(0.5 * (this.startS + this.endS), 3));
+    map.crankRpm.push(Array.from(this.c, (v) => round(Math.sqrt(v / n) * RPM_PER_RAD_S)));
+    map.gearboxRpm.push(Array.from(this.g, (v) => round(Math.sqrt(v / n) * RPM_PER_RAD_S)));
+    this.c = new Float64Array(this.orderCount);
+    this.g = new Float64Array(this.orderCount);
+    this.rad = 0;
+    this.n = 0;
+  }
+
+  finish(): OrderMap {
+    if (this.n > 0) this.row();
+    return this.map;
+  }
+}
+
+/**
+ * The order map up to `topOrder`: consecutive blocks power-averaged in rows (OrderMapRows,
+ * blocksPerMapRow). The windowed analysis hands in the map it summed as the blocks came.
+ */
+export function orderMap(tracked: TrackedBlocks, topOrder: number): OrderMap {
+  if (tracked.orderMap) return tracked.orderMap;
+  const bins = tracked.binsPerBlock;
+  const rows = new OrderMapRows(
+    tracked.orderStep,
+    mapColumns(bins, tracked.revsPerBlock, topOrder),
+    blocksPerMapRow(tracked.blockCount + tracked.droppedSlowBlocks),
+  );
+  for (let b = 0; b < tracked.blockCount; b++)
+    rows.add(
+      tracked.blockRadS[b]!,
+      tracked.blockStartS[b]!,
+      tracked.blockEndS[b]!,
+      tracked.crankAmp,
+      tracked.gearboxAmp,
+      b * bins,
+    );
+  return rows.finish();
 }

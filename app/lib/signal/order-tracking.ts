@@ -15,6 +15,7 @@
  */
 import { indexAtAngle, resampleBlock, samplesPerRevFor, type AngleGrid } from "./angle-grid.ts";
 import { helpedSplit } from "./block-helper.ts";
+import type { OrderMap } from "./order-curves.ts";
 import { mergeTracked } from "./section-analysis.ts";
 import { createPairAmplitudePlan, type Detrend } from "./spectrum.ts";
 
@@ -30,11 +31,22 @@ export interface TrackedBlocks {
   blockStartS: Float64Array;
   blockEndS: Float64Array;
   /**
-   * 0-peak angular-velocity amplitude in rad/s, block-major: [block·binsPerBlock + bin]. Single
-   * precision where a long log's blocks are kept (stream/track-windows.ts): 7 digits, 1e-6 dB.
+   * 0-peak angular-velocity amplitude in rad/s, block-major: [block·binsPerBlock + bin], or
+   * with `columns` [block·columnsPerBlock + columns[bin]]. Read through ampIndex.
    */
-  crankAmp: Float64Array | Float32Array;
-  gearboxAmp: Float64Array | Float32Array;
+  crankAmp: Float64Array;
+  gearboxAmp: Float64Array;
+  /**
+   * Only some bins stored (the windowed analysis keeps the bins the curves read, and sums the
+   * order map and the noise floor as the blocks come: stream/track-windows.ts): the column of
+   * each bin, −1 where it is not stored, and the columns per block.
+   */
+  columns?: Int32Array;
+  columnsPerBlock?: number;
+  /** The gearbox noise floor of each block, rad/s, when it was taken as the blocks came. */
+  noiseFloor?: Float64Array;
+  /** The order map, when it was summed as the blocks came. */
+  orderMap?: OrderMap;
   /**
    * |C − G| per block at the firing-order bin: the complex crank and gearbox 0-peak amplitudes'
    * difference, rad/s (twist.ts turns it into degrees). Absent unless asked for (`firingBin`).
@@ -69,6 +81,14 @@ export interface TrackArgs {
    */
   blockRange?: [number, number];
   onProgress?: (fraction: number) => void;
+}
+
+/** Where bin k of block b sits in crankAmp and gearboxAmp; −1 when it is not stored. */
+export function ampIndex(t: TrackedBlocks, b: number, k: number): number {
+  if (k < 0 || k >= t.binsPerBlock) return -1;
+  if (!t.columns) return b * t.binsPerBlock + k;
+  const col = t.columns[k]!;
+  return col < 0 ? -1 : b * t.columnsPerBlock! + col;
 }
 
 /** Blocks that fit the log: R revolutions each, hop R·(1−overlap) revolutions. */

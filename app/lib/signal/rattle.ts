@@ -13,7 +13,7 @@
  */
 import { angularAccelerationRadS2 } from "./firing-order.ts";
 import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
-import type { TrackedBlocks } from "./order-tracking.ts";
+import { ampIndex, type TrackedBlocks } from "./order-tracking.ts";
 import { orderBin } from "./order-curves.ts";
 import type { Segment } from "./segments.ts";
 import { slidingMax } from "./sliding-max.ts";
@@ -182,7 +182,8 @@ export function idleOrderAccel(
     const a = tracked.blockStartS[b]!;
     const e = tracked.blockEndS[b]!;
     if (!idle.some((s) => a >= s.startS && e <= s.endS)) continue;
-    const amp = k < tracked.binsPerBlock ? tracked.gearboxAmp[b * tracked.binsPerBlock + k]! : 0;
+    const at = ampIndex(tracked, b, k);
+    const amp = at >= 0 ? tracked.gearboxAmp[at]! : 0;
     p += amp * amp;
     w += tracked.blockRadS[b]!;
     nBlocks++;

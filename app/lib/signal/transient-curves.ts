@@ -138,13 +138,13 @@ export function blocksOutside(
     const e = tracked.blockEndS[b]!;
     if (!spans.some((s) => a < s.endS && e > s.startS)) keep.push(b);
   }
-  const bins = tracked.binsPerBlock;
-  const pick = <T extends Float64Array | Float32Array>(x: T, w: number): T => {
+  const bins = tracked.columnsPerBlock ?? tracked.binsPerBlock;
+  const pick = (x: Float64Array, w: number) => {
     // Kept block i comes from block b ≥ i: moving them forward in order never overwrites one
     // still to be moved.
-    const out = inPlace ? x : new (x.constructor as new (n: number) => T)(keep.length * w);
+    const out = inPlace ? x : new Float64Array(keep.length * w);
     keep.forEach((b, i) => out.set(x.subarray(b * w, (b + 1) * w), i * w));
-    return (inPlace ? x.subarray(0, keep.length * w) : out) as T;
+    return inPlace ? x.subarray(0, keep.length * w) : out;
   };
   return {
     ...tracked,
@@ -155,5 +155,6 @@ export function blocksOutside(
     crankAmp: pick(tracked.crankAmp, bins),
     gearboxAmp: pick(tracked.gearboxAmp, bins),
     twistRadS: tracked.twistRadS ? pick(tracked.twistRadS, 1) : undefined,
+    noiseFloor: tracked.noiseFloor ? pick(tracked.noiseFloor, 1) : undefined,
   };
 }

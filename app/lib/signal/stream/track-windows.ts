@@ -11,6 +11,8 @@
  */
 import { indexAtAngle, samplesPerRevFor } from "../angle-grid.ts";
 import type { AnalysisSetup } from "../analysis-assembly.ts";
+import { noiseFloorOf } from "../isolation.ts";
+import { blocksPerMapRow, mapColumns, orderBin, OrderMapRows } from "../order-curves.ts";
 import { trackBlocks, type TrackedBlocks } from "../order-tracking.ts";
 import { filterMargin, filterWindow } from "./filtered-window.ts";
 import type { StretchReader } from "./section-reader.ts";
@@ -23,14 +25,33 @@ export function blocksIn(totalAngle: number, revsPerBlock: number, overlap: numb
   return totalRevs >= R ? Math.floor((totalRevs - R) / hopRevs + 1e-9) + 1 : 0;
 }
 
-/** The blocks of all stretches in one TrackedBlocks, as mergeTracked joins them (section-analysis.ts). */
+/**
+ * The blocks of all stretches in one TrackedBlocks, as mergeTracked joins them
+ * (section-analysis.ts), in memory that grows by about 100 bytes per block: of each block's
+ * spectra only the bins the order curves, the isolation and the rattle check read are kept
+ * (`columns`); the order map's rows (OrderMapRows) and the gearbox noise floor (noiseFloorOf)
+ * are taken as the blocks come, with the same arithmetic as the in-memory analysis.
+ */
 export class BlockStore {
   readonly out: TrackedBlocks;
   private lo = Infinity;
   private hi = 0;
+  private readonly columns: number[];
+  private readonly map: OrderMapRows;
+  private readonly floor: (gearbox: Float64Array, at: number) => number;
+  /** `capacity`: the block positions of all stretches (kept or dropped, blocksIn). */
   constructor(setup: AnalysisSetup, capacity: number) {
     const bins = setup.trackArgs.topBin + 1;
     const R = setup.trackArgs.revsPerBlock;
+    const { orders, firingOrder, topOrder } = setup.o;
+    this.columns = [...new Set([...orders, firingOrder].map((q) => orderBin(q, R)))]
+      .filter((k) => k < bins)
+      .sort((a, b) => a - b);
+    const columns = new Int32Array(bins).fill(-1);
+    this.columns.forEach((k, i) => (columns[k] = i));
+    const width = this.columns.length;
+    this.map = new OrderMapRows(1 / R, mapColumns(bins, R, topOrder), blocksPerMapRow(capacity));
+    this.floor = noiseFloorOf(bins, R);
     this.out = {
       revsPerBlock: R,
       orderStep: 1 / R,
@@ -39,10 +60,11 @@ export class BlockStore {
       blockRadS: new Float64Array(capacity),
       blockStartS: new Float64Array(capacity),
       blockEndS: new Float64Array(capacity),
-      // Single precision: the spectra are the one part that grows with the log (8 bytes per
-      // bin and block would be 60 MB for a 1 GiB log); the figures move by less than 1e-6 dB.
-      crankAmp: new Float32Array(capacity * bins),
-      gearboxAmp: new Float32Array(capacity * bins),
+      crankAmp: new Float64Array(capacity * width),
+      gearboxAmp: new Float64Array(capacity * width),
+      columns,
+      columnsPerBlock: width,
+      noiseFloor: new Float64Array(capacity),
       ...(setup.trackArgs.firingBin !== undefined ? { twistRadS: new Float64Array(capacity) } : {}),
       droppedSlowBlocks: 0,
       samplesPerRevRange: [0, 0],
@@ -52,12 +74,26 @@ export class BlockStore {
   add(p: TrackedBlocks): void {
     const o = this.out;
     const at = o.blockCount;
-    const bins = o.binsPerBlock;
+    const bins = p.binsPerBlock;
+    const width = this.columns.length;
     o.blockRadS.set(p.blockRadS, at);
     o.blockStartS.set(p.blockStartS, at);
     o.blockEndS.set(p.blockEndS, at);
-    o.crankAmp.set(p.crankAmp, at * bins);
-    o.gearboxAmp.set(p.gearboxAmp, at * bins);
+    for (let b = 0; b < p.blockCount; b++) {
+      this.columns.forEach((k, i) => {
+        o.crankAmp[(at + b) * width + i] = p.crankAmp[b * bins + k]!;
+        o.gearboxAmp[(at + b) * width + i] = p.gearboxAmp[b * bins + k]!;
+      });
+      o.noiseFloor![at + b] = this.floor(p.gearboxAmp, b * bins);
+      this.map.add(
+        p.blockRadS[b]!,
+        p.blockStartS[b]!,
+        p.blockEndS[b]!,
+        p.crankAmp,
+        p.gearboxAmp,
+        b * bins,
+      );
+    }
     if (o.twistRadS && p.twistRadS) o.twistRadS.set(p.twistRadS, at);
     o.droppedSlowBlocks += p.droppedSlowBlocks;
     if (p.blockCount > 0) {
@@ -71,14 +107,16 @@ export class BlockStore {
   finish(): TrackedBlocks {
     const o = this.out;
     const k = o.blockCount;
-    const bins = o.binsPerBlock;
+    const width = this.columns.length;
     return {
       ...o,
       blockRadS: o.blockRadS.subarray(0, k),
       blockStartS: o.blockStartS.subarray(0, k),
       blockEndS: o.blockEndS.subarray(0, k),
-      crankAmp: o.crankAmp.subarray(0, k * bins),
-      gearboxAmp: o.gearboxAmp.subarray(0, k * bins),
+      crankAmp: o.crankAmp.subarray(0, k * width),
+      gearboxAmp: o.gearboxAmp.subarray(0, k * width),
+      noiseFloor: o.noiseFloor!.subarray(0, k),
+      orderMap: this.map.finish(),
       ...(o.twistRadS ? { twistRadS: o.twistRadS.subarray(0, k) } : {}),
       samplesPerRevRange: k > 0 ? [this.lo, this.hi] : [0, 0],
     };
