@@ -83,10 +83,10 @@ try {
   const cli: ReturnType<typeof timed>[] = [];
   const ref: ReturnType<typeof timed>[] = [];
   for (let k = 0; k < 3; k++) {
-    cli.push(timed(process.execPath, [bin, "analyse", file, "--json"]));
+    cli.push(timed(bin, ["analyse", file, "--json"]));
     if (numpy) ref.push(timed("python3", [script, file, "--json"]));
   }
-  const help = [0, 1, 2].map(() => timed(process.execPath, [bin, "--help"]));
+  const help = [0, 1, 2].map(() => timed(bin, ["--help"]));
   const cliS = median(cli.map((r) => r.s));
   const mb = (rs: { mb: number }[]) => Math.max(...rs.map((r) => r.mb));
   console.log(

@@ -40,7 +40,7 @@ function cliRun(file: string, ...flags: string[]): { wallS: number; peakMB: numb
     [
       "-f",
       "MAXRSS_KB=%M",
-      process.execPath,
+      // The command as npx runs it: by its #! line, which sets the node flags it wants.
       join(root, "bin/twistlog.mjs"),
       "analyse",
       file,
