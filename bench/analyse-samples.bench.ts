@@ -26,6 +26,7 @@ import {
   type SampleWindow,
 } from "../app/lib/signal/sample-source.ts";
 import type { DriveLog } from "../app/lib/signal/types.ts";
+import { PROFILE } from "./drive-log.ts";
 import { ratioLine } from "./goal-lines.ts";
 
 const RATE_HZ = 5000;
@@ -34,21 +35,8 @@ const GOAL_MB = 150;
 const SMALL_ROWS = Number(process.env.BENCH_SMALL_ROWS ?? 3_000_000);
 const LARGE_ROWS = 34_000_000;
 
-/** Knots (s, rpm) of one 120 s cycle of the Kestrel bench drive; the log repeats it. */
-const KNOTS: [number, number][] = [
-  [0, 250],
-  [2, 300],
-  [4, 850],
-  [20, 800],
-  [50, 4200],
-  [60, 4200],
-  [75, 900],
-  [85, 800],
-  [95, 2000],
-  [105, 2000],
-  [115, 1200],
-  [120, 250],
-];
+/** Knots (s, rpm) of one 120 s cycle of the Kestrel bench drive (bench/drive-log.ts); the log repeats it. */
+const KNOTS = PROFILE;
 const CYCLE_S = 120;
 const RAD_PER_RPM = (2 * Math.PI) / 60;
 /** Crank angle at each knot (the integral of the piecewise-linear speed), rad. */

@@ -16,7 +16,7 @@ export interface BenchLogOptions {
 }
 
 /** Knots (time in s, engine speed in rpm) of one 120 s cycle; the log repeats it. */
-const PROFILE: [number, number][] = [
+export const PROFILE: [number, number][] = [
   [0, 250],
   [2, 300],
   [4, 850],

@@ -57,31 +57,37 @@ export function createChannels(header: LogHeader, sizeHintBytes?: number): Chann
 
 /** The DriveLog of the first n rows; extra columns with no number at all are left out. */
 export function buildDriveLog(ch: Channels, n: number, header: LogHeader): DriveLog {
-  const { map: m, headers } = header;
+  const m = header.map;
   const log: DriveLog = {
     timeS: ch.t.take(n),
     crankRadS: ch.crank.take(n),
     gearboxRadS: ch.gear.take(n),
     extra: {},
     sampleRateHz: n > 1 ? (n - 1) / ((ch.t.data[n - 1] ?? 0) - (ch.t.data[0] ?? 0)) : 0,
-    source: {
-      rows: n,
-      delimiter: header.delimiter,
-      decimal: header.decimal,
-      timeColumn: headers[m.time] ?? "",
-      crankColumn: headers[m.crank] ?? "",
-      gearboxColumn: headers[m.gearbox] ?? "",
-      timeUnit: m.timeUnit,
-      crankUnit: m.crankUnit,
-      gearboxUnit: m.gearboxUnit,
-      format: "csv",
-      metadata: header.metadata,
-      repairs: [],
-    },
+    source: csvSource(header, n),
   };
   m.extra.forEach((e, k) => {
     const values = (ch.extras[k] as Column).take(n);
     if (values.some((v) => !Number.isNaN(v))) log.extra[e.name] = values;
   });
   return log;
+}
+
+/** The DriveLog's source of a CSV log of n rows read with `header` (no repairs yet). */
+export function csvSource(header: LogHeader, n: number): DriveLog["source"] {
+  const { map: m, headers } = header;
+  return {
+    rows: n,
+    delimiter: header.delimiter,
+    decimal: header.decimal,
+    timeColumn: headers[m.time] ?? "",
+    crankColumn: headers[m.crank] ?? "",
+    gearboxColumn: headers[m.gearbox] ?? "",
+    timeUnit: m.timeUnit,
+    crankUnit: m.crankUnit,
+    gearboxUnit: m.gearboxUnit,
+    format: "csv",
+    metadata: header.metadata,
+    repairs: [],
+  };
 }

@@ -11,6 +11,7 @@
 import { open, stat } from "node:fs/promises";
 import { createHeadCollector, type HeadResult } from "./csv-head.ts";
 import { sniffFormat } from "./format.ts";
+import { csvSource } from "./ingest-channels.ts";
 import { resolveHead, type LogHeader } from "./ingest-header.ts";
 import { finishSpooled, RunningFigures } from "./ingest-spool-finish.ts";
 import { createWindowedRows, type WindowedRows } from "./ingest-spool-rows.ts";
@@ -20,7 +21,7 @@ import { ingestMdf4Samples } from "./mdf4/samples.ts";
 import type { SampleSource } from "./sample-source.ts";
 import { SampleSpool } from "./sample-spool.ts";
 import { rateMismatch } from "./stated-rate.ts";
-import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
+import type { Outcome, SignalIssue } from "./types.ts";
 
 /** Read size in bytes, as ingest-stream.ts reads a file. */
 const CHUNK_BYTES = 1 << 18;
@@ -118,7 +119,7 @@ export function createSampleIngester(options: IngestOptions = {}): SampleIngeste
       const { skipped } = rows;
       const firstDataLine = header.lastHeadLine + 1;
       const rowOf = (i: number) => firstDataLine + i + skipped.filter((k) => k <= i).length;
-      const finished = finishSpooled(spool, figures, sourceOf(header, rows.rows), rowOf, options);
+      const finished = finishSpooled(spool, figures, csvSource(header, rows.rows), rowOf, options);
       const stated = finished.ok ? rateMismatch(header.statedRateHz, finished.value) : [];
       return { ...finished, warnings: [...warnings, ...finished.warnings, ...stated] };
     } catch (e) {
@@ -128,25 +129,6 @@ export function createSampleIngester(options: IngestOptions = {}): SampleIngeste
   }
 
   return { push, finish, abort };
-}
-
-/** The DriveLog's source of a CSV log of n rows (as ingest-channels.ts buildDriveLog). */
-function sourceOf(header: LogHeader, n: number): DriveLog["source"] {
-  const { map: m, headers } = header;
-  return {
-    rows: n,
-    delimiter: header.delimiter,
-    decimal: header.decimal,
-    timeColumn: headers[m.time] ?? "",
-    crankColumn: headers[m.crank] ?? "",
-    gearboxColumn: headers[m.gearbox] ?? "",
-    timeUnit: m.timeUnit,
-    crankUnit: m.crankUnit,
-    gearboxUnit: m.gearboxUnit,
-    format: "csv",
-    metadata: header.metadata,
-    repairs: [],
-  };
 }
 
 /** Reads chunks into a fresh ingester; a read error becomes `read_failed`. */
