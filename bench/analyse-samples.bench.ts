@@ -124,9 +124,19 @@ function generatedSource(rows: number): SampleSource {
   };
 }
 
+/** One measurement's line for the parent: analysis time from `t0`, the process's peak RSS, blocks. */
+function report(t0: number, blocks: number): void {
+  console.log(
+    JSON.stringify({
+      ms: performance.now() - t0,
+      rssMB: process.resourceUsage().maxRSS / 1024,
+      blocks,
+    }),
+  );
+}
+
 function child(mode: string, rows: number): void {
   const t0 = performance.now();
-  let blocks = 0;
   if (mode === "batch" || mode === "memory") {
     // The same samples in arrays: analyseDriveLog, or analyseSamples over memorySource.
     const w = samples(0, rows);
@@ -139,14 +149,7 @@ function child(mode: string, rows: number): void {
     const t1 = performance.now();
     const r = mode === "batch" ? analyseDriveLog(log) : analyseSamples(memorySource(log));
     if (!r.ok) throw new Error(r.error.message);
-    blocks = r.value.blocks;
-    console.log(
-      JSON.stringify({
-        ms: performance.now() - t1,
-        rssMB: process.resourceUsage().maxRSS / 1024,
-        blocks,
-      }),
-    );
+    report(t1, r.value.blocks);
     return;
   }
   const trace = process.env.BENCH_TRACE
@@ -164,14 +167,7 @@ function child(mode: string, rows: number): void {
     windowSamples,
   });
   if (!r.ok) throw new Error(r.error.message);
-  blocks = r.value.blocks;
-  console.log(
-    JSON.stringify({
-      ms: performance.now() - t0,
-      rssMB: process.resourceUsage().maxRSS / 1024,
-      blocks,
-    }),
-  );
+  report(t0, r.value.blocks);
 }
 
 function run(mode: string, rows: number): { ms: number; rssMB: number; blocks: number } {

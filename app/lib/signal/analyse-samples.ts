@@ -24,11 +24,12 @@ import { sourceBlock } from "./source-block.ts";
 import { spectrumOfRange } from "./time-spectrum.ts";
 import { TRACE_POINTS } from "./traces.ts";
 import { emptyTransientPart, idleOf, transientResultOf } from "./transient-analysis.ts";
-import type { DriveLog, LogSection, Outcome } from "./types.ts";
+import type { LogSection, Outcome } from "./types.ts";
 import { indexAtTime, rattleWindows } from "./stream/rattle-windows.ts";
 import { scanSource, type StretchScan } from "./stream/scan.ts";
 import { StretchReader } from "./stream/section-reader.ts";
-import { BlockStore, blocksIn, trackStretch } from "./stream/track-windows.ts";
+import { blocksIn } from "./order-tracking.ts";
+import { BlockStore, trackStretch } from "./stream/track-windows.ts";
 import { fastSpans, stretchTransients } from "./stream/transient-windows.ts";
 
 /** Samples per window unless the caller tunes it (about 2 MB of the three channels). */
@@ -176,12 +177,7 @@ export function analyseSamples(
           main,
           mainScans.map((s) => s.trace),
         ),
-      source: () =>
-        sourceBlock({
-          source: source.source,
-          sections: source.sections ?? [whole],
-          timeS: new Float64Array(0),
-        } as unknown as DriveLog),
+      source: () => sourceBlock(source.source, sections),
     },
     onProgress,
   );

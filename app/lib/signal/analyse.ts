@@ -17,6 +17,7 @@ import { trackBlocks, type TrackedBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
 import type { AnalysisResult } from "./result-schema.ts";
 import {
+  sectionsOf,
   sectionSegments,
   sectionSpeedTrace,
   skippedWarnings,
@@ -182,7 +183,7 @@ export function analyseDriveLog(
           topOrder,
         }),
       speedTrace: () => sectionSpeedTrace(log),
-      source: () => sourceBlock(log),
+      source: () => sourceBlock(log.source, sectionsOf(log)),
     },
     onProgress,
   );

@@ -10,12 +10,18 @@ import { float64Array } from "./shared-arrays.ts";
 export function integrateAngle(timeS: Float64Array, radS: Float64Array): Float64Array {
   const n = timeS.length;
   const angle = float64Array(n);
-  for (let i = 1; i < n; i++) {
-    const a = Math.max(0, radS[i - 1]!);
-    const b = Math.max(0, radS[i]!);
-    angle[i] = angle[i - 1]! + 0.5 * (a + b) * (timeS[i]! - timeS[i - 1]!);
-  }
+  for (let i = 1; i < n; i++)
+    angle[i] = angleStep(angle[i - 1]!, radS[i - 1]!, radS[i]!, timeS[i - 1]!, timeS[i]!);
   return angle;
+}
+
+/**
+ * One trapezoid step of integrateAngle: the angle at t1 from the angle at t0 and the speeds
+ * there (rad/s; negative speeds count as standstill). The windowed analysis takes the same steps
+ * (stream/section-reader.ts), so its angles are bit-identical.
+ */
+export function angleStep(prev: number, c0: number, c1: number, t0: number, t1: number): number {
+  return prev + 0.5 * (Math.max(0, c0) + Math.max(0, c1)) * (t1 - t0);
 }
 
 export interface AngleGrid {

@@ -91,13 +91,18 @@ export function ampIndex(t: TrackedBlocks, b: number, k: number): number {
   return col < 0 ? -1 : b * t.columnsPerBlock! + col;
 }
 
-/** Blocks that fit the log: R revolutions each, hop R·(1−overlap) revolutions. */
-export function blockCount(args: TrackArgs): number {
-  const { angleRad, revsPerBlock: R } = args;
-  const n = angleRad.length;
-  const hopRevs = R * (1 - args.overlap);
-  const totalRevs = n > 1 ? angleRad[n - 1]! / (2 * Math.PI) : 0;
+/** Blocks that fit a stretch of total angle `totalAngle` (rad): R revolutions each, hop R·(1−overlap). */
+export function blocksIn(totalAngle: number, revsPerBlock: number, overlap: number): number {
+  const R = revsPerBlock;
+  const hopRevs = R * (1 - overlap);
+  const totalRevs = totalAngle / (2 * Math.PI);
   return totalRevs >= R ? Math.floor((totalRevs - R) / hopRevs + 1e-9) + 1 : 0;
+}
+
+/** Blocks that fit the log (blocksIn over its crank angle). */
+export function blockCount(args: TrackArgs): number {
+  const n = args.angleRad.length;
+  return blocksIn(n > 1 ? args.angleRad[n - 1]! : 0, args.revsPerBlock, args.overlap);
 }
 
 /**

@@ -1,17 +1,16 @@
 /**
  * The result's `source` block (result-schema.ts): what a DriveLog says about the file it came
- * from, in the JSON every figure can be traced back to. Times in s.
+ * from (its `source` and its sections, sectionsOf: one covering the log when it has none), in
+ * the JSON every figure can be traced back to. Times in s.
  */
 import { round } from "./order-curves.ts";
 import type { AnalysisResult } from "./result-schema.ts";
-import type { DriveLog } from "./types.ts";
+import type { DriveLog, LogSection } from "./types.ts";
 
-export function sourceBlock(log: DriveLog): NonNullable<AnalysisResult["source"]> {
-  const { source: s, timeS } = log;
-  const n = timeS.length;
-  const sections = log.sections ?? [
-    { startIndex: 0, endIndex: n, startS: timeS[0] ?? 0, endS: timeS[n - 1] ?? 0 },
-  ];
+export function sourceBlock(
+  s: DriveLog["source"],
+  sections: readonly LogSection[],
+): NonNullable<AnalysisResult["source"]> {
   return {
     format: s.format ?? "csv",
     channels: { time: s.timeColumn, crank: s.crankColumn, gearbox: s.gearboxColumn },

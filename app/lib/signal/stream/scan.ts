@@ -12,7 +12,8 @@ import { round } from "../order-curves.ts";
 import type { SampleSource } from "../sample-source.ts";
 import { SEGMENT_FRAME_S } from "../segments.ts";
 import type { SpeedTrace } from "../traces.ts";
-import { angleStep, CHECK_EVERY, type Stretch } from "./section-reader.ts";
+import { angleStep } from "../angle-grid.ts";
+import { CHECK_EVERY, type Stretch } from "./section-reader.ts";
 
 /** What the first pass keeps of one stretch. */
 export interface StretchScan extends Stretch {

@@ -6,6 +6,7 @@
  * so a window anywhere is integrated from the checkpoint before it with the very same additions
  * in the same order as the batch run, and its angles are bit-identical.
  */
+import { angleStep } from "../angle-grid.ts";
 import type { SampleSource } from "../sample-source.ts";
 
 /** Every how many samples of a stretch the first pass keeps the crank angle. */
@@ -24,11 +25,6 @@ export interface AngleWindow {
   crankRadS: Float64Array;
   gearboxRadS: Float64Array;
   angleRad: Float64Array;
-}
-
-/** One trapezoid step of integrateAngle (negative speeds count as standstill). */
-export function angleStep(prev: number, c0: number, c1: number, t0: number, t1: number): number {
-  return prev + 0.5 * (Math.max(0, c0) + Math.max(0, c1)) * (t1 - t0);
 }
 
 export class StretchReader {

@@ -13,17 +13,9 @@ import { indexAtAngle, samplesPerRevFor } from "../angle-grid.ts";
 import type { AnalysisSetup } from "../analysis-assembly.ts";
 import { noiseFloorOf } from "../isolation.ts";
 import { blocksPerMapRow, mapColumns, orderBin, OrderMapRows } from "../order-curves.ts";
-import { trackBlocks, type TrackedBlocks } from "../order-tracking.ts";
+import { blocksIn, trackBlocks, type TrackedBlocks } from "../order-tracking.ts";
 import { filterMargin, filterWindow } from "./filtered-window.ts";
 import type { StretchReader } from "./section-reader.ts";
-
-/** Blocks of a stretch of total angle `totalAngle` (as trackBlocks counts them). */
-export function blocksIn(totalAngle: number, revsPerBlock: number, overlap: number): number {
-  const R = revsPerBlock;
-  const hopRevs = R * (1 - overlap);
-  const totalRevs = totalAngle / (2 * Math.PI);
-  return totalRevs >= R ? Math.floor((totalRevs - R) / hopRevs + 1e-9) + 1 : 0;
-}
 
 /**
  * The blocks of all stretches in one TrackedBlocks, as mergeTracked joins them
