@@ -204,14 +204,23 @@ export function SubmitButton({
   name,
   value,
   tone = "primary",
+  disabled,
 }: {
   children: React.ReactNode;
   name?: string;
   value?: string;
   tone?: "primary" | "secondary" | "danger";
+  /** For a form that works only with its script: off until the page is hydrated. */
+  disabled?: boolean;
 }) {
   return (
-    <button type="submit" name={name} value={value} className={buttonClass(tone)}>
+    <button
+      type="submit"
+      name={name}
+      value={value}
+      disabled={disabled}
+      className={`${buttonClass(tone)} disabled:cursor-not-allowed disabled:opacity-60`}
+    >
       {children}
     </button>
   );

@@ -15,6 +15,7 @@ import { ChoiceField } from "./form-fields";
 import { EmptyState } from "./page";
 import { fetchJson } from "./query-state";
 import { reanalyseAllSchema, type QueuedBatchJson } from "./reanalyse-all-schema";
+import { useHydrated } from "./use-hydrated";
 import { ReanalyseFields } from "./reanalyse-form";
 
 /** How often the panel asks while the batch runs, ms (jobs write progress every 500 ms). */
@@ -47,6 +48,7 @@ export function ReanalyseAllPanel({
   }, [reply]);
   const variants = [...new Set(logs.map((l) => l.damperVariant).filter((v) => v))] as string[];
   const busy = logs.some((l) => l.status === "queued" || l.status === "analysing");
+  const hydrated = useHydrated();
 
   return (
     <section
@@ -96,7 +98,8 @@ export function ReanalyseAllPanel({
                 Some drive logs are still being analysed; wait until they are done.
               </p>
             ) : null}
-            <SubmitButton tone="secondary">
+            {/* The panel needs its script (a click before hydration would go nowhere). */}
+            <SubmitButton tone="secondary" disabled={!hydrated}>
               {fetcher.state === "submitting" ? "Queueing…" : "Re-analyse all"}
             </SubmitButton>
           </SchemaForm>
