@@ -153,6 +153,13 @@ export function createRowReader(
       cA = crank.data,
       gA = gear.data;
     let xA = extras.map((x) => x.data);
+    // The reader's counters as locals in the loop (a closure's variables live in its context):
+    // written back before the careful path reads them and at the end.
+    const pow10 = POW10,
+      two53 = TWO53;
+    let rows = n,
+      lines = line,
+      prev = prevTime;
     let i = s;
     while (i < e) {
       const ls = i;
@@ -208,8 +215,8 @@ export function createRowReader(
         }
         // Exact: mant < 2^53 and 10^|e10| ≤ 10^22 are both exact doubles, so one multiplication
         // or division rounds once, as Number() does (Clinger, PLDI 1990, the "fast path").
-        if (plain && nd > 0 && mant < TWO53 && e10 >= -22 && e10 <= 22 && f < cols) {
-          const v = e10 < 0 ? mant / POW10[-e10]! : mant * POW10[e10]!;
+        if (plain && nd > 0 && mant < two53 && e10 >= -22 && e10 <= 22 && f < cols) {
+          const v = e10 < 0 ? mant / pow10[-e10]! : mant * pow10[e10]!;
           vals[f] = neg ? -v : v;
         } else clean = false;
         f++;
@@ -222,36 +229,45 @@ export function createRowReader(
       const fine =
         clean &&
         f === cols &&
-        (rawT > prevTime || n === 0) &&
+        (rawT > prev || rows === 0) &&
         rawC >= loC &&
         rawC <= hiC &&
         rawG >= loG &&
         rawG <= hiG;
       if (!fine) {
+        n = rows;
+        line = lines;
+        prevTime = prev;
         readLine(b, ls, i, false); // re-reads the line carefully and names the problem, if any
+        rows = n;
+        lines = line;
+        prev = prevTime;
         if (error) return e;
         tA = t.data;
         cA = crank.data;
         gA = gear.data;
         xA = extras.map((x) => x.data);
       } else {
-        line++;
-        if (n >= tA.length) {
-          for (const col of [t, crank, gear, ...extras]) col.ensure(n);
+        lines++;
+        if (rows >= tA.length) {
+          for (const col of [t, crank, gear, ...extras]) col.ensure(rows);
           tA = t.data;
           cA = crank.data;
           gA = gear.data;
           xA = extras.map((x) => x.data);
         }
-        tA[n] = rawT * scaleT;
-        cA[n] = rawC * radC;
-        gA[n] = rawG * radG;
-        for (let k = 0; k < nx; k++) xA[k]![n] = vals[xIdx[k]!]!;
-        prevTime = rawT;
-        n++;
+        tA[rows] = rawT * scaleT;
+        cA[rows] = rawC * radC;
+        gA[rows] = rawG * radG;
+        for (let k = 0; k < nx; k++) xA[k]![rows] = vals[xIdx[k]!]!;
+        prev = rawT;
+        rows++;
       }
       i++;
     }
+    n = rows;
+    line = lines;
+    prevTime = prev;
     return e;
   }
 
