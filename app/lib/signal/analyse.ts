@@ -12,6 +12,7 @@ import {
   type AnalysisStage,
 } from "./analysis-assembly.ts";
 import { integrateAngle } from "./angle-grid.ts";
+import { helpedTransients } from "./block-helper.ts";
 import { filtfilt } from "./lowpass.ts";
 import { trackBlocks, type TrackedBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
@@ -25,7 +26,7 @@ import {
 } from "./section-analysis.ts";
 import { sourceBlock } from "./source-block.ts";
 import { timeSpectrum } from "./time-spectrum.ts";
-import { transientResult } from "./transient-analysis.ts";
+import { idleOf, transientResult } from "./transient-analysis.ts";
 import type { DriveLog, Outcome } from "./types.ts";
 
 export type { AnalysisStage } from "./analysis-assembly.ts";
@@ -141,6 +142,20 @@ export function analyseDriveLog(
   }
   onProgress?.("spectra", 1);
   const segments = sectionSegments(log);
+  // With the CLI's helper thread, the transients are measured there while this thread computes
+  // the rest of the result (block-helper.ts); the same part either way.
+  const helped = withTransients
+    ? helpedTransients({
+        log,
+        angleRad: wholeAngle,
+        filters,
+        grid: setup.grid,
+        order: q,
+        revsPerBlock: R,
+        binRpm,
+        idleRpm: idleOf(segments),
+      })
+    : undefined;
   return finishAnalysis(
     setup,
     tracked,
@@ -161,6 +176,7 @@ export function analyseDriveLog(
               revsPerBlock: R,
               binRpm,
               inPlace: true,
+              measured: helped?.wait(),
             })
           : null,
       rattle: (t) =>

@@ -155,6 +155,12 @@ export function finishAnalysis(
   const orderCurves = orders.map((order) => orderCurve(tracked, order, binRpm));
   const map = orderMap(tracked, topOrder);
   const idle = parts.rattle(tracked);
+  // The parts read from the samples alone, before the transients (which may be measured on the
+  // CLI's helper thread meanwhile).
+  const spectrumSegment = pickSpectrumSegment(segments);
+  const spectrum = spectrumSegment ? parts.spectrum(spectrumSegment) : null;
+  const speedTrace = parts.speedTrace();
+  const source = parts.source();
   const noTransients = () => isolationCurve(tracked, q, binRpm, gearboxNoiseFloor(tracked));
   // Transients: fast spans measured by the order filter, their blocks left out of the curve.
   const part = parts.transients(tracked);
@@ -170,8 +176,6 @@ export function finishAnalysis(
   if (!res.found) warnings.push({ code: "no_resonance", message: res.reason });
   const fit = fitTwoMassModel(measured, q);
   if (!fit.ok) warnings.push({ code: "no_model_fit", message: fit.reason });
-  const spectrumSegment = pickSpectrumSegment(segments);
-  const spectrum = spectrumSegment ? parts.spectrum(spectrumSegment) : null;
   const result: AnalysisResult = {
     firingOrder: q,
     sampleRateHz: round(fs, 3),
@@ -211,10 +215,10 @@ export function finishAnalysis(
         }
       : null,
     timeSpectrum: spectrum,
-    speedTrace: parts.speedTrace(),
+    speedTrace,
     ...(part ? { transient: part.transient, events: part.events, twist: part.twist } : {}),
     warnings: warnings.map(({ code, message }) => ({ code, message })),
-    source: parts.source(),
+    source,
   };
   const checked = analysisResultSchema.safeParse(result);
   onProgress?.("results", 1);

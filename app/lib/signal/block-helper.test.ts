@@ -3,13 +3,21 @@ import { afterAll, describe, expect, it } from "vitest";
 import { writeBenchLog } from "../../../bench/drive-log.ts";
 import { cliTempDir } from "../../../tests/support/cli-process.ts";
 import { integrateAngle, chooseAngleGrid } from "./angle-grid.ts";
-import { blockHelperJobs, startBlockHelper, stopBlockHelper } from "./block-helper.ts";
+import {
+  blockHelperJobs,
+  helpedTransients,
+  startBlockHelper,
+  stopBlockHelper,
+} from "./block-helper.ts";
+import { butterworthLowpass4 } from "./lowpass.ts";
+import { analyseTransients } from "./transient-analysis.ts";
+import type { DriveLog } from "./types.ts";
 import { trackBlocks } from "./order-tracking.ts";
 import { analyseSource } from "./pipeline.ts";
 import { float64Array } from "./shared-arrays.ts";
 
-// The block helper (a second thread computing the later order-tracking blocks) against the
-// one-thread computation: every value the same, bit for bit. The one-thread order tracking is
+// The block helper (a second thread computing the later order-tracking blocks, then the
+// transients) against the one-thread computation: every value the same, bit for bit. The one-thread order tracking is
 // held against analytic signals in order-tracking.test.ts; here it is the reference.
 const dir = cliTempDir("twistlog-blocks-");
 afterAll(stopBlockHelper);
@@ -73,6 +81,48 @@ describe("the block helper", SLOW, () => {
     }
   });
 
+  it("measures the transients of a cranking start as analyseTransients does on one thread", () => {
+    startBlockHelper();
+    // 0.6 s of cranking at 250 rpm, then a start to 850 rpm within 0.4 s: a fast span.
+    const fs = 5000;
+    const n = 4 * fs;
+    const [timeS, crankRadS, gearboxRadS] = [float64Array(n), float64Array(n), float64Array(n)];
+    let theta = 0;
+    for (let i = 0; i < n; i++) {
+      const t = i / fs;
+      const rpm = t < 0.6 ? 250 : t < 1 ? 250 + (600 * (t - 0.6)) / 0.4 : 850;
+      const w = (rpm * 2 * Math.PI) / 60;
+      theta += w / fs;
+      timeS[i] = t;
+      crankRadS[i] = w + 3 * Math.sin(2 * theta);
+      gearboxRadS[i] = w + 1 * Math.sin(2 * theta - 0.4);
+    }
+    const log = {
+      timeS,
+      crankRadS,
+      gearboxRadS,
+      extra: {},
+      sampleRateHz: fs,
+      source: {} as DriveLog["source"],
+    };
+    const args = {
+      log,
+      angleRad: integrateAngle(timeS, crankRadS),
+      filters: butterworthLowpass4(200, fs),
+      grid: chooseAngleGrid({ sampleRateHz: fs, maxRadS: 100, topOrder: 4 }),
+      order: 2,
+      revsPerBlock: 8,
+      binRpm: 50,
+      idleRpm: 850,
+    };
+    const before = blockHelperJobs();
+    const helped = helpedTransients(args)?.wait();
+    expect(blockHelperJobs()).toBe(before + 1);
+    const local = analyseTransients(args);
+    expect(local.spans.length).toBeGreaterThan(0);
+    expect(helped).toEqual(local);
+  });
+
   it("leaves the whole analysis of the bench log as it was", async () => {
     const log = join(dir, "bench-60s.csv");
     writeBenchLog(log, { durationS: 60, sampleRateHz: 5000, order: 2 });
@@ -81,7 +131,9 @@ describe("the block helper", SLOW, () => {
     startBlockHelper();
     const before = blockHelperJobs();
     const two = await analyseSource({ source: log, ingest: {}, analysis: {} });
-    expect(blockHelperJobs()).toBeGreaterThan(before);
+    // Two jobs: the later blocks, then the transients (the log's start holds fast spans).
+    expect(blockHelperJobs()).toBe(before + 2);
+    expect(two.ok && two.value.result.transient?.spans.length).toBeGreaterThan(0);
     expect(two.ok && JSON.stringify(two.value.result)).toBe(
       one.ok && JSON.stringify(one.value.result),
     );

@@ -8,11 +8,21 @@
  * The work is split at the middle of the log's time (a block's cost follows its duration: a
  * slow block has a finer angle grid). The caller waits for the helper with Atomics.wait and
  * computes the helper's blocks itself when the helper fails or does not answer within a minute.
+ *
+ * Once the blocks are done the helper can also measure the transients (transient-analysis.ts
+ * analyseTransients, the order filter over the fast spans) while the caller computes the rest of
+ * the result (helpedTransients); the part comes back through a message port, read synchronously.
  */
 import { createRequire } from "node:module";
 import { pathToFileURL } from "node:url";
-import { Worker } from "node:worker_threads";
+import {
+  MessageChannel,
+  type MessagePort,
+  receiveMessageOnPort,
+  Worker,
+} from "node:worker_threads";
 import type { TrackArgs, TrackedBlocks } from "./order-tracking.ts";
+import type { analyseTransients, TransientPart } from "./transient-analysis.ts";
 import { allocateShared, allShared } from "./shared-arrays.ts";
 
 let helper: Worker | undefined;
@@ -52,6 +62,7 @@ export async function stopBlockHelper(): Promise<void> {
 
 /** A block job as posted to the helper (the arrays are shared, the rest is copied). */
 export interface BlockJob {
+  kind: "blocks";
   args: Omit<TrackArgs, "onProgress">;
   from: number;
   to: number;
@@ -97,7 +108,15 @@ export function helpedSplit(
     twistRadS: args.firingBin !== undefined ? sharedF64(count) : undefined,
   };
   const { onProgress: _, ...plain } = args;
-  const job: BlockJob = { args: plain, from, to: maxBlocks, warmFrom, control, out };
+  const job: BlockJob = {
+    kind: "blocks",
+    args: plain,
+    from,
+    to: maxBlocks,
+    warmFrom,
+    control,
+    out,
+  };
   helper.postMessage(job);
   jobs++;
   const wait = (): TrackedBlocks | undefined => {
@@ -120,4 +139,47 @@ export function helpedSplit(
     };
   };
   return { from, warmFrom, wait };
+}
+
+type TransientArgs = Parameters<typeof analyseTransients>[0];
+
+/** A transients job: analyseTransients(args) in the helper, the part posted back on `port`. */
+export interface TransientJob {
+  kind: "transients";
+  args: TransientArgs;
+  /** [state (0 busy, 1 done, 2 failed)] */
+  control: Int32Array;
+  port: MessagePort;
+}
+
+/**
+ * Hands analyseTransients(args) to the helper, or undefined when there is none or the log's
+ * arrays are not shared. `wait()` returns the part, or undefined when the caller must measure
+ * it. Only the three channels, the angle and the sections go over (the extra columns stay).
+ */
+export function helpedTransients(
+  args: TransientArgs,
+): { wait: () => TransientPart | undefined } | undefined {
+  const { log, angleRad } = args;
+  if (!helper || !allShared(log.timeS, log.crankRadS, log.gearboxRadS)) return undefined;
+  if (angleRad && !allShared(angleRad)) return undefined;
+  const control = new Int32Array(new SharedArrayBuffer(4));
+  const { port1, port2 } = new MessageChannel();
+  const slim = { ...log, extra: {} };
+  const job: TransientJob = {
+    kind: "transients",
+    args: { ...args, log: slim },
+    control,
+    port: port2,
+  };
+  helper.postMessage(job, [port2]);
+  jobs++;
+  return {
+    wait: () => {
+      Atomics.wait(control, 0, 0, 60_000);
+      const reply = Atomics.load(control, 0) === 1 ? receiveMessageOnPort(port1) : undefined;
+      port1.close();
+      return reply?.message as TransientPart | undefined;
+    },
+  };
 }

@@ -1,24 +1,38 @@
 /**
- * The block helper's thread (block-helper.ts): computes the blocks of each job it is posted
- * (order-tracking.ts trackRange) into the job's shared arrays and wakes the waiting caller.
+ * The block helper's thread (block-helper.ts): computes the blocks of each block job it is
+ * posted (order-tracking.ts trackRange) into the job's shared arrays, or the transients of a
+ * transients job (transient-analysis.ts analyseTransients) onto the job's port, and wakes the
+ * waiting caller.
  */
 import { parentPort } from "node:worker_threads";
-import type { BlockJob } from "./block-helper.ts";
+import type { BlockJob, TransientJob } from "./block-helper.ts";
 import { trackRange } from "./order-tracking.ts";
+import { analyseTransients } from "./transient-analysis.ts";
 
-parentPort?.on("message", (job: BlockJob) => {
+function runBlocks(job: BlockJob): void {
   const { control, out } = job;
+  const r = trackRange(job.args, job.from, job.to, job.warmFrom);
+  out.crankAmp.set(r.crankAmp);
+  out.gearboxAmp.set(r.gearboxAmp);
+  out.blockRadS.set(r.blockRadS);
+  out.blockStartS.set(r.blockStartS);
+  out.blockEndS.set(r.blockEndS);
+  if (out.twistRadS && r.twistRadS) out.twistRadS.set(r.twistRadS);
+  control[1] = r.blockCount;
+  control[2] = r.droppedSlowBlocks;
+  [control[3], control[4]] = r.samplesPerRevRange;
+}
+
+function runTransients(job: TransientJob): void {
+  // Posted before the wake-up, so the caller's receiveMessageOnPort finds it.
+  job.port.postMessage(analyseTransients(job.args));
+}
+
+parentPort?.on("message", (job: BlockJob | TransientJob) => {
+  const { control } = job;
   try {
-    const r = trackRange(job.args, job.from, job.to, job.warmFrom);
-    out.crankAmp.set(r.crankAmp);
-    out.gearboxAmp.set(r.gearboxAmp);
-    out.blockRadS.set(r.blockRadS);
-    out.blockStartS.set(r.blockStartS);
-    out.blockEndS.set(r.blockEndS);
-    if (out.twistRadS && r.twistRadS) out.twistRadS.set(r.twistRadS);
-    control[1] = r.blockCount;
-    control[2] = r.droppedSlowBlocks;
-    [control[3], control[4]] = r.samplesPerRevRange;
+    if (job.kind === "transients") runTransients(job);
+    else runBlocks(job);
     Atomics.store(control, 0, 1);
   } catch {
     Atomics.store(control, 0, 2);

@@ -197,13 +197,15 @@ export function transientResult(args: {
   binRpm: number;
   /** The caller reads `tracked` no more: its arrays may be reused (blocksOutside). */
   inPlace?: boolean;
+  /** The spans already measured, as analyseTransients measures them (the CLI's helper thread). */
+  measured?: TransientPart;
 }): {
   isolation: IsolationPoint[];
   transient: TransientInfo;
   events: TransientEvent[];
   twist: TwistBlock;
 } {
-  const part = analyseTransients({ ...args, idleRpm: idleOf(args.segments) });
+  const part = args.measured ?? analyseTransients({ ...args, idleRpm: idleOf(args.segments) });
   return transientResultOf(part, { ...args, sampleRateHz: args.log.sampleRateHz });
 }
 
