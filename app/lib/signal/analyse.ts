@@ -12,7 +12,7 @@ import {
   type AnalysisStage,
 } from "./analysis-assembly.ts";
 import { integrateAngle } from "./angle-grid.ts";
-import { helpedTransients } from "./block-helper.ts";
+import { helpedFiltfilt, helpedTransients } from "./block-helper.ts";
 import { filtfilt } from "./lowpass.ts";
 import { trackBlocks, type TrackedBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
@@ -112,9 +112,13 @@ export function analyseDriveLog(
   let tracked: TrackedBlocks;
   let wholeAngle: Float64Array | undefined; // kept for the transients (one section only)
   if (!log.sections || log.sections.length < 2) {
+    // With the CLI's helper thread the gearbox channel is low-passed there meanwhile.
+    const helpedGearbox = filters.length ? helpedFiltfilt(log.gearboxRadS, filters) : undefined;
     const crank = filters.length ? filtfilt(log.crankRadS, filters) : log.crankRadS;
     onProgress?.("track", 0.4);
-    const gearbox = filters.length ? filtfilt(log.gearboxRadS, filters) : log.gearboxRadS;
+    const gearbox = filters.length
+      ? (helpedGearbox?.wait() ?? filtfilt(log.gearboxRadS, filters))
+      : log.gearboxRadS;
     onProgress?.("track", 0.8);
     const angle = integrateAngle(log.timeS, log.crankRadS);
     if (withTransients) wholeAngle = angle;

@@ -5,19 +5,21 @@ import { cliTempDir } from "../../../tests/support/cli-process.ts";
 import { integrateAngle, chooseAngleGrid } from "./angle-grid.ts";
 import {
   blockHelperJobs,
+  helpedFiltfilt,
   helpedTransients,
   startBlockHelper,
   stopBlockHelper,
 } from "./block-helper.ts";
-import { butterworthLowpass4 } from "./lowpass.ts";
+import { butterworthLowpass4, filtfilt } from "./lowpass.ts";
 import { analyseTransients } from "./transient-analysis.ts";
 import type { DriveLog } from "./types.ts";
 import { trackBlocks } from "./order-tracking.ts";
 import { analyseSource } from "./pipeline.ts";
 import { float64Array } from "./shared-arrays.ts";
 
-// The block helper (a second thread computing the later order-tracking blocks, then the
-// transients) against the one-thread computation: every value the same, bit for bit. The one-thread order tracking is
+// The block helper (a second thread low-passing one channel, computing the later order-tracking
+// blocks, then the transients) against the one-thread computation: every value the same, bit
+// for bit. The one-thread order tracking is
 // held against analytic signals in order-tracking.test.ts; here it is the reference.
 const dir = cliTempDir("twistlog-blocks-");
 afterAll(stopBlockHelper);
@@ -81,6 +83,17 @@ describe("the block helper", SLOW, () => {
     }
   });
 
+  it("low-passes a channel as filtfilt does on one thread, bit for bit", () => {
+    startBlockHelper();
+    const { gear } = runUp();
+    const filters = butterworthLowpass4(400, 5000);
+    const before = blockHelperJobs();
+    const helped = helpedFiltfilt(gear, filters)?.wait();
+    expect(blockHelperJobs()).toBe(before + 1);
+    expect(helped).toBeDefined();
+    expect(Array.from(helped!)).toEqual(Array.from(filtfilt(gear, filters)));
+  });
+
   it("measures the transients of a cranking start as analyseTransients does on one thread", () => {
     startBlockHelper();
     // 0.6 s of cranking at 250 rpm, then a start to 850 rpm within 0.4 s: a fast span.
@@ -131,8 +144,9 @@ describe("the block helper", SLOW, () => {
     startBlockHelper();
     const before = blockHelperJobs();
     const two = await analyseSource({ source: log, ingest: {}, analysis: {} });
-    // Two jobs: the later blocks, then the transients (the log's start holds fast spans).
-    expect(blockHelperJobs()).toBe(before + 2);
+    // Three jobs: the gearbox low-pass, the later blocks, then the transients (the log's start
+    // holds fast spans).
+    expect(blockHelperJobs()).toBe(before + 3);
     expect(two.ok && two.value.result.transient?.spans.length).toBeGreaterThan(0);
     expect(two.ok && JSON.stringify(two.value.result)).toBe(
       one.ok && JSON.stringify(one.value.result),

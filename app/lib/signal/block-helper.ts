@@ -9,7 +9,8 @@
  * slow block has a finer angle grid). The caller waits for the helper with Atomics.wait and
  * computes the helper's blocks itself when the helper fails or does not answer within a minute.
  *
- * Once the blocks are done the helper can also measure the transients (transient-analysis.ts
+ * Before the blocks it can low-pass one channel while the caller low-passes the other
+ * (helpedFiltfilt). Once the blocks are done the helper can also measure the transients (transient-analysis.ts
  * analyseTransients, the order filter over the fast spans) while the caller computes the rest of
  * the result (helpedTransients); the part comes back through a message port, read synchronously.
  */
@@ -21,6 +22,7 @@ import {
   receiveMessageOnPort,
   Worker,
 } from "node:worker_threads";
+import type { Biquad } from "./lowpass.ts";
 import type { TrackArgs, TrackedBlocks } from "./order-tracking.ts";
 import type { analyseTransients, TransientPart } from "./transient-analysis.ts";
 import { allocateShared, allShared } from "./shared-arrays.ts";
@@ -180,6 +182,38 @@ export function helpedTransients(
       const reply = Atomics.load(control, 0) === 1 ? receiveMessageOnPort(port1) : undefined;
       port1.close();
       return reply?.message as TransientPart | undefined;
+    },
+  };
+}
+
+/** A low-pass job: filtfilt(x, sections) into the shared `out`. */
+export interface LowpassJob {
+  kind: "lowpass";
+  x: Float64Array;
+  sections: readonly Biquad[];
+  out: Float64Array;
+  /** [state (0 busy, 1 done, 2 failed)] */
+  control: Int32Array;
+}
+
+/**
+ * Hands filtfilt(x, sections) to the helper, or undefined when there is none or x is not
+ * shared. `wait()` returns the filtered copy, or undefined when the caller must filter it.
+ */
+export function helpedFiltfilt(
+  x: Float64Array,
+  sections: readonly Biquad[],
+): { wait: () => Float64Array | undefined } | undefined {
+  if (!helper || !allShared(x)) return undefined;
+  const control = new Int32Array(new SharedArrayBuffer(4));
+  const out = sharedF64(x.length).subarray(0, x.length);
+  const job: LowpassJob = { kind: "lowpass", x, sections, out, control };
+  helper.postMessage(job);
+  jobs++;
+  return {
+    wait: () => {
+      Atomics.wait(control, 0, 0, 60_000);
+      return Atomics.load(control, 0) === 1 ? out : undefined;
     },
   };
 }

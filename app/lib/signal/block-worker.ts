@@ -1,11 +1,12 @@
 /**
  * The block helper's thread (block-helper.ts): computes the blocks of each block job it is
- * posted (order-tracking.ts trackRange) into the job's shared arrays, or the transients of a
- * transients job (transient-analysis.ts analyseTransients) onto the job's port, and wakes the
- * waiting caller.
+ * posted (order-tracking.ts trackRange) into the job's shared arrays, the low-pass of a low-pass
+ * job into its shared array, or the transients of a transients job (transient-analysis.ts
+ * analyseTransients) onto the job's port, and wakes the waiting caller.
  */
 import { parentPort } from "node:worker_threads";
-import type { BlockJob, TransientJob } from "./block-helper.ts";
+import type { BlockJob, LowpassJob, TransientJob } from "./block-helper.ts";
+import { filtfilt } from "./lowpass.ts";
 import { trackRange } from "./order-tracking.ts";
 import { analyseTransients } from "./transient-analysis.ts";
 
@@ -28,10 +29,11 @@ function runTransients(job: TransientJob): void {
   job.port.postMessage(analyseTransients(job.args));
 }
 
-parentPort?.on("message", (job: BlockJob | TransientJob) => {
+parentPort?.on("message", (job: BlockJob | LowpassJob | TransientJob) => {
   const { control } = job;
   try {
     if (job.kind === "transients") runTransients(job);
+    else if (job.kind === "lowpass") filtfilt(job.x, job.sections, job.out);
     else runBlocks(job);
     Atomics.store(control, 0, 1);
   } catch {

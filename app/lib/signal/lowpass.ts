@@ -83,10 +83,14 @@ function runPair(x: Float64Array, s: Biquad, t: Biquad, forward: boolean): void 
 
 /**
  * Zero-phase filtering (forward then backward, so the magnitude response is squared and the
- * phase cancels). Returns a new array; the input is left untouched.
+ * phase cancels). Returns a new array, or `out` (as long as x) filled; x is left untouched.
  */
-export function filtfilt(x: Float64Array, sections: readonly Biquad[]): Float64Array {
-  const y = float64Array(x.length); // shared memory for the block helper, when it runs
+export function filtfilt(
+  x: Float64Array,
+  sections: readonly Biquad[],
+  out?: Float64Array,
+): Float64Array {
+  const y = out ?? float64Array(x.length); // shared memory for the block helper, when it runs
   y.set(x);
   const [s, t] = sections;
   if (sections.length === 2 && s && t) {
