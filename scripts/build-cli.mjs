@@ -22,10 +22,9 @@ const root = fileURLToPath(new URL("..", import.meta.url));
 
 await build({
   absWorkingDir: root,
-  // The two-thread ingest and the block helper start their workers from files beside it.
+  // The block helper (the CLI's second thread) starts from a file beside it.
   entryPoints: {
     twistlog: "app/lib/signal/cli.ts",
-    "parse-worker": "app/lib/signal/parse-worker.ts",
     "block-worker": "app/lib/signal/block-worker.ts",
   },
   outdir: "build/cli",

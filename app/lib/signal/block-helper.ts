@@ -9,7 +9,8 @@
  * slow block has a finer angle grid). The caller waits for the helper with Atomics.wait and
  * computes the helper's blocks itself when the helper fails or does not answer within a minute.
  *
- * Before the blocks it can low-pass one channel while the caller low-passes the other
+ * The helper also reads the second half of a CSV in the two-thread ingest (helpedRange,
+ * ingest-parallel.ts). Before the blocks it can low-pass one channel while the caller low-passes the other
  * (helpedFiltfilt). Once the blocks are done the helper can also measure the transients (transient-analysis.ts
  * analyseTransients, the order filter over the fast spans) while the caller computes the rest of
  * the result (helpedTransients); the part comes back through a message port, read synchronously.
@@ -22,6 +23,7 @@ import {
   receiveMessageOnPort,
   Worker,
 } from "node:worker_threads";
+import type { RangeJob, RangeReply } from "./ingest-range.ts";
 import type { Biquad } from "./lowpass.ts";
 import type { TrackArgs, TrackedBlocks } from "./order-tracking.ts";
 import type { analyseTransients, TransientPart } from "./transient-analysis.ts";
@@ -216,4 +218,30 @@ export function helpedFiltfilt(
       return Atomics.load(control, 0) === 1 ? out : undefined;
     },
   };
+}
+
+/** A read job: readRangeJob in the helper, the reply posted back on `port`. */
+export interface HelperRangeJob extends RangeJob {
+  kind: "range";
+  port: MessagePort;
+}
+
+/**
+ * Hands the read of a byte range to the helper, or undefined when there is none. The promise
+ * gives its reply (columns transferred, not copied), or undefined when the helper failed or
+ * ended: the caller then reads the file on one thread.
+ */
+export function helpedRange(job: RangeJob): Promise<RangeReply | undefined> | undefined {
+  if (!helper) return undefined;
+  const { port1, port2 } = new MessageChannel();
+  const posted: HelperRangeJob = { ...job, kind: "range", port: port2 };
+  helper.postMessage(posted, [port2]);
+  jobs++;
+  return new Promise((resolve) => {
+    port1.once("message", (reply: RangeReply | undefined) => {
+      port1.close();
+      resolve(reply);
+    });
+    port1.once("close", () => resolve(undefined)); // the helper ended without an answer
+  });
 }

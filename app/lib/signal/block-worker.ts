@@ -1,11 +1,12 @@
 /**
- * The block helper's thread (block-helper.ts): computes the blocks of each block job it is
- * posted (order-tracking.ts trackRange) into the job's shared arrays, the low-pass of a low-pass
+ * The block helper's thread (block-helper.ts): reads the byte range of a read job
+ * (ingest-range.ts) onto the job's port; computes the blocks of each block job it is posted (order-tracking.ts trackRange) into the job's shared arrays, the low-pass of a low-pass
  * job into its shared array, or the transients of a transients job (transient-analysis.ts
  * analyseTransients) onto the job's port, and wakes the waiting caller.
  */
 import { parentPort } from "node:worker_threads";
-import type { BlockJob, LowpassJob, TransientJob } from "./block-helper.ts";
+import type { BlockJob, HelperRangeJob, LowpassJob, TransientJob } from "./block-helper.ts";
+import { readRangeJob } from "./ingest-range.ts";
 import { filtfilt } from "./lowpass.ts";
 import { trackRange } from "./order-tracking.ts";
 import { analyseTransients } from "./transient-analysis.ts";
@@ -29,7 +30,17 @@ function runTransients(job: TransientJob): void {
   job.port.postMessage(analyseTransients(job.args));
 }
 
-parentPort?.on("message", (job: BlockJob | LowpassJob | TransientJob) => {
+function runRange(job: HelperRangeJob): void {
+  try {
+    const { reply, buffers } = readRangeJob(job);
+    job.port.postMessage(reply, buffers);
+  } catch {
+    job.port.postMessage(undefined);
+  }
+}
+
+parentPort?.on("message", (job: BlockJob | HelperRangeJob | LowpassJob | TransientJob) => {
+  if (job.kind === "range") return runRange(job);
   const { control } = job;
   try {
     if (job.kind === "transients") runTransients(job);

@@ -1,15 +1,17 @@
 import { readdirSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
-import { describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { cliTempDir } from "../../../tests/support/cli-process.ts";
+import { blockHelperJobs, startBlockHelper, stopBlockHelper } from "./block-helper.ts";
 import { ingestCsv } from "./ingest.ts";
 import { ingestInTwo } from "./ingest-parallel.ts";
 import { ingestFile } from "./ingest-stream.ts";
 import type { DriveLog, Outcome } from "./types.ts";
 
-// The two-thread ingest (ingest-parallel.ts) against the one-thread ingest of the same file:
-// the same samples, channels, warnings and messages. The one-thread ingest is itself held
+// The two-thread ingest (ingest-parallel.ts; its second thread is the CLI's helper,
+// block-helper.ts) against the one-thread ingest of the same file: the same samples, channels,
+// warnings and messages. The one-thread ingest is itself held
 // against papaparse + Number() (ingest-fuzz.test.ts); here it is the reference.
 const samples = fileURLToPath(new URL("../../../samples", import.meta.url));
 const dir = cliTempDir("twistlog-parallel-");
@@ -37,6 +39,9 @@ function expectSame(two: Outcome<DriveLog> | undefined, one: Outcome<DriveLog>) 
 }
 
 describe("the CSV ingest on two threads", SLOW, () => {
+  beforeAll(startBlockHelper);
+  afterAll(stopBlockHelper);
+
   const csvs = readdirSync(samples).filter((f) => f.endsWith(".csv"));
   it.each(csvs)("equals the one-thread ingest on samples/%s", async (name) => {
     const path = join(samples, name);
@@ -95,6 +100,16 @@ describe("the CSV ingest on two threads", SLOW, () => {
       }),
     );
     expect(await ingestInTwo(path, {}, undefined, 0)).toBeUndefined();
+  });
+
+  it("is not taken without the helper thread (the one-thread ingest reads the file)", async () => {
+    const path = write("alone.csv", log(30000));
+    await stopBlockHelper();
+    const before = blockHelperJobs();
+    expect(await ingestInTwo(path, {}, undefined, 0)).toBeUndefined();
+    startBlockHelper();
+    expect(await ingestInTwo(path, {}, undefined, 0)).toBeDefined();
+    expect(blockHelperJobs()).toBe(before + 1);
   });
 
   it("reads the same as ingestCsv of the text held in memory", async () => {

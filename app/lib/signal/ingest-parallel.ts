@@ -1,19 +1,19 @@
 /**
  * The CSV ingest on two threads, for a large file on disk: the head is read as the whole-file
  * ingest reads it (ingest.ts, csv-head.ts), the data split at the line boundary nearest their
- * middle, the second half read by a worker thread (parse-worker.ts) while this thread reads the
- * first (both with ingest-range.ts, i.e. the same row reader), then the columns joined and the
- * log finished exactly as ingest.ts finishes it. The result is the same DriveLog and warnings.
+ * middle, the second half read by the CLI's helper thread (block-helper.ts helpedRange) while
+ * this thread reads the first (both with ingest-range.ts, i.e. the same row reader), then the
+ * columns joined and the log finished exactly as ingest.ts finishes it. The result is the same
+ * DriveLog and warnings.
  *
- * Anything out of the ordinary — a problem in either half, a row warning, time not increasing
- * across the seam, a worker that fails — and the file is read again by the one-thread ingest
- * (ingestFile), so messages and row numbers are always that ingest's. Small files and MDF4 go
- * there directly. Measured on the 92 MB bench log (bench/cli.bench.ts): see docs/signal-ingest.md.
+ * Anything out of the ordinary — no helper running, a problem in either half, a row warning,
+ * time not increasing across the seam, a helper that fails — and the file is read again by the
+ * one-thread ingest (ingestFile), so messages and row numbers are always that ingest's. Small
+ * files and MDF4 go there directly. Measured on the 92 MB bench log (bench/cli.bench.ts): see
+ * docs/signal-ingest.md.
  */
 import { open, stat } from "node:fs/promises";
-import { createRequire } from "node:module";
-import { pathToFileURL } from "node:url";
-import { Worker } from "node:worker_threads";
+import { helpedRange } from "./block-helper.ts";
 import { createHeadCollector } from "./csv-head.ts";
 import { sniffFormat } from "./format.ts";
 import { buildDriveLog } from "./ingest-channels.ts";
@@ -22,40 +22,15 @@ import { resolveHead } from "./ingest-header.ts";
 import { readRange, RANGE_CHUNK_BYTES, type RangeLimits } from "./ingest-range.ts";
 import { ingestFile, type ByteProgress } from "./ingest-stream.ts";
 import type { IngestOptions } from "./ingest.ts";
-import type { RangeJob, RangeReply } from "./parse-worker.ts";
 import { rateMismatch } from "./stated-rate.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
 
-/** Below this size one thread is as fast (a worker takes some 30 ms to start). */
+/** Below this size one thread is as fast (handing a job over takes a few ms). */
 export const PARALLEL_MIN_BYTES = 4 << 20;
 
 /**
- * The worker's script: the built parse-worker.mjs beside the bundled command, or under tsx and
- * vitest the TypeScript source, loaded through tsx's API (a worker does not inherit the
- * loader, and `--import tsx` in its execArgv does not take on Node 20).
- */
-function startWorker(job: RangeJob): Worker {
-  if (!import.meta.url.endsWith(".ts"))
-    return new Worker(new URL("./parse-worker.mjs", import.meta.url), { workerData: job });
-  const api = createRequire(import.meta.url)
-    .resolve("tsx/esm/api")
-    .replace(/\.cjs$/, ".mjs");
-  const source = new URL("./parse-worker.ts", import.meta.url).href;
-  const boot = `import(${JSON.stringify(pathToFileURL(api).href)}).then((m) => m.tsImport(${JSON.stringify(source)}, ${JSON.stringify(import.meta.url)}))`;
-  return new Worker(boot, { eval: true, workerData: job });
-}
-
-function workerReply(worker: Worker): Promise<RangeReply | undefined> {
-  return new Promise((resolve) => {
-    worker.once("message", (m: RangeReply) => resolve(m));
-    worker.once("error", () => resolve(undefined));
-    worker.once("exit", () => resolve(undefined));
-  });
-}
-
-/**
  * Ingest the CSV or MDF4 file at `path`: two threads when it is a CSV of at least
- * PARALLEL_MIN_BYTES, else ingestFile. Same options, result and progress as ingestFile.
+ * PARALLEL_MIN_BYTES and the helper thread runs, else ingestFile. Same options, result and progress as ingestFile.
  */
 export async function ingestFileParallel(
   path: string,
@@ -67,7 +42,8 @@ export async function ingestFileParallel(
 
 /**
  * The two-thread read of a CSV file of at least `minBytes`, or undefined when the file is not
- * one for it (small, MDF4, unreadable) or anything in it needs the one-thread ingest's words.
+ * one for it (small, MDF4, unreadable), no helper thread runs (startBlockHelper), or anything
+ * in it needs the one-thread ingest's words.
  */
 export async function ingestInTwo(
   path: string,
@@ -121,13 +97,12 @@ export async function ingestInTwo(
   };
   // The row reader counts file lines from the line before the data (the units row, if any).
   const rowsFrom = { ...header, headerLine: header.lastHeadLine };
+  const second = helpedRange({ path, from: split, to: size, header: rowsFrom, limits });
+  if (!second) return undefined;
   onProgress?.(0);
-  const worker = startWorker({ path, from: split, to: size, header: rowsFrom, limits });
-  const second = workerReply(worker);
   const a = readRange(path, dataStart, split, rowsFrom, limits, size);
   onProgress?.(0.5);
   const b = await second;
-  void worker.terminate();
   if (!b || b.failed || b.warnings > 0 || a.error || a.warnings.length > 0) return undefined;
   const ch = a.channels;
   const n = a.n + b.n;

@@ -19,6 +19,27 @@ export interface RangeLimits {
   strict?: boolean;
 }
 
+/** The second half of a two-thread ingest, as the main thread hands it over (block-helper.ts). */
+export interface RangeJob {
+  path: string;
+  from: number;
+  to: number;
+  header: LogHeader;
+  limits: RangeLimits;
+}
+
+/** What the helper hands back: the first n values of each column, and the reader's findings. */
+export interface RangeReply {
+  n: number;
+  t: Float64Array;
+  crank: Float64Array;
+  gear: Float64Array;
+  extras: Float64Array[];
+  skipped: number[];
+  failed: boolean;
+  warnings: number;
+}
+
 /** What one range gave: its channels (n rows), blank or dropped rows, and any problem. */
 export interface RangeRows {
   channels: Channels;
@@ -59,4 +80,27 @@ export function readRange(
   }
   if (!reader.error) reader.feed(new Uint8Array(0), true);
   return { channels, n: reader.rows, skipped: [...reader.skipped], error: reader.error, warnings };
+}
+
+/**
+ * readRange for a RangeJob, packed as its reply; `buffers` are the columns' memory, for a
+ * postMessage transfer list (the values are not copied).
+ */
+export function readRangeJob(job: RangeJob): { reply: RangeReply; buffers: ArrayBuffer[] } {
+  const r = readRange(job.path, job.from, job.to, job.header, job.limits, job.to - job.from);
+  const cols = [r.channels.t, r.channels.crank, r.channels.gear, ...r.channels.extras];
+  const [t, crank, gear, ...extras] = cols.map((c) => c.take(r.n));
+  return {
+    reply: {
+      n: r.n,
+      t: t!,
+      crank: crank!,
+      gear: gear!,
+      extras,
+      skipped: r.skipped,
+      failed: r.error !== undefined,
+      warnings: r.warnings.length,
+    },
+    buffers: cols.map((c) => c.data.buffer as ArrayBuffer),
+  };
 }
