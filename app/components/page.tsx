@@ -99,6 +99,15 @@ export function TableHead({ columns, action }: { columns: string[]; action?: str
   );
 }
 
+// Made once: toLocaleString with options builds a new formatter on every call, which was a few
+// per cent of a drive-log page's server time (its tables show a date per row).
+const dayFormat = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeZone: "UTC" });
+const timeFormat = new Intl.DateTimeFormat("en-GB", {
+  dateStyle: "medium",
+  timeStyle: "short",
+  timeZone: "UTC",
+});
+
 /** Dates in the UI: day, month, year and (unless dateOnly) the time, in UTC. */
 export function When({
   date,
@@ -111,8 +120,6 @@ export function When({
   const d = new Date(date);
   // UTC on server and browser alike, so the two renders agree and teams in several time
   // zones read the same time.
-  const text = dateOnly
-    ? d.toLocaleDateString("en-GB", { dateStyle: "medium", timeZone: "UTC" })
-    : `${d.toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" })} UTC`;
+  const text = dateOnly ? dayFormat.format(d) : `${timeFormat.format(d)} UTC`;
   return <time dateTime={d.toISOString()}>{text}</time>;
 }

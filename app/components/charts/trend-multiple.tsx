@@ -8,13 +8,15 @@ import { trendSeries } from "./trend-series";
 
 const DAY = 86400;
 
+const dayFormat = new Intl.DateTimeFormat("en-GB", {
+  day: "numeric",
+  month: "short",
+  timeZone: "UTC",
+});
+
 /** "4 Nov": the axis ticks of a test date (UTC, like every date on screen). */
 function dayText(seconds: number): string {
-  return new Date(seconds * 1000).toLocaleDateString("en-GB", {
-    day: "numeric",
-    month: "short",
-    timeZone: "UTC",
-  });
+  return dayFormat.format(new Date(seconds * 1000));
 }
 
 /**
