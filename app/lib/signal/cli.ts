@@ -22,18 +22,27 @@ import type { SignalIssue } from "./types.ts";
 const COMPILED = !import.meta.url.endsWith(".ts");
 
 /**
- * The pipeline as the command runs it. Compiled, a CSV analysed in memory is read in two halves
- * on two threads (ingest-parallel.ts); under tsx each thread would first load the TypeScript
- * loader, which costs more than it saves. Same output either way (cli-bin.test.ts).
+ * The pipeline as the command runs it. Compiled, a log analysed in memory gets the helper thread
+ * (block-helper.ts): a CSV is read in two halves on two threads (ingest-parallel.ts), and the
+ * helper shares the low-pass, the blocks and the transients. Under tsx each thread would first
+ * load the TypeScript loader, which costs more than it saves. Same output either way
+ * (cli-bin.test.ts). The helper starts only on the in-memory way: the windowed way never uses
+ * it, and a second idle thread would add its memory to the bounded peak (goal 1 of issue 17).
  */
 export function analyseFile(
   input: PipelineInput & { source: string },
   onProgress?: (stage: PipelineStage, fraction: number) => void,
 ) {
   return analyseSource(
-    COMPILED ? { ...input, ingestWholeFile: ingestFileParallel } : input,
+    COMPILED ? { ...input, ingestWholeFile: ingestWithHelper } : input,
     onProgress,
   );
+}
+
+/** ingestFileParallel with the helper thread started first (its arrays shared from then on). */
+function ingestWithHelper(...args: Parameters<typeof ingestFileParallel>) {
+  startBlockHelper();
+  return ingestFileParallel(...args);
 }
 
 // The bundle's pipeline and threads, for bench/cli.bench.ts's stage profile of compiled code.
@@ -162,7 +171,6 @@ export async function main(
   const progress = err === process.stderr ? terminalProgress() : undefined;
   // Compiled, the command uses the second core: half of the order-tracking blocks go to a
   // helper thread (block-helper.ts), and see analyseFile. `npm run analyse` stays on one thread.
-  if (COMPILED) startBlockHelper();
   const outcome = await analyseFile({ ...cmd, source: cmd.file }, progress).finally(
     stopBlockHelper,
   );
