@@ -35,7 +35,10 @@ const GOAL_MB = 150;
 const SMALL_ROWS = Number(process.env.BENCH_SMALL_ROWS ?? 3_000_000);
 const LARGE_ROWS = 34_000_000;
 
-/** Knots (s, rpm) of one 120 s cycle of the Kestrel bench drive (bench/drive-log.ts); the log repeats it. */
+/**
+ * Knots (s, rpm) of one 120 s cycle of the Kestrel bench drive (bench/drive-log.ts); the log
+ * repeats it.
+ */
 const KNOTS = PROFILE;
 const CYCLE_S = 120;
 const RAD_PER_RPM = (2 * Math.PI) / 60;
@@ -124,7 +127,10 @@ function generatedSource(rows: number): SampleSource {
   };
 }
 
-/** One measurement's line for the parent: analysis time from `t0`, the process's peak RSS, blocks. */
+/**
+ * One measurement's line for the parent: analysis time from `t0`, the process's peak RSS,
+ * blocks.
+ */
 function report(t0: number, blocks: number): void {
   console.log(
     JSON.stringify({

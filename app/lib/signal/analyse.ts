@@ -146,19 +146,19 @@ export function analyseDriveLog(
   }
   onProgress?.("spectra", 1);
   const segments = sectionSegments(log);
+  const transientArgs = {
+    log,
+    angleRad: wholeAngle,
+    filters,
+    grid: setup.grid,
+    order: q,
+    revsPerBlock: R,
+    binRpm,
+  };
   // With the CLI's helper thread, the transients are measured there while this thread computes
   // the rest of the result (block-helper.ts); the same part either way.
   const helped = withTransients
-    ? helpedTransients({
-        log,
-        angleRad: wholeAngle,
-        filters,
-        grid: setup.grid,
-        order: q,
-        revsPerBlock: R,
-        binRpm,
-        idleRpm: idleOf(segments),
-      })
+    ? helpedTransients({ ...transientArgs, idleRpm: idleOf(segments) })
     : undefined;
   return finishAnalysis(
     setup,
@@ -170,15 +170,9 @@ export function analyseDriveLog(
       transients: (t) =>
         withTransients
           ? transientResult({
-              log,
-              angleRad: wholeAngle,
-              filters,
-              grid: setup.grid,
+              ...transientArgs,
               tracked: t,
               segments,
-              order: q,
-              revsPerBlock: R,
-              binRpm,
               inPlace: true,
               measured: helped?.wait(),
             })

@@ -10,10 +10,11 @@
  * computes the helper's blocks itself when the helper fails or does not answer within a minute.
  *
  * The helper also reads the second half of a CSV in the two-thread ingest (helpedRange,
- * ingest-parallel.ts). Before the blocks it can low-pass one channel while the caller low-passes the other
- * (helpedFiltfilt). Once the blocks are done the helper can also measure the transients (transient-analysis.ts
- * analyseTransients, the order filter over the fast spans) while the caller computes the rest of
- * the result (helpedTransients); the part comes back through a message port, read synchronously.
+ * ingest-parallel.ts). Before the blocks it can low-pass one channel while the caller low-passes
+ * the other (helpedFiltfilt). Once the blocks are done it can measure the transients
+ * (transient-analysis.ts analyseTransients, the order filter over the fast spans) while the
+ * caller computes the rest of the result (helpedTransients); the part comes back through a
+ * message port, read synchronously.
  */
 import { createRequire } from "node:module";
 import { pathToFileURL } from "node:url";
@@ -41,7 +42,8 @@ export function blockHelperJobs(): number {
 export function startBlockHelper(): void {
   if (helper) return;
   if (import.meta.url.endsWith(".ts")) {
-    // Under tsx or vitest: the TypeScript source through tsx's API (as ingest-parallel.ts).
+    // Under tsx or vitest: the TypeScript source through tsx's API (a worker does not inherit
+    // the loader, and `--import tsx` in its execArgv does not take on Node 20).
     const api = createRequire(import.meta.url)
       .resolve("tsx/esm/api")
       .replace(/\.cjs$/, ".mjs");
@@ -54,6 +56,24 @@ export function startBlockHelper(): void {
   helper.unref(); // the process may end while it idles
   helper.on("error", () => (helper = undefined));
   allocateShared(true);
+}
+
+/** Posts a job to the helper (counted) with the ports it carries. */
+function post(job: object, transfer: MessagePort[] = []): void {
+  helper!.postMessage(job, transfer);
+  jobs++;
+}
+
+/** A job's control word [state (0 busy, 1 done, 2 failed), …], `words` long, shared. */
+const controlWords = (words: number) => new Int32Array(new SharedArrayBuffer(words * 4));
+
+/**
+ * Blocks until the helper has ended the job of `control` (at most a minute); whether it
+ * finished. On false the caller computes the job itself.
+ */
+function finished(control: Int32Array): boolean {
+  Atomics.wait(control, 0, 0, 60_000);
+  return Atomics.load(control, 0) === 1;
 }
 
 /** Stop the helper; arrays are ordinary again. */
@@ -102,7 +122,7 @@ export function helpedSplit(
   if (from < 1) return undefined;
   const count = maxBlocks - from;
   const bins = args.topBin + 1;
-  const control = new Int32Array(new SharedArrayBuffer(5 * 4));
+  const control = controlWords(5);
   const out = {
     crankAmp: sharedF64(count * bins),
     gearboxAmp: sharedF64(count * bins),
@@ -121,11 +141,9 @@ export function helpedSplit(
     control,
     out,
   };
-  helper.postMessage(job);
-  jobs++;
+  post(job);
   const wait = (): TrackedBlocks | undefined => {
-    Atomics.wait(control, 0, 0, 60_000);
-    if (Atomics.load(control, 0) !== 1) return undefined;
+    if (!finished(control)) return undefined;
     const kept = control[1]!;
     return {
       revsPerBlock: R,
@@ -151,7 +169,7 @@ type TransientArgs = Parameters<typeof analyseTransients>[0];
 export interface TransientJob {
   kind: "transients";
   args: TransientArgs;
-  /** [state (0 busy, 1 done, 2 failed)] */
+  /** controlWords(1) */
   control: Int32Array;
   port: MessagePort;
 }
@@ -167,7 +185,7 @@ export function helpedTransients(
   const { log, angleRad } = args;
   if (!helper || !allShared(log.timeS, log.crankRadS, log.gearboxRadS)) return undefined;
   if (angleRad && !allShared(angleRad)) return undefined;
-  const control = new Int32Array(new SharedArrayBuffer(4));
+  const control = controlWords(1);
   const { port1, port2 } = new MessageChannel();
   const slim = { ...log, extra: {} };
   const job: TransientJob = {
@@ -176,12 +194,10 @@ export function helpedTransients(
     control,
     port: port2,
   };
-  helper.postMessage(job, [port2]);
-  jobs++;
+  post(job, [port2]);
   return {
     wait: () => {
-      Atomics.wait(control, 0, 0, 60_000);
-      const reply = Atomics.load(control, 0) === 1 ? receiveMessageOnPort(port1) : undefined;
+      const reply = finished(control) ? receiveMessageOnPort(port1) : undefined;
       port1.close();
       return reply?.message as TransientPart | undefined;
     },
@@ -194,7 +210,7 @@ export interface LowpassJob {
   x: Float64Array;
   sections: readonly Biquad[];
   out: Float64Array;
-  /** [state (0 busy, 1 done, 2 failed)] */
+  /** controlWords(1) */
   control: Int32Array;
 }
 
@@ -207,17 +223,11 @@ export function helpedFiltfilt(
   sections: readonly Biquad[],
 ): { wait: () => Float64Array | undefined } | undefined {
   if (!helper || !allShared(x)) return undefined;
-  const control = new Int32Array(new SharedArrayBuffer(4));
+  const control = controlWords(1);
   const out = sharedF64(x.length).subarray(0, x.length);
   const job: LowpassJob = { kind: "lowpass", x, sections, out, control };
-  helper.postMessage(job);
-  jobs++;
-  return {
-    wait: () => {
-      Atomics.wait(control, 0, 0, 60_000);
-      return Atomics.load(control, 0) === 1 ? out : undefined;
-    },
-  };
+  post(job);
+  return { wait: () => (finished(control) ? out : undefined) };
 }
 
 /** A read job: readRangeJob in the helper, the reply posted back on `port`. */
@@ -235,8 +245,7 @@ export function helpedRange(job: RangeJob): Promise<RangeReply | undefined> | un
   if (!helper) return undefined;
   const { port1, port2 } = new MessageChannel();
   const posted: HelperRangeJob = { ...job, kind: "range", port: port2 };
-  helper.postMessage(posted, [port2]);
-  jobs++;
+  post(posted, [port2]);
   return new Promise((resolve) => {
     port1.once("message", (reply: RangeReply | undefined) => {
       port1.close();

@@ -1,8 +1,9 @@
 /**
- * The block helper's thread (block-helper.ts): reads the byte range of a read job
- * (ingest-range.ts) onto the job's port; computes the blocks of each block job it is posted (order-tracking.ts trackRange) into the job's shared arrays, the low-pass of a low-pass
- * job into its shared array, or the transients of a transients job (transient-analysis.ts
- * analyseTransients) onto the job's port, and wakes the waiting caller.
+ * The block helper's thread (block-helper.ts), one job at a time: a read job's byte range
+ * (ingest-range.ts) onto the job's port; a block job's blocks (order-tracking.ts trackRange) or
+ * a low-pass job's filtered channel into the job's shared arrays; a transients job's part
+ * (transient-analysis.ts analyseTransients) onto the job's port. Every job but the read then
+ * wakes the caller waiting on its control word.
  */
 import { parentPort } from "node:worker_threads";
 import type { BlockJob, HelperRangeJob, LowpassJob, TransientJob } from "./block-helper.ts";

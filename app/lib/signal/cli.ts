@@ -169,8 +169,7 @@ export async function main(
     return 0;
   }
   const progress = err === process.stderr ? terminalProgress() : undefined;
-  // Compiled, the command uses the second core: half of the order-tracking blocks go to a
-  // helper thread (block-helper.ts), and see analyseFile. `npm run analyse` stays on one thread.
+  // Compiled, the in-memory way starts the helper thread (analyseFile); stopped here either way.
   const outcome = await analyseFile({ ...cmd, source: cmd.file }, progress).finally(
     stopBlockHelper,
   );

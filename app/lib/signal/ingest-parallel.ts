@@ -30,7 +30,8 @@ export const PARALLEL_MIN_BYTES = 4 << 20;
 
 /**
  * Ingest the CSV or MDF4 file at `path`: two threads when it is a CSV of at least
- * PARALLEL_MIN_BYTES and the helper thread runs, else ingestFile. Same options, result and progress as ingestFile.
+ * PARALLEL_MIN_BYTES and the helper thread runs, else ingestFile. Same options, result and
+ * progress as ingestFile.
  */
 export async function ingestFileParallel(
   path: string,

@@ -91,7 +91,10 @@ export function ampIndex(t: TrackedBlocks, b: number, k: number): number {
   return col < 0 ? -1 : b * t.columnsPerBlock! + col;
 }
 
-/** Blocks that fit a stretch of total angle `totalAngle` (rad): R revolutions each, hop R·(1−overlap). */
+/**
+ * Blocks that fit a stretch of total angle `totalAngle` (rad): R revolutions each, hop
+ * R·(1−overlap).
+ */
 export function blocksIn(totalAngle: number, revsPerBlock: number, overlap: number): number {
   const R = revsPerBlock;
   const hopRevs = R * (1 - overlap);
