@@ -35,10 +35,11 @@ export function fail(
 /** Every how many samples the top-speed quantile takes one (about 100 000 in all). */
 export const quantileStride = (n: number) => Math.max(1, Math.floor(n / 100_000));
 
-/** Value at quantile p (0…1) of the strided samples `s` (sorted in place). */
-export function quantileOf(s: number[], p: number): number {
-  s.sort((a, b) => a - b);
-  return s[Math.min(s.length - 1, Math.floor(p * s.length))] ?? 0;
+/** Value at quantile p (0…1) of the strided samples `s` (left as they are). */
+export function quantileOf(s: readonly number[] | Float64Array, p: number): number {
+  // A typed array sorts numerically without a comparator, several times faster.
+  const sorted = Float64Array.from(s).sort();
+  return sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] ?? 0;
 }
 
 /** What tracking needs, fixed before the first block. */

@@ -124,11 +124,21 @@ export function resampleBlock(
   }
 }
 
-/** Index i with angle[i] ≤ theta < angle[i+1] (clamped to 0 … n−2); `hint` is a lower bound. */
+/**
+ * Index i with angle[i] ≤ theta < angle[i+1] (clamped to 0 … n−2) in the non-decreasing
+ * `angleRad`; `hint` is a lower bound. The search gallops from the hint (steps 1, 2, 4, …) before
+ * it halves: callers walk the log forward, so the answer is near and the touched memory small.
+ */
 export function indexAtAngle(angleRad: Float64Array, theta: number, hint: number): number {
-  let lo = Math.max(0, Math.min(hint, angleRad.length - 2));
+  const last = angleRad.length - 1;
+  let lo = Math.max(0, Math.min(hint, last - 1));
   if (angleRad[lo]! > theta) lo = 0;
-  let hi = angleRad.length - 1;
+  let hi = lo + 1;
+  for (let step = 1; hi < last && angleRad[hi]! <= theta; step *= 2) {
+    lo = hi;
+    hi = lo + step;
+  }
+  if (hi > last) hi = last;
   while (hi - lo > 1) {
     const mid = (lo + hi) >> 1;
     if (angleRad[mid]! <= theta) lo = mid;

@@ -136,6 +136,68 @@ describe("the block helper", SLOW, () => {
     expect(helped).toEqual(local);
   });
 
+  it("shares the spans of a log in two sections with the caller and gives the one-thread part", () => {
+    startBlockHelper();
+    // Two 6 s stretches 10 s apart (a gap: two sections), each a cranking start to 850 rpm, a
+    // pull to 2500 rpm and a drop back: three fast spans each, claimed by either thread.
+    const fs = 5000;
+    const per = 6 * fs;
+    const n = 2 * per;
+    const [timeS, crankRadS, gearboxRadS] = [float64Array(n), float64Array(n), float64Array(n)];
+    let theta = 0;
+    for (let i = 0; i < n; i++) {
+      const t = (i % per) / fs;
+      const rpm =
+        t < 0.6
+          ? 250
+          : t < 1
+            ? 250 + 1500 * (t - 0.6)
+            : t < 2.5
+              ? 850
+              : t < 3.5
+                ? 850 + 1650 * (t - 2.5)
+                : t < 4.5
+                  ? 2500
+                  : t < 5
+                    ? 2500 - 3300 * (t - 4.5)
+                    : 850;
+      const w = (rpm * 2 * Math.PI) / 60;
+      theta += w / fs;
+      timeS[i] = i < per ? t : 16 + t;
+      crankRadS[i] = w + 3 * Math.sin(2 * theta);
+      gearboxRadS[i] = w + 1 * Math.sin(2 * theta - 0.4);
+    }
+    const sections = [0, per].map((a) => ({
+      startIndex: a,
+      endIndex: a + per,
+      startS: timeS[a]!,
+      endS: timeS[a + per - 1]!,
+    }));
+    const log = {
+      timeS,
+      crankRadS,
+      gearboxRadS,
+      extra: {},
+      sampleRateHz: fs,
+      source: {} as DriveLog["source"],
+      sections,
+    };
+    const args = {
+      log,
+      filters: butterworthLowpass4(300, fs),
+      grid: chooseAngleGrid({ sampleRateHz: fs, maxRadS: 300, topOrder: 4 }),
+      order: 2,
+      revsPerBlock: 8,
+      binRpm: 50,
+      idleRpm: 850,
+    };
+    const helped = helpedTransients(args)?.wait();
+    const local = analyseTransients(args);
+    expect(local.spans.length).toBeGreaterThanOrEqual(4);
+    expect(local.events.length).toBeGreaterThanOrEqual(2);
+    expect(helped).toEqual(local);
+  });
+
   it("leaves the whole analysis of the bench log as it was", async () => {
     const log = join(dir, "bench-60s.csv");
     writeBenchLog(log, { durationS: 60, sampleRateHz: 5000, order: 2 });

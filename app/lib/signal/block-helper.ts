@@ -11,10 +11,10 @@
  *
  * The helper also reads the second half of a CSV in the two-thread ingest (helpedRange,
  * ingest-parallel.ts). Before the blocks it can low-pass one channel while the caller low-passes
- * the other (helpedFiltfilt). Once the blocks are done it can measure the transients
- * (transient-analysis.ts analyseTransients, the order filter over the fast spans) while the
- * caller computes the rest of the result (helpedTransients); the part comes back through a
- * message port, read synchronously.
+ * the other (helpedFiltfilt). Once the blocks are done it finds the transients' fast spans and
+ * starts measuring them (transient-analysis.ts, the order filter over each span) while the
+ * caller computes the rest of the result; the caller then takes the spans still unclaimed
+ * (helpedTransients). Spans and results come back through a message port, read synchronously.
  */
 import { createRequire } from "node:module";
 import { pathToFileURL } from "node:url";
@@ -27,7 +27,15 @@ import {
 import type { RangeJob, RangeReply } from "./ingest-range.ts";
 import type { Biquad } from "./lowpass.ts";
 import type { TrackArgs, TrackedBlocks } from "./order-tracking.ts";
-import type { analyseTransients, TransientPart } from "./transient-analysis.ts";
+import {
+  measureSpanWork,
+  transientPartOf,
+  type AngleCache,
+  type SpanResult,
+  type SpanWork,
+  type TransientArgs,
+  type TransientPart,
+} from "./transient-analysis.ts";
 import { allocateShared, allShared } from "./shared-arrays.ts";
 
 let helper: Worker | undefined;
@@ -163,21 +171,24 @@ export function helpedSplit(
   return { from, warmFrom, wait };
 }
 
-type TransientArgs = Parameters<typeof analyseTransients>[0];
-
-/** A transients job: analyseTransients(args) in the helper, the part posted back on `port`. */
+/**
+ * A transients job: the helper finds the spans (transientSpans) and posts them on `port`, then
+ * measures spans as it claims them, and posts its results [index, result][] when none is left.
+ */
 export interface TransientJob {
   kind: "transients";
   args: TransientArgs;
-  /** controlWords(1) */
+  /** controlWords(3): [state, next span to claim, spans found (−1 until posted, 0 on failure)] */
   control: Int32Array;
   port: MessagePort;
 }
 
 /**
- * Hands analyseTransients(args) to the helper, or undefined when there is none or the log's
- * arrays are not shared. `wait()` returns the part, or undefined when the caller must measure
- * it. Only the three channels, the angle and the sections go over (the extra columns stay).
+ * Hands the transients (analyseTransients(args)) to the helper, or undefined when there is none
+ * or the log's arrays are not shared. The spans are shared out: the helper claims them one by
+ * one as soon as it has found them, and `wait()` claims the rest on this thread, then joins the
+ * helper's results with its own. It returns the part, or undefined when the helper failed (the
+ * caller then measures it all). Only the three channels, the angle and the sections go over.
  */
 export function helpedTransients(
   args: TransientArgs,
@@ -185,7 +196,8 @@ export function helpedTransients(
   const { log, angleRad } = args;
   if (!helper || !allShared(log.timeS, log.crankRadS, log.gearboxRadS)) return undefined;
   if (angleRad && !allShared(angleRad)) return undefined;
-  const control = controlWords(1);
+  const control = controlWords(3);
+  control[2] = -1;
   const { port1, port2 } = new MessageChannel();
   const slim = { ...log, extra: {} };
   const job: TransientJob = {
@@ -197,9 +209,18 @@ export function helpedTransients(
   post(job, [port2]);
   return {
     wait: () => {
-      const reply = finished(control) ? receiveMessageOnPort(port1) : undefined;
+      Atomics.wait(control, 2, -1, 60_000);
+      const works = receiveMessageOnPort(port1)?.message as SpanWork[] | undefined;
+      const results: SpanResult[] = [];
+      const cache: AngleCache = new Map();
+      if (works)
+        for (let k = Atomics.add(control, 1, 1); k < works.length; k = Atomics.add(control, 1, 1))
+          results[k] = measureSpanWork(args, works[k]!, cache);
+      const theirs = works && finished(control) ? receiveMessageOnPort(port1) : undefined;
       port1.close();
-      return reply?.message as TransientPart | undefined;
+      if (!works || !theirs) return undefined;
+      for (const [k, r] of theirs.message as [number, SpanResult][]) results[k] = r;
+      return transientPartOf(args, results);
     },
   };
 }

@@ -1,16 +1,22 @@
 /**
  * The block helper's thread (block-helper.ts), one job at a time: a read job's byte range
  * (ingest-range.ts) onto the job's port; a block job's blocks (order-tracking.ts trackRange) or
- * a low-pass job's filtered channel into the job's shared arrays; a transients job's part
- * (transient-analysis.ts analyseTransients) onto the job's port. Every job but the read then
- * wakes the caller waiting on its control word.
+ * a low-pass job's filtered channel into the job's shared arrays; a transients job's spans and
+ * then the results of the spans it claimed (transient-analysis.ts) onto the job's port. Every
+ * job but the read then wakes the caller waiting on its control word.
  */
 import { parentPort } from "node:worker_threads";
 import type { BlockJob, HelperRangeJob, LowpassJob, TransientJob } from "./block-helper.ts";
 import { readRangeJob } from "./ingest-range.ts";
 import { filtfilt } from "./lowpass.ts";
 import { trackRange } from "./order-tracking.ts";
-import { analyseTransients } from "./transient-analysis.ts";
+import {
+  measureSpanWork,
+  transientSpans,
+  type AngleCache,
+  type SpanResult,
+  type SpanWork,
+} from "./transient-analysis.ts";
 
 function runBlocks(job: BlockJob): void {
   const { control, out } = job;
@@ -27,8 +33,21 @@ function runBlocks(job: BlockJob): void {
 }
 
 function runTransients(job: TransientJob): void {
-  // Posted before the wake-up, so the caller's receiveMessageOnPort finds it.
-  job.port.postMessage(analyseTransients(job.args));
+  const { args, control, port } = job;
+  let works: SpanWork[] = [];
+  const cache: AngleCache = new Map();
+  try {
+    works = transientSpans(args, cache);
+    // Posted before the count is stored, so the caller's receiveMessageOnPort finds them.
+    port.postMessage(works);
+  } finally {
+    Atomics.store(control, 2, works.length); // 0 when finding them failed: the caller stops waiting
+    Atomics.notify(control, 2);
+  }
+  const mine: [number, SpanResult][] = [];
+  for (let k = Atomics.add(control, 1, 1); k < works.length; k = Atomics.add(control, 1, 1))
+    mine.push([k, measureSpanWork(args, works[k]!, cache)]);
+  port.postMessage(mine); // before the wake-up, like the spans
 }
 
 function runRange(job: HelperRangeJob): void {

@@ -129,9 +129,10 @@ export async function analyseSource(
       .map(({ code, message }) => ({ code, message })),
     ...own,
   ];
-  const checked = analysisResultSchema.safeParse({ ...analysed.value, warnings: merged });
+  // The analysis checked its document against the schema; only the warnings are new here.
+  const checked = analysisResultSchema.shape.warnings.safeParse(merged);
   if (!checked.success) {
-    const where = checked.error.issues[0]?.path.join(".") ?? "?";
+    const where = ["warnings", ...(checked.error.issues[0]?.path ?? [])].join(".");
     return {
       ok: false,
       error: {
@@ -143,7 +144,11 @@ export async function analyseSource(
   }
   return {
     ok: true,
-    value: { result: checked.data, log, way: inMemory ? "memory" : "windows" },
+    value: {
+      result: { ...analysed.value, warnings: checked.data },
+      log,
+      way: inMemory ? "memory" : "windows",
+    },
     warnings: merged,
   };
 }

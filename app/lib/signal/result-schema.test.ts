@@ -61,6 +61,34 @@ describe("result schema (the public JSON contract)", () => {
       expect(analysisResultSchema.safeParse(r).success).toBe(false);
     }
   });
+  it("checks the long series (order map, traces) value by value like z.array(z.number())", () => {
+    // [path, value that must be refused]: non-finite, negative where non-negative, null where no
+    // gap may be, a string, and not an array at all.
+    const bad: [(r: Record<string, any>) => void, string][] = [
+      [(r) => (r.orderMap.timeS = [1, NaN]), "NaN in a series"],
+      [(r) => (r.orderMap.blockRpm = [Infinity]), "Infinity in a series"],
+      [(r) => (r.orderMap.crankRpm = [[1, -0.5]]), "a negative amplitude"],
+      [(r) => (r.orderMap.gearboxRpm = [[null]]), "null where no gap may be"],
+      [(r) => (r.orderMap.timeS = ["1"]), "a string"],
+      [(r) => (r.orderMap.timeS = { 0: 1 }), "an object"],
+    ];
+    for (const [spoil, what] of bad) {
+      const r = structuredClone(minimal) as Record<string, any>;
+      spoil(r);
+      expect(analysisResultSchema.safeParse(r).success, what).toBe(false);
+    }
+    // Gaps (null) are allowed in the speed trace, and any finite speed, even negative.
+    const ok = structuredClone(minimal) as Record<string, any>;
+    ok.speedTrace = {
+      timeS: [0, 1, 2],
+      crankRpm: [800, null, -3],
+      gearboxRpm: [790, null, 0],
+      samplesPerPoint: 1,
+    };
+    expect(analysisResultSchema.safeParse(ok).success).toBe(true);
+    ok.speedTrace.crankRpm = [800, "x", 1];
+    expect(analysisResultSchema.safeParse(ok).success).toBe(false);
+  });
   it("refuses an unknown segment kind and a rattle verdict outside ok / over-limit", () => {
     const r = structuredClone(minimal) as Record<string, unknown>;
     r.segments = [{ kind: "cruise", startS: 0, endS: 1, meanRpm: 900 }];

@@ -24,7 +24,7 @@ import {
   RESOLVE_RATIO,
   type FastSpan,
 } from "./transient.ts";
-import { measureSpan } from "./span-measure.ts";
+import { measureSpan, type SpanMeasure } from "./span-measure.ts";
 import {
   addMeasure,
   blocksOutside,
@@ -53,7 +53,8 @@ export const emptyTransientPart = (): TransientPart => ({
   blocks: [],
 });
 
-export function analyseTransients(args: {
+/** What analyseTransients and its stages take. */
+export interface TransientArgs {
   log: DriveLog;
   /** The whole log's crank angle when it has one section (saves integrating it again). */
   angleRad?: Float64Array;
@@ -63,42 +64,119 @@ export function analyseTransients(args: {
   revsPerBlock: number;
   binRpm: number;
   idleRpm: number | null;
-}): TransientPart {
-  const { log, order: q } = args;
-  const fs = log.sampleRateHz;
-  const out = emptyTransientPart();
-  for (const s of sectionsOf(log)) {
-    const timeS = log.timeS.subarray(s.startIndex, s.endIndex);
-    const crankRadS = log.crankRadS.subarray(s.startIndex, s.endIndex);
-    const gearboxRadS = log.gearboxRadS.subarray(s.startIndex, s.endIndex);
-    if (timeS.length < 4) continue;
-    const angleRad =
-      args.angleRad && timeS.length === log.timeS.length
+}
+
+/** One fast span to measure: the index of its section (sectionsOf) and the span in its terms. */
+export interface SpanWork {
+  section: number;
+  span: FastSpan;
+}
+
+/** What one span gives: the order filter's samples, its event (a start or stop) and its blocks. */
+export interface SpanResult {
+  measure: SpanMeasure;
+  events: TransientEvent[];
+  blocks: AdaptiveBlock[];
+}
+
+interface Stretch {
+  timeS: Float64Array;
+  crankRadS: Float64Array;
+  gearboxRadS: Float64Array;
+}
+
+/** The arrays of section `k` of the log (sectionsOf). */
+function stretchOf(log: DriveLog, k: number): Stretch {
+  const s = sectionsOf(log)[k]!;
+  return {
+    timeS: log.timeS.subarray(s.startIndex, s.endIndex),
+    crankRadS: log.crankRadS.subarray(s.startIndex, s.endIndex),
+    gearboxRadS: log.gearboxRadS.subarray(s.startIndex, s.endIndex),
+  };
+}
+
+/** Crank angles of the sections, integrated once each (the whole log's when given). */
+export type AngleCache = Map<number, Float64Array>;
+
+function angleOf(args: TransientArgs, k: number, stretch: Stretch, cache: AngleCache) {
+  let angle = cache.get(k);
+  if (!angle) {
+    angle =
+      args.angleRad && stretch.timeS.length === args.log.timeS.length
         ? args.angleRad
-        : integrateAngle(timeS, crankRadS);
+        : integrateAngle(stretch.timeS, stretch.crankRadS);
+    cache.set(k, angle);
+  }
+  return angle;
+}
+
+/** The fast spans of every section in order (transient.ts), the first stage of the transients. */
+export function transientSpans(args: TransientArgs, cache: AngleCache = new Map()): SpanWork[] {
+  const out: SpanWork[] = [];
+  sectionsOf(args.log).forEach((_, k) => {
+    const stretch = stretchOf(args.log, k);
+    if (stretch.timeS.length < 4) return;
     const spans = findFastSpans({
-      timeS,
-      angleRad,
+      timeS: stretch.timeS,
+      angleRad: angleOf(args, k, stretch, cache),
       revsPerBlock: args.revsPerBlock,
       idleRpm: args.idleRpm,
     });
-    const measures = spans.map((span) =>
-      measureSpan({ timeS, angleRad, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, span }),
-    );
-    out.spans.push(...spans);
-    for (const m of measures) addMeasure(out.bins, m, q, args.binRpm);
-    out.events.push(
-      ...transientEvents({ timeS, crankRadS, gearboxRadS, sampleRateHz: fs, order: q, measures }),
-    );
-    for (const span of spans)
-      out.blocks.push(
-        ...spanBlocks({ timeS, angleRad, crankRadS, gearboxRadS }, span, {
-          ...args,
-          sampleRateHz: fs,
-        }),
-      );
+    for (const span of spans) out.push({ section: k, span });
+  });
+  return out;
+}
+
+/** Measures one span (the second stage; spans are independent, so any thread may take one). */
+export function measureSpanWork(
+  args: TransientArgs,
+  work: SpanWork,
+  cache: AngleCache = new Map(),
+): SpanResult {
+  const stretch = stretchOf(args.log, work.section);
+  const angleRad = angleOf(args, work.section, stretch, cache);
+  const fs = args.log.sampleRateHz;
+  const q = args.order;
+  const measure = measureSpan({
+    ...stretch,
+    angleRad,
+    sampleRateHz: fs,
+    order: q,
+    span: work.span,
+  });
+  return {
+    measure,
+    events: transientEvents({ ...stretch, sampleRateHz: fs, order: q, measures: [measure] }),
+    blocks: spanBlocks({ ...stretch, angleRad }, work.span, { ...args, sampleRateHz: fs }),
+  };
+}
+
+/**
+ * The part from the spans' results in the order of transientSpans (the last stage): the
+ * filter's samples binned by rpm in that order, the events and blocks listed in it.
+ */
+export function transientPartOf(
+  args: TransientArgs,
+  results: readonly SpanResult[],
+): TransientPart {
+  const out = emptyTransientPart();
+  for (const r of results) {
+    out.spans.push(r.measure.span);
+    addMeasure(out.bins, r.measure, args.order, args.binRpm);
+    out.events.push(...r.events);
+    out.blocks.push(...r.blocks);
   }
   return out;
+}
+
+/** The transients of a log on one thread: spans found, each measured, the part assembled. */
+export function analyseTransients(args: TransientArgs): TransientPart {
+  const cache: AngleCache = new Map();
+  const works = transientSpans(args, cache);
+  return transientPartOf(
+    args,
+    works.map((w) => measureSpanWork(args, w, cache)),
+  );
 }
 
 /**
