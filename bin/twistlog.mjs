@@ -1,4 +1,4 @@
-#!/usr/bin/env -S node --max-semi-space-size=2
+#!/usr/bin/env -S node --max-semi-space-size=2 --no-concurrent-recompilation
 /**
  * The `twistlog` command (package.json "bin"): runs the compiled CLI, build/cli/twistlog.mjs
  * (scripts/build-cli.mjs; `npm ci` and `npm run build` make it). Same flags and output as
@@ -8,7 +8,11 @@
  *
  * The #! line gives node 2 MB semi-spaces instead of 16 MB: the windowed analysis allocates
  * many short-lived windows, and the larger young generation only held about 26 MB more resident
- * memory, at no gain in time (docs/performance.md). `node bin/twistlog.mjs` runs without it.
+ * memory, at no gain in time. It also has V8 optimise hot code on the thread that runs it
+ * (--no-concurrent-recompilation): the command keeps both cores busy with its two threads, so a
+ * background compiler thread waited for a core while the code ran unoptimised, and the analysis
+ * of the bench log took about 12 % longer and 18 % more CPU (docs/performance.md, goal 2).
+ * `node bin/twistlog.mjs` runs without these flags.
  */
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";

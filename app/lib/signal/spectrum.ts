@@ -138,26 +138,31 @@ export type Detrend = "mean" | "linear";
  * sample]: the line is value + slope·n.
  */
 export function windowTrend(window: Float64Array): (x: Float64Array) => [number, number] {
-  const size = window.length;
-  let s1 = 0;
-  let sn = 0;
-  for (let n = 0; n < size; n++) {
-    s1 += window[n]!;
-    sn += window[n]! * n;
-  }
-  const c = sn / s1;
-  let d = 0;
-  for (let n = 0; n < size; n++) d += window[n]! * (n - c) * (n - c);
+  const { s1, c, d } = trendTerms(window);
   return (x) => {
     let sx = 0;
     let snx = 0;
-    for (let n = 0; n < size; n++) {
+    for (let n = 0; n < window.length; n++) {
       const wx = window[n]! * x[n]!;
       sx += wx;
       snx += wx * (n - c);
     }
     return [sx / s1 - (snx / d) * c, snx / d];
   };
+}
+
+/** The window's sums for windowTrend: s1 = Σw, c = Σw·n/Σw, d = Σw·(n − c)². */
+function trendTerms(window: Float64Array): { s1: number; c: number; d: number } {
+  let s1 = 0;
+  let sn = 0;
+  for (let n = 0; n < window.length; n++) {
+    s1 += window[n]!;
+    sn += window[n]! * n;
+  }
+  const c = sn / s1;
+  let d = 0;
+  for (let n = 0; n < window.length; n++) d += window[n]! * (n - c) * (n - c);
+  return { s1, c, d };
 }
 
 /**
@@ -256,7 +261,7 @@ export function createPairAmplitudePlan(
   if (!isPowerOfTwo(size))
     throw new RangeError(`paired spectra need a power-of-two length, got ${size}`);
   const window = hannPeriodic(size);
-  const trend = options.detrend === "linear" ? windowTrend(window) : null;
+  const trend = options.detrend === "linear" ? trendTerms(window) : null;
   const s1 = windowSums(window).s1;
   const fft = new FFT(size);
   const z = new Float64Array(2 * size);
@@ -272,8 +277,25 @@ export function createPairAmplitudePlan(
       let bx = 0;
       let by = 0;
       if (trend) {
-        [mx, bx] = trend(x);
-        [my, by] = trend(y);
+        // windowTrend of both blocks in one loop (the same sums in the same order).
+        const { c, d } = trend;
+        let sx = 0;
+        let snx = 0;
+        let sy = 0;
+        let sny = 0;
+        for (let n = 0; n < size; n++) {
+          const w = window[n]!;
+          const wx = w * x[n]!;
+          const wy = w * y[n]!;
+          sx += wx;
+          snx += wx * (n - c);
+          sy += wy;
+          sny += wy * (n - c);
+        }
+        bx = snx / d;
+        by = sny / d;
+        mx = sx / trend.s1 - bx * c;
+        my = sy / trend.s1 - by * c;
       } else {
         for (let n = 0; n < size; n++) {
           mx += x[n]!;
