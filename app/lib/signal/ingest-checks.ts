@@ -118,11 +118,46 @@ export function startStats(c: number | undefined, g: number): Stats {
  * (measured: ~50 ms as one loop, ~25 ms in pieces, on the bench log).
  */
 export function logStats(log: DriveLog): Stats {
-  const n = log.timeS.length;
-  const st = startStats(n > 0 ? log.crankRadS[0]! : undefined, log.gearboxRadS[0]!);
-  for (let s = 1; s < n; s += 16384)
-    statsPiece(log.timeS, log.crankRadS, log.gearboxRadS, s, Math.min(n, s + 16384), st);
+  return columnStats(log.timeS, log.crankRadS, log.gearboxRadS);
+}
+
+/** logStats of the columns t, c, g (of one length). */
+export function columnStats(t: Float64Array, c: Float64Array, g: Float64Array): Stats {
+  const n = t.length;
+  const st = startStats(n > 0 ? c[0]! : undefined, g[0]!);
+  for (let s = 1; s < n; s += 16384) statsPiece(t, c, g, s, Math.min(n, s + 16384), st);
   return st;
+}
+
+/**
+ * The stats of two consecutive stretches from the stats of each (a's last sample at time t0 with
+ * crank value c0, b's first at t1 with c1): the step between them folded in as statsPiece folds
+ * it. Everything but revRad is what one pass gives; revRad, a sum grouped differently, can
+ * differ from it in the last bits (it only decides the short-log warning). Undefined when either
+ * stretch holds a value that is not finite (a dropout: one pass over the log decides then).
+ */
+export function joinStats(
+  a: Stats,
+  b: Stats,
+  t0: number,
+  c0: number,
+  t1: number,
+  c1: number,
+): Stats | undefined {
+  if (!allFinite(a) || !allFinite(b)) return undefined;
+  const dt = t1 - t0;
+  const hi = (x: number, y: number) => (y > x ? y : x);
+  const lo = (x: number, y: number) => (y < x ? y : x);
+  return {
+    revRad: a.revRad + (c1 + c0) * 0.5 * dt + b.revRad,
+    sumG: a.sumG + b.sumG,
+    maxC: hi(a.maxC, b.maxC),
+    minC: lo(a.minC, b.minC),
+    maxG: hi(a.maxG, b.maxG),
+    minG: lo(a.minG, b.minG),
+    minDt: lo(lo(a.minDt, dt), b.minDt),
+    maxDt: hi(hi(a.maxDt, dt), b.maxDt),
+  };
 }
 
 /** Index where `values` first stays equal to `max` for `need` samples in a row, or −1. */

@@ -11,6 +11,7 @@ import {
   logStats,
   samplingProblem,
   type CheckOptions,
+  type Stats,
 } from "./ingest-checks.ts";
 import { repairLog } from "./ingest-repairs.ts";
 import type { DriveLog, Outcome } from "./types.ts";
@@ -26,15 +27,17 @@ export interface FinishOptions extends CheckOptions {
 
 /**
  * Checks (and, unless strict, repairs) a freshly read log. `rowOf` maps a sample index to its
- * file row (CSV) or record number (MDF4) for the messages.
+ * file row (CSV) or record number (MDF4) for the messages. `stats`: the log's logStats when the
+ * caller has them already (the two-thread ingest gathers them per half).
  */
 export function finishLog(
   log: DriveLog,
   rowOf: (i: number) => number,
   options: FinishOptions,
+  stats?: Stats,
 ): Outcome<DriveLog> {
   // One pass for the extremes, the revolutions and whether any value is NaN (ingest-checks.ts).
-  const st = logStats(log);
+  const st = stats ?? logStats(log);
   if (options.strict) {
     // Strict: the refusals as they were before repairs existed, with the same messages.
     const error = !allFinite(st)

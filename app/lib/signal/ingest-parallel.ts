@@ -3,8 +3,8 @@
  * ingest reads it (ingest.ts, csv-head.ts), the data split at the line boundary nearest their
  * middle, the second half read by the CLI's helper thread (block-helper.ts helpedRange) while
  * this thread reads the first (both with ingest-range.ts, i.e. the same row reader), then the
- * columns joined and the log finished exactly as ingest.ts finishes it. The result is the same
- * DriveLog and warnings.
+ * columns joined and the log finished as ingest.ts finishes it, with the stats pass gathered per
+ * half (ingest-checks.ts joinStats). The result is the same DriveLog and warnings.
  *
  * Anything out of the ordinary — no helper running, a problem in either half, a row warning,
  * time not increasing across the seam, a helper that fails — and the file is read again by the
@@ -17,6 +17,7 @@ import { helpedRange } from "./block-helper.ts";
 import { createHeadCollector } from "./csv-head.ts";
 import { sniffFormat } from "./format.ts";
 import { buildDriveLog } from "./ingest-channels.ts";
+import { columnStats, joinStats } from "./ingest-checks.ts";
 import { finishLog } from "./ingest-finish.ts";
 import { resolveHead } from "./ingest-header.ts";
 import { readRange, RANGE_CHUNK_BYTES, type RangeLimits } from "./ingest-range.ts";
@@ -24,6 +25,12 @@ import { ingestFile, type ByteProgress } from "./ingest-stream.ts";
 import type { IngestOptions } from "./ingest.ts";
 import { rateMismatch } from "./stated-rate.ts";
 import type { DriveLog, Outcome, SignalIssue } from "./types.ts";
+
+/**
+ * This thread's share of the data bytes: a little over half, as the helper thread starts reading
+ * about 0.1 s later (its start-up; measured on the bench log, docs/performance.md).
+ */
+export const MAIN_SHARE = 0.55;
 
 /** Below this size one thread is as fast (handing a job over takes a few ms). */
 export const PARALLEL_MIN_BYTES = 4 << 20;
@@ -76,8 +83,8 @@ export async function ingestInTwo(
   if (!resolved?.ok) return undefined;
   const header = resolved.value;
   const dataStart = header.dataStart;
-  // Split at the first line start after the middle of the data.
-  const mid = dataStart + Math.floor((size - dataStart) / 2);
+  // Split at the first line start after this thread's share of the data.
+  const mid = dataStart + Math.floor((size - dataStart) * MAIN_SHARE);
   const probe = new Uint8Array(1 << 16);
   const fh = await open(path, "r");
   let got: number;
@@ -103,11 +110,15 @@ export async function ingestInTwo(
   onProgress?.(0);
   const a = readRange(path, dataStart, split, rowsFrom, limits, size);
   onProgress?.(0.5);
+  const ch = a.channels;
+  // The stats pass of this half while the helper reads the other (it sends its half's).
+  const aStats = columnStats(ch.t.take(a.n), ch.crank.take(a.n), ch.gear.take(a.n));
   const b = await second;
   if (!b || b.failed || b.warnings > 0 || a.error || a.warnings.length > 0) return undefined;
-  const ch = a.channels;
   const n = a.n + b.n;
   if (a.n === 0 || b.n === 0 || !(b.t[0]! > ch.t.data[a.n - 1]!)) return undefined;
+  const [t0, c0] = [ch.t.data[a.n - 1]!, ch.crank.data[a.n - 1]!];
+  const stats = joinStats(aStats, b.stats, t0, c0, b.t[0]!, b.crank[0]!);
   const columns = [ch.t, ch.crank, ch.gear, ...ch.extras];
   const parts = [b.t, b.crank, b.gear, ...b.extras];
   columns.forEach((c, k) => {
@@ -119,7 +130,7 @@ export async function ingestInTwo(
   const skipped = [...a.skipped, ...b.skipped.map((k) => k + a.n)];
   const firstDataLine = header.lastHeadLine + 1;
   const rowOf = (i: number) => firstDataLine + i + skipped.filter((k) => k <= i).length;
-  const finished = finishLog(buildDriveLog(ch, n, header), rowOf, options);
+  const finished = finishLog(buildDriveLog(ch, n, header), rowOf, options, stats);
   const stated = finished.ok ? rateMismatch(header.statedRateHz, finished.value) : [];
   const warnings: SignalIssue[] = [...header.warnings];
   return { ...finished, warnings: [...warnings, ...finished.warnings, ...stated] };

@@ -6,6 +6,7 @@
  */
 import { closeSync, openSync, readSync } from "node:fs";
 import { createChannels, type Channels } from "./ingest-channels.ts";
+import { columnStats, type Stats } from "./ingest-checks.ts";
 import type { LogHeader } from "./ingest-header.ts";
 import { createRowReader } from "./ingest-rows.ts";
 import type { SignalIssue } from "./types.ts";
@@ -38,6 +39,8 @@ export interface RangeReply {
   skipped: number[];
   failed: boolean;
   warnings: number;
+  /** columnStats of the rows, gathered while they are at hand. */
+  stats: Stats;
 }
 
 /** What one range gave: its channels (n rows), blank or dropped rows, and any problem. */
@@ -100,6 +103,7 @@ export function readRangeJob(job: RangeJob): { reply: RangeReply; buffers: Array
       skipped: r.skipped,
       failed: r.error !== undefined,
       warnings: r.warnings.length,
+      stats: columnStats(t!, crank!, gear!),
     },
     buffers: cols.map((c) => c.data.buffer as ArrayBuffer),
   };
