@@ -12,10 +12,11 @@ import {
   type AnalysisStage,
 } from "./analysis-assembly.ts";
 import { integrateAngle } from "./angle-grid.ts";
-import { helpedFiltfilt, helpedTransients } from "./block-helper.ts";
+import { helpedAngle, helpedFiltfilt, helpedTransients } from "./block-helper.ts";
 import { filtfilt } from "./lowpass.ts";
 import { trackBlocks, type TrackedBlocks } from "./order-tracking.ts";
 import { rattleCheck } from "./rattle.ts";
+import type { Segment } from "./segments.ts";
 import type { AnalysisResult } from "./result-schema.ts";
 import {
   sectionsOf,
@@ -110,17 +111,21 @@ export function analyseDriveLog(
   const { setup } = ready;
   const { filters, trackArgs, warnings } = setup;
   let tracked: TrackedBlocks;
+  let segments: Segment[];
   let wholeAngle: Float64Array | undefined; // kept for the transients (one section only)
   if (!log.sections || log.sections.length < 2) {
-    // With the CLI's helper thread the gearbox channel is low-passed there meanwhile.
+    // With the CLI's helper thread the gearbox channel is low-passed and the crank angle
+    // integrated there, while this thread low-passes the crank and finds the segments.
     const helpedGearbox = filters.length ? helpedFiltfilt(log.gearboxRadS, filters) : undefined;
+    const helpedCrankAngle = helpedAngle(log.timeS, log.crankRadS);
     const crank = filters.length ? filtfilt(log.crankRadS, filters) : log.crankRadS;
     onProgress?.("track", 0.4);
+    segments = sectionSegments(log);
     const gearbox = filters.length
       ? (helpedGearbox?.wait() ?? filtfilt(log.gearboxRadS, filters))
       : log.gearboxRadS;
     onProgress?.("track", 0.8);
-    const angle = integrateAngle(log.timeS, log.crankRadS);
+    const angle = helpedCrankAngle?.wait() ?? integrateAngle(log.timeS, log.crankRadS);
     if (withTransients) wholeAngle = angle;
     onProgress?.("track", 1);
     tracked = trackBlocks({
@@ -143,9 +148,9 @@ export function analyseDriveLog(
         warnings,
       );
     tracked = bySection.tracked;
+    segments = sectionSegments(log);
   }
   onProgress?.("spectra", 1);
-  const segments = sectionSegments(log);
   const transientArgs = {
     log,
     angleRad: wholeAngle,

@@ -6,10 +6,18 @@
  */
 import { float64Array } from "./shared-arrays.ts";
 
-/** Crank angle in rad by the trapezoid rule; negative speeds count as standstill (angle never runs back). */
-export function integrateAngle(timeS: Float64Array, radS: Float64Array): Float64Array {
+/**
+ * Crank angle in rad by the trapezoid rule; negative speeds count as standstill (angle never runs
+ * back). Into `out` when given (as long as timeS), else a new array.
+ */
+export function integrateAngle(
+  timeS: Float64Array,
+  radS: Float64Array,
+  out?: Float64Array,
+): Float64Array {
   const n = timeS.length;
-  const angle = float64Array(n);
+  const angle = out ?? float64Array(n);
+  if (n > 0) angle[0] = 0;
   for (let i = 1; i < n; i++)
     angle[i] = angleStep(angle[i - 1]!, radS[i - 1]!, radS[i]!, timeS[i - 1]!, timeS[i]!);
   return angle;

@@ -5,6 +5,7 @@ import { cliTempDir } from "../../../tests/support/cli-process.ts";
 import { integrateAngle, chooseAngleGrid } from "./angle-grid.ts";
 import {
   blockHelperJobs,
+  helpedAngle,
   helpedFiltfilt,
   helpedTransients,
   startBlockHelper,
@@ -92,6 +93,16 @@ describe("the block helper", SLOW, () => {
     expect(blockHelperJobs()).toBe(before + 1);
     expect(helped).toBeDefined();
     expect(Array.from(helped!)).toEqual(Array.from(filtfilt(gear, filters)));
+  });
+
+  it("integrates the crank angle as integrateAngle does on one thread, bit for bit", () => {
+    startBlockHelper();
+    const { timeS, crank } = runUp();
+    const before = blockHelperJobs();
+    const helped = helpedAngle(timeS, crank)?.wait();
+    expect(blockHelperJobs()).toBe(before + 1);
+    expect(helped).toBeDefined();
+    expect(Array.from(helped!)).toEqual(Array.from(integrateAngle(timeS, crank)));
   });
 
   it("measures the transients of a cranking start as analyseTransients does on one thread", () => {
@@ -206,9 +217,9 @@ describe("the block helper", SLOW, () => {
     startBlockHelper();
     const before = blockHelperJobs();
     const two = await analyseSource({ source: log, ingest: {}, analysis: {} });
-    // Three jobs: the gearbox low-pass, the later blocks, then the transients (the log's start
-    // holds fast spans).
-    expect(blockHelperJobs()).toBe(before + 3);
+    // Four jobs: the gearbox low-pass, the crank angle, the later blocks, then the transients
+    // (the log's start holds fast spans).
+    expect(blockHelperJobs()).toBe(before + 4);
     expect(two.ok && two.value.result.transient?.spans.length).toBeGreaterThan(0);
     expect(two.ok && JSON.stringify(two.value.result)).toBe(
       one.ok && JSON.stringify(one.value.result),

@@ -10,8 +10,9 @@
  * computes the helper's blocks itself when the helper fails or does not answer within a minute.
  *
  * The helper also reads the second half of a CSV in the two-thread ingest (helpedRange,
- * ingest-parallel.ts). Before the blocks it can low-pass one channel while the caller low-passes
- * the other (helpedFiltfilt). Once the blocks are done it finds the transients' fast spans and
+ * ingest-parallel.ts). Before the blocks it can low-pass one channel and integrate the crank
+ * angle while the caller low-passes the other and finds the segments (helpedFiltfilt,
+ * helpedAngle). Once the blocks are done it finds the transients' fast spans and
  * starts measuring them (transient-analysis.ts, the order filter over each span) while the
  * caller computes the rest of the result; the caller then takes the spans still unclaimed
  * (helpedTransients). Spans and results come back through a message port, read synchronously.
@@ -247,6 +248,32 @@ export function helpedFiltfilt(
   const control = controlWords(1);
   const out = sharedF64(x.length).subarray(0, x.length);
   const job: LowpassJob = { kind: "lowpass", x, sections, out, control };
+  post(job);
+  return { wait: () => (finished(control) ? out : undefined) };
+}
+
+/** An angle job: integrateAngle(timeS, radS) into the shared `out`. */
+export interface AngleJob {
+  kind: "angle";
+  timeS: Float64Array;
+  radS: Float64Array;
+  out: Float64Array;
+  /** controlWords(1) */
+  control: Int32Array;
+}
+
+/**
+ * Hands integrateAngle(timeS, radS) to the helper, or undefined when there is none or the arrays
+ * are not shared. `wait()` returns the angle, or undefined when the caller must integrate it.
+ */
+export function helpedAngle(
+  timeS: Float64Array,
+  radS: Float64Array,
+): { wait: () => Float64Array | undefined } | undefined {
+  if (!helper || !allShared(timeS, radS)) return undefined;
+  const control = controlWords(1);
+  const out = sharedF64(timeS.length).subarray(0, timeS.length);
+  const job: AngleJob = { kind: "angle", timeS, radS, out, control };
   post(job);
   return { wait: () => (finished(control) ? out : undefined) };
 }

@@ -6,7 +6,14 @@
  * job but the read then wakes the caller waiting on its control word.
  */
 import { parentPort } from "node:worker_threads";
-import type { BlockJob, HelperRangeJob, LowpassJob, TransientJob } from "./block-helper.ts";
+import { integrateAngle } from "./angle-grid.ts";
+import type {
+  AngleJob,
+  BlockJob,
+  HelperRangeJob,
+  LowpassJob,
+  TransientJob,
+} from "./block-helper.ts";
 import { readRangeJob } from "./ingest-range.ts";
 import { filtfilt } from "./lowpass.ts";
 import { trackRange } from "./order-tracking.ts";
@@ -59,12 +66,15 @@ function runRange(job: HelperRangeJob): void {
   }
 }
 
-parentPort?.on("message", (job: BlockJob | HelperRangeJob | LowpassJob | TransientJob) => {
+type Job = AngleJob | BlockJob | HelperRangeJob | LowpassJob | TransientJob;
+
+parentPort?.on("message", (job: Job) => {
   if (job.kind === "range") return runRange(job);
   const { control } = job;
   try {
     if (job.kind === "transients") runTransients(job);
     else if (job.kind === "lowpass") filtfilt(job.x, job.sections, job.out);
+    else if (job.kind === "angle") integrateAngle(job.timeS, job.radS, job.out);
     else runBlocks(job);
     Atomics.store(control, 0, 1);
   } catch {

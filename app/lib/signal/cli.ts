@@ -5,6 +5,7 @@
  * flag exits 2. Never a stack trace. Progress goes to stderr only when stderr is a terminal.
  */
 import { pathToFileURL } from "node:url";
+import { z } from "zod";
 import { channelTable } from "./channel-table.ts";
 import { parseCliArgs, USAGE } from "./cli-args.ts";
 import { listChannelsOfFile } from "./ingest-stream.ts";
@@ -192,6 +193,9 @@ export async function main(
  * `twistlog` command (bin/twistlog.mjs).
  */
 export function runCommand(argv: string[]): void {
+  // One process, one result check: zod's compiled object parsers cost more to generate than they
+  // save on a single document (about 20–35 ms cold on the bench log; docs/performance.md).
+  z.config({ jitless: true });
   main(argv).then(
     (code) => {
       process.exitCode = code;
