@@ -134,7 +134,18 @@ try {
   const outcome = await analyseFile(
     { source: file, ingest: {}, analysis: {} },
     (stage: PipelineStage, f: number) => {
-      const name = stage === "track" ? (f < 0.8 ? "low-pass" : f < 1 ? "angle" : "blocks") : stage;
+      // analyse.ts: the crank low-passed (0 → 0.4), the segments found while the helper
+      // low-passes the gearbox channel and integrates the angle (→ 0.8), the angle ready (→ 1).
+      const name =
+        stage === "track"
+          ? f < 0.4
+            ? "low-pass"
+            : f < 0.8
+              ? "segments"
+              : f < 1
+                ? "angle"
+                : "blocks"
+          : stage;
       const label = stage === "spectra" ? "blocks" : name;
       if (label !== last) marks.push([(last = label), performance.now()]);
     },
