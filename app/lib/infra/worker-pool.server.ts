@@ -15,6 +15,9 @@ import { getEnv } from "./env.server";
  * adds to the first analysis after each idle minute (bench/upload.bench.ts). A worker that
  * fails while starting is not started over and over (piscina stops after the first failure).
  */
+/** A worker's young generation, MB: V8 makes it three semi-spaces, so 2 MB each. */
+const YOUNG_GENERATION_MB = 6;
+
 export function createAnalysisPool(
   options: { maxThreads?: number; memoryMb?: number; filename?: string; warm?: boolean } = {},
 ): Piscina {
@@ -27,6 +30,10 @@ export function createAnalysisPool(
     execArgv: ["--import", "tsx"],
     resourceLimits: {
       maxOldGenerationSizeMb: options.memoryMb ?? getEnv().ANALYSIS_WORKER_MEMORY_MB,
+      // 2 MB semi-spaces, as the command's (bin/twistlog.mjs): the windowed analysis of a large
+      // log allocates many short-lived windows, and the default young generation only held
+      // more resident memory (docs/performance.md, goal 1).
+      maxYoungGenerationSizeMb: YOUNG_GENERATION_MB,
     },
   });
 }
