@@ -78,6 +78,27 @@ describe("migrations against MariaDB", () => {
     expect(Number(before[0]?.n)).toBeGreaterThan(0);
   });
 
+  it("give every table a primary key, and use only InnoDB (what a Galera cluster replicates)", async () => {
+    // MariaDB Knowledge Base, "MariaDB Galera Cluster - Known Limitations": replication works
+    // only with InnoDB; all tables should have a primary key (DELETE is unsupported without
+    // one, and rows may appear in a different order on different nodes). Issue 18 runs this
+    // schema on such a cluster.
+    const database = await scratchDatabase();
+    await applyMigrations({ ...base, database });
+    const [rows] = await admin.query<mysql.RowDataPacket[]>(
+      `SELECT t.table_name AS name, t.engine AS engine, c.constraint_name AS pk
+         FROM information_schema.tables t
+         LEFT JOIN information_schema.table_constraints c
+           ON c.table_schema = t.table_schema AND c.table_name = t.table_name
+          AND c.constraint_type = 'PRIMARY KEY'
+        WHERE t.table_schema = ?`,
+      [database],
+    );
+    expect(rows.length).toBeGreaterThan(20);
+    expect(rows.filter((r) => r.pk === null).map((r) => r.name)).toEqual([]);
+    expect(rows.filter((r) => r.engine !== "InnoDB").map((r) => r.name)).toEqual([]);
+  });
+
   it("keep the constraints the schema declares (unique e-mail, foreign keys, one membership per team)", async () => {
     const database = await scratchDatabase();
     await applyMigrations({ ...base, database });
