@@ -1,5 +1,8 @@
+import { readdirSync, readFileSync } from "node:fs";
+import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { isDeadlock, retryOnDeadlock } from "~/lib/infra/db-errors.server";
+import { repoRoot } from "../support/processes";
 
 // The error as mysql2 reports a deadlock victim (errno 1213, code ER_LOCK_DEADLOCK: MariaDB's
 // error reference), wrapped the way Drizzle wraps it (DrizzleQueryError, the original in `cause`).
@@ -51,5 +54,25 @@ describe("retrying a deadlock victim", () => {
       }),
     ).rejects.toThrow("constraint");
     expect(runs).toBe(1);
+  });
+
+  it("is how every write transaction of the app runs (no bare db.transaction outside it)", () => {
+    // docs/decisions/009: on a Galera cluster any transaction can fail certification with 1213.
+    const files = readdirSync(join(repoRoot, "app"), { recursive: true, encoding: "utf8" })
+      .filter((f) => f.endsWith(".ts") && !f.includes(".test."))
+      .map((f) => join("app", f));
+    expect(files.length).toBeGreaterThan(100);
+    const bare = files.flatMap((f) =>
+      readFileSync(join(repoRoot, f), "utf8")
+        .split("\n")
+        .flatMap((line, i) =>
+          /\bdb\.transaction\(/.test(line) && !line.trimStart().startsWith("*")
+            ? [`${f}:${i + 1}`]
+            : [],
+        ),
+    );
+    // The one allowed: writeTransaction itself.
+    expect(bare.filter((at) => !at.startsWith("app/lib/infra/db-errors.server.ts:"))).toEqual([]);
+    expect(bare).toHaveLength(1);
   });
 });

@@ -5,6 +5,7 @@
  * latest claim of a job may write its outcome (`ours`, `stillOurs`).
  */
 import { and, eq, inArray, isNull, lt, or } from "drizzle-orm";
+import { writeTransaction, type Tx } from "../infra/db-errors.server";
 import { analysisJobs, driveLogs } from "~/lib/infra/db/schema-drive-logs";
 import type { LogError } from "../domain/drive-log-terms";
 import type { Db } from "../infra/db.server";
@@ -17,7 +18,7 @@ export const HEARTBEAT_MS = 5_000;
 export const MAX_ATTEMPTS = 3;
 
 /** A transaction handle, for writes that must commit together with the caller's. */
-export type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+export type { Tx } from "../infra/db-errors.server";
 
 /** What a new job needs: the drive log and the settings it is to be analysed with. */
 export interface NewJob {
@@ -89,7 +90,7 @@ export async function claimJob(
   now = new Date(),
 ): Promise<ClaimedJob | null> {
   const staleBefore = new Date(now.getTime() - STALE_AFTER_MS);
-  return db.transaction(async (tx) => {
+  return writeTransaction(db, async (tx) => {
     const [job] = await tx
       .select({
         id: analysisJobs.id,
@@ -175,7 +176,7 @@ export async function beat(
 
 /** The drive log could not be analysed (bad file): it says why; no analysis rows are written. */
 export async function failJob(db: Db, job: ClaimedJob, error: LogError): Promise<void> {
-  await db.transaction(async (tx) => {
+  await writeTransaction(db, async (tx) => {
     if (!(await stillOurs(tx, job))) return;
     await tx
       .update(driveLogs)

@@ -4,6 +4,7 @@
  * and the job's, in one transaction: all rows or none (docs/architecture.md §5).
  */
 import { eq, sql } from "drizzle-orm";
+import { writeTransaction } from "../infra/db-errors.server";
 import {
   analyses,
   analysisJobs,
@@ -32,7 +33,7 @@ export async function saveAnalysis(
   result: AnalysisResult,
   beforeCommit?: BeforeCommit,
 ): Promise<number | null> {
-  return db.transaction(async (tx) => {
+  return writeTransaction(db, async (tx) => {
     if (!(await stillOurs(tx, job))) return null;
     const [{ latest }] = (await tx
       .select({ latest: sql<number>`COALESCE(MAX(${analyses.version}), 0)`.mapWith(Number) })

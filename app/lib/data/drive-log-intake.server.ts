@@ -5,6 +5,7 @@
  * than at the next poll. The one way uploads (recordUploads), the demo seed and tests add logs.
  */
 import { enqueueAnalysis } from "../analyses/queue.server";
+import { writeTransaction } from "../infra/db-errors.server";
 import { wakeRunners } from "../analyses/runner.server";
 import { jobSettingsFor } from "../analyses/settings";
 import { db } from "../infra/db.server";
@@ -23,7 +24,7 @@ type Added = { id: number; duplicateOf: number | null; log: DriveLogRow };
 export async function recordDriveLogs(teamId: number, args: AddLogsArgs): Promise<Added[]> {
   // Read once, before the transaction: every job of this upload freezes the same team settings.
   const team = await teamData(teamId).ingestSettings();
-  const added = await db.transaction(async (tx) => {
+  const added = await writeTransaction(db, async (tx) => {
     const rows = await vehicleData(teamId).addLogs(args, tx);
     for (const { id } of rows) {
       await enqueueAnalysis(tx, {

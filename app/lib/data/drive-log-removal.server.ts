@@ -1,4 +1,5 @@
 import { and, eq } from "drizzle-orm";
+import { writeTransaction } from "../infra/db-errors.server";
 import { driveLogs, vehicles } from "~/lib/infra/db/schema-drive-logs";
 import { comments } from "~/lib/infra/db/schema-results";
 import { supersedeSignoffs } from "../analyses/signoff-supersede.server";
@@ -37,7 +38,7 @@ export async function removeDriveLog(
     .innerJoin(vehicles, eq(vehicles.id, driveLogs.vehicleId))
     .where(and(eq(driveLogs.id, logId), eq(driveLogs.teamId, teamId)));
   if (!row) throw new NotFound("No such drive log in this team.");
-  const superseded = await db.transaction(async (tx) => {
+  const superseded = await writeTransaction(db, async (tx) => {
     const ids = await supersedeSignoffs(
       tx,
       teamId,

@@ -1,7 +1,7 @@
 import { and, eq, isNull } from "drizzle-orm";
 import { invitations, memberships, teams, users, type Role } from "~/lib/infra/db/schema";
 import { db } from "../infra/db.server";
-import { retryOnDeadlock } from "../infra/db-errors.server";
+import { writeTransaction } from "../infra/db-errors.server";
 import { INVITATION_DAYS } from "../domain/link-lifetimes";
 import { sendMail } from "../infra/mail.server";
 import { hashPassword } from "../infra/password.server";
@@ -30,29 +30,27 @@ export async function inviteToTeam(input: {
 
   const token = newSecret();
   const expiresAt = new Date(Date.now() + INVITATION_DAYS * 24 * 3600 * 1000);
-  await retryOnDeadlock(() =>
-    db.transaction(async (tx) => {
-      await tx
-        .update(invitations)
-        .set({ revokedAt: new Date() })
-        .where(
-          and(
-            eq(invitations.teamId, input.teamId),
-            eq(invitations.email, input.email),
-            isNull(invitations.acceptedAt),
-            isNull(invitations.revokedAt),
-          ),
-        );
-      await tx.insert(invitations).values({
-        teamId: input.teamId,
-        email: input.email,
-        role: input.role,
-        tokenHash: sha256Hex(token),
-        invitedBy: input.invitedBy.id,
-        expiresAt,
-      });
-    }),
-  );
+  await writeTransaction(db, async (tx) => {
+    await tx
+      .update(invitations)
+      .set({ revokedAt: new Date() })
+      .where(
+        and(
+          eq(invitations.teamId, input.teamId),
+          eq(invitations.email, input.email),
+          isNull(invitations.acceptedAt),
+          isNull(invitations.revokedAt),
+        ),
+      );
+    await tx.insert(invitations).values({
+      teamId: input.teamId,
+      email: input.email,
+      role: input.role,
+      tokenHash: sha256Hex(token),
+      invitedBy: input.invitedBy.id,
+      expiresAt,
+    });
+  });
   const link = `${input.origin}/invitations/${token}`;
   await sendMail({
     kind: "invitation",
@@ -103,7 +101,7 @@ export async function acceptInvitation(
   newAccount: { name: string; password: string } | null,
 ): Promise<number> {
   const passwordHash = newAccount ? await hashPassword(newAccount.password) : null;
-  return db.transaction(async (tx) => {
+  return writeTransaction(db, async (tx) => {
     const [claimed] = await tx
       .update(invitations)
       .set({ acceptedAt: new Date() })

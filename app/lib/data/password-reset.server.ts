@@ -1,4 +1,5 @@
 import { and, eq, gt, isNull } from "drizzle-orm";
+import { writeTransaction } from "../infra/db-errors.server";
 import { passwordResets, sessions, users } from "~/lib/infra/db/schema";
 import { db } from "../infra/db.server";
 import { RESET_MINUTES } from "../domain/link-lifetimes";
@@ -63,7 +64,7 @@ export async function completePasswordReset(
   password: string,
 ): Promise<boolean> {
   const passwordHash = await hashPassword(password);
-  const done = await db.transaction(async (tx) => {
+  const done = await writeTransaction(db, async (tx) => {
     const [claimed] = await tx
       .update(passwordResets)
       .set({ usedAt: new Date() })

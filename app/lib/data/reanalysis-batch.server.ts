@@ -7,6 +7,7 @@
  * the drive log (save.server.ts). Documented in README (API) and docs/architecture.md §5.
  */
 import { randomBytes } from "node:crypto";
+import { writeTransaction } from "../infra/db-errors.server";
 import { and, asc, eq } from "drizzle-orm";
 import { analyses, analysisJobs, driveLogs } from "~/lib/infra/db/schema-drive-logs";
 import { audit } from "./audit.server";
@@ -64,7 +65,7 @@ export async function queueBatch(request: BatchRequest): Promise<QueuedBatch> {
   const jobs: NewJob[] = [];
   for (const l of logs.reverse()) jobs.push(await data.reanalysisJob(l.id, request.overrides));
   const batchId = randomBytes(8).toString("hex");
-  await db.transaction((tx) => enqueueBatch(tx, batchId, jobs));
+  await writeTransaction(db, (tx) => enqueueBatch(tx, batchId, jobs));
   wakeRunners();
   const queued = await db
     .select({ jobId: analysisJobs.id, driveLogId: analysisJobs.driveLogId })

@@ -1,4 +1,5 @@
 import { and, desc, eq, sql } from "drizzle-orm";
+import { writeTransaction } from "../infra/db-errors.server";
 import { users, type Role } from "~/lib/infra/db/schema";
 import { shares, shareViews, type ShareKind } from "~/lib/infra/db/schema-results";
 import { db } from "../infra/db.server";
@@ -296,7 +297,7 @@ export async function countShareView(shareId: number): Promise<void> {
   // The share's row first: its exclusive lock queues concurrent views of one link. Inserting the
   // view first took a shared lock on the share (the foreign key check), and two views that both
   // held it and then wanted to update the count deadlocked (MariaDB error 1213: a 500).
-  await db.transaction(async (tx) => {
+  await writeTransaction(db, async (tx) => {
     await tx
       .update(shares)
       .set({ viewCount: sql`${shares.viewCount} + 1`, lastViewedAt: new Date() })

@@ -6,6 +6,7 @@
  * analyses/signoff-supersede.server.ts (it runs inside the changes that cause it).
  */
 import { Readable } from "node:stream";
+import { writeTransaction } from "../infra/db-errors.server";
 import { and, asc, desc, eq, inArray } from "drizzle-orm";
 import { users } from "~/lib/infra/db/schema";
 import { analyses, driveLogs } from "~/lib/infra/db/schema-drive-logs";
@@ -165,7 +166,7 @@ export function signoffData(teamId: number) {
     expect?: { record: Buffer },
   ): Promise<SignoffRow> {
     const actor = await person(caller.userId);
-    const done = await db.transaction(async (tx) => {
+    const done = await writeTransaction(db, async (tx) => {
       const [current] = await tx
         .select()
         .from(signoffs)
@@ -262,7 +263,7 @@ export function signoffData(teamId: number) {
       if (evidence.blocked) throw new Invalid(blockedMessage(evidence), "signoff_blocked");
       const team = await teamData(teamId).team();
       const proposer = await person(caller.userId);
-      const id = await db.transaction(async (tx) => {
+      const id = await writeTransaction(db, async (tx) => {
         // The analyses the verdicts came from must still be the drive logs' latest.
         const logIds = evidence.logs.map((l) => l.row.id);
         const now = await tx

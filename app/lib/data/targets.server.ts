@@ -1,4 +1,5 @@
 import { and, asc, eq, isNotNull } from "drizzle-orm";
+import { writeTransaction } from "../infra/db-errors.server";
 import { analyses, driveLogs, isolationPoints } from "~/lib/infra/db/schema-drive-logs";
 import { targets } from "~/lib/infra/db/schema-results";
 import type { AnalysisResult } from "~/lib/signal";
@@ -136,7 +137,7 @@ export function targetData(teamId: number) {
       const same =
         JSON.stringify(toTarget(before)) ===
         JSON.stringify(toTarget({ ...before, ...columns(input) }));
-      await db.transaction(async (tx) => {
+      await writeTransaction(db, async (tx) => {
         await tx
           .update(targets)
           .set({ ...columns(input), updatedAt: new Date() })
@@ -149,7 +150,7 @@ export function targetData(teamId: number) {
     /** Deletes a target; open sign-offs claiming it are superseded in the same transaction. */
     async remove(id: number, actor: SupersedeActor = null): Promise<void> {
       const before = await get(id);
-      await db.transaction(async (tx) => {
+      await writeTransaction(db, async (tx) => {
         await tx.delete(targets).where(and(eq(targets.id, id), inTeam));
         await supersedeFor(tx, before, "deleted", actor);
       });

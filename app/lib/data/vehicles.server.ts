@@ -1,4 +1,5 @@
 import { and, asc, desc, eq, inArray, isNull, ne } from "drizzle-orm";
+import { writeTransaction } from "../infra/db-errors.server";
 import { z } from "zod";
 import { analyses, analysisJobs, driveLogs, vehicles } from "~/lib/infra/db/schema-drive-logs";
 import type { NewJob, Tx } from "../analyses/queue.server";
@@ -159,7 +160,7 @@ export function vehicleData(teamId: number) {
       }
       return added;
     };
-    return within ? write(within) : db.transaction(write);
+    return within ? write(within) : writeTransaction(db, write);
   }
 
   return {
@@ -220,7 +221,7 @@ export function vehicleData(teamId: number) {
         v: Parameters<typeof vehicleFiringOrder>[0] &
           Pick<Vehicle, "rattleLimitRadS2" | "damperTravelLimitDeg">,
       ) => JSON.stringify([vehicleFiringOrder(v), v.rattleLimitRadS2, v.damperTravelLimitDeg]);
-      await db.transaction(async (tx) => {
+      await writeTransaction(db, async (tx) => {
         await tx
           .update(vehicles)
           .set({ ...after, updatedAt: new Date() })

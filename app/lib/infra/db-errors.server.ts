@@ -1,3 +1,4 @@
+import type { Db } from "./db.server";
 import type { Env } from "./env.server";
 
 /**
@@ -109,4 +110,18 @@ export async function retryOnDeadlock<T>(run: () => Promise<T>, attempts = 3): P
       await new Promise((resolve) => setTimeout(resolve, 5 + Math.random() * 20 * attempt));
     }
   }
+}
+
+/** A transaction of the app's database (the `tx` a transaction's callback gets). */
+export type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+/**
+ * `db.transaction(run)`, run again whole when it was a deadlock victim (retryOnDeadlock). Every
+ * write transaction goes through it: besides InnoDB's own deadlocks, a MariaDB Galera cluster
+ * fails a transaction at commit with the same error 1213 when a write set from another node won
+ * certification against it. So `run` must only touch the database through `tx` (a retry runs
+ * it again from the start).
+ */
+export function writeTransaction<T>(db: Db, run: (tx: Tx) => Promise<T>): Promise<T> {
+  return retryOnDeadlock(() => db.transaction(run));
 }
