@@ -9,7 +9,7 @@
  * slow block has a finer angle grid). The caller waits for the helper with Atomics.wait and
  * computes the helper's blocks itself when the helper fails or does not answer within a minute.
  *
- * The helper also reads the second half of a CSV in the two-thread ingest (helpedRange,
+ * The helper also reads the later part of a CSV in the two-thread ingest (helpedRange,
  * ingest-parallel.ts). Before the blocks it can low-pass one channel and integrate the crank
  * angle while the caller low-passes the other and finds the segments (helpedFiltfilt,
  * helpedAngle). Once the blocks are done it finds the transients' fast spans and

@@ -1,8 +1,8 @@
 /**
  * The CSV ingest on two threads, for a large file on disk: the head is read as the whole-file
- * ingest reads it (ingest.ts, csv-head.ts), the data split at the line boundary nearest their
- * middle, the second half read by the CLI's helper thread (block-helper.ts helpedRange) while
- * this thread reads the first (both with ingest-range.ts, i.e. the same row reader), then the
+ * ingest reads it (ingest.ts, csv-head.ts), the data split at the first line boundary after
+ * MAIN_SHARE of it, the rest read by the CLI's helper thread (block-helper.ts helpedRange) while
+ * this thread reads the first part (both with ingest-range.ts, i.e. the same row reader), then the
  * columns joined and the log finished as ingest.ts finishes it, with the stats pass gathered per
  * half (ingest-checks.ts joinStats). The result is the same DriveLog and warnings.
  *

@@ -20,7 +20,7 @@ export interface RangeLimits {
   strict?: boolean;
 }
 
-/** The second half of a two-thread ingest, as the main thread hands it over (block-helper.ts). */
+/** The later part of a two-thread ingest, as the main thread hands it over (block-helper.ts). */
 export interface RangeJob {
   path: string;
   from: number;
