@@ -3,6 +3,9 @@ import { fileURLToPath } from "node:url";
 import { Piscina } from "piscina";
 import { getEnv } from "./env.server";
 
+/** A worker's young generation, MB: V8 makes it three semi-spaces, so 2 MB each. */
+const YOUNG_GENERATION_MB = 6;
+
 /**
  * The worker pool for analyses. One core stays free for requests (2-core machines run one
  * analysis at a time; further uploads queue in the database). Workers load TypeScript through
@@ -15,9 +18,6 @@ import { getEnv } from "./env.server";
  * adds to the first analysis after each idle minute (bench/upload.bench.ts). A worker that
  * fails while starting is not started over and over (piscina stops after the first failure).
  */
-/** A worker's young generation, MB: V8 makes it three semi-spaces, so 2 MB each. */
-const YOUNG_GENERATION_MB = 6;
-
 export function createAnalysisPool(
   options: { maxThreads?: number; memoryMb?: number; filename?: string; warm?: boolean } = {},
 ): Piscina {

@@ -39,8 +39,8 @@ export function isPositive(x: unknown): x is number {
 /** Value at quantile p (0…1) of up to ~100 000 evenly strided samples of x. */
 function quantile(x: Float64Array, p: number): number {
   const stride = quantileStride(x.length);
-  const s = new Float64Array(Math.ceil(x.length / stride));
-  for (let i = 0, k = 0; i < x.length; i += stride) s[k++] = x[i]!;
+  const s: number[] = [];
+  for (let i = 0; i < x.length; i += stride) s.push(x[i]!);
   return quantileOf(s, p);
 }
 

@@ -46,6 +46,32 @@ function runUp() {
   return { timeS, crank, gear };
 }
 
+/**
+ * A 5 kHz log of n samples in shared memory: the crank at `rpmAt(i)` rpm at sample i plus an
+ * order-2 fluctuation of 3 rad/s, the gearbox at the same speed with 1 rad/s at −0.4 rad;
+ * `timeAt(i)` the time of sample i, s (default i / fs).
+ */
+function speedLog(n: number, rpmAt: (t: number) => number, timeAt = (i: number) => i / 5000) {
+  const fs = 5000;
+  const [timeS, crankRadS, gearboxRadS] = [float64Array(n), float64Array(n), float64Array(n)];
+  let theta = 0;
+  for (let i = 0; i < n; i++) {
+    const w = (rpmAt(i) * 2 * Math.PI) / 60;
+    theta += w / fs;
+    timeS[i] = timeAt(i);
+    crankRadS[i] = w + 3 * Math.sin(2 * theta);
+    gearboxRadS[i] = w + 1 * Math.sin(2 * theta - 0.4);
+  }
+  return {
+    timeS,
+    crankRadS,
+    gearboxRadS,
+    extra: {},
+    sampleRateHz: fs,
+    source: {} as DriveLog["source"],
+  };
+}
+
 describe("the block helper", SLOW, () => {
   it("gives trackBlocks the same blocks as one thread, on a run-up (R = 8, 50 % and 75 % overlap)", () => {
     startBlockHelper();
@@ -109,26 +135,11 @@ describe("the block helper", SLOW, () => {
     startBlockHelper();
     // 0.6 s of cranking at 250 rpm, then a start to 850 rpm within 0.4 s: a fast span.
     const fs = 5000;
-    const n = 4 * fs;
-    const [timeS, crankRadS, gearboxRadS] = [float64Array(n), float64Array(n), float64Array(n)];
-    let theta = 0;
-    for (let i = 0; i < n; i++) {
+    const log = speedLog(4 * fs, (i) => {
       const t = i / fs;
-      const rpm = t < 0.6 ? 250 : t < 1 ? 250 + (600 * (t - 0.6)) / 0.4 : 850;
-      const w = (rpm * 2 * Math.PI) / 60;
-      theta += w / fs;
-      timeS[i] = t;
-      crankRadS[i] = w + 3 * Math.sin(2 * theta);
-      gearboxRadS[i] = w + 1 * Math.sin(2 * theta - 0.4);
-    }
-    const log = {
-      timeS,
-      crankRadS,
-      gearboxRadS,
-      extra: {},
-      sampleRateHz: fs,
-      source: {} as DriveLog["source"],
-    };
+      return t < 0.6 ? 250 : t < 1 ? 250 + (600 * (t - 0.6)) / 0.4 : 850;
+    });
+    const { timeS, crankRadS } = log;
     const args = {
       log,
       angleRad: integrateAngle(timeS, crankRadS),
@@ -153,13 +164,11 @@ describe("the block helper", SLOW, () => {
     // pull to 2500 rpm and a drop back: three fast spans each, claimed by either thread.
     const fs = 5000;
     const per = 6 * fs;
-    const n = 2 * per;
-    const [timeS, crankRadS, gearboxRadS] = [float64Array(n), float64Array(n), float64Array(n)];
-    let theta = 0;
-    for (let i = 0; i < n; i++) {
-      const t = (i % per) / fs;
-      const rpm =
-        t < 0.6
+    const stretch = speedLog(
+      2 * per,
+      (i) => {
+        const t = (i % per) / fs;
+        return t < 0.6
           ? 250
           : t < 1
             ? 250 + 1500 * (t - 0.6)
@@ -172,27 +181,17 @@ describe("the block helper", SLOW, () => {
                   : t < 5
                     ? 2500 - 3300 * (t - 4.5)
                     : 850;
-      const w = (rpm * 2 * Math.PI) / 60;
-      theta += w / fs;
-      timeS[i] = i < per ? t : 16 + t;
-      crankRadS[i] = w + 3 * Math.sin(2 * theta);
-      gearboxRadS[i] = w + 1 * Math.sin(2 * theta - 0.4);
-    }
+      },
+      (i) => (i < per ? 0 : 16) + (i % per) / fs,
+    );
+    const { timeS } = stretch;
     const sections = [0, per].map((a) => ({
       startIndex: a,
       endIndex: a + per,
       startS: timeS[a]!,
       endS: timeS[a + per - 1]!,
     }));
-    const log = {
-      timeS,
-      crankRadS,
-      gearboxRadS,
-      extra: {},
-      sampleRateHz: fs,
-      source: {} as DriveLog["source"],
-      sections,
-    };
+    const log = { ...stretch, sections };
     const args = {
       log,
       filters: butterworthLowpass4(300, fs),

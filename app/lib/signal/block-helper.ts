@@ -245,10 +245,20 @@ export function helpedFiltfilt(
   sections: readonly Biquad[],
 ): { wait: () => Float64Array | undefined } | undefined {
   if (!helper || !allShared(x)) return undefined;
+  return fillJob(x.length, (out, control) => ({ kind: "lowpass", x, sections, out, control }));
+}
+
+/**
+ * Posts the job `make` gives for a fresh shared array of `length` values to fill; `wait()`
+ * returns the array, or undefined when the caller must compute it.
+ */
+function fillJob(
+  length: number,
+  make: (out: Float64Array, control: Int32Array) => LowpassJob | AngleJob,
+): { wait: () => Float64Array | undefined } {
   const control = controlWords(1);
-  const out = sharedF64(x.length).subarray(0, x.length);
-  const job: LowpassJob = { kind: "lowpass", x, sections, out, control };
-  post(job);
+  const out = sharedF64(length).subarray(0, length);
+  post(make(out, control));
   return { wait: () => (finished(control) ? out : undefined) };
 }
 
@@ -271,11 +281,7 @@ export function helpedAngle(
   radS: Float64Array,
 ): { wait: () => Float64Array | undefined } | undefined {
   if (!helper || !allShared(timeS, radS)) return undefined;
-  const control = controlWords(1);
-  const out = sharedF64(timeS.length).subarray(0, timeS.length);
-  const job: AngleJob = { kind: "angle", timeS, radS, out, control };
-  post(job);
-  return { wait: () => (finished(control) ? out : undefined) };
+  return fillJob(timeS.length, (out, control) => ({ kind: "angle", timeS, radS, out, control }));
 }
 
 /** A read job: readRangeJob in the helper, the reply posted back on `port`. */

@@ -24,8 +24,8 @@ const COMPILED = !import.meta.url.endsWith(".ts");
 
 /**
  * The pipeline as the command runs it. Compiled, a log analysed in memory gets the helper thread
- * (block-helper.ts): a CSV is read in two halves on two threads (ingest-parallel.ts), and the
- * helper shares the low-pass, the blocks and the transients. Under tsx each thread would first
+ * (block-helper.ts): a CSV is read in two parts on two threads (ingest-parallel.ts), and the
+ * helper shares the low-pass, the angle, the blocks and the transients. Under tsx each thread would first
  * load the TypeScript loader, which costs more than it saves. Same output either way
  * (cli-bin.test.ts). The helper starts only on the in-memory way: the windowed way never uses
  * it, and a second idle thread would add its memory to the bounded peak (goal 1 of issue 17).

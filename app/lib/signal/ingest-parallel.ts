@@ -117,8 +117,15 @@ export async function ingestInTwo(
   if (!b || b.failed || b.warnings > 0 || a.error || a.warnings.length > 0) return undefined;
   const n = a.n + b.n;
   if (a.n === 0 || b.n === 0 || !(b.t[0]! > ch.t.data[a.n - 1]!)) return undefined;
-  const [t0, c0] = [ch.t.data[a.n - 1]!, ch.crank.data[a.n - 1]!];
-  const stats = joinStats(aStats, b.stats, t0, c0, b.t[0]!, b.crank[0]!);
+  const last = a.n - 1;
+  const stats = joinStats(
+    aStats,
+    b.stats,
+    ch.t.data[last]!,
+    ch.crank.data[last]!,
+    b.t[0]!,
+    b.crank[0]!,
+  );
   const columns = [ch.t, ch.crank, ch.gear, ...ch.extras];
   const parts = [b.t, b.crank, b.gear, ...b.extras];
   columns.forEach((c, k) => {
