@@ -61,8 +61,10 @@ const getLoadContext = (req: express.Request, res: express.Response) => ({
 });
 
 // Without a real mail provider, mail goes to a local fake that keeps it for the outbox page.
+// In a cluster on one machine only the first instance runs it (CLUSTER_ROLE, scripts/cluster.sh).
+const firstInstance = env.CLUSTER_ROLE !== "other";
 let fakeSmtp: Awaited<ReturnType<typeof startFakeSmtp>> | undefined;
-if (!env.SMTP_URL) {
+if (!env.SMTP_URL && firstInstance) {
   try {
     fakeSmtp = await startFakeSmtp({ port: env.FAKE_SMTP_PORT, dir: env.MAIL_DIR });
   } catch (error) {
@@ -109,7 +111,8 @@ if (NODE_ENV === "development") {
 const { startAnalysisService } = await import("../app/lib/analyses/analysis-service.server");
 const analysis = startAnalysisService();
 // The demo (no SMTP_URL): once its drive logs are analysed, one approved sign-off and one waiting.
-if (!env.SMTP_URL) (await import("../app/demo/demo-signoffs.server")).startDemoSignoffs();
+if (!env.SMTP_URL && firstInstance)
+  (await import("../app/demo/demo-signoffs.server")).startDemoSignoffs();
 
 const server = app.listen(PORT, HOST, () => {
   const shown = HOST === "127.0.0.1" ? "localhost" : HOST;

@@ -31,6 +31,10 @@ const envSchema = z.object({
   // Express's "trust proxy" behind a load balancer (e.g. "loopback", "1", an address list), so
   // the audit log and sign-in throttling see the client's address from X-Forwarded-For.
   TRUST_PROXY: z.string().min(1).optional(),
+  // Several instances of one installation on one machine (npm run cluster): "other" instances
+  // neither start the local fake mail server (they send to the first one's FAKE_SMTP_PORT) nor
+  // make the demo's sign-offs, which the "first" does. Unset: this instance is alone.
+  CLUSTER_ROLE: z.enum(["first", "other"]).optional(),
   // Where the fake SMTP server stores each message as an .eml file.
   MAIL_DIR: z.string().min(1).default(".data/mail"),
   // Raw drive logs (gzip, keyed by content hash); default .data/blobs in the checkout.

@@ -1,0 +1,64 @@
+/**
+ * What the cluster tests share: the fault drills of scripts/cluster.sh, a team with API tokens
+ * made straight in the cluster's database, and small HTTP helpers for the public API.
+ */
+import { execFileSync } from "node:child_process";
+import { repoRoot } from "../support/processes";
+import { clusterEnv, clusterPorts } from "./ports";
+import { scriptEnv } from "./global-setup";
+
+export const web = `http://127.0.0.1:${clusterPorts.web}`;
+export const appUrl = (i: number) => `http://127.0.0.1:${clusterPorts.app(i)}`;
+
+/** `npm run cluster -- ARGS` against the test cluster (kill-app, kill-node, start-node …). */
+export function clusterCommand(...args: string[]): string {
+  return execFileSync("bash", ["scripts/cluster.sh", ...args], {
+    cwd: repoRoot,
+    env: { ...process.env, ...clusterEnv(), ...scriptEnv() },
+    encoding: "utf8",
+    timeout: 300_000,
+  });
+}
+
+/** A new team with an API token for its technician and its engineer, and one vehicle. */
+export async function clusterTeam(label: string) {
+  const { createTestTeam } = await import("../support/accounts");
+  const { createApiToken } = await import("~/lib/data/api-tokens.server");
+  const { vehicleData } = await import("~/lib/data/vehicles.server");
+  const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
+  const team = await createTestTeam(label);
+  const token = async (role: "technician" | "engineer") =>
+    (
+      await createApiToken({
+        userId: team.accounts[role].id,
+        teamId: team.id,
+        name: `${label} ${role}`,
+        expiresAt: null,
+      })
+    ).token;
+  const vehicleId = await vehicleData(team.id).create(
+    vehicleSchema.parse({ name: `${label} car`, identifier: "KST-C1", cylinders: 4, stroke: 4 }),
+  );
+  return {
+    team,
+    vehicleId,
+    technician: await token("technician"),
+    engineer: await token("engineer"),
+  };
+}
+
+export async function apiJson<T>(
+  base: string,
+  path: string,
+  token: string,
+  init: RequestInit = {},
+) {
+  const r = await fetch(base + path, {
+    ...init,
+    headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) },
+  });
+  const text = await r.text();
+  return { status: r.status, body: (text ? JSON.parse(text) : null) as T };
+}
+
+export const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
