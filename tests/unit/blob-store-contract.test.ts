@@ -76,7 +76,12 @@ blobStoreContract("S3 bucket (s3rver stand-in)", async () => {
       const uploads = await client.send(
         new ListMultipartUploadsCommand({ Bucket, Prefix: prefix }),
       );
-      const onDisk = await readdir(join(s3Dir, Bucket, "._S3rver_uploads")).catch(() => []);
+      const folder = join(s3Dir, Bucket, "._S3rver_uploads");
+      const onDisk: string[] = [];
+      for (const id of await readdir(folder).catch(() => [])) {
+        const key = await readFile(join(folder, id, "key"), "utf8").catch(() => prefix);
+        if (key.startsWith(prefix)) onDisk.push(id);
+      }
       return [
         ...(objects.Contents ?? []).map((o) => `object ${o.Key}`),
         ...(uploads.Uploads ?? []).map((u) => `upload ${u.Key} ${u.UploadId}`),
