@@ -80,10 +80,17 @@ export function blobStoreFrom(description: BlobStoreDescription): BlobStore {
   switch (description.kind) {
     case "local":
       return localBlobStore(description.root);
-    case "s3":
-      return s3BlobStore(description);
+    case "s3": {
+      // One client (and its connection pool) per bucket in each process or worker thread, not
+      // one per analysis.
+      const id = JSON.stringify(description);
+      const store = s3Stores.get(id) ?? s3BlobStore(description);
+      s3Stores.set(id, store);
+      return store;
+    }
   }
 }
+const s3Stores = new Map<string, BlobStore>();
 
 const keyPattern = /^[0-9a-f]{64}$/;
 
