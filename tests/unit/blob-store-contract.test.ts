@@ -11,10 +11,9 @@ import {
   S3Client,
   UploadPartCommand,
 } from "@aws-sdk/client-s3";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { getEnv } from "~/lib/infra/env.server";
-import { s3BlobStore } from "~/lib/infra/s3-store.server";
-import { localBlobStore } from "~/lib/infra/storage.server";
+import { blobStoreFrom, localBlobStore } from "~/lib/infra/storage.server";
 import { startS3StandIn, type S3StandIn } from "../../scripts/s3-stand-in";
 import { blobStoreContract } from "../support/blob-store-contract";
 
@@ -62,7 +61,9 @@ afterAll(() => standIn?.stop());
 let s3Count = 0;
 blobStoreContract("S3 bucket (s3rver stand-in)", async () => {
   const prefix = `run-${s3Count++}/`;
-  const store = s3BlobStore({
+  // Opened from its plain description, as the analysis worker opens it.
+  const store = blobStoreFrom({
+    kind: "s3",
     bucket: Bucket,
     region: "us-east-1",
     endpoint: standIn.endpoint,
@@ -114,5 +115,23 @@ describe("STORAGE settings", () => {
     });
     expect(getEnv({}).STORAGE).toBe("local");
     expect(() => getEnv({ STORAGE: "ftp" })).toThrow(/^STORAGE is not valid/);
+  });
+
+  it("describes the bucket for the workers when STORAGE=s3, the folder otherwise", async () => {
+    vi.resetModules();
+    vi.stubEnv("STORAGE", "s3");
+    vi.stubEnv("S3_BUCKET", "kestrel-logs");
+    vi.stubEnv("S3_ENDPOINT", "http://127.0.0.1:4569");
+    const settings = await import("~/lib/infra/storage-settings.server");
+    expect(settings.blobStoreDescription()).toEqual({
+      kind: "s3",
+      bucket: "kestrel-logs",
+      region: "us-east-1",
+      endpoint: "http://127.0.0.1:4569",
+    });
+    vi.unstubAllEnvs();
+    vi.resetModules();
+    const local = await import("~/lib/infra/storage-settings.server");
+    expect(local.blobStoreDescription()).toMatchObject({ kind: "local" });
   });
 });
