@@ -39,6 +39,14 @@ const envSchema = z.object({
   MAIL_DIR: z.string().min(1).default(".data/mail"),
   // Raw drive logs (gzip, keyed by content hash); default .data/blobs in the checkout.
   TWISTLOG_STORAGE_DIR: z.string().min(1).optional(),
+  // Where raw drive logs are kept: the local folder above, or an S3-compatible bucket
+  // (docs/s3-storage.md). Credentials for s3 come from the environment the AWS SDK reads
+  // (AWS_ACCESS_KEY_ID, AWS_SECRET_ACCESS_KEY, or its other sources).
+  STORAGE: z.enum(["local", "s3"]).default("local"),
+  // An S3-compatible service's address (e.g. the local stand-in); unset: AWS S3 itself.
+  S3_ENDPOINT: z.url().optional(),
+  S3_BUCKET: z.string().min(3).max(63).optional(),
+  S3_REGION: z.string().min(1).default("us-east-1"),
   // The largest drive log accepted by an upload, in bytes (default 1 GiB).
   UPLOAD_MAX_BYTES: z.coerce
     .number()
@@ -71,7 +79,11 @@ const checkedEnv = envSchema
     // Links in real e-mail must not be built from the request's Host header, which a client chooses.
     (e) => !e.SMTP_URL || !!e.APP_URL,
     { path: ["APP_URL"], message: "set the app's public address when SMTP_URL is set" },
-  );
+  )
+  .refine((e) => e.STORAGE !== "s3" || !!e.S3_BUCKET, {
+    path: ["S3_BUCKET"],
+    message: "set the bucket's name when STORAGE=s3",
+  });
 
 export type Env = z.infer<typeof envSchema>;
 

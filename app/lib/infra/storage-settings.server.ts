@@ -9,6 +9,14 @@ export function blobRoot(): string {
 
 /** The configured store as plain data (for the analysis worker, which opens its own). */
 export function blobStoreDescription(): BlobStoreDescription {
+  const env = getEnv();
+  if (env.STORAGE === "s3" && env.S3_BUCKET)
+    return {
+      kind: "s3",
+      bucket: env.S3_BUCKET,
+      region: env.S3_REGION,
+      ...(env.S3_ENDPOINT && { endpoint: env.S3_ENDPOINT }),
+    };
   return { kind: "local", root: blobRoot() };
 }
 

@@ -5,12 +5,13 @@ import { dirname, join } from "node:path";
 import { Readable, Transform } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import { createGunzip, createGzip } from "node:zlib";
+import { s3BlobStore } from "./s3-store.server";
 
 /**
  * Where raw drive logs are kept, so any of them can be analysed again. Files are keyed by the
  * SHA-256 of their raw (uncompressed) bytes: the same file uploaded twice has the same key.
- * The local folder is the default; an S3-compatible store can implement the same interface
- * (docs/architecture.md §5, scale-out path).
+ * The local folder is the default; an S3-compatible bucket is the other implementation
+ * (s3-store.server.ts, docs/s3-storage.md).
  */
 export interface BlobStore {
   /**
@@ -69,15 +70,27 @@ export class BlobTooLargeError extends Error {
  * is opened there with blobStoreFrom(). A new kind of store (S3) adds a variant here and a case
  * in blobStoreFrom; its readers do not change.
  */
-export type BlobStoreDescription = { kind: "local"; root: string };
+export type BlobStoreDescription =
+  | { kind: "local"; root: string }
+  // Credentials are not in it: the SDK reads them from the environment, which workers share.
+  | { kind: "s3"; endpoint?: string; bucket: string; region: string; prefix?: string };
 
 /** Opens the store a description names. */
 export function blobStoreFrom(description: BlobStoreDescription): BlobStore {
   switch (description.kind) {
     case "local":
       return localBlobStore(description.root);
+    case "s3": {
+      // One client (and its connection pool) per bucket in each process or worker thread, not
+      // one per analysis.
+      const id = JSON.stringify(description);
+      const store = s3Stores.get(id) ?? s3BlobStore(description);
+      s3Stores.set(id, store);
+      return store;
+    }
   }
 }
+const s3Stores = new Map<string, BlobStore>();
 
 const keyPattern = /^[0-9a-f]{64}$/;
 
