@@ -212,7 +212,8 @@ function toRequest(
   const port = [forwardedPort, hostPort]
     .map((p) => Number.parseInt(p ?? "", 10))
     .find((p) => Number.isSafeInteger(p));
-  const hostname = req.hostname.split(/[\\/?#@]/)[0] || "localhost";
+  // An HTTP/1.0 request may have no Host header at all (a load balancer's health check).
+  const hostname = req.hostname?.split(/[\\/?#@]/)[0] || "localhost";
   const url = new URL(`${req.protocol}://${hostname}${port ? `:${port}` : ""}${req.originalUrl}`);
   let controller: AbortController | null = new AbortController();
   const signal = controller.signal;

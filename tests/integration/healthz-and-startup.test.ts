@@ -1,4 +1,4 @@
-import { createServer, type Server } from "node:net";
+import { connect, createServer, type Server } from "node:net";
 import { afterAll, describe, expect, it } from "vitest";
 import { loader } from "~/routes/healthz";
 import { pool } from "~/lib/infra/db.server";
@@ -16,6 +16,27 @@ describe("GET /healthz", () => {
     const response = await loader();
     expect(response.status).toBe(200);
     expect(await response.json()).toEqual({ ok: true, db: "up" });
+  });
+
+  it("answers an HTTP/1.0 request without a Host header (a load balancer's health check)", async () => {
+    // RFC 9112 §3.2: a Host header is required in HTTP/1.1 only; HTTP/1.0 clients may omit it.
+    const server = await startServer({});
+    try {
+      const { port } = new URL(server.url);
+      const answer = await new Promise<string>((resolve, reject) => {
+        const socket = connect(Number(port), "127.0.0.1", () =>
+          socket.write("GET /healthz HTTP/1.0\r\n\r\n"),
+        );
+        let text = "";
+        socket.on("data", (d) => (text += d));
+        socket.on("end", () => resolve(text));
+        socket.on("error", reject);
+      });
+      expect(answer.split("\r\n")[0]).toMatch(/^HTTP\/1\.[01] 200 /);
+      expect(answer).toContain('{"ok":true,"db":"up"}');
+    } finally {
+      await server.stop();
+    }
   });
 
   it("answers 503 with a reason, and no stack trace, when no database listens", async () => {
