@@ -2,12 +2,15 @@ import { createHash } from "node:crypto";
 import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { gunzipSync } from "node:zlib";
+import { gunzipSync, gzipSync } from "node:zlib";
 import {
+  CreateMultipartUploadCommand,
   GetObjectCommand,
   ListMultipartUploadsCommand,
   ListObjectsV2Command,
+  PutObjectCommand,
   S3Client,
+  UploadPartCommand,
 } from "@aws-sdk/client-s3";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -23,12 +26,15 @@ import { useJobTestbed } from "../support/scratch-db";
 const testbed = await useJobTestbed("s3up");
 const { startUploadBed } = await import("../support/upload-bed");
 const { db, pool } = await import("~/lib/infra/db.server");
+const { blobStoreFrom } = await import("~/lib/infra/storage.server");
+const { sweepStorage } = await import("~/lib/infra/storage-sweep.server");
 const { TEST_PASSWORD } = await import("../support/accounts");
 const { HttpClient } = await import("../support/http-client");
 
 process.env.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED = "true"; // Node 20 notice
 const Bucket = "kestrel-logs";
 const credentials = { AWS_ACCESS_KEY_ID: "S3RVER", AWS_SECRET_ACCESS_KEY: "S3RVER" };
+Object.assign(process.env, credentials); // for the store the sweep below opens here
 const dir = await mkdtemp(join(tmpdir(), "twistlog-s3up-"));
 let standIn: S3StandIn;
 let client: S3Client;
@@ -110,6 +116,41 @@ describe("drive logs in an S3-compatible bucket", () => {
     // Nothing but the stored file: no temporary object, no open multipart upload.
     const listed = await client.send(new ListObjectsV2Command({ Bucket }));
     expect((listed.Contents ?? []).map((o) => o.Key)).toEqual([Key]);
+    const uploads = await client.send(new ListMultipartUploadsCommand({ Bucket }));
+    expect(uploads.Uploads ?? []).toEqual([]);
+  });
+
+  it("is swept like the folder: an unreferenced file and abandoned parts go, a drive log's file stays", async () => {
+    const kept = (await client.send(new ListObjectsV2Command({ Bucket }))).Contents ?? [];
+    expect(kept).toHaveLength(1); // the drive log's file from the test above
+    const orphan = createHash("sha256").update("no drive log has this").digest("hex");
+    const orphanKey = `blobs/${orphan.slice(0, 2)}/${orphan.slice(2, 4)}/${orphan}.gz`;
+    await client.send(
+      new PutObjectCommand({ Bucket, Key: orphanKey, Body: gzipSync("no drive log has this") }),
+    );
+    await client.send(new PutObjectCommand({ Bucket, Key: "parts/0badc0de", Body: "half" }));
+    const Key = "parts/0ddba11";
+    const { UploadId } = await client.send(new CreateMultipartUploadCommand({ Bucket, Key }));
+    await client.send(
+      new UploadPartCommand({ Bucket, Key, UploadId, PartNumber: 1, Body: "half a part" }),
+    );
+
+    // An hour and a bit later, with the server's grace period (app/lib/infra/storage-sweep.server.ts).
+    const store = blobStoreFrom({
+      kind: "s3",
+      bucket: Bucket,
+      region: "us-east-1",
+      endpoint: standIn.endpoint,
+    });
+    const report = await sweepStorage({
+      store,
+      db,
+      graceMs: 3600_000,
+      now: new Date(Date.now() + 3600_000 + 5000),
+    });
+    expect(report).toMatchObject({ files: 1, parts: 2 });
+    const left = (await client.send(new ListObjectsV2Command({ Bucket }))).Contents ?? [];
+    expect(left.map((o) => o.Key)).toEqual(kept.map((o) => o.Key));
     const uploads = await client.send(new ListMultipartUploadsCommand({ Bucket }));
     expect(uploads.Uploads ?? []).toEqual([]);
   });
