@@ -20,6 +20,7 @@ const BENCHES = [
   "charts",
   "load",
   "report",
+  "s3-store",
 ];
 const root = fileURLToPath(new URL("..", import.meta.url));
 const only = process.argv.slice(2);

@@ -146,11 +146,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
     },
 
     async remove(key, opts = {}) {
-      const Key = objectOf(key);
-      const found = await head(Key);
-      if (!found || tooNew(found.LastModified, opts.ifNotModifiedAfter)) return false;
-      await client.send(new DeleteObjectCommand({ Bucket, Key }));
-      return true;
+      return removeIfOld(objectOf(key), opts.ifNotModifiedAfter);
     },
 
     async *list(area) {
@@ -172,13 +168,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
 
     async removePart(name, opts) {
       const object = /^object:([0-9a-f]+)$/.exec(name);
-      if (object) {
-        const Key = `${prefix}parts/${object[1]}`;
-        const found = await head(Key);
-        if (!found || tooNew(found.LastModified, opts.ifNotModifiedAfter)) return false;
-        await client.send(new DeleteObjectCommand({ Bucket, Key }));
-        return true;
-      }
+      if (object) return removeIfOld(`${prefix}parts/${object[1]}`, opts.ifNotModifiedAfter);
       const upload = /^upload:([A-Za-z0-9._~-]+):([0-9a-f]+)$/.exec(name);
       if (!upload) throw new Error(`not a part name: ${name}`);
       const [, UploadId, id] = upload as unknown as [string, string, string];
@@ -189,6 +179,14 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
       return true;
     },
   };
+
+  /** DeleteObject, with `limit` only when the object was last modified at or before it. */
+  async function removeIfOld(Key: string, limit: Date | undefined): Promise<boolean> {
+    const found = await head(Key);
+    if (!found || tooNew(found.LastModified, limit)) return false;
+    await client.send(new DeleteObjectCommand({ Bucket, Key }));
+    return true;
+  }
 
   /** Every object under a prefix, page by page (ListObjectsV2, 1000 a page). */
   async function* objects(Prefix: string) {
