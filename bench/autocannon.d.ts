@@ -21,7 +21,8 @@ declare module "autocannon" {
     requests: Histogram;
     latency: Histogram;
     throughput: Histogram;
-    totalCompletedRequests: number;
+    /** Answers with a 2xx status. */
+    "2xx": number;
     errors: number;
     timeouts: number;
     non2xx: number;

@@ -174,7 +174,8 @@ haproxy_cfg() {
 #!/usr/bin/env bash
 # HAProxy's external check for a Galera node: up only when it is Synced (wsrep_local_state 4);
 # a joining or donor node accepts connections but must not take the app's queries.
-state=\$(mariadb --no-defaults -h 127.0.0.1 -P "\$3" -u $CHECK_USER -N -B --connect-timeout=2 \\
+# HAProxy passes: proxy address, proxy port, server address, server port.
+state=\$(mariadb --no-defaults -h "\$3" -P "\$4" -u $CHECK_USER -N -B --connect-timeout=2 \\
   -e "SHOW STATUS LIKE 'wsrep_local_state'" 2>/dev/null | cut -f2)
 [ "\$state" = 4 ]
 EOF
@@ -183,7 +184,6 @@ EOF
     cat <<EOF
 global
   maxconn 4096
-  pidfile $DIR/haproxy.pid
   stats socket $DIR/haproxy.sock mode 600 level admin
   external-check
   insecure-fork-wanted
@@ -194,6 +194,10 @@ defaults
   timeout connect 3s
   timeout client 1h
   timeout server 1h
+  # Requests beyond an instance's maxconn wait here, not in its event loop, where they would
+  # hold up its /healthz answers (and a check that times out marks a busy instance down).
+  timeout queue 60s
+  timeout check 5s
   retries 2
 
 frontend web
@@ -208,9 +212,10 @@ backend apps
   balance roundrobin
   option redispatch
   retry-on conn-failure
-  option httpchk GET /healthz
+  option httpchk
+  http-check send meth GET uri /healthz ver HTTP/1.1 hdr Host localhost
   http-check expect status 200
-  default-server check inter 1s fall 2 rise 2
+  default-server check inter 1s fall 3 rise 2 maxconn 32
 EOF
     for i in $(seq 1 "$APPS"); do echo "  server app$i 127.0.0.1:$(app_port "$i")"; done
     cat <<EOF
@@ -244,6 +249,8 @@ export DATABASE_HOST=127.0.0.1 DATABASE_PORT=$db_port DATABASE_NAME=$DB_NAME
 export DATABASE_USER=$DB_USER DATABASE_PASSWORD=$DB_PASSWORD
 export FAKE_SMTP_PORT=$smtp_port MAIL_DIR="$DIR/mail" TRUST_PROXY=loopback
 export NODE_ENV=production
+# The project pins Node.js 20; the AWS SDK would print its Node 22 notice in every instance.
+export AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED=true
 
 app_pid() { cat "$DIR/app$1.pid" 2>/dev/null || true; }
 start_app() {
@@ -336,7 +343,13 @@ start() {
   haproxy_cfg
   haproxy -c -q -f "$DIR/haproxy.cfg" || { log "haproxy refused $DIR/haproxy.cfg"; exit 1; }
   setsid haproxy -f "$DIR/haproxy.cfg" -db >>"$DIR/haproxy.log" 2>&1 </dev/null &
-  for _ in $(seq 1 120); do port_busy "$db_port" && break; sleep 0.25; done
+  echo $! >"$DIR/haproxy.pid"
+  # The app's database user through HAProxy, once its checks have found the nodes Synced.
+  for _ in $(seq 1 120); do
+    mariadb --no-defaults -h 127.0.0.1 -P "$db_port" -u "$DB_USER" -p"$DB_PASSWORD" \
+      --connect-timeout=2 -e "SELECT 1" >/dev/null 2>&1 && break
+    sleep 0.5
+  done
   node_modules/.bin/tsx scripts/migrate.ts
   local signins=""
   # CLUSTER_SEED=0 (the cluster tests): no demo team, so no demo analyses load the machine.

@@ -57,8 +57,10 @@ export async function apiJson<T>(
     ...init,
     headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) },
   });
+  // A load balancer's own error page (502/503) is HTML: then the body is null.
+  const json = r.headers.get("content-type")?.includes("json");
   const text = await r.text();
-  return { status: r.status, body: (text ? JSON.parse(text) : null) as T };
+  return { status: r.status, body: (json && text ? JSON.parse(text) : null) as T };
 }
 
 export const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));

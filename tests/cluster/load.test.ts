@@ -97,6 +97,20 @@ describe("the hardening load test through HAProxy: two instances against one", (
       await Promise.all(uploaders);
     }
 
+    // The uploads' analyses finish before the next test file starts on a quiet cluster.
+    const drainFrom = performance.now();
+    for (let pending = 1; pending > 0;) {
+      const r = await apiJson<{ logs: { status: string }[] }>(
+        web,
+        `/api/v1/vehicles/${vehicleId}/logs`,
+        technician,
+      );
+      pending =
+        r.body?.logs.filter((l) => l.status === "queued" || l.status === "running").length ?? 1;
+      if (pending > 0) await sleep(1000);
+    }
+    const drainS = (performance.now() - drainFrom) / 1000;
+
     const num = (n: number, w: number, d = 0) => n.toFixed(d).padStart(w);
     const lines = [
       `load through HAProxy: ${CONNECTIONS} connections, ${SECONDS} s per row, ${UPLOADERS} uploaders meanwhile`,
@@ -116,14 +130,14 @@ describe("the hardening load test through HAProxy: two instances against one", (
       );
     }
     lines.push(
-      `  uploads meanwhile: ${uploads.accepted} accepted, other answers: ${uploads.other.join(", ") || "none"}`,
+      `  uploads meanwhile: ${uploads.accepted} accepted, other answers: ${uploads.other.join(", ") || "none"}; their analyses were all done ${drainS.toFixed(0)} s after the load`,
     );
     process.stderr.write(`\n${lines.join("\n")}\n`);
 
     for (const { instances, label, result: r } of rows) {
       expect(r.errors, `${label} with ${instances}`).toBe(0);
       expect(r.non2xx, `${label} with ${instances}`).toBe(0);
-      expect(r.totalCompletedRequests, `${label} with ${instances}`).toBeGreaterThan(0);
+      expect(r["2xx"], `${label} with ${instances}`).toBeGreaterThan(0);
     }
     expect(uploads.other).toEqual([]);
   });
