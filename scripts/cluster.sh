@@ -84,6 +84,9 @@ wsrep_sst_receive_address=127.0.0.1:$(node_sst "$n")
 # Every read waits until the node has applied what the cluster committed before it: a request
 # that lands on another node than the write before it still sees that write (decision 009).
 wsrep_sync_wait=1
+# A single statement outside a transaction that loses certification is run again by the node
+# itself, up to this many times (default 1); transactions are run again by writeTransaction.
+wsrep_retry_autocommit=4
 EOF
 }
 

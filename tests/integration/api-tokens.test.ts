@@ -73,6 +73,28 @@ describe("API tokens", () => {
     expect(list.html).toContain(`${token.slice(0, 10)}…`);
   });
 
+  it("stamps its last use at most once a minute (one row written by many parallel requests)", async () => {
+    const { token } = await makeToken(team.accounts.technician.email, "stamp check");
+    const where = eq(apiTokens.tokenHash, sha256Hex(token));
+    const stamp = async () => (await db.select().from(apiTokens).where(where))[0]!.lastUsedAt;
+    expect(await stamp()).toBeNull();
+    expect((await me(token)).status).toBe(200);
+    const first = await stamp();
+    expect(first).not.toBeNull();
+    // Within the minute: answered, but the row is not written again.
+    const past = new Date(Date.now() - 30_000);
+    await db.update(apiTokens).set({ lastUsedAt: past }).where(where);
+    expect((await me(token)).status).toBe(200);
+    expect((await stamp())!.getTime()).toBe(past.getTime());
+    // Over a minute since the last stamp: stamped now.
+    await db
+      .update(apiTokens)
+      .set({ lastUsedAt: new Date(Date.now() - 90_000) })
+      .where(where);
+    expect((await me(token)).status).toBe(200);
+    expect(Date.now() - (await stamp())!.getTime()).toBeLessThan(30_000);
+  });
+
   it("a revoked token gets 401 with a JSON error", async () => {
     const { client, token } = await makeToken(team.accounts.engineer.email, "to revoke");
     expect((await me(token)).status).toBe(200);

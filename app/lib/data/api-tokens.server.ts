@@ -1,4 +1,4 @@
-import { and, desc, eq, isNull, ne } from "drizzle-orm";
+import { and, desc, eq, isNull, lt, ne, or } from "drizzle-orm";
 import { apiTokens, memberships, teams, users, type Role } from "~/lib/infra/db/schema";
 import { db } from "../infra/db.server";
 import { newSecret, sha256Hex } from "../infra/secrets.server";
@@ -110,7 +110,21 @@ export async function findApiCaller(token: string): Promise<ApiCaller | null> {
     )
     .where(and(eq(apiTokens.tokenHash, sha256Hex(token)), isNull(apiTokens.revokedAt)));
   if (!row || (row.expiresAt && row.expiresAt <= new Date())) return null;
-  await db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId));
+  // At most once a minute per token: a script's parallel requests would otherwise all write the
+  // one row, and on Galera concurrent writes of a row from several nodes fail certification.
+  const now = new Date();
+  await db
+    .update(apiTokens)
+    .set({ lastUsedAt: now })
+    .where(
+      and(
+        eq(apiTokens.id, row.tokenId),
+        or(
+          isNull(apiTokens.lastUsedAt),
+          lt(apiTokens.lastUsedAt, new Date(now.getTime() - 60_000)),
+        ),
+      ),
+    );
   return {
     user: { id: row.userId, email: row.email, name: row.name },
     team: { id: row.teamId, name: row.teamName },
