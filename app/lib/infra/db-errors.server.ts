@@ -123,5 +123,7 @@ export type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
  * it again from the start).
  */
 export function writeTransaction<T>(db: Db, run: (tx: Tx) => Promise<T>): Promise<T> {
-  return retryOnDeadlock(() => db.transaction(run));
+  // 5 attempts: in the cluster drill (tests/cluster) two instances claiming and saving jobs on
+  // different nodes exhausted 3 once (the job runner then tried again at its next poll).
+  return retryOnDeadlock(() => db.transaction(run), 5);
 }
