@@ -107,18 +107,10 @@ start_node() {
     mariadb-install-db --defaults-file="$d.cnf" --auth-root-authentication-method=normal \
       --skip-test-db >"$d.install.log" 2>&1 || { log "could not initialise $d (see $d.install.log)"; return 1; }
   fi
-  local extra=()
+  local extra=() pos
   [ "$mode" = new ] && extra=(--wsrep-new-cluster)
-  # A node that was killed has no saved position; recover it from InnoDB first, so it rejoins by
-  # incremental transfer instead of copying everything (what galera_recovery does for systemd).
-  if [ "$mode" != new ] && grep -q '^seqno:\s*-1' "$d/grastate.dat" 2>/dev/null; then
-    local pos=""
-    rm -f "$d.recover.log"
-    /usr/sbin/mariadbd --defaults-file="$d.cnf" --wsrep-recover --log-error="$d.recover.log" \
-      </dev/null >/dev/null 2>&1 || true
-    pos=$(sed -n 's/.*Recovered position: *//p' "$d.recover.log" 2>/dev/null | tail -1)
-    [ -n "$pos" ] && extra+=(--wsrep-start-position="$pos")
-  fi
+  pos=$(recovered_position "$n")
+  [ -n "$pos" ] && extra+=(--wsrep-start-position="$pos")
   setsid /usr/sbin/mariadbd --defaults-file="$d.cnf" "${extra[@]}" </dev/null >/dev/null 2>&1 &
   for _ in $(seq 1 480); do
     [ "$(node_state "$n")" = Synced ] && return 0
@@ -126,6 +118,19 @@ start_node() {
   done
   log "Galera node $n did not reach Synced within 120 s (see $d.err)"
   return 1
+}
+
+# A node that was killed has no saved position (seqno -1 in grastate.dat): read it from InnoDB
+# (what galera_recovery does for systemd), so the node rejoins by incremental transfer instead of
+# a full copy, and a bootstrap after a crash of all nodes can pick the most advanced one.
+# Prints uuid:seqno, or nothing when the saved position is good.
+recovered_position() {
+  local d; d=$(node_dir "$1")
+  grep -q '^seqno:\s*-1' "$d/grastate.dat" 2>/dev/null || return 0
+  rm -f "$d.recover.log"
+  /usr/sbin/mariadbd --defaults-file="$d.cnf" --wsrep-recover --log-error="$d.recover.log" \
+    </dev/null >/dev/null 2>&1 || true
+  sed -n 's/.*Recovered position: *//p' "$d.recover.log" 2>/dev/null | tail -1
 }
 
 stop_node() {
@@ -141,25 +146,25 @@ stop_node() {
 # last to stop), or node 1 on a new cluster. After a crash of all nodes none is marked: then
 # the one with the highest committed seqno is (MariaDB KB, "Getting Started with Galera").
 start_galera() {
-  local first=1 best=-2
-  for n in $(seq 1 $NODES); do
-    local g; g="$(node_dir "$n")/grastate.dat"
-    [ -f "$g" ] || continue
-    if grep -q '^safe_to_bootstrap: 1' "$g"; then first=$n; best=""; break; fi
-    local s; s=$(sed -n 's/^seqno:\s*//p' "$g")
-    [ "${s:--1}" -gt "$best" ] && { best=${s:--1}; first=$n; }
-  done
-  if [ -n "$best" ] && [ -f "$(node_dir "$first")/grastate.dat" ]; then
-    sed -i 's/^safe_to_bootstrap: 0/safe_to_bootstrap: 1/' "$(node_dir "$first")/grastate.dat"
-  fi
-  local running=0
+  local first=1 best=-2 n running=0
   for n in $(seq 1 $NODES); do node_running "$n" && running=1; done
   if [ $running = 0 ]; then
+    for n in $(seq 1 $NODES); do
+      local g; g="$(node_dir "$n")/grastate.dat"
+      [ -f "$g" ] || continue
+      if grep -q '^safe_to_bootstrap: 1' "$g"; then first=$n; best=""; break; fi
+      local s; s=$(sed -n 's/^seqno:\s*//p' "$g")
+      if [ "${s:--1}" = -1 ]; then node_cnf "$n"; s=$(recovered_position "$n"); s=${s##*:}; fi
+      [ "${s:--1}" -gt "$best" ] && { best=${s:--1}; first=$n; }
+    done
+    if [ -n "$best" ] && [ -f "$(node_dir "$first")/grastate.dat" ]; then
+      sed -i 's/^safe_to_bootstrap: 0/safe_to_bootstrap: 1/' "$(node_dir "$first")/grastate.dat"
+    fi
     log "starting Galera node $first (bootstraps the cluster) ..."
     start_node "$first" new
   fi
   for n in $(seq 1 $NODES); do
-    [ "$n" = "$first" ] && continue
+    node_running "$n" && continue
     log "starting Galera node $n (joins) ..."
     start_node "$n"
   done
