@@ -1,6 +1,7 @@
 import { createHash } from "node:crypto";
 import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
+import { connect } from "node:net";
 import { join } from "node:path";
 import { gunzipSync, gzipSync } from "node:zlib";
 import {
@@ -13,7 +14,7 @@ import {
   UploadPartCommand,
 } from "@aws-sdk/client-s3";
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { driveLogs } from "~/lib/infra/db/schema-drive-logs";
 import { startS3StandIn, type S3StandIn } from "../../scripts/s3-stand-in";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
@@ -153,5 +154,60 @@ describe("drive logs in an S3-compatible bucket", () => {
     expect(left.map((o) => o.Key)).toEqual(kept.map((o) => o.Key));
     const uploads = await client.send(new ListMultipartUploadsCommand({ Bucket }));
     expect(uploads.Uploads ?? []).toEqual([]);
+  });
+
+  it("an upload cut off mid-body (a closed tab) leaves no multipart upload and no object", async () => {
+    const before = ((await client.send(new ListObjectsV2Command({ Bucket }))).Contents ?? []).map(
+      (o) => o.Key,
+    );
+    // Noisy rows, so gzip leaves more than one 8 MiB part of the 40 MB sent (of 100 MB announced).
+    const rows: string[] = [];
+    for (let i = 0; rows.length < 1_000_000; i++)
+      rows.push(
+        `${(i / 5000).toFixed(5)},${(800 + Math.random() * 40).toFixed(4)},${(800 + Math.random() * 40).toFixed(4)}`,
+      );
+    const body = "time [s],crank speed [rpm],gearbox input speed [rpm]\n" + rows.join("\n");
+    const url = new URL(bed.server.url);
+    const boundary = "----twistlog-cut-off";
+    const head =
+      `--${boundary}\r\nContent-Disposition: form-data; name="condition"\r\n\r\nidle-neutral\r\n` +
+      `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="cut.csv"\r\n` +
+      "Content-Type: text/csv\r\n\r\n";
+    const socket = connect(Number(url.port), url.hostname);
+    socket.on("error", () => {}); // the server may answer or reset: either is fine here
+    await new Promise<void>((resolve) => socket.once("connect", resolve));
+    socket.write(
+      [
+        `POST /api/v1/vehicles/${bed.vehicleId}/logs HTTP/1.1`,
+        `Host: ${url.host}`,
+        `Authorization: Bearer ${bed.technicianToken}`,
+        `Content-Type: multipart/form-data; boundary=${boundary}`,
+        `Content-Length: ${100 * 1024 * 1024}`,
+      ].join("\r\n") +
+        "\r\n\r\n" +
+        head +
+        body,
+    );
+    // Cut once the bucket holds an open multipart upload of it.
+    await vi.waitFor(
+      async () => {
+        const open = await client.send(new ListMultipartUploadsCommand({ Bucket }));
+        expect(open.Uploads ?? []).not.toEqual([]);
+      },
+      { timeout: 60_000, interval: 50 },
+    );
+    socket.resetAndDestroy();
+    await vi.waitFor(
+      async () => {
+        const open = await client.send(new ListMultipartUploadsCommand({ Bucket }));
+        expect(open.Uploads ?? []).toEqual([]);
+        const keys = ((await client.send(new ListObjectsV2Command({ Bucket }))).Contents ?? []).map(
+          (o) => o.Key,
+        );
+        expect(keys).toEqual(before);
+      },
+      { timeout: 30_000, interval: 100 },
+    );
+    expect((await fetch(`${bed.server.url}/healthz`)).status).toBe(200);
   });
 });
