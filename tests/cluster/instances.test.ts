@@ -1,7 +1,8 @@
 /**
  * Issue 18, "Must show": what one instance decides holds on the other at once — a session
  * made on one instance works on the other, a share link revoked through one is refused by the
- * other, and the sign-in throttle counts failures across both. Each instance is asked directly
+ * other, a new analysis version replaces the chart body the other holds in memory, and the
+ * sign-in throttle counts failures across both. Each instance is asked directly
  * (its own port, no load balancer), so the test knows which one answered.
  */
 import { describe, expect, it } from "vitest";
@@ -83,6 +84,46 @@ describe("two app instances, one installation", () => {
     // At once: no wait between the revocation's answer and the other instance's refusal.
     expect((await fetch(appUrl(2) + path)).status).toBe(410);
     expect((await fetch(`${appUrl(2)}${path}/charts.json`)).status).toBe(410);
+  });
+
+  it("a new analysis version made through instance 1 is what instance 2 serves next", async () => {
+    const logs = await apiJson<{ logs: { id: number }[] }>(
+      appUrl(2),
+      `/api/v1/vehicles/${vehicleId}/logs`,
+      technician,
+    );
+    const logId = logs.body.logs[0]!.id; // the analysed idle log of the test above
+    const viewer = await HttpClient.signedIn(appUrl(2), team.accounts.viewer.email, TEST_PASSWORD);
+    const charts = async () =>
+      (await (
+        await fetch(`${appUrl(2)}/vehicles/${vehicleId}/logs/${logId}/charts.json`, {
+          headers: { Cookie: viewer.cookieHeader() },
+        })
+      ).json()) as { analysis: { id: number; version: number } };
+    const before = await charts(); // instance 2 now holds this version's chart body in memory
+    const batch = await apiJson<{ batchId: string }>(
+      appUrl(1),
+      `/api/v1/vehicles/${vehicleId}/reanalyse`,
+      engineer,
+      {
+        method: "POST",
+        headers: { "Content-Type": "application/json" },
+        body: '{"revsPerBlock":16}',
+      },
+    );
+    expect(batch.status).toBe(202);
+    for (let finished = false; !finished; await sleep(300)) {
+      const r = await apiJson<{ finished: boolean; failed: number }>(
+        appUrl(1),
+        `/api/v1/vehicles/${vehicleId}/reanalyse/${batch.body.batchId}`,
+        engineer,
+      );
+      expect(r.body.failed).toBe(0);
+      finished = r.body.finished;
+    }
+    const after = await charts();
+    expect(after.analysis.version).toBe(before.analysis.version + 1);
+    expect(after.analysis.id).not.toBe(before.analysis.id);
   });
 
   it("the sign-in throttle counts failed sign-ins made on both instances together", async () => {
