@@ -176,7 +176,7 @@ describe("20 uploads through HAProxy while an app instance and a Galera node die
     // Uploads cut off by the SIGKILL left parts behind; the sweep (which every instance runs
     // once the grace period has passed) takes them. Run it now, all uploads being answered.
     const swept = await sweepStorage({ store, db, graceMs: 1 });
-    note(`sweep: ${swept.files} unreferenced files, ${swept.parts} abandoned parts removed`);
+    note(`sweep removed ${swept.files} unreferenced file(s) and ${swept.parts} abandoned part(s)`);
     const parts = [];
     for await (const p of store.list("parts")) parts.push(p.name);
     expect(parts).toEqual([]);
