@@ -3,6 +3,7 @@
  * made straight in the cluster's database, and small HTTP helpers for the public API.
  */
 import { execFileSync } from "node:child_process";
+import { openAsBlob } from "node:fs";
 import { repoRoot } from "../support/processes";
 import { clusterEnv, clusterPorts } from "./ports";
 import { scriptEnv } from "./global-setup";
@@ -61,6 +62,31 @@ export async function apiJson<T>(
   const json = r.headers.get("content-type")?.includes("json");
   const text = await r.text();
   return { status: r.status, body: (json && text ? JSON.parse(text) : null) as T };
+}
+
+/** POST /api/v1/vehicles/:vehicleId/logs with one file (a path on disk or a Blob) by API token. */
+export async function uploadLog(
+  base: string,
+  upload: { vehicleId: number; token: string; condition: string },
+  file: string | Blob,
+  name: string,
+) {
+  const form = new FormData();
+  form.set("condition", upload.condition);
+  form.set(
+    "file",
+    typeof file === "string" ? await openAsBlob(file, { type: "text/csv" }) : file,
+    name,
+  );
+  return apiJson<{ log: { id: number } }>(
+    base,
+    `/api/v1/vehicles/${upload.vehicleId}/logs`,
+    upload.token,
+    {
+      method: "POST",
+      body: form,
+    },
+  );
 }
 
 export const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));

@@ -10,14 +10,14 @@
  * if it did not — an answer lost with a dying instance must not make a second drive log.
  */
 import { createHash } from "node:crypto";
-import { createReadStream, mkdtempSync, openAsBlob, readFileSync, rmSync } from "node:fs";
+import { createReadStream, mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { writeBenchLog } from "../../bench/drive-log";
 import type { JobSettings } from "~/lib/analyses/settings";
 import { differences } from "../support/result-differences";
-import { apiJson, clusterCommand, clusterTeam, sleep, web } from "./cluster";
+import { apiJson, clusterCommand, clusterTeam, sleep, uploadLog, web } from "./cluster";
 
 const LOGS = 20;
 const CLIENTS = 4;
@@ -66,17 +66,11 @@ async function uploadOnce(path: string): Promise<number> {
       if (landed) return landed;
     }
     try {
-      const form = new FormData();
-      form.set("condition", "run-up");
-      form.set("file", await openAsBlob(path, { type: "text/csv" }), name);
-      const r = await apiJson<{ log: { id: number } }>(
+      const r = await uploadLog(
         web,
-        `/api/v1/vehicles/${vehicleId}/logs`,
-        technician,
-        {
-          method: "POST",
-          body: form,
-        },
+        { vehicleId, token: technician, condition: "run-up" },
+        path,
+        name,
       );
       if (r.status === 202) return r.body.log.id;
       if (r.status < 500)

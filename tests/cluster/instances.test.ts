@@ -10,7 +10,7 @@ import { analyticIdleCsv } from "../support/analytic-log";
 import { HttpClient } from "../support/http-client";
 import { TEST_PASSWORD } from "../support/accounts";
 import { THROTTLE } from "~/lib/infra/throttle.server";
-import { apiJson, appUrl, clusterTeam, sleep } from "./cluster";
+import { apiJson, appUrl, clusterTeam, sleep, uploadLog } from "./cluster";
 
 const { team, vehicleId, technician, engineer } = await clusterTeam("Instances");
 
@@ -43,17 +43,11 @@ describe("two app instances, one installation", () => {
       durationS: 4,
       sampleRateHz: 2000,
     });
-    const form = new FormData();
-    form.set("condition", "idle-neutral");
-    form.set("file", new Blob([csv], { type: "text/csv" }), "instances-idle.csv");
-    const up = await apiJson<{ log: { id: number } }>(
+    const up = await uploadLog(
       appUrl(1),
-      `/api/v1/vehicles/${vehicleId}/logs`,
-      technician,
-      {
-        method: "POST",
-        body: form,
-      },
+      { vehicleId, token: technician, condition: "idle-neutral" },
+      new Blob([csv], { type: "text/csv" }),
+      "instances-idle.csv",
     );
     expect(up.status).toBe(202);
     const logId = up.body.log.id;

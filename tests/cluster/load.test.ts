@@ -8,7 +8,7 @@
  * error, timeout or non-2xx answer; the figures themselves are reported, never asserted (no
  * wall-clock limits in tests: a shared 2-core machine says little about a cluster's speed).
  */
-import { mkdtempSync, openAsBlob, rmSync } from "node:fs";
+import { mkdtempSync, rmSync } from "node:fs";
 import { availableParallelism, loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
 import autocannon, { type Result } from "autocannon";
@@ -17,7 +17,7 @@ import { writeBenchLog } from "../../bench/drive-log";
 import { TEST_PASSWORD } from "../support/accounts";
 import { HttpClient } from "../support/http-client";
 import { repoRoot } from "../support/processes";
-import { apiJson, clusterCommand, clusterTeam, sleep, web } from "./cluster";
+import { apiJson, clusterCommand, clusterTeam, sleep, uploadLog, web } from "./cluster";
 
 const SECONDS = Number(process.env.LOAD_SECONDS ?? 15);
 const CONNECTIONS = Number(process.env.LOAD_CONNECTIONS ?? 100);
@@ -28,15 +28,8 @@ const { team, vehicleId, technician } = await clusterTeam("Load");
 const dir = mkdtempSync(join(tmpdir(), "twistlog-cluster-load-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-async function upload(path: string, name: string) {
-  const form = new FormData();
-  form.set("condition", "run-up");
-  form.set("file", await openAsBlob(path, { type: "text/csv" }), name);
-  return apiJson<{ log: { id: number } }>(web, `/api/v1/vehicles/${vehicleId}/logs`, technician, {
-    method: "POST",
-    body: form,
-  });
-}
+const upload = (path: string, name: string) =>
+  uploadLog(web, { vehicleId, token: technician, condition: "run-up" }, path, name);
 
 describe("the hardening load test through HAProxy: two instances against one", () => {
   it("serves every request with 2xx in both configurations, and prints the figures", async () => {
