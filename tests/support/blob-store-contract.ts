@@ -139,6 +139,22 @@ export function blobStoreContract(name: string, makeStore: () => Promise<StoreUn
       expect(await all(store.list("parts"))).toEqual([]);
     });
 
+    it("a re-put right after, even within the same second, keeps the file from a removal conditioned on the first put", async () => {
+      // Two uploads of the same bytes (maybe on two instances): the first is refused and cleans
+      // up what it stored, the second records a drive log. The clean-up must leave the file.
+      const { store } = await makeStore();
+      const raw = Buffer.from("time [s],crank speed [rpm]\n0,800\n0.001,801\n");
+      const first = await store.put(Readable.from([raw]));
+      const second = await store.put(Readable.from([raw]));
+      expect([first.created, second.created]).toEqual([true, false]);
+      const condition = { ifNotModifiedAfter: first.modifiedAt, ifVersion: first.version };
+      expect(await store.remove(first.key, condition)).toBe(false);
+      expect(await store.has(first.key)).toBe(true);
+      // The second put's own condition still removes it (its upload refused, say).
+      const own = { ifNotModifiedAfter: second.modifiedAt, ifVersion: second.version };
+      expect(await store.remove(second.key, own)).toBe(true);
+    });
+
     it("deletes a file, and with ifNotModifiedAfter only when it was not written after", async () => {
       const { store, leftovers } = await makeStore();
       const stored = await store.put(Readable.from([Buffer.from("a,b\n1,2\n")]));

@@ -334,8 +334,11 @@ export async function discardReceived(
     for (const _ of copies) free = release(key);
     // A file that was there before this upload may belong to a drive log: never ours to remove.
     if (!free || !copies.some((c) => c.created)) continue;
-    const last = Math.max(...copies.map((c) => c.modifiedAt.getTime()));
-    await store.remove(key, { ifNotModifiedAfter: new Date(last) }).catch(() => {});
+    const last = copies.reduce((a, b) => (b.modifiedAt >= a.modifiedAt ? b : a));
+    // Not if anything put the same content since (another upload, maybe on another instance).
+    await store
+      .remove(key, { ifNotModifiedAfter: last.modifiedAt, ifVersion: last.version })
+      .catch(() => {});
   }
 }
 

@@ -92,6 +92,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
         const key = hash.digest("hex");
         const Key = objectOf(key);
         const created = !(await head(Key));
+        const version = randomBytes(8).toString("hex");
         // Onto itself with REPLACE for content already there: S3's way to give it a new
         // LastModified (a plain self-copy is refused), so a sweep's grace period starts again.
         await client.send(
@@ -101,6 +102,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
             CopySource: `${Bucket}/${created ? temp : Key}`,
             MetadataDirective: "REPLACE",
             ContentType: "application/gzip",
+            Metadata: { put: version },
           }),
         );
         const stored = await head(Key);
@@ -111,6 +113,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
           storedBytes: stored.ContentLength ?? 0,
           created,
           modifiedAt: stored.LastModified ?? new Date(),
+          version,
         };
       } catch (error) {
         gzip.destroy();
@@ -146,7 +149,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
     },
 
     async remove(key, opts = {}) {
-      return removeIfOld(objectOf(key), opts.ifNotModifiedAfter);
+      return removeIfOld(objectOf(key), opts.ifNotModifiedAfter, opts.ifVersion);
     },
 
     async *list(area) {
@@ -180,10 +183,14 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
     },
   };
 
-  /** DeleteObject, with `limit` only when the object was last modified at or before it. */
-  async function removeIfOld(Key: string, limit: Date | undefined): Promise<boolean> {
+  /**
+   * DeleteObject, with `limit` only when the object was last modified at or before it, and with
+   * `version` only when it is still what that put left (x-amz-meta-put).
+   */
+  async function removeIfOld(Key: string, limit: Date | undefined, version?: string) {
     const found = await head(Key);
     if (!found || tooNew(found.LastModified, limit)) return false;
+    if (version !== undefined && found.Metadata?.put !== version) return false;
     await client.send(new DeleteObjectCommand({ Bucket, Key }));
     return true;
   }

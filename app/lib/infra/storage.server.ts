@@ -24,10 +24,14 @@ export interface BlobStore {
   has(key: string): Promise<boolean>;
   /**
    * Deletes a stored file; with `ifNotModifiedAfter`, only when nothing wrote or re-put it
-   * after that moment (checked just before deleting). True when a file was removed; a missing
-   * file is no error.
+   * after that moment (checked just before deleting), and with `ifVersion` (a put's `version`)
+   * only when it is still what that put left. True when a file was removed; a missing file is
+   * no error.
    */
-  remove(key: string, options?: { ifNotModifiedAfter?: Date }): Promise<boolean>;
+  remove(
+    key: string,
+    options?: { ifNotModifiedAfter?: Date; ifVersion?: string },
+  ): Promise<boolean>;
   /**
    * Stored files (`blobs`, name = key) or parts of writes in progress or abandoned (`parts`),
    * for the sweep. On S3 these are a listing by prefix and the open multipart uploads, both
@@ -56,6 +60,13 @@ export interface StoredBlob {
   created: boolean;
   /** The stored file's last-modified time just after this put. */
   modifiedAt: Date;
+  /**
+   * What this put left in the store, where times are too coarse to tell two puts apart (S3's
+   * LastModified has whole seconds): `remove(key, { ifVersion })` then removes the file only if
+   * no later put of the same content replaced it. Absent for the local folder (its times are
+   * fine enough).
+   */
+  version?: string;
 }
 
 export class BlobTooLargeError extends Error {
