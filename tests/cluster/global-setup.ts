@@ -17,7 +17,7 @@ export async function setup() {
   const log = createWriteStream(logPath);
   const child = spawn("bash", ["scripts/cluster.sh", "start"], {
     cwd: repoRoot,
-    env: { ...process.env, ...clusterEnv(), ...scriptEnv() },
+    env: { ...outsideVitest(), ...clusterEnv(), ...scriptEnv() },
     stdio: ["ignore", "pipe", "pipe"],
   });
   cluster = child;
@@ -48,6 +48,14 @@ export async function teardown() {
   cluster.kill("SIGTERM");
   await exited;
   if (!process.env.KEEP_CLUSTER_DIR) rmSync(clusterDir, { recursive: true, force: true });
+}
+
+/**
+ * This process's environment without vitest's own variables: with VITEST set, vite.config.ts
+ * leaves the React Router plugin out, and the cluster script's build would fail.
+ */
+function outsideVitest(): NodeJS.ProcessEnv {
+  return Object.fromEntries(Object.entries(process.env).filter(([k]) => !k.startsWith("VITEST")));
 }
 
 /** What scripts/cluster.sh reads beyond the database and bucket settings. */
