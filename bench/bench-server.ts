@@ -116,14 +116,8 @@ export function memoryOf(pid: number): { rssMB: number; peakMB: number } {
  * prepareDatabaseAndBuild: the app modules read the bench settings when first imported.
  */
 export async function benchTeam(label: string) {
-  const { createTestTeam } = await import("../tests/support/accounts.ts");
-  const { createApiToken } = await import("../app/lib/data/api-tokens.server.ts");
+  const { apiTokenOf, createTestTeam } = await import("../tests/support/accounts.ts");
   const team = await createTestTeam(label);
-  const { token } = await createApiToken({
-    userId: team.accounts.technician.id,
-    teamId: team.id,
-    name: `${label.toLowerCase()} bench`,
-    expiresAt: null,
-  });
+  const token = await apiTokenOf(team, "technician", `${label.toLowerCase()} bench`);
   return { team, token };
 }

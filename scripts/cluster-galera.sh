@@ -51,9 +51,10 @@ node_sql_root() { mariadb --no-defaults --socket="$(node_sock "$1")" -uroot -N -
 node_state() { node_sql_root "$1" "SHOW STATUS LIKE 'wsrep_local_state_comment'" 2>/dev/null | cut -f2; }
 node_size() { node_sql_root "$1" "SHOW STATUS LIKE 'wsrep_cluster_size'" 2>/dev/null | cut -f2; }
 
-# Starts node N; `new` bootstraps a new cluster from it. Waits until it is Synced.
+# Starts node N; `new` bootstraps a new cluster from it; a third argument is its position when
+# already recovered. Waits until it is Synced.
 start_node() {
-  local n=$1 mode=${2:-join} d; d=$(node_dir "$n")
+  local n=$1 mode=${2:-join} known=${3:-} d; d=$(node_dir "$n")
   if node_running "$n"; then return 0; fi
   port_busy "$(node_sql "$n")" && { log "port $(node_sql "$n") for Galera node $n is in use: set CLUSTER_PORT"; return 1; }
   node_cnf "$n"
@@ -64,7 +65,7 @@ start_node() {
   fi
   local extra=() pos
   [ "$mode" = new ] && extra=(--wsrep-new-cluster)
-  pos=$(recovered_position "$n")
+  pos=${known:-$(recovered_position "$n")}
   [ -n "$pos" ] && extra+=(--wsrep-start-position="$pos")
   setsid /usr/sbin/mariadbd --defaults-file="$d.cnf" "${extra[@]}" </dev/null >/dev/null 2>&1 &
   for _ in $(seq 1 480); do
@@ -101,7 +102,7 @@ stop_node() {
 # last to stop), or node 1 on a new cluster. After a crash of all nodes none is marked: then
 # the one with the highest committed seqno is (MariaDB KB, "Getting Started with Galera").
 start_galera() {
-  local first=1 best=-2 n running=0
+  local first=1 best=-2 n running=0 recovered=()
   for n in $(seq 1 $NODES); do node_running "$n" && running=1; done
   if [ $running = 0 ]; then
     for n in $(seq 1 $NODES); do
@@ -109,19 +110,21 @@ start_galera() {
       [ -f "$g" ] || continue
       if grep -q '^safe_to_bootstrap: 1' "$g"; then first=$n; best=""; break; fi
       local s; s=$(sed -n 's/^seqno:\s*//p' "$g")
-      if [ "${s:--1}" = -1 ]; then node_cnf "$n"; s=$(recovered_position "$n"); s=${s##*:}; fi
+      if [ "${s:--1}" = -1 ]; then
+        node_cnf "$n"; recovered[n]=$(recovered_position "$n"); s=${recovered[n]##*:}
+      fi
       [ "${s:--1}" -gt "$best" ] && { best=${s:--1}; first=$n; }
     done
     if [ -n "$best" ] && [ -f "$(node_dir "$first")/grastate.dat" ]; then
       sed -i 's/^safe_to_bootstrap: 0/safe_to_bootstrap: 1/' "$(node_dir "$first")/grastate.dat"
     fi
     log "starting Galera node $first (bootstraps the cluster) ..."
-    start_node "$first" new
+    start_node "$first" new "${recovered[first]:-}"
   fi
   for n in $(seq 1 $NODES); do
     node_running "$n" && continue
     log "starting Galera node $n (joins) ..."
-    start_node "$n"
+    start_node "$n" join "${recovered[n]:-}"
   done
   node_sql_root "$first" "CREATE DATABASE IF NOT EXISTS \`$DB_NAME\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;
     CREATE USER IF NOT EXISTS '$DB_USER'@'127.0.0.1' IDENTIFIED BY '$DB_PASSWORD';

@@ -23,28 +23,18 @@ export function clusterCommand(...args: string[]): string {
 
 /** A new team with an API token for its technician and its engineer, and one vehicle. */
 export async function clusterTeam(label: string) {
-  const { createTestTeam } = await import("../support/accounts");
-  const { createApiToken } = await import("~/lib/data/api-tokens.server");
+  const { apiTokenOf, createTestTeam } = await import("../support/accounts");
   const { vehicleData } = await import("~/lib/data/vehicles.server");
   const { vehicleSchema } = await import("~/lib/domain/vehicle-schema");
   const team = await createTestTeam(label);
-  const token = async (role: "technician" | "engineer") =>
-    (
-      await createApiToken({
-        userId: team.accounts[role].id,
-        teamId: team.id,
-        name: `${label} ${role}`,
-        expiresAt: null,
-      })
-    ).token;
   const vehicleId = await vehicleData(team.id).create(
     vehicleSchema.parse({ name: `${label} car`, identifier: "KST-C1", cylinders: 4, stroke: 4 }),
   );
   return {
     team,
     vehicleId,
-    technician: await token("technician"),
-    engineer: await token("engineer"),
+    technician: await apiTokenOf(team, "technician", `${label} technician`),
+    engineer: await apiTokenOf(team, "engineer", `${label} engineer`),
   };
 }
 

@@ -31,14 +31,7 @@ afterAll(async () => {
 });
 
 async function upload(csv: string, name: string): Promise<number> {
-  const form = new FormData();
-  form.set("file", new Blob([csv], { type: "text/csv" }), name);
-  form.set("condition", "idle-neutral");
-  const r = await fetch(`${bed.server.url}/api/v1/vehicles/${bed.vehicleId}/logs`, {
-    method: "POST",
-    headers: { Authorization: `Bearer ${bed.technicianToken}` },
-    body: form,
-  });
+  const r = await bed.upload(new Blob([csv], { type: "text/csv" }), name);
   expect(r.status).toBe(202);
   return ((await r.json()) as { log: { id: number } }).log.id;
 }

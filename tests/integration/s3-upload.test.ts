@@ -86,14 +86,7 @@ describe("drive logs in an S3-compatible bucket", () => {
     // An analytic idle log (tests/support/analytic-log.ts).
     const csv = analyticIdleCsv({ ...IDLE_800, durationS: 2 });
     const sha256 = createHash("sha256").update(csv).digest("hex");
-    const form = new FormData();
-    form.set("file", new Blob([csv], { type: "text/csv" }), "bucket.csv");
-    form.set("condition", "idle-neutral");
-    const r = await fetch(`${bed.server.url}/api/v1/vehicles/${bed.vehicleId}/logs`, {
-      method: "POST",
-      headers: { Authorization: `Bearer ${bed.technicianToken}` },
-      body: form,
-    });
+    const r = await bed.upload(new Blob([csv], { type: "text/csv" }), "bucket.csv");
     expect(r.status).toBe(202);
     const id = ((await r.json()) as { log: { id: number } }).log.id;
 

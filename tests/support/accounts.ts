@@ -1,5 +1,6 @@
 import { randomBytes } from "node:crypto";
 import { inArray } from "drizzle-orm";
+import { createApiToken } from "~/lib/data/api-tokens.server";
 import { memberships, teams, users } from "~/lib/infra/db/schema";
 import { db } from "~/lib/infra/db.server";
 import { hashPassword } from "~/lib/infra/password.server";
@@ -22,6 +23,13 @@ export interface TestTeam {
   id: number;
   name: string;
   accounts: Record<Role, TestAccount>;
+}
+
+/** A new API token (never expiring) of the team's account with `role`, named `name`. */
+export async function apiTokenOf(team: TestTeam, role: Role, name: string): Promise<string> {
+  const account = team.accounts[role];
+  return (await createApiToken({ userId: account.id, teamId: team.id, name, expiresAt: null }))
+    .token;
 }
 
 /** A team with one account per role, all with TEST_PASSWORD. */

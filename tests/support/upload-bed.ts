@@ -1,5 +1,4 @@
-import { createApiToken } from "~/lib/data/api-tokens.server";
-import { createTestTeam } from "./accounts";
+import { apiTokenOf, createTestTeam } from "./accounts";
 import { startServer } from "./processes";
 
 /**
@@ -13,17 +12,8 @@ export async function startUploadBed(
   vehicle: { name: string; identifier: string },
 ) {
   const [server, team] = await Promise.all([startServer(serverEnv), createTestTeam(label)]);
-  const tokenOf = async (role: "engineer" | "technician") =>
-    (
-      await createApiToken({
-        userId: team.accounts[role].id,
-        teamId: team.id,
-        name: `${label} ${role}`,
-        expiresAt: null,
-      })
-    ).token;
-  const engineerToken = await tokenOf("engineer");
-  const technicianToken = await tokenOf("technician");
+  const engineerToken = await apiTokenOf(team, "engineer", `${label} engineer`);
+  const technicianToken = await apiTokenOf(team, "technician", `${label} technician`);
   const r = await fetch(`${server.url}/api/v1/vehicles`, {
     method: "POST",
     headers: { Authorization: `Bearer ${engineerToken}`, "Content-Type": "application/json" },
@@ -31,5 +21,16 @@ export async function startUploadBed(
   });
   if (r.status !== 201) throw new Error(`creating the test vehicle answered ${r.status}`);
   const vehicleId = ((await r.json()) as { vehicle: { id: number } }).vehicle.id;
-  return { server, team, engineerToken, technicianToken, vehicleId };
+  /** The technician's API upload of one file to the vehicle: the server's raw answer. */
+  const upload = (file: Blob, name: string, condition = "idle-neutral") => {
+    const form = new FormData();
+    form.set("file", file, name);
+    form.set("condition", condition);
+    return fetch(`${server.url}/api/v1/vehicles/${vehicleId}/logs`, {
+      method: "POST",
+      headers: { Authorization: `Bearer ${technicianToken}` },
+      body: form,
+    });
+  };
+  return { server, team, engineerToken, technicianToken, vehicleId, upload };
 }

@@ -1,5 +1,5 @@
-import { createHash, randomBytes } from "node:crypto";
-import { PassThrough, Readable, Transform } from "node:stream";
+import { randomBytes } from "node:crypto";
+import { PassThrough, Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import { createGunzip, createGzip } from "node:zlib";
 import {
@@ -14,7 +14,7 @@ import {
   S3Client,
 } from "@aws-sdk/client-s3";
 import { Upload } from "@aws-sdk/lib-storage";
-import { BlobTooLargeError, type BlobStore, type StoreEntry } from "./storage.server";
+import { rawMeter, ZLIB_PIECE, type BlobStore, type StoreEntry } from "./storage.server";
 
 /**
  * The BlobStore in an S3-compatible bucket (docs/s3-storage.md). Same stored format as the
@@ -37,8 +37,6 @@ const keyPattern = /^[0-9a-f]{64}$/;
 /** Part size and parts in flight: at most about (2 + 1) × 8 MiB held per put. */
 const PART_BYTES = 8 * 1024 * 1024;
 const QUEUE = 2;
-/** Bytes per call into zlib (as in the local store, docs/performance.md). */
-const ZLIB_PIECE = 1 << 20;
 
 export function s3BlobStore(options: S3StoreOptions): BlobStore {
   const client = new S3Client({
@@ -59,24 +57,12 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
 
   return {
     async put(source, opts = {}) {
-      const hash = createHash("sha256");
-      let sizeBytes = 0;
-      const meter = new Transform({
-        transform(chunk: Buffer, _enc, done) {
-          sizeBytes += chunk.length;
-          if (opts.maxBytes !== undefined && sizeBytes > opts.maxBytes) {
-            done(new BlobTooLargeError(opts.maxBytes));
-            return;
-          }
-          hash.update(chunk);
-          done(null, chunk);
-        },
-      });
+      const meter = rawMeter(opts.maxBytes);
       const gzip = createGzip({ level: 1, chunkSize: ZLIB_PIECE });
       // Attached before the first await, like the local store: a source that fails at once must
       // find its error listener there. A failure anywhere destroys gzip, which fails the upload's
       // read of it; lib-storage then aborts the multipart upload before done() rejects.
-      const compressed = pipeline(source, meter, gzip);
+      const compressed = pipeline(source, meter.stream, gzip);
       compressed.catch(() => {});
       const temp = `${prefix}parts/${randomBytes(12).toString("hex")}`;
       const upload = new Upload({
@@ -89,7 +75,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
       try {
         await upload.done();
         await compressed;
-        const key = hash.digest("hex");
+        const key = meter.key();
         const Key = objectOf(key);
         const created = !(await head(Key));
         const version = randomBytes(8).toString("hex");
@@ -109,7 +95,7 @@ export function s3BlobStore(options: S3StoreOptions): BlobStore {
         if (!stored) throw new Error(`stored file ${key} vanished just after its copy`);
         return {
           key,
-          sizeBytes,
+          sizeBytes: meter.bytes(),
           storedBytes: stored.ContentLength ?? 0,
           created,
           modifiedAt: stored.LastModified ?? new Date(),

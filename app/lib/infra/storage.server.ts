@@ -106,7 +106,43 @@ const s3Stores = new Map<string, BlobStore>();
 const keyPattern = /^[0-9a-f]{64}$/;
 
 /** Bytes per call into zlib, both ways (see put and read). */
-const ZLIB_PIECE = 1 << 20;
+export const ZLIB_PIECE = 1 << 20;
+
+/**
+ * What every store's put sends the raw bytes through before the compressor: it counts them
+ * (BlobTooLargeError past `maxBytes`), hashes them into the key, and hands them on in pieces of
+ * ZLIB_PIECE bytes, not the upload's 16–64 kB chunks: each piece is one call into zlib on the
+ * thread pool, and on a 91 MB drive log 1 MiB pieces took 1.1 s against 1.5–1.8 s for the small
+ * ones (docs/performance.md).
+ */
+export function rawMeter(maxBytes: number | undefined) {
+  const hash = createHash("sha256");
+  let sizeBytes = 0;
+  let held: Buffer[] = [];
+  let heldBytes = 0;
+  const stream = new Transform({
+    transform(chunk: Buffer, _enc, done) {
+      sizeBytes += chunk.length;
+      if (maxBytes !== undefined && sizeBytes > maxBytes) {
+        done(new BlobTooLargeError(maxBytes));
+        return;
+      }
+      hash.update(chunk);
+      held.push(chunk);
+      heldBytes += chunk.length;
+      if (heldBytes < ZLIB_PIECE) return done();
+      const piece = Buffer.concat(held, heldBytes);
+      held = [];
+      heldBytes = 0;
+      done(null, piece);
+    },
+    flush(done) {
+      done(null, heldBytes > 0 ? Buffer.concat(held, heldBytes) : undefined);
+    },
+  });
+  /** The key (lower-case hex SHA-256 of the raw bytes) and the raw size, once the stream ended. */
+  return { stream, key: () => hash.digest("hex"), bytes: () => sizeBytes };
+}
 
 /** A folder of gzip files, two directory levels deep by key prefix. */
 export function localBlobStore(root: string): BlobStore {
@@ -122,33 +158,7 @@ export function localBlobStore(root: string): BlobStore {
       // The pipeline is attached before the first await: a source that fails at once (the
       // upload's content check) must find its error listener already there.
       const tmp = join(tmpDir, randomBytes(12).toString("hex"));
-      const hash = createHash("sha256");
-      let sizeBytes = 0;
-      // The compressor gets pieces of ZLIB_PIECE bytes, not the upload's 16–64 kB chunks: each
-      // piece is one call into zlib on the thread pool, and on a 91 MB drive log 1 MiB pieces
-      // took 1.1 s against 1.5–1.8 s for the small ones (docs/performance.md).
-      let held: Buffer[] = [];
-      let heldBytes = 0;
-      const meter = new Transform({
-        transform(chunk: Buffer, _enc, done) {
-          sizeBytes += chunk.length;
-          if (options.maxBytes !== undefined && sizeBytes > options.maxBytes) {
-            done(new BlobTooLargeError(options.maxBytes));
-            return;
-          }
-          hash.update(chunk);
-          held.push(chunk);
-          heldBytes += chunk.length;
-          if (heldBytes < ZLIB_PIECE) return done();
-          const piece = Buffer.concat(held, heldBytes);
-          held = [];
-          heldBytes = 0;
-          done(null, piece);
-        },
-        flush(done) {
-          done(null, heldBytes > 0 ? Buffer.concat(held, heldBytes) : undefined);
-        },
-      });
+      const meter = rawMeter(options.maxBytes);
       // Level 1: measured on a 30 MB drive log, 94 MB/s for a ratio of 2.65, against 19 MB/s
       // and 3.09 at gzip's default 6 — the upload would wait for the compressor.
       const sink = createWriteStream(tmp);
@@ -159,13 +169,13 @@ export function localBlobStore(root: string): BlobStore {
       const closed = new Promise<void>((resolve) => sink.once("close", () => resolve()));
       const written = pipeline(
         source,
-        meter,
+        meter.stream,
         createGzip({ level: 1, chunkSize: ZLIB_PIECE }),
         sink,
       );
       try {
         await written;
-        const key = hash.digest("hex");
+        const key = meter.key();
         const target = pathOf(key);
         await mkdir(dirname(target), { recursive: true });
         // link, not rename: it fails when the file exists, so `created` says for sure whether
@@ -182,7 +192,7 @@ export function localBlobStore(root: string): BlobStore {
           await utimes(target, now, now);
         }
         const { size, mtime } = await stat(target);
-        return { key, sizeBytes, storedBytes: size, created, modifiedAt: mtime };
+        return { key, sizeBytes: meter.bytes(), storedBytes: size, created, modifiedAt: mtime };
       } finally {
         await closed;
         await rm(tmp, { force: true });
