@@ -9,6 +9,7 @@ export default defineConfig({
   },
   test: {
     include: ["tests/e2e/**/*.test.ts"],
+    setupFiles: ["tests/e2e/failure-report.ts"],
     environment: "node",
     testTimeout: 60_000,
     hookTimeout: 60_000,

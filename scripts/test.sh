@@ -69,6 +69,13 @@ start_server() {
   server_pid=$!
   wait_for_http "$TWISTLOG_BASE_URL/healthz" "$server_pid" 60 || { cat "$TEST_ROOT/server.log" >&2; return 1; }
 }
+# On a failure the test server's log goes to the output too: it is deleted with the test folder.
+browser_tests() {
+  node_modules/.bin/vitest run --config vitest.e2e.config.ts --passWithNoTests "${filters[@]}" && return 0
+  log "the test server's log (last 80 lines):"
+  tail -n 80 "$TEST_ROOT/server.log" >&2
+  return 1
+}
 wants_browser() {
   [ ${#filters[@]} -eq 0 ] && return 0
   local f; for f in "${filters[@]}"; do case "$f" in *e2e*) return 0 ;; esac; done
@@ -76,7 +83,7 @@ wants_browser() {
 }
 if wants_browser; then
   step "test server" start_server
-  step "browser tests" node_modules/.bin/vitest run --config vitest.e2e.config.ts --passWithNoTests "${filters[@]}"
+  step "browser tests" browser_tests
 fi
 
 echo

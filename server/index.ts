@@ -7,7 +7,7 @@ import { format } from "node:util";
 import type { ServerBuild } from "react-router";
 import { getEnvOrExit } from "../app/lib/infra/env.server";
 import { startFakeSmtp } from "../app/lib/infra/fake-smtp.server";
-import { redactSecrets } from "../app/lib/base/log-redaction";
+import { redactSecrets, requestLabel } from "../app/lib/base/log-redaction";
 import { newNonce, securityHeaders } from "../app/lib/http/security-headers.server";
 import { createRequestHandler } from "./request-handler";
 
@@ -39,6 +39,21 @@ app.use(
       !String(res.getHeader("ETag") ?? "").startsWith('"') && compression.filter(req, res),
   }),
 );
+// One line per request that takes SLOW_REQUEST_MS or longer (redacted path, no query), on answer
+// or hang-up.
+if (env.SLOW_REQUEST_MS >= 0) {
+  app.use((req, res, next) => {
+    const start = performance.now();
+    res.once("close", () => {
+      const ms = performance.now() - start;
+      if (ms < env.SLOW_REQUEST_MS) return;
+      const label = requestLabel({ method: req.method, url: `http://host${req.originalUrl}` });
+      const answer = res.writableFinished ? res.statusCode : "client went away";
+      console.warn(`slow request: ${label} → ${answer} after ${(ms / 1000).toFixed(1)} s`);
+    });
+    next();
+  });
+}
 app.use((req, res, next) => {
   res.locals.cspNonce = newNonce();
   res.set(

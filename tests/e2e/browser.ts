@@ -2,9 +2,11 @@ import { chromium, type Browser, type Page } from "playwright-core";
 
 export const baseUrl = process.env.TWISTLOG_BASE_URL ?? "http://127.0.0.1:3101";
 
+const launched = new Set<Browser>();
+
 /** Debian's Chromium, headless, with no background network traffic (docs/stack-notes.md). */
-export function launchBrowser(): Promise<Browser> {
-  return chromium.launch({
+export async function launchBrowser(): Promise<Browser> {
+  const browser = await chromium.launch({
     executablePath: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
     args: [
       "--no-sandbox",
@@ -16,6 +18,27 @@ export function launchBrowser(): Promise<Browser> {
       "--no-first-run",
     ],
   });
+  launched.add(browser);
+  browser.on("disconnected", () => launched.delete(browser));
+  return browser;
+}
+
+/**
+ * What every page still open shows: its address and the start of its text. A failed test leaves
+ * its pages open (it closes them only at its end), so this is what the user would have seen when
+ * a wait ran out (tests/e2e/failure-report.ts prints it).
+ */
+export async function openPagesReport(): Promise<string> {
+  const lines: string[] = [];
+  for (const browser of launched)
+    for (const context of browser.contexts())
+      for (const page of context.pages()) {
+        const text = await page
+          .evaluate(() => document.body?.innerText ?? "", undefined)
+          .catch((error: Error) => `(unreadable: ${error.message})`);
+        lines.push(`${page.url()}\n  ${text.replace(/\s+/g, " ").trim().slice(0, 600)}`);
+      }
+  return lines.join("\n");
 }
 
 /** Share of a canvas' pixels that are neither transparent nor white: > 0 means something is drawn. */

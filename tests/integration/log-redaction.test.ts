@@ -27,7 +27,8 @@ beforeAll(async () => {
   const env = getEnv();
   proxy = await startDbProxy({ host: env.DATABASE_HOST, port: env.DATABASE_PORT });
   [server, team] = await Promise.all([
-    startServer({ DATABASE_PORT: String(proxy.port) }),
+    // Every request counts as slow here, so the slow-request line is checked for secrets too.
+    startServer({ DATABASE_PORT: String(proxy.port), SLOW_REQUEST_MS: "0" }),
     createTestTeam("Log"),
   ]);
   const made = await createApiToken({
@@ -78,6 +79,14 @@ describe("no secret reaches the server log (issue 12 §8)", () => {
       expect(log).not.toContain(secret);
     }
     expect(log).not.toMatch(/^\s+at \S/m);
+    // The slow-request lines name the request with its token redacted. Each is written when the
+    // answer's connection closes, which may be after the client has read it; the client above
+    // stops reading early, so the line may say so instead of the status.
+    const slowLine = (request: string) =>
+      new RegExp(`^slow request: ${request} → (\\d{3}|client went away) after \\d+\\.\\d s$`, "m");
+    await expect.poll(server.output).toMatch(slowLine("GET /s/\\[redacted\\]/charts\\.json"));
+    await expect.poll(server.output).toMatch(slowLine("POST /invitations/\\[redacted\\]"));
+    expect(server.output()).not.toContain(shareToken);
   });
 });
 

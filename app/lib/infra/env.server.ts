@@ -66,6 +66,9 @@ const envSchema = z.object({
   // "1": one line per finished analysis saying where its time went (queue, worker start,
   // analysis, save); bench/upload.bench.ts reads it as the server's profile.
   ANALYSIS_TIMINGS: z.enum(["0", "1"]).default("0"),
+  // A request that takes this long (ms) or longer to answer gets one log line with its method,
+  // path, status and time, to find what stalls a page; 0 = every request, -1 = none.
+  SLOW_REQUEST_MS: z.coerce.number().int().min(-1).default(5000),
 });
 
 const checkedEnv = envSchema
