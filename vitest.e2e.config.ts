@@ -14,5 +14,9 @@ export default defineConfig({
     testTimeout: 60_000,
     hookTimeout: 60_000,
     fileParallelism: false,
+    // A failed browser test runs once more, as Playwright's own runner is commonly set up for CI:
+    // a timing flake on a busy machine then does not fail the run, while a real fault fails both
+    // attempts. Every failed attempt is printed with what its pages showed (failure-report.ts).
+    retry: 1,
   },
 });
