@@ -4,6 +4,14 @@ export const baseUrl = process.env.TWISTLOG_BASE_URL ?? "http://127.0.0.1:3101";
 
 const launched = new Set<Browser>();
 
+/**
+ * A tag for names that must be unique (a vehicle's identifier): a new one per call, so a test's
+ * retry (vitest.e2e.config.ts) never meets what its failed attempt made.
+ */
+export function freshTag(): string {
+  return `${Date.now().toString(36)}${Math.random().toString(36).slice(2, 4)}`.toUpperCase();
+}
+
 /** Debian's Chromium, headless, with no background network traffic (docs/stack-notes.md). */
 export async function launchBrowser(): Promise<Browser> {
   const browser = await chromium.launch({

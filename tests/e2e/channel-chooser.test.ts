@@ -4,7 +4,7 @@ import type { Browser, Locator, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
 import { repoRoot } from "../support/processes";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // Issue 14 in Chromium against the production server: an ASAM MDF4 drive log is uploaded, the
@@ -38,9 +38,10 @@ async function snapPart(locator: Locator, name: string) {
 }
 
 async function newVehicle(page: Page, label: string) {
+  const unique = freshTag();
   await page.goto(`${baseUrl}/vehicles/new`);
-  await page.getByLabel("Name").fill(`Kestrel ${label} car ${tag}`);
-  await page.getByLabel("Identifier").fill(`${label}-${tag}`);
+  await page.getByLabel("Name").fill(`Kestrel ${label} car ${unique}`);
+  await page.getByLabel("Identifier").fill(`${label}-${unique}`);
   await page.getByLabel("Cylinders").fill("4");
   await page.getByRole("button", { name: "Add vehicle" }).click();
   await page.waitForURL(/\/vehicles\/\d+$/);

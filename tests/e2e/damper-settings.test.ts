@@ -1,6 +1,6 @@
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // Issue 15's settings in Chromium against the production server of scripts/test.sh (demo
@@ -8,7 +8,8 @@ import { signIn, snap } from "./sign-in";
 // refusals on the field. The test makes its own vehicle.
 
 let browser: Browser;
-const tag = Date.now().toString(36).toUpperCase();
+// Made again by the test that adds the vehicle: each attempt adds its own (vitest.e2e.config.ts).
+let tag = freshTag();
 let vehiclePath = "";
 
 beforeAll(async () => {
@@ -52,6 +53,7 @@ describe("damper settings in the browser", () => {
   });
 
   it("an engineer gives a vehicle its travel limit; 0° is refused on the field", async () => {
+    tag = freshTag();
     const page = await signIn(browser, "engineer@twistlog.test");
     await page.goto(`${baseUrl}/vehicles/new`);
     await page.getByLabel("Name").fill(`Travel estate ${tag}`);

@@ -1,7 +1,7 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyticIdleCsv, expectedIsolationDb, type AnalyticIdle } from "../support/analytic-log";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // Vehicles and drive logs in Chromium against the production server of scripts/test.sh (demo
@@ -10,7 +10,8 @@ import { signIn, snap } from "./sign-in";
 
 let browser: Browser;
 let vehiclePath = "";
-const tag = Date.now().toString(36).toUpperCase();
+// Made again by the test that adds the vehicle: each attempt adds its own (vitest.e2e.config.ts).
+let tag = freshTag();
 
 // An analytic idle log (tests/support/analytic-log.ts): order-2 fluctuation at 800 rpm through a
 // base-excited two-mass system with fn = 12 Hz, ζ = 0.1, so the isolation is known beforehand.
@@ -66,6 +67,7 @@ async function uploadOne(page: Page, name: string, csv: string, condition: strin
 
 describe("vehicles and drive logs in the browser", () => {
   it("an engineer adds a vehicle through the form; a taken identifier is a field error", async () => {
+    tag = freshTag();
     const page = await signIn(browser, "engineer@twistlog.test");
     await page.goto(`${baseUrl}/vehicles`);
     await page.getByRole("link", { name: "Add vehicle" }).click();

@@ -1,7 +1,7 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // "Re-analyse all" (issue 17) in Chromium against the production server of scripts/test.sh:
@@ -12,7 +12,8 @@ import { signIn, snap } from "./sign-in";
 
 let browser: Browser;
 let engineer: Page;
-const tag = Date.now().toString(36).toUpperCase();
+// Made again by the test that adds the vehicle: each attempt adds its own (vitest.e2e.config.ts).
+let tag = freshTag();
 let vehiclePath = "";
 
 beforeAll(async () => {
@@ -28,6 +29,7 @@ const panelOf = (page: Page) => page.getByRole("region", { name: "Re-analyse all
 
 describe("re-analyse all in the browser", () => {
   it("an engineer re-analyses a vehicle's drive logs and sees the progress reach the end", async () => {
+    tag = freshTag();
     const page = engineer;
     await page.goto(`${baseUrl}/vehicles/new`);
     await page.getByLabel("Name").fill(`Batch estate ${tag}`);

@@ -2,7 +2,7 @@ import { readFile } from "node:fs/promises";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyticIdleCsv, expectedIsolationDb, IDLE_800, transferH } from "../support/analytic-log";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // Sign-off (issue 16) in Chromium against the production server of scripts/test.sh: the demo
@@ -73,7 +73,7 @@ afterAll(async () => {
 
 describe("sign-off in the browser", () => {
   it("the engineer makes a vehicle with two targets and one analysed drive log", async () => {
-    tag = Date.now().toString(36).toUpperCase();
+    tag = freshTag();
     logName = `idle-signoff-${tag}.csv`;
     const page = engineer;
     await page.goto(`${baseUrl}/vehicles/new`);

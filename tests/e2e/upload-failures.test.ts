@@ -1,7 +1,7 @@
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyticIdleCsv, IDLE_800 } from "../support/analytic-log";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { signIn, snap } from "./sign-in";
 
 // Issue 11 §3.5 in Chromium against the production server: the upload list says why a file's
@@ -9,7 +9,8 @@ import { signIn, snap } from "./sign-in";
 // are marked as not sendable and left out of the upload button's count.
 
 let browser: Browser;
-const tag = Date.now().toString(36).toUpperCase();
+// Made again by the test that adds the vehicle: each attempt adds its own (vitest.e2e.config.ts).
+let tag = freshTag();
 
 beforeAll(async () => {
   browser = await launchBrowser();
@@ -32,6 +33,7 @@ const binary = Buffer.from([0x50, 0x4b, 0x03, 0x04, 0x14, 0x00, 0x00, 0x00, 0x08
 
 describe("the upload list", () => {
   it("says why a file failed with a link to fix its columns, and never counts files that cannot be sent", async () => {
+    tag = freshTag();
     const page = await signIn(browser, "engineer@twistlog.test");
     await page.goto(`${baseUrl}/vehicles/new`);
     await page.getByLabel("Name").fill(`Kestrel upload car ${tag}`);
