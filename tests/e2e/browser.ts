@@ -32,19 +32,25 @@ export async function launchBrowser(): Promise<Browser> {
 }
 
 /**
- * What every page still open shows: its address and the start of its text. A failed test leaves
- * its pages open (it closes them only at its end), so this is what the user would have seen when
- * a wait ran out (tests/e2e/failure-report.ts prints it).
+ * What every page still open shows: its address and the start of its main content's text. A
+ * failed test leaves its pages open (it closes them only at its end), so this is what the user
+ * would have seen when a wait ran out (tests/e2e/failure-report.ts prints it). A page that does
+ * not answer within 5 s is reported as such.
  */
 export async function openPagesReport(): Promise<string> {
   const lines: string[] = [];
+  const unanswered = () =>
+    new Promise<string>((resolve) => setTimeout(resolve, 5000, "(no answer within 5 s)").unref());
   for (const browser of launched)
     for (const context of browser.contexts())
       for (const page of context.pages()) {
-        const text = await page
-          .evaluate(() => document.body?.innerText ?? "", undefined)
-          .catch((error: Error) => `(unreadable: ${error.message})`);
-        lines.push(`${page.url()}\n  ${text.replace(/\s+/g, " ").trim().slice(0, 600)}`);
+        const text = await Promise.race([
+          page
+            .evaluate(() => (document.querySelector("main") ?? document.body)?.innerText ?? "")
+            .catch((error: Error) => `(unreadable: ${error.message})`),
+          unanswered(),
+        ]);
+        lines.push(`${page.url()}\n  ${text.replace(/\s+/g, " ").trim().slice(0, 800)}`);
       }
   return lines.join("\n");
 }
