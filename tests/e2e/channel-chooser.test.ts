@@ -12,7 +12,7 @@ import { signIn, snap } from "./sign-in";
 // The team's Logger vocabulary is edited on the team page.
 
 let browser: Browser;
-const tag = Date.now().toString(36).toUpperCase();
+const tag = freshTag();
 
 beforeAll(async () => {
   browser = await launchBrowser();

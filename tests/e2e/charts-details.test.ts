@@ -2,7 +2,7 @@ import { readFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { apiJson, demoVehicleId, waitForDemoLogs, type DemoLog } from "./demo-logs";
 import { signIn, snap } from "./sign-in";
 
@@ -158,7 +158,7 @@ describe("target labels on the isolation curve", () => {
   it("draws a target whose line crosses the curve, and states it by the rounding rules", async () => {
     // A vehicle of our own (the demo vehicles keep their seeded targets) with a target that
     // half the run-up's points miss, so points, line and label meet on the plot.
-    const tag = Date.now().toString(36).toUpperCase();
+    const tag = freshTag();
     await page.goto(`${baseUrl}/vehicles/new`);
     await page.getByLabel("Name").fill(`Label estate ${tag}`);
     await page.getByLabel("Identifier").fill(`LBL-${tag}`);

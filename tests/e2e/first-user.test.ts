@@ -1,6 +1,6 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { baseUrl, launchBrowser } from "./browser";
+import { baseUrl, freshTag, launchBrowser } from "./browser";
 import { apiJson, type DemoLog } from "./demo-logs";
 import { DEMO_PASSWORD, signIn, snap } from "./sign-in";
 
@@ -9,7 +9,7 @@ import { DEMO_PASSWORD, signIn, snap } from "./sign-in";
 // no internal warning codes or broken plurals reach readers, unknown addresses get our own 404
 // page, and a shared drive log names the damper it was recorded with.
 
-const tag = Date.now().toString(36).toUpperCase();
+const tag = freshTag();
 let browser: Browser;
 let vehiclePath = "";
 let demoLogs: DemoLog[] = [];

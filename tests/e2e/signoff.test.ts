@@ -16,8 +16,8 @@ let engineer: Page;
 let admin: Page;
 // Set again by each attempt of the first test (vitest.e2e.config.ts retries a failed test once):
 // a retry makes its own vehicle rather than meet the identifier its failed attempt took.
-let tag = "";
-let logName = "";
+let tag = freshTag();
+let logName = `idle-signoff-${tag}.csv`;
 let vehiclePath = "";
 let signoffPath = "";
 let approvedPdf: Buffer | null = null;
